@@ -1,0 +1,72 @@
+/* error.h - status codes, the caller-owned error record and the list of
+ * warnings and notes that every library entry point can fill. */
+#ifndef HYPSOLEV_ERROR_H
+#define HYPSOLEV_ERROR_H
+
+#include <stddef.h>
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+typedef enum hyp_status {
+    HYP_OK = 0,
+    HYP_ERR_IO,          /* a file could not be opened, read or written */
+    HYP_ERR_FORMAT,      /* the file is not of the expected format */
+    HYP_ERR_VALUE,       /* a field holds a value that cannot be used */
+    HYP_ERR_UNIT,        /* a unit is unknown or cannot be inferred */
+    HYP_ERR_NODATA,      /* nothing usable was found */
+    HYP_ERR_USAGE,       /* the caller asked for something inconsistent */
+    HYP_ERR_NOMEM,       /* an allocation failed or a size cap was hit */
+    HYP_ERR_INTERNAL     /* a consistency check of the library failed */
+} hyp_status;
+
+/* The fatal error of a call: one message with its context
+ * ("base.csv:214: pressure \"1O13.2\" is not a number"). */
+typedef struct hyp_error {
+    hyp_status status;
+    char message[1024];
+} hyp_error;
+
+typedef enum hyp_level { HYP_NOTE = 0, HYP_WARNING = 1 } hyp_level;
+
+typedef struct hyp_msg {
+    hyp_level level;
+    char *text;
+} hyp_msg;
+
+/* Warnings and notes collected during a call, in order. Capped: past
+ * `cap_count` messages only `dropped` is counted, so a file with a million
+ * bad rows cannot exhaust memory. */
+typedef struct hyp_msgs {
+    hyp_msg *items;
+    size_t count;
+    size_t alloc;
+    size_t cap_count;   /* 0 means the default (200) */
+    size_t dropped;
+} hyp_msgs;
+
+void hyp_error_clear(hyp_error *err);
+/* Sets err (if not NULL) and returns status, printf-style. */
+hyp_status hyp_error_set(hyp_error *err, hyp_status status, const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 3, 4)))
+#endif
+    ;
+
+void hyp_msgs_init(hyp_msgs *m);
+void hyp_msgs_free(hyp_msgs *m);
+/* Adds a message; msgs may be NULL (then nothing is kept). Out of memory is
+ * counted in `dropped`, never fatal. */
+void hyp_msgs_add(hyp_msgs *m, hyp_level level, const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 3, 4)))
+#endif
+    ;
+
+const char *hyp_status_name(hyp_status s);
+
+#ifdef __cplusplus
+}
+#endif
+#endif

@@ -1,0 +1,95 @@
+/* readers.h - readers of rover and base logs: GPX 1.0/1.1 tracks and CSV
+ * logs. They know formats, times and units, nothing of physics, and fill a
+ * hyp_series plus, for GPX, the byte layout a splicing writer needs. */
+#ifndef HYPSOLEV_READERS_H
+#define HYPSOLEV_READERS_H
+
+#include <stdint.h>
+#include "hypsolev/error.h"
+#include "hypsolev/samples.h"
+#include "hypsolev/timeparse.h"
+#include "hypsolev/units.h"
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+typedef struct hyp_read_opts {
+    /* GPX: local name of the extension element; CSV: column name.
+     * NULL means "pressure", "temperature", "humidity". */
+    const char *pressure_field;
+    const char *temperature_field;
+    const char *humidity_field;
+    /* Units to use when the file does not say; HYP_UNIT_NONE: infer from
+     * magnitude where unambiguous (with a note), else refuse. */
+    hyp_unit pressure_unit;
+    hyp_unit temperature_unit;
+    /* Zone for time stamps without one; NULL: such stamps are refused. */
+    const hyp_zone *zone;
+    /* CSV only: a rover log needs lat and lon columns. */
+    int need_position;
+} hyp_read_opts;
+
+void hyp_read_opts_init(hyp_read_opts *o);
+
+/* Where in a GPX file each point's bytes are, for the splicing writer.
+ * Offsets are byte offsets into the input file. */
+typedef enum hyp_ext_kind {
+    HYP_EXT_INSIDE = 0,   /* ext_ins is just before an existing </extensions> */
+    HYP_EXT_WRAP = 1,     /* GPX 1.1, no <extensions>: ext_ins is before </trkpt> */
+    HYP_EXT_BARE = 2      /* GPX 1.0: elements go bare before </trkpt> */
+} hyp_ext_kind;
+
+typedef struct hyp_gpx_layout {
+    int version;            /* 10 or 11 */
+    int has_namespace;      /* the root declares the GPX namespace */
+    char prefix[64];        /* prefix of the GPX namespace ("" for default) */
+    int64_t root_attr_ins;  /* where xmlns:hyp="..." goes in the root tag */
+    int has_hyp_ns;         /* the root already declares our namespace */
+    int64_t *open_end;      /* just after the '>' of each point's start tag */
+    int64_t *ele_beg;       /* start of <ele>'s text, -1 without <ele> */
+    int64_t *ele_end;       /* end of <ele>'s text (start of </ele>) */
+    int64_t *ext_ins;       /* where the added elements go */
+    uint8_t *ext_kind;      /* hyp_ext_kind */
+    int64_t file_size;
+} hyp_gpx_layout;
+
+typedef struct hyp_waypoints {
+    size_t count, alloc;
+    char **name;
+    double *time_s, *lat_deg, *lon_deg;
+} hyp_waypoints;
+
+typedef struct hyp_gpx_doc {
+    hyp_series pts;         /* one sample per trkpt/rtept, in file order */
+    hyp_gpx_layout layout;
+    hyp_waypoints wpts;
+    hyp_unit pressure_unit, temperature_unit;  /* as found or inferred */
+} hyp_gpx_doc;
+
+void hyp_gpx_doc_init(hyp_gpx_doc *d);
+void hyp_gpx_doc_free(hyp_gpx_doc *d);
+
+/* Reads a GPX 1.0 or 1.1 file (or one without namespace) with a streaming
+ * parser: never builds a tree, never expands external entities or reaches the
+ * network. Refuses encodings other than UTF-8 / ASCII. */
+hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts,
+                        hyp_gpx_doc *doc, hyp_msgs *msgs, hyp_error *err);
+
+/* Reads a CSV log: header row with columns time, pressure, and optional
+ * temperature, humidity, lat, lon, ele (case-insensitive, a unit in
+ * brackets "pressure [hPa]"), delimiter , ; or tab (detected), decimal
+ * comma where the delimiter is not a comma, quoted fields, blank and '#'
+ * lines skipped, UTF-8 byte-order mark accepted. */
+hyp_status hyp_csv_read(const char *path, const hyp_read_opts *opts,
+                        hyp_series *out, hyp_unit *pressure_unit_found,
+                        hyp_msgs *msgs, hyp_error *err);
+
+/* 1 when the file looks like XML (first non-blank byte after an optional
+ * byte-order mark is '<'), 0 when not, -1 when it cannot be read. */
+int hyp_file_is_xml(const char *path);
+
+#ifdef __cplusplus
+}
+#endif
+#endif

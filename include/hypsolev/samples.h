@@ -1,0 +1,64 @@
+/* samples.h - a time series of barometer samples as plain arrays (struct of
+ * arrays), the unit of data that passes from readers to the core. */
+#ifndef HYPSOLEV_SAMPLES_H
+#define HYPSOLEV_SAMPLES_H
+
+#include <stddef.h>
+#include <stdint.h>
+#include "hypsolev/error.h"
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+/* One array per quantity, all of length `count`. A missing value is NaN.
+ * time_s: seconds since 1970-01-01T00:00:00Z (UTC, leap seconds ignored as
+ * POSIX does); pressure_pa: Pa; temp_k: K; rh_pct: relative humidity, %;
+ * lat_deg, lon_deg: degrees (WGS84); ele_m: the file's own height, m.
+ * `line` is the file line the sample came from (1-based), for messages. */
+typedef struct hyp_series {
+    size_t count;
+    size_t alloc;
+    double *time_s;
+    double *pressure_pa;
+    double *temp_k;
+    double *rh_pct;
+    double *lat_deg;
+    double *lon_deg;
+    double *ele_m;
+    uint32_t *line;
+    uint8_t *flag;     /* hyp_sample_flag: why a reader refused the sample */
+    /* flags for the whole series */
+    int has_temp;      /* at least one sample has a temperature */
+    int has_rh;
+    int has_position;  /* lat/lon present */
+} hyp_series;
+
+/* A reader keeps every record (so that a GPX writer can map outputs back to
+ * points) and marks those it refused; the core uses only HYP_SAMPLE_OK. */
+typedef enum hyp_sample_flag {
+    HYP_SAMPLE_OK = 0,
+    HYP_SAMPLE_NO_TIME,          /* no time stamp */
+    HYP_SAMPLE_NO_PRESSURE,      /* no pressure value */
+    HYP_SAMPLE_PRESSURE_RANGE,   /* pressure outside 300-1100 hPa */
+    HYP_SAMPLE_TIME_ORDER,       /* time earlier than or equal to the previous */
+    HYP_SAMPLE_BAD_VALUE,        /* a field could not be read */
+    HYP_SAMPLE_FLAG_COUNT
+} hyp_sample_flag;
+
+/* Short English reason for a flag ("pressure outside 300-1100 hPa"). */
+const char *hyp_sample_flag_text(hyp_sample_flag f);
+
+void hyp_series_init(hyp_series *s);
+void hyp_series_free(hyp_series *s);
+/* Appends one sample (NaN for what is missing). HYP_ERR_NOMEM on failure. */
+hyp_status hyp_series_push(hyp_series *s, double time_s, double pressure_pa,
+                           double temp_k, double rh_pct, double lat_deg,
+                           double lon_deg, double ele_m, uint32_t line, hyp_sample_flag flag);
+/* Number of samples with flag f. */
+size_t hyp_series_count_flag(const hyp_series *s, hyp_sample_flag f);
+
+#ifdef __cplusplus
+}
+#endif
+#endif

@@ -1,0 +1,42 @@
+/* writers.h - outputs: the corrected GPX (input bytes copied, values
+ * spliced in), a new GPX 1.1 for rovers that were CSV logs, and the table.
+ * Every writer writes a temporary file beside the target and renames it into
+ * place, so a target is either the old file or the complete new one. */
+#ifndef HYPSOLEV_WRITERS_H
+#define HYPSOLEV_WRITERS_H
+
+#include "hypsolev/error.h"
+#include "hypsolev/readers.h"
+#include "hypsolev/correct.h"
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+/* The namespace of the elements this project adds, and its fixed prefix. */
+#define HYP_GPX_NS "urn:hypsolev:gpx:1"
+#define HYP_GPX_PREFIX "hyp"
+
+/* Copies in_path to out_path replacing each corrected point's <ele> value
+ * and adding hyp:ele_in, hyp:sigma (or hyp:status) under its extensions.
+ * Refuses when out_path is in_path (same file). */
+hyp_status hyp_gpx_write_spliced(const char *in_path, const hyp_gpx_doc *doc,
+                                 const hyp_correct_result *res,
+                                 const char *out_path, hyp_error *err);
+
+/* Writes a new GPX 1.1 track from a series (a rover read from CSV). */
+hyp_status hyp_gpx_write_new(const hyp_series *s, const hyp_correct_result *res,
+                             const char *track_name, const char *out_path,
+                             hyp_error *err);
+
+/* Writes the table (CSV, one row per rover sample); "-" is stdout. */
+hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res,
+                           const char *out_path, hyp_error *err);
+
+/* 1 when the two paths name the same existing file, else 0. */
+int hyp_same_file(const char *a, const char *b);
+
+#ifdef __cplusplus
+}
+#endif
+#endif

@@ -1,0 +1,636 @@
+/* cmd_correct.c - "hypsolev correct": reads the logs, calls the library's
+ * correction, writes the outputs, prints the run summary on stderr. */
+#define _POSIX_C_SOURCE 200809L
+#include "cli.h"
+#include "hypsolev/hypsolev.h"
+
+#include <errno.h>
+#include <getopt.h>
+#include <libgen.h>
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+
+#define MAX_BASES 16
+#define MAX_WINDOWS 64
+
+typedef struct base_arg {
+    const char *path;
+    double height_m, lat_deg, lon_deg, clock_s;
+    const char *zone;
+} base_arg;
+
+typedef struct args {
+    const char **rovers;
+    int n_rovers;
+    base_arg bases[MAX_BASES];
+    int n_bases;
+    const char *out, *out_dir, *table, *rover_zone;
+    const char *colocate_text[MAX_WINDOWS];
+    int n_colocate;
+    int quiet;
+    hyp_read_opts ropts;
+    hyp_correct_opts copts;
+} args;
+
+static void help(void)
+{
+    fputs(
+"usage: hypsolev correct ROVER [ROVER...] --base FILE --base-height M [options]\n"
+"\n"
+"Corrects each ROVER (GPX track, or CSV log with time, pressure, lat, lon)\n"
+"against the pressure log of a base station of known height.\n"
+"\n"
+"base station (these apply to the --base before them):\n"
+"  --base FILE              base log (CSV or GPX) with time and pressure\n"
+"  --base-height M          height of the base sensor, m (required)\n"
+"  --base-at LAT,LON        base position, degrees; enables automatic co-location\n"
+"  --base-clock-offset S    seconds the base logger's clock is ahead of true time\n"
+"  --base-time-zone Z       zone of base times that carry none (+HH:MM, UTC, Area/City)\n"
+"\n"
+"rover-minus-base instrument offset:\n"
+"  --offset PA              offset in Pa (rover reads this much higher than base)\n"
+"  --offset-sigma PA        its 1-sigma uncertainty, Pa (default 0)\n"
+"  --colocate START/END     rover beside the base in this window (ISO 8601 times);\n"
+"                           repeatable; replaces automatic detection\n"
+"  --no-auto-colocate       do not look for co-location from positions\n"
+"  --colocate-radius M      co-location radius, m (default 30)\n"
+"  --colocate-min S         minimum co-location time, s (default 300)\n"
+"\n"
+"air column:\n"
+"  --column-temp MODE       base (base thermometer and lapse rate, default),\n"
+"                           rover (base and rover thermometers), both (their mean)\n"
+"  --lapse-rate K_PER_KM    default -6.5 K/km (standard atmosphere)\n"
+"  --humidity PCT           humidity when no log has one (default 50 %)\n"
+"  --max-gap S              longest base gap bridged, s (default 180)\n"
+"\n"
+"inputs:\n"
+"  --pressure-unit U        Pa, hPa, mbar, kPa, inHg, mmHg (when the file says none)\n"
+"  --temperature-unit U     degC, K, degF\n"
+"  --pressure-field NAME    element or column name of pressure (default pressure)\n"
+"  --temperature-field NAME (default temperature)\n"
+"  --humidity-field NAME    (default humidity)\n"
+"  --time-zone Z            zone of rover times that carry none\n"
+"\n"
+"outputs (at least one):\n"
+"  -o, --output FILE        corrected GPX (one rover only)\n"
+"  --out-dir DIR            DIR/NAME.gpx and DIR/NAME.csv for each rover NAME.*\n"
+"  --table FILE             per-sample table (CSV); - is standard output\n"
+"  -q, --quiet              no run summary, warnings only\n"
+"\n"
+"examples:\n"
+"  hypsolev correct walk.gpx --base base.csv --base-height 812.4 \\\n"
+"      --base-at 46.80,9.90 -o walk-corrected.gpx --table walk.csv\n"
+"  hypsolev correct day1.csv --base hut.csv --base-height 1520 --offset 35 \\\n"
+"      --out-dir results/\n"
+"\n"
+"exit status: 0 all went well, 1 an input could not be used, 2 usage error.\n"
+"\n", stdout);
+    cli_print_safety();
+}
+
+static int usage_error(const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 1, 2)))
+#endif
+    ;
+
+static int usage_error(const char *fmt, ...)
+{
+    va_list ap;
+    va_start(ap, fmt);
+    fputs("hypsolev correct: ", stderr);
+    vfprintf(stderr, fmt, ap);
+    va_end(ap);
+    fputs("\n(hypsolev correct --help lists the options)\n", stderr);
+    return EXIT_USAGE;
+}
+
+static int parse_double(const char *s, double *v)
+{
+    char *end;
+    errno = 0;
+    *v = strtod(s, &end);
+    return s[0] && *end == '\0' && errno == 0 && isfinite(*v);
+}
+
+enum {
+    O_BASE = 256, O_BASE_HEIGHT, O_BASE_AT, O_BASE_CLOCK, O_BASE_TZ, O_OFFSET, O_OFFSET_SIGMA,
+    O_COLOC, O_NO_AUTO, O_COLOC_R, O_COLOC_MIN, O_TCOL, O_LAPSE, O_RH, O_GAP, O_PUNIT, O_TUNIT,
+    O_PFIELD, O_TFIELD, O_HFIELD, O_TZ, O_OUTDIR, O_TABLE, O_HELP
+};
+
+static const struct option longopts[] = {
+    {"base", required_argument, 0, O_BASE},
+    {"base-height", required_argument, 0, O_BASE_HEIGHT},
+    {"base-at", required_argument, 0, O_BASE_AT},
+    {"base-clock-offset", required_argument, 0, O_BASE_CLOCK},
+    {"base-time-zone", required_argument, 0, O_BASE_TZ},
+    {"offset", required_argument, 0, O_OFFSET},
+    {"offset-sigma", required_argument, 0, O_OFFSET_SIGMA},
+    {"colocate", required_argument, 0, O_COLOC},
+    {"no-auto-colocate", no_argument, 0, O_NO_AUTO},
+    {"colocate-radius", required_argument, 0, O_COLOC_R},
+    {"colocate-min", required_argument, 0, O_COLOC_MIN},
+    {"column-temp", required_argument, 0, O_TCOL},
+    {"lapse-rate", required_argument, 0, O_LAPSE},
+    {"humidity", required_argument, 0, O_RH},
+    {"max-gap", required_argument, 0, O_GAP},
+    {"pressure-unit", required_argument, 0, O_PUNIT},
+    {"temperature-unit", required_argument, 0, O_TUNIT},
+    {"pressure-field", required_argument, 0, O_PFIELD},
+    {"temperature-field", required_argument, 0, O_TFIELD},
+    {"humidity-field", required_argument, 0, O_HFIELD},
+    {"time-zone", required_argument, 0, O_TZ},
+    {"output", required_argument, 0, 'o'},
+    {"out-dir", required_argument, 0, O_OUTDIR},
+    {"table", required_argument, 0, O_TABLE},
+    {"quiet", no_argument, 0, 'q'},
+    {"help", no_argument, 0, O_HELP},
+    {0, 0, 0, 0},
+};
+
+/* A numeric option value within [lo, hi]; returns 0 on success. */
+static int num_opt(const char *name, const char *text, double lo, double hi, double *v)
+{
+    if (!parse_double(text, v) || *v < lo || *v > hi) {
+        fprintf(stderr, "hypsolev correct: %s \"%s\": expected a number from %g to %g\n", name, text, lo, hi);
+        return -1;
+    }
+    return 0;
+}
+
+static base_arg *last_base(args *a, const char *opt)
+{
+    if (a->n_bases == 0) {
+        fprintf(stderr, "hypsolev correct: %s must follow the --base it applies to\n", opt);
+        return NULL;
+    }
+    return &a->bases[a->n_bases - 1];
+}
+
+static int parse_base_opt(args *a, int c, const char *arg)
+{
+    if (c == O_BASE) {
+        if (a->n_bases == MAX_BASES)
+            return usage_error("more than %s bases", "16");
+        base_arg *b = &a->bases[a->n_bases++];
+        b->path = arg;
+        b->height_m = b->lat_deg = b->lon_deg = NAN;
+        b->clock_s = 0.0;
+        b->zone = NULL;
+        return 0;
+    }
+    const char *name = c == O_BASE_HEIGHT ? "--base-height" : c == O_BASE_AT ? "--base-at"
+                     : c == O_BASE_CLOCK ? "--base-clock-offset" : "--base-time-zone";
+    base_arg *b = last_base(a, name);
+    if (!b)
+        return EXIT_USAGE;
+    if (c == O_BASE_HEIGHT)
+        return num_opt(name, arg, -500.0, 9000.0, &b->height_m) ? EXIT_USAGE : 0;
+    if (c == O_BASE_CLOCK)
+        return num_opt(name, arg, -86400.0, 86400.0, &b->clock_s) ? EXIT_USAGE : 0;
+    if (c == O_BASE_TZ) {
+        b->zone = arg;
+        return 0;
+    }
+    char buf[128];
+    snprintf(buf, sizeof buf, "%s", arg);
+    char *comma = strchr(buf, ',');
+    if (!comma)
+        return usage_error("--base-at \"%s\": expected LAT,LON in degrees", arg);
+    *comma = '\0';
+    if (num_opt("--base-at latitude", buf, -90, 90, &b->lat_deg) ||
+        num_opt("--base-at longitude", comma + 1, -180, 180, &b->lon_deg))
+        return EXIT_USAGE;
+    return 0;
+}
+
+static int parse_unit_opt(hyp_quantity q, const char *name, const char *arg, hyp_unit *u)
+{
+    *u = hyp_unit_parse(q, arg);
+    if (!*u) {
+        fprintf(stderr, "hypsolev correct: %s \"%s\": expected one of %s\n", name, arg, hyp_unit_choices(q));
+        return EXIT_USAGE;
+    }
+    return 0;
+}
+
+static int parse_one(args *a, int c, const char *arg)
+{
+    hyp_correct_opts *o = &a->copts;
+    switch (c) {
+    case O_BASE: case O_BASE_HEIGHT: case O_BASE_AT: case O_BASE_CLOCK: case O_BASE_TZ:
+        return parse_base_opt(a, c, arg);
+    case O_OFFSET: return num_opt("--offset", arg, -5000, 5000, &o->offset_pa) ? EXIT_USAGE : 0;
+    case O_OFFSET_SIGMA: return num_opt("--offset-sigma", arg, 0, 5000, &o->offset_sigma_pa) ? EXIT_USAGE : 0;
+    case O_COLOC:
+        if (a->n_colocate == MAX_WINDOWS)
+            return usage_error("more than %s --colocate windows", "64");
+        a->colocate_text[a->n_colocate++] = arg;
+        return 0;
+    case O_NO_AUTO: o->auto_colocate = 0; return 0;
+    case O_COLOC_R: return num_opt("--colocate-radius", arg, 0, 10000, &o->coloc_radius_m) ? EXIT_USAGE : 0;
+    case O_COLOC_MIN: return num_opt("--colocate-min", arg, 10, 86400, &o->coloc_min_s) ? EXIT_USAGE : 0;
+    case O_GAP: return num_opt("--max-gap", arg, 1, 86400, &o->max_gap_s) ? EXIT_USAGE : 0;
+    case O_RH: return num_opt("--humidity", arg, 0, 100, &o->default_rh_pct) ? EXIT_USAGE : 0;
+    case O_LAPSE: {
+        double l;
+        if (num_opt("--lapse-rate", arg, -12, 12, &l))
+            return EXIT_USAGE;
+        o->lapse_k_per_m = l / 1000.0;
+        return 0;
+    }
+    case O_TCOL:
+        if (strcmp(arg, "base") == 0) o->tcol = HYP_TCOL_BASE_LAPSE;
+        else if (strcmp(arg, "rover") == 0) o->tcol = HYP_TCOL_ROVER;
+        else if (strcmp(arg, "both") == 0) o->tcol = HYP_TCOL_BOTH;
+        else return usage_error("--column-temp \"%s\": expected base, rover or both", arg);
+        return 0;
+    case O_PUNIT: return parse_unit_opt(HYP_Q_PRESSURE, "--pressure-unit", arg, &a->ropts.pressure_unit);
+    case O_TUNIT: return parse_unit_opt(HYP_Q_TEMPERATURE, "--temperature-unit", arg, &a->ropts.temperature_unit);
+    case O_PFIELD: a->ropts.pressure_field = arg; return 0;
+    case O_TFIELD: a->ropts.temperature_field = arg; return 0;
+    case O_HFIELD: a->ropts.humidity_field = arg; return 0;
+    case O_TZ: a->rover_zone = arg; return 0;
+    case 'o': a->out = arg; return 0;
+    case O_OUTDIR: a->out_dir = arg; return 0;
+    case O_TABLE: a->table = arg; return 0;
+    case 'q': a->quiet = 1; return 0;
+    }
+    return EXIT_USAGE;
+}
+
+static int check_args(args *a)
+{
+    if (a->n_rovers == 0)
+        return usage_error("no rover file given");
+    if (a->n_bases == 0)
+        return usage_error("no --base given: a base station's pressure log is needed");
+    if (a->n_bases > 1)
+        return usage_error("%s bases given: this version corrects against one base; the two-base and field methods are not available yet",
+                           a->n_bases == 2 ? "two" : "several");
+    if (a->bases[0].height_m != a->bases[0].height_m)
+        return usage_error("--base %s has no --base-height", a->bases[0].path);
+    if (!a->out && !a->out_dir && !a->table)
+        return usage_error("no output: give -o FILE.gpx, --out-dir DIR or --table FILE");
+    if (a->out && a->n_rovers > 1)
+        return usage_error("-o names one output but %s rovers are given; use --out-dir", "several");
+    if (a->out && a->out_dir)
+        return usage_error("-o and --out-dir both given; choose one");
+    if (a->table && a->n_rovers > 1 && strcmp(a->table, "-") != 0)
+        return usage_error("--table names one file but several rovers are given; use --out-dir (it writes one table per rover)");
+    return 0;
+}
+
+static int parse_args(args *a, int argc, char **argv)
+{
+    memset(a, 0, sizeof *a);
+    hyp_read_opts_init(&a->ropts);
+    hyp_correct_opts_init(&a->copts);
+    a->rovers = calloc((size_t)argc, sizeof *a->rovers);
+    if (!a->rovers)
+        return EXIT_INPUT;
+    opterr = 0;
+    optind = 1;
+    int c;
+    /* "-" first: positional arguments are returned in order as 1, so the
+     * per-base options keep their place after their --base. */
+    while ((c = getopt_long(argc, argv, "-o:q", longopts, NULL)) != -1) {
+        if (c == 1) {
+            a->rovers[a->n_rovers++] = optarg;
+            continue;
+        }
+        if (c == O_HELP) {
+            help();
+            return -1;
+        }
+        if (c == '?' || c == ':') {
+            if (optopt)
+                fprintf(stderr, "hypsolev correct: option -%c %s\n", optopt, c == ':' ? "needs a value" : "is unknown");
+            else
+                fprintf(stderr, "hypsolev correct: option \"%s\" is unknown or needs a value\n", argv[optind - 1]);
+            fputs("(hypsolev correct --help lists the options)\n", stderr);
+            return EXIT_USAGE;
+        }
+        int r = parse_one(a, c, optarg);
+        if (r)
+            return r;
+    }
+    return check_args(a);
+}
+
+static void print_msgs(const hyp_msgs *m, int quiet)
+{
+    for (size_t i = 0; i < m->count; i++) {
+        if (quiet && m->items[i].level == HYP_NOTE)
+            continue;
+        fprintf(stderr, "hypsolev: %s: %s\n", m->items[i].level == HYP_WARNING ? "warning" : "note", m->items[i].text);
+    }
+    if (m->dropped)
+        fprintf(stderr, "hypsolev: %zu more messages not shown\n", m->dropped);
+}
+
+/* A log read by either reader, into a series. */
+typedef struct log_in {
+    int is_gpx;
+    hyp_gpx_doc doc;
+    hyp_series csv;
+    hyp_unit punit;
+} log_in;
+
+static const hyp_series *log_series(const log_in *l)
+{
+    return l->is_gpx ? &l->doc.pts : &l->csv;
+}
+
+static hyp_status read_log(const char *path, const hyp_read_opts *ro, log_in *l, hyp_msgs *msgs, hyp_error *err)
+{
+    hyp_gpx_doc_init(&l->doc);
+    hyp_series_init(&l->csv);
+    l->punit = HYP_UNIT_NONE;
+    int x = hyp_file_is_xml(path);
+    l->is_gpx = x == 1;
+    if (l->is_gpx) {
+        hyp_status st = hyp_gpx_read(path, ro, &l->doc, msgs, err);
+        l->punit = l->doc.pressure_unit;
+        return st;
+    }
+    return hyp_csv_read(path, ro, &l->csv, &l->punit, msgs, err);
+}
+
+static void log_free(log_in *l)
+{
+    hyp_gpx_doc_free(&l->doc);
+    hyp_series_free(&l->csv);
+}
+
+static void span_text(const hyp_series *s, char *buf, size_t n)
+{
+    double t0 = NAN, t1 = NAN;
+    size_t used = 0;
+    for (size_t i = 0; i < s->count; i++)
+        if (!s->flag[i]) {
+            if (t0 != t0)
+                t0 = s->time_s[i];
+            t1 = s->time_s[i];
+            used++;
+        }
+    char a[40], b[40];
+    hyp_time_format(t0, a, sizeof a);
+    hyp_time_format(t1, b, sizeof b);
+    snprintf(buf, n, "%zu samples (%zu usable), %s to %s (%.2f h)", s->count, used, a, b, (t1 - t0) / 3600.0);
+}
+
+static int cmp_d(const void *x, const void *y)
+{
+    double a = *(const double *)x, b = *(const double *)y;
+    return (a > b) - (a < b);
+}
+
+static void print_sigma_stats(const hyp_correct_result *r)
+{
+    double *v = malloc((r->n_ok ? r->n_ok : 1) * sizeof *v);
+    if (!v)
+        return;
+    size_t n = 0;
+    for (size_t i = 0; i < r->count; i++)
+        if (r->status[i] == HYP_PT_OK)
+            v[n++] = r->sigma_m[i];
+    qsort(v, n, sizeof *v, cmp_d);
+    if (n)
+        fprintf(stderr, "  sigma     median %.2f m, largest %.2f m (1 sigma)\n", v[n / 2], v[n - 1]);
+    free(v);
+}
+
+static void print_summary(const char *rover_path, const log_in *rv, const base_arg *ba, const log_in *bl,
+                          const hyp_correct_result *r, const char *wrote)
+{
+    char span[200];
+    fprintf(stderr, "hypsolev correct: %s\n", rover_path);
+    span_text(log_series(rv), span, sizeof span);
+    fprintf(stderr, "  rover     %s; pressure in %s\n", span, hyp_unit_name(rv->punit));
+    span_text(log_series(bl), span, sizeof span);
+    fprintf(stderr, "  base      %s: %s; pressure in %s\n", ba->path, span, hyp_unit_name(bl->punit));
+    fprintf(stderr, "            height %.3f m", ba->height_m);
+    if (ba->lat_deg == ba->lat_deg)
+        fprintf(stderr, ", at %.6f, %.6f deg", ba->lat_deg, ba->lon_deg);
+    fprintf(stderr, ", clock offset %+.1f s\n", ba->clock_s);
+    fprintf(stderr, "  method    %s\n", r->method);
+    if (r->offset_source == 1)
+        fprintf(stderr, "  offset    %+.2f hPa given (--offset)\n", r->offset_pa[0] == r->offset_pa[0] ? r->offset_pa[0] / 100.0 : NAN);
+    else if (r->offset_source == 0)
+        fprintf(stderr, "  offset    none: not calibrated (no co-location, no --offset)\n");
+    for (size_t k = 0; k < r->n_colocs; k++) {
+        const hyp_coloc *c = &r->colocs[k];
+        char a[40], b[40];
+        hyp_time_format(c->start_s, a, sizeof a);
+        hyp_time_format(c->end_s, b, sizeof b);
+        fprintf(stderr, "  %s co-location %s to %s: rover - base %+.3f hPa, standard error %.3f hPa, %zu samples%s\n",
+                k ? "         " : "offset   ", a, b, c->offset_pa / 100.0, c->se_pa / 100.0, c->n,
+                c->automatic ? " (found from positions)" : " (given)");
+    }
+    if (r->n_colocs > 1)
+        fprintf(stderr, "            offset interpolated linearly in time between co-locations (instrument drift %+.3f hPa/h)\n",
+                (r->colocs[r->n_colocs - 1].offset_pa - r->colocs[0].offset_pa) / 100.0 /
+                    ((r->colocs[r->n_colocs - 1].start_s + r->colocs[r->n_colocs - 1].end_s - r->colocs[0].start_s - r->colocs[0].end_s) / 7200.0));
+    fprintf(stderr, "  noise     rover %.3f hPa, base %.3f hPa (1 sigma, estimated from the data)\n",
+            r->rover_noise_pa / 100.0, r->base_noise_pa / 100.0);
+    if (r->n_ok)
+        fprintf(stderr, "  column    mean virtual temperature %.2f to %.2f degC\n", r->tcol_min_k - 273.15, r->tcol_max_k - 273.15);
+    fprintf(stderr, "  weather   base pressure trend %+.3f hPa/h over the log\n", r->base_tendency_pa_s * 36.0);
+    fprintf(stderr, "  heights   %zu of %zu corrected", r->n_ok, r->count);
+    for (int s = 1; s < HYP_PT_STATUS_COUNT; s++)
+        if (r->n_status[s])
+            fprintf(stderr, "; %zu %s", r->n_status[s], hyp_point_status_text((hyp_point_status)s));
+    fputc('\n', stderr);
+    for (int f = 1; f < HYP_SAMPLE_FLAG_COUNT; f++)
+        if (r->n_flag[f])
+            fprintf(stderr, "            %zu dropped by the reader: %s\n", r->n_flag[f], hyp_sample_flag_text((hyp_sample_flag)f));
+    print_sigma_stats(r);
+    fprintf(stderr, "  wrote     %s\n", wrote);
+}
+
+static hyp_status parse_windows(args *a, const hyp_zone *z, hyp_window *w, hyp_error *err)
+{
+    for (int k = 0; k < a->n_colocate; k++) {
+        char buf[128];
+        snprintf(buf, sizeof buf, "%s", a->colocate_text[k]);
+        char *slash = strchr(buf, '/');
+        if (slash)
+            *slash = '\0';
+        if (!slash || hyp_time_parse(buf, z, &w[k].start_s) || hyp_time_parse(slash + 1, z, &w[k].end_s) ||
+            !(w[k].end_s > w[k].start_s))
+            return hyp_error_set(err, HYP_ERR_USAGE,
+                                 "--colocate \"%s\": expected START/END, two ISO 8601 times with zone, END after START",
+                                 a->colocate_text[k]);
+    }
+    a->copts.colocate = w;
+    a->copts.n_colocate = (size_t)a->n_colocate;
+    return HYP_OK;
+}
+
+static void stem_of(const char *path, char *out, size_t n)
+{
+    char tmp[4096];
+    snprintf(tmp, sizeof tmp, "%s", path);
+    const char *b = basename(tmp);
+    snprintf(out, n, "%s", b);
+    char *dot = strrchr(out, '.');
+    if (dot && dot != out)
+        *dot = '\0';
+}
+
+static int same_as_any_input(const args *a, const char *out)
+{
+    for (int i = 0; i < a->n_rovers; i++)
+        if (hyp_same_file(a->rovers[i], out))
+            return 1;
+    return hyp_same_file(a->bases[0].path, out);
+}
+
+static hyp_status write_outputs(const args *a, const char *rover_path, const log_in *rv,
+                                const hyp_correct_result *res, char *wrote, size_t wn, hyp_error *err)
+{
+    char gpx_path[4096] = "", csv_path[4096] = "";
+    if (a->out)
+        snprintf(gpx_path, sizeof gpx_path, "%s", a->out);
+    if (a->table)
+        snprintf(csv_path, sizeof csv_path, "%s", a->table);
+    if (a->out_dir) {
+        char stem[1024];
+        stem_of(rover_path, stem, sizeof stem);
+        snprintf(gpx_path, sizeof gpx_path, "%s/%s.gpx", a->out_dir, stem);
+        if (!a->table)
+            snprintf(csv_path, sizeof csv_path, "%s/%s.csv", a->out_dir, stem);
+    }
+    const char *paths[2] = {gpx_path, csv_path};
+    for (int k = 0; k < 2; k++)
+        if (paths[k][0] && strcmp(paths[k], "-") != 0 && same_as_any_input(a, paths[k]))
+            return hyp_error_set(err, HYP_ERR_USAGE, "%s: output would overwrite an input; choose another name", paths[k]);
+    hyp_status st = HYP_OK;
+    wrote[0] = '\0';
+    if (gpx_path[0]) {
+        char name[1024];
+        stem_of(rover_path, name, sizeof name);
+        st = rv->is_gpx ? hyp_gpx_write_spliced(rover_path, &rv->doc, res, gpx_path, err)
+                        : hyp_gpx_write_new(&rv->csv, res, name, gpx_path, err);
+        if (st)
+            return st;
+        snprintf(wrote, wn, "%s", gpx_path);
+    }
+    if (csv_path[0]) {
+        st = hyp_table_write(log_series(rv), res, csv_path, err);
+        if (st)
+            return st;
+        size_t l = strlen(wrote);
+        snprintf(wrote + l, wn - l, "%s%s", l ? ", " : "", strcmp(csv_path, "-") ? csv_path : "(table on standard output)");
+    }
+    return HYP_OK;
+}
+
+static int correct_one(args *a, const char *rover_path, const log_in *bl, const hyp_zone *rz)
+{
+    hyp_msgs msgs;
+    hyp_msgs_init(&msgs);
+    hyp_error err;
+    hyp_error_clear(&err);
+    log_in rv;
+    hyp_correct_result res;
+    hyp_correct_result_init(&res);
+    hyp_read_opts ro = a->ropts;
+    ro.zone = rz;
+    ro.need_position = 1;
+    hyp_status st = read_log(rover_path, &ro, &rv, &msgs, &err);
+    if (!st) {
+        const base_arg *ba = &a->bases[0];
+        hyp_base base = {.log = log_series(bl), .name = ba->path, .height_m = ba->height_m,
+                         .lat_deg = ba->lat_deg, .lon_deg = ba->lon_deg, .clock_offset_s = ba->clock_s};
+        st = hyp_correct_single_base(log_series(&rv), &base, &a->copts, &res, &msgs, &err);
+    }
+    char wrote[8300] = "";
+    if (!st)
+        st = write_outputs(a, rover_path, &rv, &res, wrote, sizeof wrote, &err);
+    print_msgs(&msgs, a->quiet);
+    if (!st && !a->quiet)
+        print_summary(rover_path, &rv, &a->bases[0], bl, &res, wrote);
+    if (st)
+        fprintf(stderr, "hypsolev: error: %s\n", err.message);
+    hyp_correct_result_free(&res);
+    log_free(&rv);
+    hyp_msgs_free(&msgs);
+    return st == HYP_ERR_USAGE ? EXIT_USAGE : st ? EXIT_INPUT : 0;
+}
+
+static int make_zone(const char *text, const char *opt, hyp_zone *z)
+{
+    hyp_zone_init(z);
+    if (!text)
+        return 0;
+    hyp_error err;
+    if (hyp_zone_parse(z, text, NULL, &err)) {
+        fprintf(stderr, "hypsolev correct: %s: %s\n", opt, err.message);
+        return EXIT_USAGE;
+    }
+    return 0;
+}
+
+static int run(args *a)
+{
+    hyp_zone rz, bz;
+    int rc = make_zone(a->rover_zone, "--time-zone", &rz);
+    if (!rc)
+        rc = make_zone(a->bases[0].zone, "--base-time-zone", &bz);
+    else
+        hyp_zone_init(&bz);
+    hyp_window w[MAX_WINDOWS];
+    hyp_error err;
+    hyp_msgs msgs;
+    hyp_msgs_init(&msgs);
+    log_in bl;
+    hyp_gpx_doc_init(&bl.doc);
+    hyp_series_init(&bl.csv);
+    if (!rc && parse_windows(a, &rz, w, &err)) {
+        fprintf(stderr, "hypsolev correct: %s\n", err.message);
+        rc = EXIT_USAGE;
+    }
+    if (!rc) {
+        hyp_read_opts ro = a->ropts;
+        ro.zone = &bz;
+        ro.need_position = 0;
+        if (read_log(a->bases[0].path, &ro, &bl, &msgs, &err)) {
+            print_msgs(&msgs, a->quiet);
+            fprintf(stderr, "hypsolev: error: %s\n", err.message);
+            rc = EXIT_INPUT;
+        } else
+            print_msgs(&msgs, a->quiet);
+    }
+    /* One rover's failure is reported and the others still run; the exit
+     * status is the worst of them. */
+    int base_ok = rc == 0;
+    for (int i = 0; base_ok && i < a->n_rovers; i++) {
+        int r = correct_one(a, a->rovers[i], &bl, &rz);
+        if (r > rc)
+            rc = r;
+    }
+    log_free(&bl);
+    hyp_msgs_free(&msgs);
+    hyp_zone_free(&rz);
+    hyp_zone_free(&bz);
+    return rc;
+}
+
+int cmd_correct(int argc, char **argv)
+{
+    args a;
+    int rc = parse_args(&a, argc, argv);
+    if (rc == 0)
+        rc = run(&a);
+    else if (rc < 0)
+        rc = 0;
+    free(a.rovers);
+    return rc;
+}

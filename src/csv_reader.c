@@ -1,0 +1,430 @@
+/* csv_reader.c - CSV logs of base stations and rovers into a hyp_series. */
+#include "reader_common.h"
+
+#include <ctype.h>
+#include <errno.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <strings.h>
+#include <sys/stat.h>
+
+#define LINE_MAX_BYTES (1u << 20)   /* a longer line is not a log line */
+#define MAX_COLUMNS 4096
+
+enum col { C_TIME, C_PRES, C_TEMP, C_RH, C_LAT, C_LON, C_ELE, C_N };
+static const char *col_label[C_N] = {"time", "pressure", "temperature", "humidity", "lat", "lon", "ele"};
+
+typedef struct line_reader {
+    FILE *f;
+    char *buf;
+    size_t len, alloc;
+    unsigned lineno;
+    int ended_with_newline;
+} line_reader;
+
+/* Reads one line (without its '\n' or '\r\n'); 1 on success, 0 at end of
+ * file, -1 when the line is too long, -2 on a NUL byte, -3 on a read error. */
+static int read_line(line_reader *r)
+{
+    r->len = 0;
+    int c, any = 0;
+    r->ended_with_newline = 0;
+    while ((c = getc(r->f)) != EOF) {
+        any = 1;
+        if (c == '\n') {
+            r->ended_with_newline = 1;
+            break;
+        }
+        if (c == '\0')
+            return -2;
+        if (r->len + 2 > r->alloc) {
+            if (r->alloc >= LINE_MAX_BYTES)
+                return -1;
+            size_t n = r->alloc ? 2 * r->alloc : 256;
+            char *p = realloc(r->buf, n);
+            if (!p)
+                return -1;
+            r->buf = p;
+            r->alloc = n;
+        }
+        r->buf[r->len++] = (char)c;
+    }
+    if (ferror(r->f))
+        return -3;
+    if (!any)
+        return 0;
+    r->lineno++;
+    if (r->len && r->buf[r->len - 1] == '\r')
+        r->len--;
+    if (!r->buf) {
+        r->buf = malloc(1);
+        if (!r->buf)
+            return -1;
+        r->alloc = 1;
+    }
+    r->buf[r->len] = '\0';
+    return 1;
+}
+
+typedef struct field { const char *s; size_t len; } field;
+
+/* Splits a line in place into fields; quoted fields lose their quotes and
+ * "" becomes ". Returns the field count, -1 for an unterminated quote,
+ * -2 for too many columns. */
+static int split(char *line, char delim, field *out, int max)
+{
+    int n = 0;
+    char *p = line;
+    for (;;) {
+        if (n == max)
+            return -2;
+        while (*p == ' ')
+            p++;
+        if (*p == '"') {
+            char *w = ++p, *start = p;
+            for (;;) {
+                if (*p == '\0')
+                    return -1;
+                if (*p == '"') {
+                    if (p[1] == '"') {
+                        *w++ = '"';
+                        p += 2;
+                        continue;
+                    }
+                    p++;
+                    break;
+                }
+                *w++ = *p++;
+            }
+            out[n].s = start;
+            out[n].len = (size_t)(w - start);
+            while (*p == ' ')
+                p++;
+            if (*p && *p != delim)
+                return -1;
+        } else {
+            char *start = p;
+            while (*p && *p != delim)
+                p++;
+            out[n].s = start;
+            out[n].len = (size_t)(p - start);
+        }
+        n++;
+        if (*p != delim)
+            return n;
+        p++;
+    }
+}
+
+static char detect_delimiter(const char *line)
+{
+    size_t nc = 0, ns = 0, nt = 0;
+    int q = 0;
+    for (const char *p = line; *p; p++) {
+        if (*p == '"')
+            q = !q;
+        else if (!q && *p == ',')
+            nc++;
+        else if (!q && *p == ';')
+            ns++;
+        else if (!q && *p == '\t')
+            nt++;
+    }
+    if (nt >= nc && nt >= ns && nt)
+        return '\t';
+    if (ns > nc)
+        return ';';
+    return ',';
+}
+
+/* "Pressure [hPa]" -> name "pressure", unit "hPa"; also "(hPa)". */
+static void header_name(const field *f, char *name, size_t nn, char *unit, size_t nu)
+{
+    size_t len = f->len;
+    const char *s = f->s;
+    while (len && isspace((unsigned char)s[len - 1]))
+        len--;
+    unit[0] = '\0';
+    const char *open = NULL;
+    if (len && (s[len - 1] == ']' || s[len - 1] == ')')) {
+        char o = s[len - 1] == ']' ? '[' : '(';
+        for (size_t i = len; i-- > 0;)
+            if (s[i] == o) {
+                open = s + i;
+                break;
+            }
+    }
+    size_t name_len = open ? (size_t)(open - s) : len;
+    while (name_len && isspace((unsigned char)s[name_len - 1]))
+        name_len--;
+    if (name_len >= nn)
+        name_len = nn - 1;
+    memcpy(name, s, name_len);
+    name[name_len] = '\0';
+    if (open) {
+        size_t ul = (size_t)(s + len - 1 - open - 1);
+        const char *u = open + 1;
+        while (ul && *u == ' ') {
+            u++;
+            ul--;
+        }
+        while (ul && u[ul - 1] == ' ')
+            ul--;
+        if (ul >= nu)
+            ul = nu - 1;
+        memcpy(unit, u, ul);
+        unit[ul] = '\0';
+    }
+}
+
+static int name_matches(const char *name, int col, const hyp_read_opts *o)
+{
+    static const char *alias[C_N][4] = {
+        {"time", "timestamp", "datetime", NULL},
+        {"pressure", "pres", NULL, NULL},
+        {"temperature", "temp", NULL, NULL},
+        {"humidity", "rh", NULL, NULL},
+        {"lat", "latitude", NULL, NULL},
+        {"lon", "longitude", "lng", NULL},
+        {"ele", "elevation", "altitude", NULL},
+    };
+    const char *custom = col == C_PRES ? o->pressure_field
+                       : col == C_TEMP ? o->temperature_field
+                       : col == C_RH ? o->humidity_field : NULL;
+    if (custom)
+        return strcasecmp(name, custom) == 0;
+    for (int i = 0; i < 4 && alias[col][i]; i++)
+        if (strcasecmp(name, alias[col][i]) == 0)
+            return 1;
+    return 0;
+}
+
+typedef struct csv_state {
+    const char *path;
+    const hyp_read_opts *opts;
+    char delim;
+    int decimal_comma;
+    int idx[C_N];
+    hyp_unit file_unit[C_N];
+    int ncols;
+    field *fields;
+} csv_state;
+
+static hyp_status parse_header(csv_state *cs, line_reader *lr, hyp_error *err)
+{
+    cs->delim = detect_delimiter(lr->buf);
+    cs->decimal_comma = cs->delim != ',';
+    int n = split(lr->buf, cs->delim, cs->fields, MAX_COLUMNS);
+    if (n == -2)
+        return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: header has more than %d columns", cs->path, lr->lineno, MAX_COLUMNS);
+    if (n < 0)
+        return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: header has an unterminated quote", cs->path, lr->lineno);
+    cs->ncols = n;
+    char found[256] = "";
+    for (int c = 0; c < C_N; c++)
+        cs->idx[c] = -1;
+    for (int i = 0; i < n; i++) {
+        char name[128], unit[32];
+        header_name(&cs->fields[i], name, sizeof name, unit, sizeof unit);
+        size_t fl = strlen(found);
+        if (fl < 200)
+            snprintf(found + fl, sizeof found - fl, "%s\"%s\"", fl ? ", " : "", name);
+        for (int c = 0; c < C_N; c++) {
+            if (cs->idx[c] >= 0 || !name_matches(name, c, cs->opts))
+                continue;
+            cs->idx[c] = i;
+            if (unit[0] && (c == C_PRES || c == C_TEMP || c == C_RH)) {
+                hyp_quantity q = c == C_PRES ? HYP_Q_PRESSURE : c == C_TEMP ? HYP_Q_TEMPERATURE : HYP_Q_HUMIDITY;
+                cs->file_unit[c] = hyp_unit_parse(q, unit);
+                if (!cs->file_unit[c])
+                    return hyp_error_set(err, HYP_ERR_UNIT, "%s:%u: column \"%s\": unknown unit \"%s\"; expected one of %s",
+                                         cs->path, lr->lineno, name, unit, hyp_unit_choices(q));
+            }
+        }
+    }
+    const char *pname = cs->opts->pressure_field ? cs->opts->pressure_field : "pressure";
+    if (cs->idx[C_TIME] < 0 || cs->idx[C_PRES] < 0) {
+        int looks_numeric = n > 0 && (isdigit((unsigned char)cs->fields[0].s[0]) || cs->fields[0].s[0] == '-');
+        return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: %s: no \"%s\" column in the header (found %s)%s",
+                             cs->path, lr->lineno, "header", cs->idx[C_TIME] < 0 ? "time" : pname, found,
+                             looks_numeric ? "; the first line looks like data: a header row is needed" : "");
+    }
+    if (cs->opts->need_position && (cs->idx[C_LAT] < 0 || cs->idx[C_LON] < 0))
+        return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: header: a rover log needs \"lat\" and \"lon\" columns (found %s)",
+                             cs->path, lr->lineno, found);
+    return HYP_OK;
+}
+
+static const char *time_problem(hyp_time_result r)
+{
+    switch (r) {
+    case HYP_TIME_SYNTAX: return "is not a time; expected ISO 8601 (2026-06-14T09:30:00Z) or Unix epoch seconds";
+    case HYP_TIME_RANGE: return "is out of range (a date that does not exist, or before 1900 or after 2200)";
+    case HYP_TIME_NOZONE: return "has no time zone; add Z or an offset, or give the zone with --time-zone (rover) or --base-time-zone";
+    case HYP_TIME_OK: break;
+    }
+    return "";
+}
+
+/* Parses one data row; returns HYP_OK, or an error for a malformed row.
+ * *partial is set when the row has too few fields (a cut-off last line). */
+static hyp_status parse_row(csv_state *cs, line_reader *lr, hyp_series *out,
+                            int *partial, hyp_error *err)
+{
+    int n = split(lr->buf, cs->delim, cs->fields, MAX_COLUMNS);
+    *partial = 0;
+    if (n == -1) {
+        *partial = !lr->ended_with_newline;
+        if (*partial)
+            return HYP_OK;
+        return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: unterminated quote", cs->path, lr->lineno);
+    }
+    if (n == -2)
+        return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: more than %d fields", cs->path, lr->lineno, MAX_COLUMNS);
+    double v[C_N];
+    for (int c = 0; c < C_N; c++) {
+        v[c] = NAN;
+        int i = cs->idx[c];
+        if (i < 0)
+            continue;
+        if (i >= n) {
+            if (!lr->ended_with_newline) {
+                *partial = 1;
+                return HYP_OK;
+            }
+            if (c == C_TIME || c == C_PRES)
+                return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: %s: the row has %d fields, the header %d",
+                                     cs->path, lr->lineno, col_label[c], n, cs->ncols);
+            continue;
+        }
+        const field *f = &cs->fields[i];
+        if (c == C_TIME) {
+            char tb[128];
+            size_t l = f->len < sizeof tb - 1 ? f->len : sizeof tb - 1;
+            memcpy(tb, f->s, l);
+            tb[l] = '\0';
+            if (l == 0 || strspn(tb, " \t") == l) {
+                v[c] = NAN;
+                continue;
+            }
+            hyp_time_result r = hyp_time_parse(tb, cs->opts->zone, &v[c]);
+            if (r)
+                return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: time \"%s\" %s", cs->path, lr->lineno, tb, time_problem(r));
+            continue;
+        }
+        if (!hyp__parse_number(f->s, f->len, cs->decimal_comma, &v[c])) {
+            int l = (int)(f->len > 40 ? 40 : f->len);
+            return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: %s \"%.*s\" is not a number",
+                                 cs->path, lr->lineno, col_label[c], l, f->s);
+        }
+    }
+    hyp_sample_flag flag = v[C_TIME] != v[C_TIME] ? HYP_SAMPLE_NO_TIME
+                         : v[C_PRES] != v[C_PRES] ? HYP_SAMPLE_NO_PRESSURE : HYP_SAMPLE_OK;
+    if (hyp_series_push(out, v[C_TIME], v[C_PRES], v[C_TEMP], v[C_RH], v[C_LAT], v[C_LON],
+                        v[C_ELE], lr->lineno, flag))
+        return hyp_error_set(err, HYP_ERR_NOMEM, "%s:%u: out of memory (or more samples than a log may hold)", cs->path, lr->lineno);
+    return HYP_OK;
+}
+
+static hyp_status open_checked(const char *path, FILE **f, hyp_error *err)
+{
+    struct stat st;
+    if (stat(path, &st) != 0)
+        return hyp_error_set(err, HYP_ERR_IO, "%s: cannot open: %s", path, strerror(errno));
+    if (S_ISDIR(st.st_mode))
+        return hyp_error_set(err, HYP_ERR_IO, "%s: is a directory, expected a log file", path);
+    *f = fopen(path, "rb");
+    if (!*f)
+        return hyp_error_set(err, HYP_ERR_IO, "%s: cannot open: %s", path, strerror(errno));
+    return HYP_OK;
+}
+
+static hyp_status read_rows(csv_state *cs, line_reader *lr, hyp_series *out,
+                            hyp_msgs *msgs, hyp_error *err)
+{
+    int have_header = 0, r;
+    while ((r = read_line(lr)) == 1) {
+        char *s = lr->buf;
+        if (lr->lineno == 1 && (unsigned char)s[0] == 0xEF && (unsigned char)s[1] == 0xBB &&
+            (unsigned char)s[2] == 0xBF)
+            memmove(s, s + 3, lr->len - 2), lr->len -= 3;
+        size_t lead = strspn(s, " \t");
+        if (s[lead] == '\0' || s[lead] == '#')
+            continue;
+        if (!have_header) {
+            hyp_status st = parse_header(cs, lr, err);
+            if (st)
+                return st;
+            have_header = 1;
+            continue;
+        }
+        int partial;
+        hyp_status st = parse_row(cs, lr, out, &partial, err);
+        if (st)
+            return st;
+        if (partial)
+            hyp_msgs_add(msgs, HYP_WARNING, "%s:%u: the last line is cut off (no end of line, too few fields); ignored",
+                         cs->path, lr->lineno);
+    }
+    if (r == -1)
+        return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: line longer than %u bytes; not a log", cs->path, lr->lineno + 1, LINE_MAX_BYTES);
+    if (r == -2)
+        return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: NUL byte; not a text file", cs->path, lr->lineno + 1);
+    if (r == -3)
+        return hyp_error_set(err, HYP_ERR_IO, "%s: read error", cs->path);
+    if (!have_header)
+        return hyp_error_set(err, HYP_ERR_NODATA, "%s: empty file: no header row and no data", cs->path);
+    return HYP_OK;
+}
+
+hyp_status hyp_csv_read(const char *path, const hyp_read_opts *opts, hyp_series *out,
+                        hyp_unit *pressure_unit_found, hyp_msgs *msgs, hyp_error *err)
+{
+    hyp_read_opts defaults;
+    if (!opts) {
+        hyp_read_opts_init(&defaults);
+        opts = &defaults;
+    }
+    hyp_series_free(out);
+    csv_state cs = {.path = path, .opts = opts};
+    line_reader lr = {0};
+    FILE *f = NULL;
+    hyp_status st = open_checked(path, &f, err);
+    if (st)
+        return st;
+    lr.f = f;
+    cs.fields = malloc(MAX_COLUMNS * sizeof *cs.fields);
+    if (!cs.fields) {
+        st = hyp_error_set(err, HYP_ERR_NOMEM, "%s: out of memory", path);
+        goto out;
+    }
+    st = read_rows(&cs, &lr, out, msgs, err);
+    if (st)
+        goto out;
+    if (out->count == 0) {
+        st = hyp_error_set(err, HYP_ERR_NODATA, "%s: header but no data rows", path);
+        goto out;
+    }
+    hyp_unit pu, tu;
+    st = hyp__resolve_unit(path, "pressure", HYP_Q_PRESSURE, cs.file_unit[C_PRES], opts->pressure_unit,
+                           out->pressure_pa, out->count, &pu, msgs, err);
+    if (!st)
+        st = hyp__resolve_unit(path, "temperature", HYP_Q_TEMPERATURE, cs.file_unit[C_TEMP],
+                               opts->temperature_unit, out->temp_k, out->count, &tu, msgs, err);
+    if (st)
+        goto out;
+    if (pressure_unit_found)
+        *pressure_unit_found = pu;
+    hyp__check_series(path, out, msgs);
+    if (hyp_series_count_flag(out, HYP_SAMPLE_OK) == 0)
+        st = hyp_error_set(err, HYP_ERR_NODATA, "%s: no usable sample (every row lacks a time or a valid pressure)", path);
+out:
+    free(cs.fields);
+    free(lr.buf);
+    fclose(f);
+    if (st)
+        hyp_series_free(out);
+    return st;
+}

@@ -1,0 +1,716 @@
+/* gpx_reader.c - GPX 1.0 / 1.1 tracks and routes through libxml2's SAX2
+ * push parser: points into a hyp_series, byte offsets into a layout for the
+ * splicing writer, waypoints for ties. No tree is ever built. */
+#include "reader_common.h"
+#include "hypsolev/writers.h"
+
+#include <ctype.h>
+#include <errno.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <strings.h>
+#include <sys/stat.h>
+
+#include <libxml/parser.h>
+#include <libxml/parserInternals.h>
+
+#define NS_GPX10 "http://www.topografix.com/GPX/1/0"
+#define NS_GPX11 "http://www.topografix.com/GPX/1/1"
+#define TEXT_MAX 255
+#define CHUNK 65536
+
+enum capture { CAP_NONE, CAP_ELE, CAP_TIME, CAP_PRES, CAP_TEMP, CAP_RH, CAP_NAME };
+
+typedef struct gpx_ctx {
+    const char *path;
+    const hyp_read_opts *opts;
+    xmlParserCtxtPtr ctxt;
+    hyp_gpx_doc *doc;
+    hyp_msgs *msgs;
+    hyp_error *err;
+    hyp_status status;         /* first fatal problem, parsing stops */
+    size_t lay_alloc;
+    uint8_t *p_raw, *t_raw;    /* 1: value still in the file's unit */
+    size_t raw_alloc;
+    hyp_unit p_attr_unit, t_attr_unit; /* units seen in unit attributes */
+    int depth;
+    int root_seen;
+    xmlChar *gpx_uri;          /* the root's namespace, NULL for none */
+    /* the point or waypoint being read */
+    int in_pt, in_wpt, pt_depth, ext_depth, pt_selfclosed;
+    unsigned pt_line;
+    double lat, lon, ele, time_s, pres, temp, rh;
+    int pres_raw, temp_raw, got_pres, got_temp, got_rh, got_time;
+    int64_t open_end, ele_beg, ele_end, ext_ins;
+    char name[TEXT_MAX + 1];
+    /* text being captured */
+    int cap, cap_depth;
+    hyp_unit cap_unit;
+    char text[TEXT_MAX + 1];
+    size_t text_len;
+    int text_overflow;
+} gpx_ctx;
+
+static const char *field_name(const char *opt, const char *dflt)
+{
+    return opt ? opt : dflt;
+}
+
+static unsigned cur_line(gpx_ctx *g)
+{
+    return (unsigned)xmlSAX2GetLineNumber(g->ctxt);
+}
+
+static void fail(gpx_ctx *g, hyp_status st, const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 3, 4)))
+#endif
+    ;
+
+static void fail(gpx_ctx *g, hyp_status st, const char *fmt, ...)
+{
+    if (g->status)
+        return;
+    char buf[900];
+    va_list ap;
+    va_start(ap, fmt);
+    vsnprintf(buf, sizeof buf, fmt, ap);
+    va_end(ap);
+    hyp_error_set(g->err, st, "%s:%u: %s", g->path, cur_line(g), buf);
+    g->status = st;
+    xmlStopParser(g->ctxt);
+}
+
+/* Byte offset of the parser's current position in the input file. */
+static int64_t offset_now(gpx_ctx *g)
+{
+    return (int64_t)xmlByteConsumed(g->ctxt);
+}
+
+/* In an end-element callback the parser stands just after the end tag's
+ * '>': the tag itself is still in the buffer, so walk back to its '<'. */
+static int64_t end_tag_start(gpx_ctx *g)
+{
+    xmlParserInputPtr in = g->ctxt->input;
+    const xmlChar *p = in->cur > in->base ? in->cur - 1 : in->cur;
+    while (p > in->base && *p != '<')
+        p--;
+    return (int64_t)in->consumed + (p - in->base);
+}
+
+static int is_gpx_ns(gpx_ctx *g, const xmlChar *uri)
+{
+    if (!g->gpx_uri || !uri)
+        return !g->gpx_uri && !uri;
+    return xmlStrEqual(uri, g->gpx_uri);
+}
+
+static const char *attr_value(const xmlChar **attrs, int n, const char *name, char *buf, size_t bn)
+{
+    for (int i = 0; i < n; i++) {
+        const xmlChar **a = attrs + 5 * i;
+        if (a[2] == NULL && strcmp((const char *)a[0], name) == 0) {
+            size_t len = (size_t)(a[4] - a[3]);
+            if (len >= bn)
+                len = bn - 1;
+            memcpy(buf, a[3], len);
+            buf[len] = '\0';
+            return buf;
+        }
+    }
+    return NULL;
+}
+
+static void start_root(gpx_ctx *g, const xmlChar *local, const xmlChar *prefix, const xmlChar *uri,
+                       int nb_ns, const xmlChar **ns, int nb_attr, const xmlChar **attrs)
+{
+    hyp_gpx_layout *L = &g->doc->layout;
+    g->root_seen = 1;
+    if (!xmlStrEqual(local, BAD_CAST "gpx")) {
+        fail(g, HYP_ERR_FORMAT, "root element is <%s>, expected <gpx>: not a GPX file", (const char *)local);
+        return;
+    }
+    char ver[16];
+    const char *v = attr_value(attrs, nb_attr, "version", ver, sizeof ver);
+    if (uri && xmlStrEqual(uri, BAD_CAST NS_GPX10))
+        L->version = 10;
+    else if (uri && xmlStrEqual(uri, BAD_CAST NS_GPX11))
+        L->version = 11;
+    else if (uri) {
+        fail(g, HYP_ERR_FORMAT, "<gpx> namespace is \"%s\", expected %s or %s", (const char *)uri, NS_GPX11, NS_GPX10);
+        return;
+    } else
+        L->version = v && strcmp(v, "1.0") == 0 ? 10 : 11;
+    if (!uri && !v)
+        hyp_msgs_add(g->msgs, HYP_NOTE, "%s: <gpx> has neither namespace nor version; read as GPX 1.1", g->path);
+    L->has_namespace = uri != NULL;
+    if (uri && !(g->gpx_uri = xmlStrdup(uri))) {
+        fail(g, HYP_ERR_NOMEM, "out of memory");
+        return;
+    }
+    snprintf(L->prefix, sizeof L->prefix, "%s", prefix ? (const char *)prefix : "");
+    for (int i = 0; i < nb_ns; i++) {
+        const xmlChar *p = ns[2 * i], *u = ns[2 * i + 1];
+        if (p && xmlStrEqual(p, BAD_CAST HYP_GPX_PREFIX)) {
+            if (!xmlStrEqual(u, BAD_CAST HYP_GPX_NS)) {
+                fail(g, HYP_ERR_FORMAT, "<gpx> already uses the prefix \"%s\" for \"%s\"; cannot add this tool's elements",
+                     HYP_GPX_PREFIX, (const char *)u);
+                return;
+            }
+            L->has_hyp_ns = 1;
+        }
+    }
+    /* The parser stands on the '>' (or "/>") closing the start tag. */
+    L->root_attr_ins = offset_now(g);
+}
+
+static hyp_status grow_points(gpx_ctx *g)
+{
+    hyp_gpx_layout *L = &g->doc->layout;
+    size_t n = g->doc->pts.count;
+    if (n < g->lay_alloc)
+        return HYP_OK;
+    size_t a = g->lay_alloc ? 2 * g->lay_alloc : 1024;
+    void *p;
+#define GROW(field, type) \
+    do { \
+        if (!(p = realloc(L->field, a * sizeof(type)))) \
+            return HYP_ERR_NOMEM; \
+        L->field = p; \
+    } while (0)
+    GROW(open_end, int64_t);
+    GROW(ele_beg, int64_t);
+    GROW(ele_end, int64_t);
+    GROW(ext_ins, int64_t);
+    GROW(ext_kind, uint8_t);
+#undef GROW
+    if (!(p = realloc(g->p_raw, a))) return HYP_ERR_NOMEM;
+    g->p_raw = p;
+    if (!(p = realloc(g->t_raw, a))) return HYP_ERR_NOMEM;
+    g->t_raw = p;
+    g->lay_alloc = a;
+    return HYP_OK;
+}
+
+static double parse_coord(gpx_ctx *g, const xmlChar **attrs, int nb_attr, const char *name, const char *elem)
+{
+    char buf[64];
+    const char *v = attr_value(attrs, nb_attr, name, buf, sizeof buf);
+    double x;
+    if (!v) {
+        fail(g, HYP_ERR_FORMAT, "<%s> has no %s attribute", elem, name);
+        return NAN;
+    }
+    if (hyp__parse_number(v, strlen(v), 0, &x) != 1) {
+        fail(g, HYP_ERR_VALUE, "<%s> %s \"%s\" is not a number", elem, name, v);
+        return NAN;
+    }
+    return x;
+}
+
+static void start_point(gpx_ctx *g, const xmlChar *local, int nb_attr, const xmlChar **attrs, int wpt)
+{
+    const char *elem = (const char *)local;
+    g->in_pt = !wpt;
+    g->in_wpt = wpt;
+    g->pt_depth = g->depth;
+    g->pt_line = cur_line(g);
+    g->ext_depth = 0;
+    g->lat = parse_coord(g, attrs, nb_attr, "lat", elem);
+    g->lon = parse_coord(g, attrs, nb_attr, "lon", elem);
+    g->ele = g->time_s = g->pres = g->temp = g->rh = NAN;
+    g->got_pres = g->got_temp = g->got_rh = g->got_time = 0;
+    g->ele_beg = g->ele_end = g->ext_ins = -1;
+    g->name[0] = '\0';
+    g->pt_selfclosed = g->ctxt->input->cur[0] == '/';
+    g->open_end = g->pt_selfclosed ? -1 : offset_now(g) + 1;
+}
+
+static void start_capture(gpx_ctx *g, int what, int nb_attr, const xmlChar **attrs)
+{
+    g->cap = what;
+    g->cap_depth = g->depth;
+    g->text_len = 0;
+    g->text_overflow = 0;
+    g->cap_unit = HYP_UNIT_NONE;
+    if (what == CAP_PRES || what == CAP_TEMP) {
+        char buf[32];
+        const char *u = attr_value(attrs, nb_attr, "unit", buf, sizeof buf);
+        if (!u)
+            u = attr_value(attrs, nb_attr, "units", buf, sizeof buf);
+        if (u) {
+            hyp_quantity q = what == CAP_PRES ? HYP_Q_PRESSURE : HYP_Q_TEMPERATURE;
+            g->cap_unit = hyp_unit_parse(q, u);
+            if (!g->cap_unit)
+                fail(g, HYP_ERR_UNIT, "unit=\"%s\" on <%s> is unknown; expected one of %s", u,
+                     what == CAP_PRES ? field_name(g->opts->pressure_field, "pressure")
+                                      : field_name(g->opts->temperature_field, "temperature"),
+                     hyp_unit_choices(q));
+        }
+    }
+}
+
+static void on_start(void *ctx, const xmlChar *local, const xmlChar *prefix, const xmlChar *uri,
+                     int nb_ns, const xmlChar **ns, int nb_attr, int nb_def, const xmlChar **attrs)
+{
+    gpx_ctx *g = ctx;
+    (void)nb_def;
+    g->depth++;
+    if (g->status)
+        return;
+    if (!g->root_seen) {
+        start_root(g, local, prefix, uri, nb_ns, ns, nb_attr, attrs);
+        return;
+    }
+    if (uri && xmlStrEqual(uri, BAD_CAST HYP_GPX_NS)) {
+        fail(g, HYP_ERR_FORMAT, "<%s:%s> is this tool's own output; correct the original file instead",
+             prefix ? (const char *)prefix : "", (const char *)local);
+        return;
+    }
+    int gpx = is_gpx_ns(g, uri);
+    if (!g->in_pt && !g->in_wpt) {
+        if (gpx && g->depth >= 2 && (xmlStrEqual(local, BAD_CAST "trkpt") || xmlStrEqual(local, BAD_CAST "rtept")))
+            start_point(g, local, nb_attr, attrs, 0);
+        else if (gpx && g->depth == 2 && xmlStrEqual(local, BAD_CAST "wpt"))
+            start_point(g, local, nb_attr, attrs, 1);
+        return;
+    }
+    if (g->cap)
+        return;   /* markup inside a captured value: its text is ignored */
+    int child = g->depth == g->pt_depth + 1;
+    if (gpx && child) {
+        if (xmlStrEqual(local, BAD_CAST "ele")) {
+            if (g->ctxt->input->cur[0] == '/') {
+                fail(g, HYP_ERR_VALUE, "<ele/> is empty; expected a number (m)");
+                return;
+            }
+            g->ele_beg = offset_now(g) + 1;
+            start_capture(g, CAP_ELE, nb_attr, attrs);
+        } else if (xmlStrEqual(local, BAD_CAST "time"))
+            start_capture(g, CAP_TIME, nb_attr, attrs);
+        else if (g->in_wpt && xmlStrEqual(local, BAD_CAST "name"))
+            start_capture(g, CAP_NAME, nb_attr, attrs);
+        else if (xmlStrEqual(local, BAD_CAST "extensions"))
+            g->ext_depth = g->depth;
+        return;
+    }
+    int in_ext = g->ext_depth ? g->depth > g->ext_depth : !gpx;
+    if (!in_ext || g->in_wpt)
+        return;
+    const char *pf = field_name(g->opts->pressure_field, "pressure");
+    const char *tf = field_name(g->opts->temperature_field, "temperature");
+    const char *hf = field_name(g->opts->humidity_field, "humidity");
+    if (!g->got_pres && strcmp((const char *)local, pf) == 0)
+        start_capture(g, CAP_PRES, nb_attr, attrs);
+    else if (!g->got_temp && strcmp((const char *)local, tf) == 0)
+        start_capture(g, CAP_TEMP, nb_attr, attrs);
+    else if (!g->got_rh && strcmp((const char *)local, hf) == 0)
+        start_capture(g, CAP_RH, nb_attr, attrs);
+}
+
+static void on_chars(void *ctx, const xmlChar *ch, int len)
+{
+    gpx_ctx *g = ctx;
+    if (!g->cap || g->depth != g->cap_depth || g->status)
+        return;
+    if (g->text_len + (size_t)len > TEXT_MAX) {
+        g->text_overflow = 1;
+        return;
+    }
+    memcpy(g->text + g->text_len, ch, (size_t)len);
+    g->text_len += (size_t)len;
+}
+
+static const char *cap_label(gpx_ctx *g, int cap)
+{
+    switch (cap) {
+    case CAP_ELE: return "ele";
+    case CAP_TIME: return "time";
+    case CAP_PRES: return field_name(g->opts->pressure_field, "pressure");
+    case CAP_TEMP: return field_name(g->opts->temperature_field, "temperature");
+    case CAP_RH: return field_name(g->opts->humidity_field, "humidity");
+    case CAP_NAME: return "name";
+    }
+    return "?";
+}
+
+static void end_capture(gpx_ctx *g)
+{
+    int cap = g->cap;
+    g->cap = 0;
+    g->text[g->text_len] = '\0';
+    if (g->text_overflow) {
+        fail(g, HYP_ERR_VALUE, "<%s> text is longer than %d bytes", cap_label(g, cap), TEXT_MAX);
+        return;
+    }
+    if (cap == CAP_NAME) {
+        memcpy(g->name, g->text, g->text_len + 1);
+        return;
+    }
+    if (cap == CAP_TIME) {
+        hyp_time_result r = hyp_time_parse(g->text, g->opts->zone, &g->time_s);
+        if (r == HYP_TIME_NOZONE)
+            fail(g, HYP_ERR_VALUE, "<time> \"%s\" has no time zone; add Z or give the zone with --time-zone", g->text);
+        else if (r == HYP_TIME_RANGE)
+            fail(g, HYP_ERR_VALUE, "<time> \"%s\" is out of range (a date that does not exist, or before 1900 or after 2200)", g->text);
+        else if (r)
+            fail(g, HYP_ERR_VALUE, "<time> \"%s\" is not an ISO 8601 time (expected 2026-06-14T09:30:00Z)", g->text);
+        g->got_time = 1;
+        return;
+    }
+    double v;
+    int r = hyp__parse_number(g->text, g->text_len, 0, &v);
+    if (r != 1) {
+        fail(g, HYP_ERR_VALUE, "<%s> \"%.40s\" is %s; expected a number", cap_label(g, cap), g->text,
+             r == 2 ? "empty" : "not a number");
+        return;
+    }
+    switch (cap) {
+    case CAP_ELE:
+        g->ele = v;
+        g->ele_end = end_tag_start(g);
+        break;
+    case CAP_PRES:
+        g->got_pres = 1;
+        g->pres_raw = !g->cap_unit;
+        g->pres = g->cap_unit ? hyp_unit_to_si(g->cap_unit, v) : v;
+        if (g->cap_unit)
+            g->p_attr_unit = g->cap_unit;
+        break;
+    case CAP_TEMP:
+        g->got_temp = 1;
+        g->temp_raw = !g->cap_unit;
+        g->temp = g->cap_unit ? hyp_unit_to_si(g->cap_unit, v) : v;
+        if (g->cap_unit)
+            g->t_attr_unit = g->cap_unit;
+        break;
+    case CAP_RH:
+        g->got_rh = 1;
+        g->rh = v;
+        break;
+    }
+}
+
+static hyp_status push_waypoint(hyp_waypoints *w, const char *name, double t, double lat, double lon)
+{
+    if (w->count == w->alloc) {
+        size_t a = w->alloc ? 2 * w->alloc : 16;
+        if (a > 1000000)
+            return HYP_ERR_NOMEM;
+        void *p;
+        if (!(p = realloc(w->name, a * sizeof *w->name))) return HYP_ERR_NOMEM;
+        w->name = p;
+        if (!(p = realloc(w->time_s, a * sizeof(double)))) return HYP_ERR_NOMEM;
+        w->time_s = p;
+        if (!(p = realloc(w->lat_deg, a * sizeof(double)))) return HYP_ERR_NOMEM;
+        w->lat_deg = p;
+        if (!(p = realloc(w->lon_deg, a * sizeof(double)))) return HYP_ERR_NOMEM;
+        w->lon_deg = p;
+        w->alloc = a;
+    }
+    char *n = strdup(name);
+    if (!n)
+        return HYP_ERR_NOMEM;
+    w->name[w->count] = n;
+    w->time_s[w->count] = t;
+    w->lat_deg[w->count] = lat;
+    w->lon_deg[w->count] = lon;
+    w->count++;
+    return HYP_OK;
+}
+
+static void end_point(gpx_ctx *g)
+{
+    hyp_gpx_doc *d = g->doc;
+    if (g->in_wpt) {
+        g->in_wpt = 0;
+        if (push_waypoint(&d->wpts, g->name, g->got_time ? g->time_s : NAN, g->lat, g->lon))
+            fail(g, HYP_ERR_NOMEM, "out of memory");
+        return;
+    }
+    g->in_pt = 0;
+    if (grow_points(g)) {
+        fail(g, HYP_ERR_NOMEM, "out of memory");
+        return;
+    }
+    size_t i = d->pts.count;
+    hyp_gpx_layout *L = &d->layout;
+    L->open_end[i] = g->open_end;
+    L->ele_beg[i] = g->ele_end >= 0 ? g->ele_beg : -1;
+    L->ele_end[i] = g->ele_end;
+    if (g->ext_ins >= 0) {
+        L->ext_ins[i] = g->ext_ins;
+        L->ext_kind[i] = HYP_EXT_INSIDE;
+    } else {
+        L->ext_ins[i] = g->pt_selfclosed ? -1 : end_tag_start(g);
+        L->ext_kind[i] = L->version == 10 ? HYP_EXT_BARE : HYP_EXT_WRAP;
+    }
+    g->p_raw[i] = (uint8_t)(g->got_pres && g->pres_raw);
+    g->t_raw[i] = (uint8_t)(g->got_temp && g->temp_raw);
+    hyp_sample_flag flag = !g->got_time ? HYP_SAMPLE_NO_TIME : !g->got_pres ? HYP_SAMPLE_NO_PRESSURE : HYP_SAMPLE_OK;
+    if (hyp_series_push(&d->pts, g->time_s, g->pres, g->temp, g->rh, g->lat, g->lon, g->ele,
+                        g->pt_line, flag))
+        fail(g, HYP_ERR_NOMEM, "out of memory (or more points than a track may hold)");
+}
+
+static void on_end(void *ctx, const xmlChar *local, const xmlChar *prefix, const xmlChar *uri)
+{
+    gpx_ctx *g = ctx;
+    (void)local;
+    (void)prefix;
+    (void)uri;
+    if (!g->status) {
+        if (g->cap && g->depth == g->cap_depth)
+            end_capture(g);
+        else if (g->ext_depth && g->depth == g->ext_depth) {
+            g->ext_ins = end_tag_start(g);
+            g->ext_depth = 0;
+        } else if ((g->in_pt || g->in_wpt) && g->depth == g->pt_depth)
+            end_point(g);
+    }
+    g->depth--;
+}
+
+static void on_error(void *ctx, xmlErrorPtr e)
+{
+    gpx_ctx *g = ctx;
+    if (!e || e->level < XML_ERR_ERROR || g->status)
+        return;
+    char msg[512];
+    snprintf(msg, sizeof msg, "%s", e->message ? e->message : "XML error");
+    size_t n = strlen(msg);
+    while (n && (msg[n - 1] == '\n' || msg[n - 1] == ' '))
+        msg[--n] = '\0';
+    hyp_error_set(g->err, HYP_ERR_FORMAT, "%s:%d: not well-formed XML: %s", g->path, e->line, msg);
+    g->status = HYP_ERR_FORMAT;
+    xmlStopParser(g->ctxt);
+}
+
+static void on_dtd(void *ctx, const xmlChar *name, const xmlChar *ext, const xmlChar *sys)
+{
+    gpx_ctx *g = ctx;
+    (void)name;
+    (void)ext;
+    (void)sys;
+    fail(g, HYP_ERR_FORMAT, "document type declaration (DOCTYPE) refused: GPX needs none, and its entities are never expanded");
+}
+
+/* Offsets are only meaningful when the parser reads the bytes unconverted:
+ * accept UTF-8 and ASCII, refuse UTF-16/32 and declared other encodings. */
+static hyp_status check_encoding(const char *path, const unsigned char *b, size_t n, hyp_error *err)
+{
+    if (n >= 2 && ((b[0] == 0xFE && b[1] == 0xFF) || (b[0] == 0xFF && b[1] == 0xFE)))
+        return hyp_error_set(err, HYP_ERR_FORMAT, "%s: UTF-16 encoded; only UTF-8 GPX is read (convert with iconv -f UTF-16 -t UTF-8)", path);
+    if (n >= 4 && ((b[0] == 0 && b[1] == 0) || (b[0] == '<' && b[1] == 0) || (b[0] == 0 && b[1] == '<')))
+        return hyp_error_set(err, HYP_ERR_FORMAT, "%s: UTF-16 or UTF-32 encoded; only UTF-8 GPX is read", path);
+    size_t skip = n >= 3 && b[0] == 0xEF && b[1] == 0xBB && b[2] == 0xBF ? 3 : 0;
+    if (n - skip < 5 || memcmp(b + skip, "<?xml", 5) != 0)
+        return HYP_OK;
+    const unsigned char *end = memchr(b + skip, '>', n - skip);
+    size_t decl_len = end ? (size_t)(end - b - skip) : n - skip;
+    char decl[512];
+    if (decl_len >= sizeof decl)
+        decl_len = sizeof decl - 1;
+    memcpy(decl, b + skip, decl_len);
+    decl[decl_len] = '\0';
+    char *e = strstr(decl, "encoding");
+    if (!e)
+        return HYP_OK;
+    e += 8;
+    while (*e == ' ' || *e == '=' || *e == '\t')
+        e++;
+    char q = *e;
+    if (q != '"' && q != '\'')
+        return HYP_OK;
+    char enc[64];
+    size_t k = 0;
+    for (e++; *e && *e != q && k < sizeof enc - 1; e++)
+        enc[k++] = *e;
+    enc[k] = '\0';
+    if (strcasecmp(enc, "UTF-8") == 0 || strcasecmp(enc, "UTF8") == 0 || strcasecmp(enc, "US-ASCII") == 0 ||
+        strcasecmp(enc, "ASCII") == 0)
+        return HYP_OK;
+    return hyp_error_set(err, HYP_ERR_FORMAT, "%s:1: encoding \"%s\" is not supported; only UTF-8 GPX is read (convert with iconv -f %s -t UTF-8 and fix the declaration)",
+                         path, enc, enc);
+}
+
+static hyp_status resolve_units(gpx_ctx *g)
+{
+    hyp_series *s = &g->doc->pts;
+    /* Values without a unit attribute take the option's unit, else the unit
+     * the file names elsewhere, else one inferred from their magnitude. */
+    struct { uint8_t *raw; double *v; hyp_quantity q; hyp_unit opt, attr; hyp_unit *out; const char *name; } q[2] = {
+        {g->p_raw, s->pressure_pa, HYP_Q_PRESSURE, g->opts->pressure_unit, g->p_attr_unit, &g->doc->pressure_unit,
+         field_name(g->opts->pressure_field, "pressure")},
+        {g->t_raw, s->temp_k, HYP_Q_TEMPERATURE, g->opts->temperature_unit, g->t_attr_unit, &g->doc->temperature_unit,
+         field_name(g->opts->temperature_field, "temperature")},
+    };
+    for (int k = 0; k < 2; k++) {
+        size_t nraw = 0;
+        for (size_t i = 0; i < s->count; i++)
+            nraw += q[k].raw[i];
+        *q[k].out = q[k].attr;
+        if (!nraw)
+            continue;
+        double *tmp = malloc(nraw * sizeof *tmp);
+        if (!tmp)
+            return hyp_error_set(g->err, HYP_ERR_NOMEM, "%s: out of memory", g->path);
+        size_t j = 0;
+        for (size_t i = 0; i < s->count; i++)
+            if (q[k].raw[i])
+                tmp[j++] = q[k].v[i];
+        hyp_unit used;
+        hyp_status st = hyp__resolve_unit(g->path, q[k].name, q[k].q, HYP_UNIT_NONE, q[k].opt ? q[k].opt : q[k].attr,
+                                          tmp, nraw, &used, g->msgs, g->err);
+        j = 0;
+        for (size_t i = 0; i < s->count && !st; i++)
+            if (q[k].raw[i])
+                q[k].v[i] = tmp[j++];
+        free(tmp);
+        if (st)
+            return st;
+        *q[k].out = used;
+    }
+    return HYP_OK;
+}
+
+static hyp_status parse_file(gpx_ctx *g, FILE *f)
+{
+    unsigned char buf[CHUNK];
+    size_t n = fread(buf, 1, sizeof buf, f);
+    if (n == 0)
+        return hyp_error_set(g->err, ferror(f) ? HYP_ERR_IO : HYP_ERR_NODATA, "%s: %s", g->path,
+                             ferror(f) ? "read error" : "empty file");
+    if (memchr(buf, '\0', n) && !(n >= 2 && (buf[0] == 0xFE || buf[0] == 0xFF || buf[0] == 0 || buf[1] == 0)))
+        return hyp_error_set(g->err, HYP_ERR_FORMAT, "%s: NUL byte; not a text file", g->path);
+    hyp_status st = check_encoding(g->path, buf, n, g->err);
+    if (st)
+        return st;
+    xmlSAXHandler sax;
+    memset(&sax, 0, sizeof sax);
+    sax.initialized = XML_SAX2_MAGIC;
+    sax.startElementNs = on_start;
+    sax.endElementNs = on_end;
+    sax.characters = on_chars;
+    sax.cdataBlock = on_chars;
+    sax.serror = on_error;
+    sax.internalSubset = on_dtd;
+    g->ctxt = xmlCreatePushParserCtxt(&sax, g, (const char *)buf, (int)n, g->path);
+    if (!g->ctxt)
+        return hyp_error_set(g->err, HYP_ERR_NOMEM, "%s: out of memory", g->path);
+    xmlCtxtUseOptions(g->ctxt, XML_PARSE_NONET | XML_PARSE_NOWARNING);
+    int64_t total = (int64_t)n;
+    while (!g->status && (n = fread(buf, 1, sizeof buf, f)) > 0) {
+        total += (int64_t)n;
+        if (memchr(buf, '\0', n)) {
+            fail(g, HYP_ERR_FORMAT, "NUL byte; not a text file");
+            break;
+        }
+        xmlParseChunk(g->ctxt, (const char *)buf, (int)n, 0);
+    }
+    if (!g->status && ferror(f))
+        hyp_error_set(g->err, g->status = HYP_ERR_IO, "%s: read error", g->path);
+    if (!g->status)
+        xmlParseChunk(g->ctxt, NULL, 0, 1);
+    if (!g->status && !g->ctxt->wellFormed)
+        hyp_error_set(g->err, g->status = HYP_ERR_FORMAT, "%s: not well-formed XML", g->path);
+    if (!g->status && !g->root_seen)
+        hyp_error_set(g->err, g->status = HYP_ERR_FORMAT, "%s: no root element; not a GPX file", g->path);
+    g->doc->layout.file_size = total;
+    xmlFreeParserCtxt(g->ctxt);
+    g->ctxt = NULL;
+    return g->status;
+}
+
+hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts, hyp_gpx_doc *doc,
+                        hyp_msgs *msgs, hyp_error *err)
+{
+    hyp_read_opts defaults;
+    if (!opts) {
+        hyp_read_opts_init(&defaults);
+        opts = &defaults;
+    }
+    hyp_gpx_doc_free(doc);
+    struct stat sb;
+    if (stat(path, &sb) != 0)
+        return hyp_error_set(err, HYP_ERR_IO, "%s: cannot open: %s", path, strerror(errno));
+    if (S_ISDIR(sb.st_mode))
+        return hyp_error_set(err, HYP_ERR_IO, "%s: is a directory, expected a GPX file", path);
+    FILE *f = fopen(path, "rb");
+    if (!f)
+        return hyp_error_set(err, HYP_ERR_IO, "%s: cannot open: %s", path, strerror(errno));
+    gpx_ctx g = {.path = path, .opts = opts, .doc = doc, .msgs = msgs, .err = err};
+    hyp_status st = parse_file(&g, f);
+    fclose(f);
+    if (!st && doc->pts.count == 0)
+        st = hyp_error_set(err, HYP_ERR_NODATA, "%s: no <trkpt> or <rtept> in the file", path);
+    if (!st)
+        st = resolve_units(&g);
+    if (!st) {
+        if (!doc->pts.has_temp)
+            doc->temperature_unit = HYP_UNIT_NONE;
+        hyp__check_series(path, &doc->pts, msgs);
+        size_t no_p = hyp_series_count_flag(&doc->pts, HYP_SAMPLE_NO_PRESSURE);
+        size_t no_t = hyp_series_count_flag(&doc->pts, HYP_SAMPLE_NO_TIME);
+        if (no_t == doc->pts.count)
+            st = hyp_error_set(err, HYP_ERR_NODATA, "%s: no point has a <time>; a barometric track needs times", path);
+        else if (no_p + no_t >= doc->pts.count)
+            st = hyp_error_set(err, HYP_ERR_NODATA,
+                               "%s: no point has a pressure (looked for an element named \"%s\" in each point's extensions; --pressure-field sets the name)",
+                               path, field_name(opts->pressure_field, "pressure"));
+        else if (no_p)
+            hyp_msgs_add(msgs, HYP_WARNING, "%s: %zu of %zu points have no pressure and get no corrected height", path, no_p,
+                         doc->pts.count);
+        if (!st && no_t)
+            hyp_msgs_add(msgs, HYP_WARNING, "%s: %zu of %zu points have no time and get no corrected height", path, no_t,
+                         doc->pts.count);
+    }
+    free(g.p_raw);
+    free(g.t_raw);
+    xmlFree(g.gpx_uri);
+    if (st)
+        hyp_gpx_doc_free(doc);
+    return st;
+}
+
+void hyp_gpx_doc_init(hyp_gpx_doc *d)
+{
+    memset(d, 0, sizeof *d);
+    hyp_series_init(&d->pts);
+}
+
+void hyp_gpx_doc_free(hyp_gpx_doc *d)
+{
+    hyp_series_free(&d->pts);
+    hyp_gpx_layout *L = &d->layout;
+    free(L->open_end);
+    free(L->ele_beg);
+    free(L->ele_end);
+    free(L->ext_ins);
+    free(L->ext_kind);
+    for (size_t i = 0; i < d->wpts.count; i++)
+        free(d->wpts.name[i]);
+    free(d->wpts.name);
+    free(d->wpts.time_s);
+    free(d->wpts.lat_deg);
+    free(d->wpts.lon_deg);
+    hyp_gpx_doc_init(d);
+}
+
+int hyp_file_is_xml(const char *path)
+{
+    FILE *f = fopen(path, "rb");
+    if (!f)
+        return -1;
+    unsigned char b[512];
+    size_t n = fread(b, 1, sizeof b, f);
+    fclose(f);
+    size_t i = n >= 3 && b[0] == 0xEF && b[1] == 0xBB && b[2] == 0xBF ? 3 : 0;
+    if (n >= 2 && ((b[0] == 0xFE && b[1] == 0xFF) || (b[0] == 0xFF && b[1] == 0xFE)))
+        return 1;
+    while (i < n && isspace(b[i]))
+        i++;
+    return i < n && b[i] == '<';
+}

@@ -1,0 +1,243 @@
+/* gpx_writer.c - the corrected GPX: the input's bytes copied unchanged,
+ * with the new <ele> values and this project's elements spliced in at the
+ * offsets the reader recorded; and a new GPX 1.1 for rovers read from CSV. */
+#define _POSIX_C_SOURCE 200809L
+#include "hypsolev/writers.h"
+#include "outfile.h"
+
+#include <errno.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+
+int hyp_same_file(const char *a, const char *b)
+{
+    struct stat sa, sb;
+    if (stat(a, &sa) != 0 || stat(b, &sb) != 0)
+        return 0;
+    return sa.st_dev == sb.st_dev && sa.st_ino == sb.st_ino;
+}
+
+/* A forward-only reader over the input that copies or skips up to an offset
+ * and can peek at the next byte, to check each splice lands where the
+ * reader said. */
+typedef struct src {
+    FILE *f;
+    unsigned char buf[1 << 16];
+    size_t len, pos;
+    int64_t off;          /* file offset of buf[pos] */
+    int last;             /* the last byte consumed, -1 at start */
+} src;
+
+static int src_fill(src *s)
+{
+    if (s->pos < s->len)
+        return 1;
+    s->len = fread(s->buf, 1, sizeof s->buf, s->f);
+    s->pos = 0;
+    return s->len > 0;
+}
+
+/* Copies (out != NULL) or skips bytes up to file offset `to`. */
+static int src_advance(src *s, int64_t to, FILE *out)
+{
+    while (s->off < to) {
+        if (!src_fill(s))
+            return -1;
+        size_t n = s->len - s->pos;
+        if ((int64_t)n > to - s->off)
+            n = (size_t)(to - s->off);
+        if (out && fwrite(s->buf + s->pos, 1, n, out) != n)
+            return -2;
+        s->last = s->buf[s->pos + n - 1];
+        s->pos += n;
+        s->off += (int64_t)n;
+    }
+    return 0;
+}
+
+static int src_peek(src *s)
+{
+    return src_fill(s) ? s->buf[s->pos] : -1;
+}
+
+static void escape_into(char *dst, size_t n, const char *s)
+{
+    size_t k = 0;
+    for (; *s && k + 7 < n; s++) {
+        const char *rep = *s == '<' ? "&lt;" : *s == '>' ? "&gt;" : *s == '&' ? "&amp;" : NULL;
+        if (rep) {
+            size_t l = strlen(rep);
+            memcpy(dst + k, rep, l);
+            k += l;
+        } else
+            dst[k++] = *s;
+    }
+    dst[k] = '\0';
+}
+
+/* The project's elements for point i, to go under its extensions. */
+static void point_elements(char *buf, size_t n, const hyp_gpx_doc *doc, const hyp_correct_result *res, size_t i)
+{
+    const char *P = HYP_GPX_PREFIX;
+    if (res->status[i] == HYP_PT_OK) {
+        double e = doc->pts.ele_m[i];
+        char ein[96] = "";
+        if (e == e)
+            snprintf(ein, sizeof ein, "<%s:ele_in>%.3f</%s:ele_in>", P, e, P);
+        snprintf(buf, n, "%s<%s:sigma>%.3f</%s:sigma>", ein, P, res->sigma_m[i], P);
+    } else {
+        char why[200];
+        const char *reason = res->status[i] == HYP_PT_REFUSED
+                                 ? hyp_sample_flag_text((hyp_sample_flag)doc->pts.flag[i])
+                                 : hyp_point_status_text((hyp_point_status)res->status[i]);
+        escape_into(why, sizeof why, reason);
+        snprintf(buf, n, "<%s:status>not corrected: %s</%s:status>", P, why, P);
+    }
+}
+
+static hyp_status layout_error(hyp_error *err, const char *in, int64_t off)
+{
+    return hyp_error_set(err, HYP_ERR_INTERNAL,
+                         "%s: byte %lld is not where the reader placed it (was the file changed while being read?); nothing written",
+                         in, (long long)off);
+}
+
+static hyp_status splice_point(src *s, FILE *out, const char *in, const hyp_gpx_doc *doc,
+                               const hyp_correct_result *res, size_t i, hyp_error *err)
+{
+    const hyp_gpx_layout *L = &doc->layout;
+    const char *gp = L->prefix, *colon = L->prefix[0] ? ":" : "";
+    if (L->open_end[i] < 0 || L->ext_ins[i] < 0)
+        return HYP_OK;     /* <trkpt .../> without content: nothing to splice */
+    int ok = res->status[i] == HYP_PT_OK;
+    if (ok && L->ele_beg[i] >= 0) {
+        if (src_advance(s, L->ele_beg[i], out) || s->last != '>')
+            return layout_error(err, in, L->ele_beg[i]);
+        fprintf(out, "%.3f", res->height_m[i]);
+        if (src_advance(s, L->ele_end[i], NULL) || src_peek(s) != '<')
+            return layout_error(err, in, L->ele_end[i]);
+    } else if (ok) {
+        if (src_advance(s, L->open_end[i], out) || s->last != '>')
+            return layout_error(err, in, L->open_end[i]);
+        fprintf(out, "<%s%sele>%.3f</%s%sele>", gp, colon, res->height_m[i], gp, colon);
+    }
+    if (src_advance(s, L->ext_ins[i], out) || src_peek(s) != '<')
+        return layout_error(err, in, L->ext_ins[i]);
+    char el[512];
+    point_elements(el, sizeof el, doc, res, i);
+    if (L->ext_kind[i] == HYP_EXT_WRAP)
+        fprintf(out, "<%s%sextensions>%s</%s%sextensions>", gp, colon, el, gp, colon);
+    else
+        fputs(el, out);
+    return HYP_OK;
+}
+
+static hyp_status splice_all(src *s, FILE *out, const char *in_path, const hyp_gpx_doc *doc,
+                             const hyp_correct_result *res, hyp_error *err)
+{
+    const hyp_gpx_layout *L = &doc->layout;
+    if (!L->has_hyp_ns) {
+        int c;
+        if (src_advance(s, L->root_attr_ins, out) || ((c = src_peek(s)) != '>' && c != '/'))
+            return layout_error(err, in_path, L->root_attr_ins);
+        fprintf(out, " xmlns:%s=\"%s\"", HYP_GPX_PREFIX, HYP_GPX_NS);
+    }
+    for (size_t i = 0; i < doc->pts.count; i++) {
+        hyp_status st = splice_point(s, out, in_path, doc, res, i, err);
+        if (st)
+            return st;
+    }
+    if (src_advance(s, L->file_size, out))
+        return hyp_error_set(err, HYP_ERR_IO, "%s: write error or input cut short", in_path);
+    if (src_fill(s))
+        return hyp_error_set(err, HYP_ERR_IO, "%s: the file grew since it was read; nothing written", in_path);
+    return HYP_OK;
+}
+
+hyp_status hyp_gpx_write_spliced(const char *in_path, const hyp_gpx_doc *doc,
+                                 const hyp_correct_result *res, const char *out_path,
+                                 hyp_error *err)
+{
+    if (hyp_same_file(in_path, out_path))
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s: output would overwrite the input; choose another name", out_path);
+    if (res->count != doc->pts.count)
+        return hyp_error_set(err, HYP_ERR_INTERNAL, "%s: result does not match the track", in_path);
+    src *s = calloc(1, sizeof *s);
+    if (!s)
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    s->last = -1;
+    hyp__outfile o;
+    hyp_status st = HYP_OK;
+    s->f = fopen(in_path, "rb");
+    if (!s->f) {
+        st = hyp_error_set(err, HYP_ERR_IO, "%s: cannot open: %s", in_path, strerror(errno));
+        free(s);
+        return st;
+    }
+    struct stat sb;
+    if (fstat(fileno(s->f), &sb) != 0 || (int64_t)sb.st_size != doc->layout.file_size) {
+        st = hyp_error_set(err, HYP_ERR_IO, "%s: the file changed since it was read; nothing written", in_path);
+        goto close_in;
+    }
+    st = hyp__out_open(&o, out_path, err);
+    if (st)
+        goto close_in;
+    st = splice_all(s, o.f, in_path, doc, res, err);
+    if (!st)
+        st = hyp__out_commit(&o, err);
+    else
+        hyp__out_abort(&o);
+close_in:
+    fclose(s->f);
+    free(s);
+    return st;
+}
+
+hyp_status hyp_gpx_write_new(const hyp_series *s, const hyp_correct_result *res, const char *track_name,
+                             const char *out_path, hyp_error *err)
+{
+    hyp__outfile o;
+    hyp_status st = hyp__out_open(&o, out_path, err);
+    if (st)
+        return st;
+    char name[256];
+    escape_into(name, sizeof name, track_name ? track_name : "track");
+    FILE *f = o.f;
+    fprintf(f, "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n"
+               "<gpx version=\"1.1\" creator=\"hypsolev\" xmlns=\"http://www.topografix.com/GPX/1/1\" xmlns:%s=\"%s\">\n"
+               "  <trk>\n    <name>%s</name>\n    <trkseg>\n",
+            HYP_GPX_PREFIX, HYP_GPX_NS, name);
+    for (size_t i = 0; i < s->count; i++) {
+        if (s->lat_deg[i] != s->lat_deg[i] || s->lon_deg[i] != s->lon_deg[i])
+            continue;   /* GPX needs a position */
+        int ok = res->status[i] == HYP_PT_OK;
+        double ele = ok ? res->height_m[i] : s->ele_m[i];
+        fprintf(f, "      <trkpt lat=\"%.8f\" lon=\"%.8f\">", s->lat_deg[i], s->lon_deg[i]);
+        if (ele == ele)
+            fprintf(f, "<ele>%.3f</ele>", ele);
+        if (s->time_s[i] == s->time_s[i]) {
+            char t[40];
+            hyp_time_format(s->time_s[i], t, sizeof t);
+            fprintf(f, "<time>%s</time>", t);
+        }
+        const char *P = HYP_GPX_PREFIX;
+        fputs("<extensions>", f);
+        if (ok) {
+            if (s->ele_m[i] == s->ele_m[i])
+                fprintf(f, "<%s:ele_in>%.3f</%s:ele_in>", P, s->ele_m[i], P);
+            fprintf(f, "<%s:sigma>%.3f</%s:sigma>", P, res->sigma_m[i], P);
+        } else {
+            const char *reason = res->status[i] == HYP_PT_REFUSED ? hyp_sample_flag_text((hyp_sample_flag)s->flag[i])
+                                                                   : hyp_point_status_text((hyp_point_status)res->status[i]);
+            fprintf(f, "<%s:status>not corrected: %s</%s:status>", P, reason, P);
+        }
+        if (s->pressure_pa[i] == s->pressure_pa[i])
+            fprintf(f, "<%s:pressure unit=\"hPa\">%.2f</%s:pressure>", P, s->pressure_pa[i] / 100.0, P);
+        fputs("</extensions></trkpt>\n", f);
+    }
+    fputs("    </trkseg>\n  </trk>\n</gpx>\n", f);
+    return hyp__out_commit(&o, err);
+}

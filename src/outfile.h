@@ -1,0 +1,23 @@
+/* outfile.h - write-to-temporary-then-rename output files (private). */
+#ifndef HYP_OUTFILE_H
+#define HYP_OUTFILE_H
+
+#include <stdio.h>
+#include "hypsolev/error.h"
+
+typedef struct hyp__outfile {
+    FILE *f;
+    int to_stdout;
+    char tmp[4096];
+    char final[4096];
+} hyp__outfile;
+
+/* Opens a temporary file beside path ("-" is stdout). */
+hyp_status hyp__out_open(hyp__outfile *o, const char *path, hyp_error *err);
+/* Flushes, syncs, closes and renames into place; on any failure removes the
+ * temporary file and leaves an existing target untouched. */
+hyp_status hyp__out_commit(hyp__outfile *o, hyp_error *err);
+/* Closes and removes the temporary file. */
+void hyp__out_abort(hyp__outfile *o);
+
+#endif

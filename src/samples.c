@@ -1,0 +1,112 @@
+/* samples.c - the growable struct-of-arrays sample series. */
+#include "hypsolev/samples.h"
+
+#include <stdlib.h>
+#include <string.h>
+
+/* A cap on one series: 50 million samples is about 580 days at 1 s, far
+ * beyond any field log; past it the reader refuses instead of eating the
+ * machine. */
+#define SERIES_MAX_COUNT ((size_t)50000000)
+
+void hyp_series_init(hyp_series *s)
+{
+    memset(s, 0, sizeof *s);
+}
+
+void hyp_series_free(hyp_series *s)
+{
+    free(s->time_s);
+    free(s->pressure_pa);
+    free(s->temp_k);
+    free(s->rh_pct);
+    free(s->lat_deg);
+    free(s->lon_deg);
+    free(s->ele_m);
+    free(s->line);
+    free(s->flag);
+    hyp_series_init(s);
+}
+
+static int grow(void **p, size_t n, size_t size)
+{
+    void *q = realloc(*p, n * size);
+    if (!q)
+        return -1;
+    *p = q;
+    return 0;
+}
+
+static hyp_status series_reserve(hyp_series *s, size_t n)
+{
+    if (n <= s->alloc)
+        return HYP_OK;
+    if (n > SERIES_MAX_COUNT)
+        return HYP_ERR_NOMEM;
+    size_t a = s->alloc ? s->alloc : 1024;
+    while (a < n)
+        a *= 2;
+    if (a > SERIES_MAX_COUNT)
+        a = SERIES_MAX_COUNT;
+    if (grow((void **)&s->time_s, a, sizeof(double)) ||
+        grow((void **)&s->pressure_pa, a, sizeof(double)) ||
+        grow((void **)&s->temp_k, a, sizeof(double)) ||
+        grow((void **)&s->rh_pct, a, sizeof(double)) ||
+        grow((void **)&s->lat_deg, a, sizeof(double)) ||
+        grow((void **)&s->lon_deg, a, sizeof(double)) ||
+        grow((void **)&s->ele_m, a, sizeof(double)) ||
+        grow((void **)&s->line, a, sizeof(uint32_t)) ||
+        grow((void **)&s->flag, a, sizeof(uint8_t)))
+        return HYP_ERR_NOMEM;
+    s->alloc = a;
+    return HYP_OK;
+}
+
+hyp_status hyp_series_push(hyp_series *s, double time_s, double pressure_pa,
+                           double temp_k, double rh_pct, double lat_deg,
+                           double lon_deg, double ele_m, uint32_t line,
+                           hyp_sample_flag flag)
+{
+    hyp_status st = series_reserve(s, s->count + 1);
+    if (st)
+        return st;
+    size_t i = s->count++;
+    s->time_s[i] = time_s;
+    s->pressure_pa[i] = pressure_pa;
+    s->temp_k[i] = temp_k;
+    s->rh_pct[i] = rh_pct;
+    s->lat_deg[i] = lat_deg;
+    s->lon_deg[i] = lon_deg;
+    s->ele_m[i] = ele_m;
+    s->line[i] = line;
+    s->flag[i] = (uint8_t)flag;
+    if (temp_k == temp_k)
+        s->has_temp = 1;
+    if (rh_pct == rh_pct)
+        s->has_rh = 1;
+    if (lat_deg == lat_deg && lon_deg == lon_deg)
+        s->has_position = 1;
+    return HYP_OK;
+}
+
+size_t hyp_series_count_flag(const hyp_series *s, hyp_sample_flag f)
+{
+    size_t n = 0;
+    for (size_t i = 0; i < s->count; i++)
+        n += s->flag[i] == f;
+    return n;
+}
+
+const char *hyp_sample_flag_text(hyp_sample_flag f)
+{
+    switch (f) {
+    case HYP_SAMPLE_OK: return "ok";
+    case HYP_SAMPLE_NO_TIME: return "no time stamp";
+    case HYP_SAMPLE_NO_PRESSURE: return "no pressure";
+    case HYP_SAMPLE_PRESSURE_RANGE: return "pressure outside 300-1100 hPa";
+    case HYP_SAMPLE_TIME_ORDER: return "time not after the previous sample";
+    case HYP_SAMPLE_BAD_VALUE: return "a value could not be read";
+    case HYP_SAMPLE_FLAG_COUNT: break;
+    }
+    return "unknown";
+}

@@ -1,0 +1,25 @@
+/* stats.h - small robust statistics the core shares (private). */
+#ifndef HYP_STATS_H
+#define HYP_STATS_H
+
+#include <stddef.h>
+
+/* Median of v[0..n) (reorders v). NaN for n == 0. */
+double hyp__median_inplace(double *v, size_t n);
+
+/* White-noise level (1 sigma) of a slowly varying series from its second
+ * differences: for white noise of sigma s, x[i-1] - 2 x[i] + x[i+1] has
+ * standard deviation s sqrt(6); the spread is taken robustly as 1.4826 times
+ * the median absolute deviation (Huber, Robust Statistics, 1981). Triplets
+ * spanning more than max_dt_s are skipped; samples with ok[i] == 0 too
+ * (ok may be NULL). NaN when fewer than 10 triplets. */
+double hyp__noise_second_diff(const double *t_s, const double *x, const unsigned char *ok,
+                              size_t n, double max_dt_s);
+
+/* Mean, sample standard deviation and the effective number of independent
+ * samples of x[0..n) under an AR(1) model, n (1 - r1) / (1 + r1) with r1 the
+ * lag-1 autocorrelation clamped to [0, 0.99] (Wilks, Statistical Methods in
+ * the Atmospheric Sciences, 3rd ed., eq. 5.12). */
+void hyp__mean_sd_neff(const double *x, size_t n, double *mean, double *sd, double *neff);
+
+#endif

@@ -1,0 +1,45 @@
+/* table_writer.c - the per-sample table (CSV) of a correction. Units of
+ * every column are fixed and documented in docs/formats.md: degrees for
+ * lat/lon, metres for heights, hPa for pressures, degC for temperature. */
+#include "hypsolev/writers.h"
+#include "outfile.h"
+
+#include <stdio.h>
+
+static void num(FILE *f, double v, int prec)
+{
+    if (v == v)
+        fprintf(f, ",%.*f", prec, v);
+    else
+        fputs(",", f);
+}
+
+hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res, const char *out_path,
+                           hyp_error *err)
+{
+    hyp__outfile o;
+    hyp_status st = hyp__out_open(&o, out_path, err);
+    if (st)
+        return st;
+    FILE *f = o.f;
+    fputs("time,lat,lon,ele_in,height,sigma,p_rover_hpa,p_base_hpa,offset_hpa,tcol_c,status\n", f);
+    for (size_t i = 0; i < s->count; i++) {
+        char t[40] = "";
+        if (s->time_s[i] == s->time_s[i])
+            hyp_time_format(s->time_s[i], t, sizeof t);
+        fputs(t, f);
+        num(f, s->lat_deg[i], 8);
+        num(f, s->lon_deg[i], 8);
+        num(f, s->ele_m[i], 3);
+        num(f, res->height_m[i], 3);
+        num(f, res->sigma_m[i], 3);
+        num(f, s->pressure_pa[i] / 100.0, 3);
+        num(f, res->base_p_pa[i] / 100.0, 3);
+        num(f, res->offset_pa[i] / 100.0, 3);
+        num(f, res->tcol_k[i] - 273.15, 2);
+        const char *why = res->status[i] == HYP_PT_REFUSED ? hyp_sample_flag_text((hyp_sample_flag)s->flag[i])
+                                                            : hyp_point_status_text((hyp_point_status)res->status[i]);
+        fprintf(f, ",%s\n", why);
+    }
+    return hyp__out_commit(&o, err);
+}

@@ -1,0 +1,339 @@
+/* timeparse.c - ISO 8601 / RFC 3339 and epoch time stamps, fixed offsets and
+ * tz database zones (TZif files, RFC 8536) for stamps without a zone. */
+#include "hypsolev/timeparse.h"
+
+#include <ctype.h>
+#include <errno.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+/* H. Hinnant, "chrono-Compatible Low-Level Date Algorithms" (public domain). */
+int64_t hyp_days_from_civil(int64_t y, unsigned m, unsigned d)
+{
+    y -= m <= 2;
+    const int64_t era = (y >= 0 ? y : y - 399) / 400;
+    const unsigned yoe = (unsigned)(y - era * 400);
+    const unsigned doy = (153 * (m > 2 ? m - 3 : m + 9) + 2) / 5 + d - 1;
+    const unsigned doe = yoe * 365 + yoe / 4 - yoe / 100 + doy;
+    return era * 146097 + (int64_t)doe - 719468;
+}
+
+static void civil_from_days(int64_t z, int *y, unsigned *m, unsigned *d)
+{
+    z += 719468;
+    const int64_t era = (z >= 0 ? z : z - 146096) / 146097;
+    const unsigned doe = (unsigned)(z - era * 146097);
+    const unsigned yoe = (doe - doe / 1460 + doe / 36524 - doe / 146096) / 365;
+    const unsigned doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
+    const unsigned mp = (5 * doy + 2) / 153;
+    *d = doy - (153 * mp + 2) / 5 + 1;
+    *m = mp < 10 ? mp + 3 : mp - 9;
+    *y = (int)((int64_t)yoe + era * 400 + (*m <= 2));
+}
+
+static int days_in_month(int y, unsigned m)
+{
+    static const int dm[12] = {31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31};
+    int leap = (y % 4 == 0 && y % 100 != 0) || y % 400 == 0;
+    return m == 2 ? 28 + leap : dm[m - 1];
+}
+
+void hyp_zone_init(hyp_zone *z)
+{
+    memset(z, 0, sizeof *z);
+}
+
+void hyp_zone_free(hyp_zone *z)
+{
+    free(z->trans_s);
+    free(z->trans_off_s);
+    hyp_zone_init(z);
+}
+
+/* Reads "+HH:MM", "+HHMM" or "+HH" at s; returns characters used, 0 if none. */
+static int parse_offset(const char *s, int32_t *off_s)
+{
+    if (s[0] != '+' && s[0] != '-')
+        return 0;
+    int sign = s[0] == '-' ? -1 : 1;
+    if (!isdigit((unsigned char)s[1]) || !isdigit((unsigned char)s[2]))
+        return 0;
+    int hh = (s[1] - '0') * 10 + (s[2] - '0');
+    int mm = 0, used = 3;
+    const char *p = s + 3;
+    if (*p == ':')
+        p++;
+    if (isdigit((unsigned char)p[0]) && isdigit((unsigned char)p[1])) {
+        mm = (p[0] - '0') * 10 + (p[1] - '0');
+        used = (int)(p + 2 - s);
+    } else if (p != s + 3) {
+        return 0;   /* "+01:" */
+    }
+    if (hh > 18 || mm > 59)
+        return 0;
+    *off_s = sign * (hh * 3600 + mm * 60);
+    return used;
+}
+
+static uint32_t be32(const unsigned char *p)
+{
+    return (uint32_t)p[0] << 24 | (uint32_t)p[1] << 16 | (uint32_t)p[2] << 8 | p[3];
+}
+
+static int64_t be64(const unsigned char *p)
+{
+    return (int64_t)((uint64_t)be32(p) << 32 | be32(p + 4));
+}
+
+/* Parses a TZif file (RFC 8536), version 2+ 64-bit block where present. */
+static hyp_status tzif_load(hyp_zone *z, const char *path, hyp_error *err)
+{
+    FILE *f = fopen(path, "rb");
+    if (!f)
+        return hyp_error_set(err, HYP_ERR_VALUE, "time zone \"%s\": no such zone (%s not found)", z->name, path);
+    unsigned char buf[1 << 16];
+    size_t n = fread(buf, 1, sizeof buf, f);
+    fclose(f);
+    hyp_status st = hyp_error_set(err, HYP_ERR_VALUE, "time zone \"%s\": %s is not a TZif file", z->name, path);
+    if (n < 44 || memcmp(buf, "TZif", 4) != 0)
+        return st;
+    size_t off = 0;
+    int tsize = 4;
+    for (int pass = 0; pass < 2; pass++) {
+        if (off + 44 > n)
+            return st;
+        const unsigned char *h = buf + off;
+        uint32_t isut = be32(h + 20), isstd = be32(h + 24), leap = be32(h + 28);
+        uint32_t timecnt = be32(h + 32), typecnt = be32(h + 36), charcnt = be32(h + 40);
+        if (typecnt == 0 || typecnt > 256 || timecnt > 4000 || charcnt > 4096 || leap > 1000)
+            return st;
+        size_t len = timecnt * (size_t)tsize + timecnt + typecnt * 6u + charcnt +
+                     leap * (size_t)(tsize + 4) + isstd + isut;
+        if (off + 44 + len > n)
+            return st;
+        if (pass == 0 && buf[4] >= '2') {   /* skip the 32-bit block */
+            off += 44 + len;
+            tsize = 8;
+            continue;
+        }
+        const unsigned char *t = h + 44, *idx = t + timecnt * (size_t)tsize, *tt = idx + timecnt;
+        z->trans_s = malloc((timecnt ? timecnt : 1) * sizeof *z->trans_s);
+        z->trans_off_s = malloc((timecnt ? timecnt : 1) * sizeof *z->trans_off_s);
+        if (!z->trans_s || !z->trans_off_s)
+            return hyp_error_set(err, HYP_ERR_NOMEM, "time zone \"%s\": out of memory", z->name);
+        for (uint32_t i = 0; i < timecnt; i++) {
+            if (idx[i] >= typecnt)
+                return st;
+            z->trans_s[i] = tsize == 8 ? be64(t + 8 * i) : (int32_t)be32(t + 4 * i);
+            z->trans_off_s[i] = (int32_t)be32(tt + 6 * idx[i]);
+        }
+        z->first_off_s = (int32_t)be32(tt);   /* RFC 8536 3.2: type 0 */
+        z->count = timecnt;
+        z->kind = 2;
+        hyp_error_clear(err);
+        return HYP_OK;
+    }
+    return st;
+}
+
+hyp_status hyp_zone_parse(hyp_zone *z, const char *text, const char *zoneinfo_dir,
+                          hyp_error *err)
+{
+    hyp_zone_free(z);
+    snprintf(z->name, sizeof z->name, "%s", text ? text : "");
+    if (!text || !*text)
+        return hyp_error_set(err, HYP_ERR_VALUE, "time zone is empty; expected +HH:MM, UTC or a zone name such as Europe/Vienna");
+    if (strcmp(text, "Z") == 0 || strcmp(text, "UTC") == 0 || strcmp(text, "utc") == 0) {
+        z->kind = 1;
+        z->offset_s = 0;
+        return HYP_OK;
+    }
+    int32_t off;
+    int used = parse_offset(text, &off);
+    if (used) {
+        if (text[used] != '\0')
+            return hyp_error_set(err, HYP_ERR_VALUE, "time zone \"%s\": expected +HH:MM", text);
+        z->kind = 1;
+        z->offset_s = off;
+        return HYP_OK;
+    }
+    /* A tz name: letters, digits, '/', '_', '-', '+'; no "..", no leading '/'. */
+    if (text[0] == '/' || strstr(text, "..") || strlen(text) > 60)
+        return hyp_error_set(err, HYP_ERR_VALUE, "time zone \"%s\": not a zone name", text);
+    for (const char *p = text; *p; p++)
+        if (!isalnum((unsigned char)*p) && !strchr("/_-+", *p))
+            return hyp_error_set(err, HYP_ERR_VALUE, "time zone \"%s\": expected +HH:MM, UTC or a zone name such as Europe/Vienna", text);
+    char path[512];
+    snprintf(path, sizeof path, "%s/%s", zoneinfo_dir ? zoneinfo_dir : "/usr/share/zoneinfo", text);
+    hyp_status st = tzif_load(z, path, err);
+    if (st) {
+        char name[64];
+        memcpy(name, z->name, sizeof name);
+        hyp_zone_free(z);
+        memcpy(z->name, name, sizeof name);
+    }
+    return st;
+}
+
+static int32_t offset_at_utc(const hyp_zone *z, int64_t utc_s)
+{
+    if (z->kind == 1)
+        return z->offset_s;
+    if (z->kind != 2)
+        return 0;
+    /* last transition at or before utc_s */
+    size_t lo = 0, hi = z->count;
+    while (lo < hi) {
+        size_t mid = lo + (hi - lo) / 2;
+        if (z->trans_s[mid] <= utc_s)
+            lo = mid + 1;
+        else
+            hi = mid;
+    }
+    return lo == 0 ? z->first_off_s : z->trans_off_s[lo - 1];
+}
+
+int32_t hyp_zone_offset_for_local(const hyp_zone *z, int64_t local_s)
+{
+    if (!z || z->kind != 2)
+        return z && z->kind == 1 ? z->offset_s : 0;
+    /* Offsets change at most a few times a year, so the offsets in force 12 h
+     * either side are the only candidates; keep those that map back. */
+    int32_t o1 = offset_at_utc(z, local_s - 43200), o2 = offset_at_utc(z, local_s + 43200);
+    int v1 = offset_at_utc(z, local_s - o1) == o1;
+    int v2 = offset_at_utc(z, local_s - o2) == o2;
+    if (v1 && v2)
+        return o1 > o2 ? o1 : o2;   /* overlap: the earlier instant */
+    if (v2)
+        return o2;
+    return o1;                      /* valid, or a gap: the offset before it */
+}
+
+static int digits(const char *s, int n, int *v)
+{
+    int x = 0;
+    for (int i = 0; i < n; i++) {
+        if (!isdigit((unsigned char)s[i]))
+            return 0;
+        x = x * 10 + (s[i] - '0');
+    }
+    *v = x;
+    return 1;
+}
+
+static hyp_time_result parse_epoch(const char *s, double *time_s)
+{
+    const char *p = s;
+    if (!isdigit((unsigned char)*p))
+        return HYP_TIME_SYNTAX;
+    while (isdigit((unsigned char)*p))
+        p++;
+    if (*p == '.') {
+        p++;
+        while (isdigit((unsigned char)*p))
+            p++;
+    }
+    while (*p == ' ' || *p == '\t')
+        p++;
+    if (*p)
+        return HYP_TIME_SYNTAX;
+    errno = 0;
+    double v = strtod(s, NULL);
+    if (errno || !(v >= 1e8 && v <= 7.3e9))
+        return HYP_TIME_RANGE;
+    *time_s = v;
+    return HYP_TIME_OK;
+}
+
+hyp_time_result hyp_time_parse(const char *text, const hyp_zone *zone, double *time_s)
+{
+    const char *s = text;
+    while (*s == ' ' || *s == '\t')
+        s++;
+    int y, mo, d, h, mi, sec = 0;
+    if (!(digits(s, 4, &y) && s[4] == '-'))
+        return parse_epoch(s, time_s);
+    if (!(digits(s + 5, 2, &mo) && s[7] == '-' && digits(s + 8, 2, &d)))
+        return HYP_TIME_SYNTAX;
+    s += 10;
+    if (!(*s == 'T' || *s == 't' || *s == ' '))
+        return HYP_TIME_SYNTAX;
+    s++;
+    if (!(digits(s, 2, &h) && s[2] == ':' && digits(s + 3, 2, &mi)))
+        return HYP_TIME_SYNTAX;
+    s += 5;
+    double frac = 0.0;
+    if (*s == ':') {
+        if (!digits(s + 1, 2, &sec))
+            return HYP_TIME_SYNTAX;
+        s += 3;
+        if (*s == '.' || *s == ',') {
+            s++;
+            double scale = 0.1;
+            if (!isdigit((unsigned char)*s))
+                return HYP_TIME_SYNTAX;
+            for (int k = 0; isdigit((unsigned char)*s); s++, k++)
+                if (k < 9) {
+                    frac += (*s - '0') * scale;
+                    scale /= 10.0;
+                }
+        }
+    }
+    int has_zone = 0;
+    int32_t off = 0;
+    if (*s == 'Z' || *s == 'z') {
+        has_zone = 1;
+        s++;
+    } else if (*s == '+' || *s == '-') {
+        int used = parse_offset(s, &off);
+        if (!used)
+            return HYP_TIME_SYNTAX;
+        has_zone = 1;
+        s += used;
+    }
+    while (*s == ' ' || *s == '\t')
+        s++;
+    if (*s)
+        return HYP_TIME_SYNTAX;
+    if (y < 1900 || y > 2200 || mo < 1 || mo > 12 || d < 1 || d > days_in_month(y, (unsigned)mo) ||
+        h > 24 || mi > 59 || sec > 60 || (h == 24 && (mi || sec || frac > 0.0)))
+        return HYP_TIME_RANGE;
+    /* sec == 60 is a leap second: POSIX time has none, so it is the same
+     * instant as the next second's start. */
+    int64_t local = hyp_days_from_civil(y, (unsigned)mo, (unsigned)d) * 86400 +
+                    h * 3600 + mi * 60 + sec;
+    if (!has_zone) {
+        if (!zone || zone->kind == 0)
+            return HYP_TIME_NOZONE;
+        off = hyp_zone_offset_for_local(zone, local);
+    }
+    *time_s = (double)(local - off) + frac;
+    return HYP_TIME_OK;
+}
+
+void hyp_time_format(double time_s, char *buf, size_t n)
+{
+    if (time_s != time_s || fabs(time_s) > 1e12) {
+        snprintf(buf, n, "invalid");
+        return;
+    }
+    double whole = floor(time_s);
+    int ms = (int)lround((time_s - whole) * 1000.0);
+    if (ms == 1000) {
+        whole += 1.0;
+        ms = 0;
+    }
+    int64_t t = (int64_t)whole;
+    int64_t days = t >= 0 ? t / 86400 : -((-t + 86399) / 86400);
+    int64_t rem = t - days * 86400;
+    int y;
+    unsigned m, d;
+    civil_from_days(days, &y, &m, &d);
+    int hh = (int)(rem / 3600), mm = (int)(rem / 60 % 60), ss = (int)(rem % 60);
+    if (ms)
+        snprintf(buf, n, "%04d-%02u-%02uT%02d:%02d:%02d.%03dZ", y, m, d, hh, mm, ss, ms);
+    else
+        snprintf(buf, n, "%04d-%02u-%02uT%02d:%02d:%02dZ", y, m, d, hh, mm, ss);
+}

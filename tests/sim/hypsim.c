@@ -1,0 +1,271 @@
+/* hypsim.c - the project's survey simulator: a roving barometer walking a
+ * route while a base logger records, through a model atmosphere with weather
+ * change, humidity, sensor noise, instrument offsets and drift. Pressures come
+ * from integrating the hydrostatic equation numerically (RK4) - never from
+ * the library's formulas - and the truth is written beside the logs so tests
+ * can score a correction against it.
+ *
+ *   hypsim SCENARIO OUTDIR [--seed N]     scenarios: demo, calm
+ *
+ * Writes OUTDIR/rover.gpx, OUTDIR/base.csv, OUTDIR/truth.csv and
+ * OUTDIR/scenario.txt (the parameters). Everything is invented. */
+#define _DEFAULT_SOURCE
+#include <math.h>
+#include <stdint.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+
+typedef struct scenario {
+    const char *name;
+    double lat0, lon0, base_h;      /* base position and height (m) */
+    double top_h, route_km;         /* highest point, one-way length */
+    double t0;                      /* start, Unix s */
+    double coloc_s, rest_s;         /* standing at the base, at the top */
+    double walk_speed;              /* m/s horizontally */
+    double rover_dt, base_dt;       /* sampling, s */
+    /* atmosphere */
+    double slp_pa, trend_pa_h;      /* sea-level pressure and its trend */
+    double grad_pa_km_e, grad_pa_km_n; /* horizontal gradient of it */
+    double t_sl_k, lapse_k_km, diurnal_k; /* sea-level temp, lapse, diurnal amplitude */
+    double rh_sl, rh_lapse_km;      /* humidity at sea level (%), change per km */
+    /* sensors */
+    double rover_off_pa, rover_drift_pa_h, rover_noise_pa, rover_q_pa;
+    double base_off_pa, base_noise_pa, base_q_pa;
+    double body_warming_k;          /* rover thermometer warming while walking */
+    double gnss_sd_m, gnss_tau_s;   /* correlated GNSS height error */
+} scenario;
+
+static const scenario scenarios[] = {
+    {"demo", 46.80, 9.90, 812.4, 1968.0, 7.5, 1781766000.0 /* 2026-06-18T07:00Z */,
+     900, 1200, 1.05, 5, 30,
+     101600, -0.35, 0.02, -0.03, 291.0, -6.2, 3.0, 70, -8,
+     42.0, 5.0, 2.5, 1.0, 0.0, 1.2, 1.0, 2.5, 4.0, 400},
+    {"calm", 46.80, 9.90, 812.4, 1468.0, 4.0, 1781766000.0,
+     900, 900, 1.0, 5, 30,
+     101400, 0.0, 0.0, 0.0, 290.0, -6.5, 1.0, 60, -5,
+     30.0, 0.0, 2.0, 1.0, 0.0, 1.0, 1.0, 0.0, 4.0, 400},
+};
+
+/* --- deterministic random numbers: xorshift64* and Box-Muller --- */
+static uint64_t rng_state = 88172645463325252ULL;
+static double urand(void)
+{
+    rng_state ^= rng_state >> 12;
+    rng_state ^= rng_state << 25;
+    rng_state ^= rng_state >> 27;
+    return (double)((rng_state * 2685821657736338717ULL) >> 11) * (1.0 / 9007199254740992.0);
+}
+static double nrand(void)
+{
+    double u = urand(), v = urand();
+    if (u < 1e-300)
+        u = 1e-300;
+    return sqrt(-2.0 * log(u)) * cos(2.0 * M_PI * v);
+}
+
+/* --- the model atmosphere --- */
+/* Gravity: GRS80 international gravity formula with the free-air gradient
+ * (Moritz 1980) - a different formula from the library's on purpose. */
+static double sim_gravity(double lat_deg, double z)
+{
+    double s = sin(lat_deg * M_PI / 180.0), s2 = sin(2.0 * lat_deg * M_PI / 180.0);
+    return 9.780327 * (1.0 + 0.0053024 * s * s - 0.0000058 * s2 * s2) - 3.086e-6 * z;
+}
+
+static double air_temp(const scenario *sc, double z, double t)
+{
+    double hour = fmod((t / 3600.0), 24.0);
+    double diurnal = sc->diurnal_k * sin(2.0 * M_PI * (hour - 9.0) / 24.0);
+    return sc->t_sl_k + diurnal + sc->lapse_k_km * z / 1000.0;
+}
+
+static double air_rh(const scenario *sc, double z)
+{
+    double rh = sc->rh_sl + sc->rh_lapse_km * z / 1000.0;
+    return rh < 5 ? 5 : rh > 100 ? 100 : rh;
+}
+
+/* Bolton (1980) saturation vapour pressure, Pa - not the library's WMO one. */
+static double sim_es(double tk)
+{
+    double tc = tk - 273.15;
+    return 611.2 * exp(17.67 * tc / (tc + 243.5));
+}
+
+static double sea_level_pressure(const scenario *sc, double east_km, double north_km, double t)
+{
+    return sc->slp_pa + sc->trend_pa_h * 100.0 * (t - sc->t0) / 3600.0 +
+           sc->grad_pa_km_e * 100.0 * east_km + sc->grad_pa_km_n * 100.0 * north_km;
+}
+
+/* dp/dz = -p g / (Rd Tv), integrated by RK4 from sea level in steps <= 5 m. */
+static double dpdz(const scenario *sc, double lat, double z, double p, double t)
+{
+    const double rd = 287.0531, eps = 0.621957;
+    double tk = air_temp(sc, z, t);
+    double e = air_rh(sc, z) / 100.0 * sim_es(tk);
+    double tv = tk / (1.0 - e / p * (1.0 - eps));
+    return -p * sim_gravity(lat, z) / (rd * tv);
+}
+
+static double true_pressure(const scenario *sc, double lat, double east_km, double north_km, double z, double t)
+{
+    double p = sea_level_pressure(sc, east_km, north_km, t);
+    int n = (int)ceil(fabs(z) / 5.0);
+    if (n < 1)
+        n = 1;
+    double h = z / n, zz = 0.0;
+    for (int i = 0; i < n; i++) {
+        double k1 = dpdz(sc, lat, zz, p, t);
+        double k2 = dpdz(sc, lat, zz + h / 2, p + h / 2 * k1, t);
+        double k3 = dpdz(sc, lat, zz + h / 2, p + h / 2 * k2, t);
+        double k4 = dpdz(sc, lat, zz + h, p + h * k3, t);
+        p += h / 6.0 * (k1 + 2 * k2 + 2 * k3 + k4);
+        zz += h;
+    }
+    return p;
+}
+
+/* --- the route: out and back along a bent line, a smooth climb --- */
+typedef struct state { double east_km, north_km, z, walking; } state;
+
+static state where(const scenario *sc, double t)
+{
+    double walk_s = sc->route_km * 1000.0 / sc->walk_speed;
+    double tt = t - sc->t0;
+    double s_km;   /* distance along the route from the base */
+    double walking = 1.0;
+    if (tt < sc->coloc_s) { s_km = 0; walking = 0; }
+    else if (tt < sc->coloc_s + walk_s) s_km = (tt - sc->coloc_s) * sc->walk_speed / 1000.0;
+    else if (tt < sc->coloc_s + walk_s + sc->rest_s) { s_km = sc->route_km; walking = 0; }
+    else if (tt < sc->coloc_s + 2 * walk_s + sc->rest_s)
+        s_km = sc->route_km - (tt - sc->coloc_s - walk_s - sc->rest_s) * sc->walk_speed / 1000.0;
+    else { s_km = 0; walking = 0; }
+    double f = s_km / sc->route_km;
+    state st;
+    st.east_km = 0.8 * s_km + 0.3 * sin(3.0 * f);
+    st.north_km = 0.6 * s_km;
+    /* climb with a dip and a steep last third */
+    double prof = 0.5 - 0.5 * cos(M_PI * f) + 0.04 * sin(5.0 * M_PI * f);
+    st.z = sc->base_h + (sc->top_h - sc->base_h) * prof;
+    st.walking = walking;
+    return st;
+}
+
+static double total_s(const scenario *sc)
+{
+    return 2 * sc->coloc_s + 2 * sc->route_km * 1000.0 / sc->walk_speed + sc->rest_s;
+}
+
+static void iso(double t, char *buf, size_t n)
+{
+    time_t s = (time_t)floor(t);
+    struct tm tm;
+    gmtime_r(&s, &tm);
+    strftime(buf, n, "%Y-%m-%dT%H:%M:%SZ", &tm);
+}
+
+static double quant(double v, double q)
+{
+    return q > 0 ? q * floor(v / q + 0.5) : v;
+}
+
+static FILE *open_out(const char *dir, const char *name)
+{
+    char path[4096];
+    snprintf(path, sizeof path, "%s/%s", dir, name);
+    FILE *f = fopen(path, "w");
+    if (!f)
+        perror(path);
+    return f;
+}
+
+static void latlon(const scenario *sc, double east_km, double north_km, double *lat, double *lon)
+{
+    *lat = sc->lat0 + north_km / 111.2;
+    *lon = sc->lon0 + east_km / (111.2 * cos(sc->lat0 * M_PI / 180.0));
+}
+
+static int write_base(const scenario *sc, const char *dir)
+{
+    FILE *f = open_out(dir, "base.csv");
+    if (!f)
+        return 1;
+    fprintf(f, "# base logger at the trailhead (simulated, scenario %s)\n", sc->name);
+    fprintf(f, "time,pressure [hPa],temperature [degC],humidity [%%]\n");
+    double t_end = sc->t0 + total_s(sc) + 1800;
+    for (double t = sc->t0 - 1800; t <= t_end; t += sc->base_dt) {
+        double p = true_pressure(sc, sc->lat0, 0, 0, sc->base_h, t);
+        double pm = quant(p + sc->base_off_pa + sc->base_noise_pa * nrand(), sc->base_q_pa);
+        double tk = air_temp(sc, sc->base_h, t) + 0.2 * nrand();
+        char ts[40];
+        iso(t, ts, sizeof ts);
+        fprintf(f, "%s,%.2f,%.2f,%.1f\n", ts, pm / 100.0, tk - 273.15, air_rh(sc, sc->base_h));
+    }
+    return fclose(f) != 0;
+}
+
+static int write_rover(const scenario *sc, const char *dir)
+{
+    FILE *g = open_out(dir, "rover.gpx"), *tr = open_out(dir, "truth.csv");
+    if (!g || !tr)
+        return 1;
+    fprintf(g, "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n"
+               "<gpx version=\"1.1\" creator=\"hypsim\" xmlns=\"http://www.topografix.com/GPX/1/1\"\n"
+               "     xmlns:lg=\"urn:example:field-logger:1\">\n"
+               "  <metadata><name>simulated walk (%s)</name></metadata>\n"
+               "  <trk>\n    <name>walk</name>\n    <trkseg>\n", sc->name);
+    fprintf(tr, "time,lat,lon,height_m,pressure_pa\n");
+    double gnss_err = 0.0, a = exp(-sc->rover_dt / sc->gnss_tau_s);
+    double t_end = sc->t0 + total_s(sc);
+    for (double t = sc->t0; t <= t_end; t += sc->rover_dt) {
+        state st = where(sc, t);
+        double lat, lon;
+        latlon(sc, st.east_km, st.north_km, &lat, &lon);
+        double p = true_pressure(sc, lat, st.east_km, st.north_km, st.z, t);
+        double hours = (t - sc->t0) / 3600.0;
+        double pm = quant(p + sc->rover_off_pa + sc->rover_drift_pa_h * hours + sc->rover_noise_pa * nrand(), sc->rover_q_pa);
+        double tk = air_temp(sc, st.z, t) + sc->body_warming_k * (st.walking ? 1.0 : 0.4) + 0.3 * nrand();
+        gnss_err = a * gnss_err + sqrt(1 - a * a) * sc->gnss_sd_m * nrand();
+        double mlat = lat + 2.0 / 111200.0 * nrand(), mlon = lon + 2.0 / 80000.0 * nrand();
+        char ts[40];
+        iso(t, ts, sizeof ts);
+        fprintf(g, "      <trkpt lat=\"%.7f\" lon=\"%.7f\"><ele>%.1f</ele><time>%s</time>"
+                   "<extensions><lg:sensor><lg:pressure unit=\"hPa\">%.2f</lg:pressure>"
+                   "<lg:temperature unit=\"degC\">%.1f</lg:temperature></lg:sensor></extensions></trkpt>\n",
+                mlat, mlon, st.z + gnss_err + 1.0 * nrand(), ts, pm / 100.0, tk - 273.15);
+        fprintf(tr, "%s,%.7f,%.7f,%.3f,%.2f\n", ts, lat, lon, st.z, p);
+    }
+    fputs("    </trkseg>\n  </trk>\n</gpx>\n", g);
+    return (fclose(g) != 0) | (fclose(tr) != 0);
+}
+
+int main(int argc, char **argv)
+{
+    if (argc < 3) {
+        fprintf(stderr, "usage: hypsim SCENARIO OUTDIR [--seed N]\n");
+        return 2;
+    }
+    const scenario *sc = NULL;
+    for (size_t i = 0; i < sizeof scenarios / sizeof scenarios[0]; i++)
+        if (strcmp(argv[1], scenarios[i].name) == 0)
+            sc = &scenarios[i];
+    if (!sc) {
+        fprintf(stderr, "hypsim: unknown scenario %s\n", argv[1]);
+        return 2;
+    }
+    if (argc >= 5 && strcmp(argv[3], "--seed") == 0)
+        rng_state ^= strtoull(argv[4], NULL, 10) * 0x9E3779B97F4A7C15ULL;
+    if (write_base(sc, argv[2]) || write_rover(sc, argv[2]))
+        return 1;
+    FILE *f = open_out(argv[2], "scenario.txt");
+    if (!f)
+        return 1;
+    fprintf(f, "scenario %s\nbase_height_m %.3f\nbase_lat %.6f\nbase_lon %.6f\n"
+               "rover_offset_pa %.2f\nrover_drift_pa_per_h %.2f\nrover_noise_pa %.2f\nbase_noise_pa %.2f\n",
+            sc->name, sc->base_h, sc->lat0, sc->lon0, sc->rover_off_pa, sc->rover_drift_pa_h,
+            sc->rover_noise_pa, sc->base_noise_pa);
+    return fclose(f) != 0;
+}
