@@ -1,0 +1,186 @@
+/* test_units_time.c - unit conversion and time stamps against published
+ * definitions and an independent implementation (GNU date). */
+#include <stdarg.h>
+#include <stddef.h>
+#include <setjmp.h>
+#include <stdint.h>
+#include <cmocka.h>
+#include <math.h>
+#include <string.h>
+#include <sys/stat.h>
+
+#include "hypsolev/timeparse.h"
+#include "hypsolev/units.h"
+
+#define assert_near(a, b, tol) assert_true(fabs((a) - (b)) <= (tol))
+
+/* NIST SP 811 (2008), Appendix B.8: 1 inHg (conventional) = 3.386389e3 Pa,
+ * 1 mmHg (conventional) = 1.333224e2 Pa, 1 mbar = 100 Pa; the kelvin and
+ * degree Fahrenheit relations of section B.9. */
+static void test_units_convert(void **state)
+{
+    (void)state;
+    assert_near(hyp_unit_to_si(HYP_UNIT_INHG, 1.0), 3386.389, 1e-3);
+    assert_near(hyp_unit_to_si(HYP_UNIT_MMHG, 1.0), 133.3224, 1e-4);
+    assert_near(hyp_unit_to_si(HYP_UNIT_MBAR, 1013.25), 101325.0, 1e-9);
+    assert_near(hyp_unit_to_si(HYP_UNIT_HPA, 1013.25), 101325.0, 1e-9);
+    assert_near(hyp_unit_to_si(HYP_UNIT_KPA, 101.325), 101325.0, 1e-9);
+    /* 29.92 inHg is the aviation standard setting, 1013.2 hPa (ICAO Annex 5,
+     * from memory) */
+    assert_near(hyp_unit_to_si(HYP_UNIT_INHG, 29.92) / 100.0, 1013.2, 0.05);
+    /* 760 torr is one standard atmosphere, 101325 Pa (CGPM 1954); the
+     * conventional mmHg is 1.5e-7 larger than the torr (NIST SP 811 B.8), so
+     * 760 mmHg = 101325.015 Pa. */
+    assert_near(hyp_unit_to_si(HYP_UNIT_MMHG, 760.0), 101325.015, 0.001);
+    assert_near(hyp_unit_to_si(HYP_UNIT_DEGF, 32.0), 273.15, 1e-9);
+    assert_near(hyp_unit_to_si(HYP_UNIT_DEGF, 212.0), 373.15, 1e-9);
+    assert_near(hyp_unit_to_si(HYP_UNIT_DEGC, -40.0), hyp_unit_to_si(HYP_UNIT_DEGF, -40.0), 1e-9);
+}
+
+static void test_units_parse(void **state)
+{
+    (void)state;
+    assert_int_equal(hyp_unit_parse(HYP_Q_PRESSURE, "hpa"), HYP_UNIT_HPA);
+    assert_int_equal(hyp_unit_parse(HYP_Q_PRESSURE, "mb"), HYP_UNIT_MBAR);
+    assert_int_equal(hyp_unit_parse(HYP_Q_PRESSURE, "inHg"), HYP_UNIT_INHG);
+    assert_int_equal(hyp_unit_parse(HYP_Q_TEMPERATURE, "\xC2\xB0" "C"), HYP_UNIT_DEGC);
+    assert_int_equal(hyp_unit_parse(HYP_Q_TEMPERATURE, "K"), HYP_UNIT_K);
+    assert_int_equal(hyp_unit_parse(HYP_Q_PRESSURE, "K"), HYP_UNIT_NONE);
+    assert_int_equal(hyp_unit_parse(HYP_Q_PRESSURE, "psi"), HYP_UNIT_NONE);
+}
+
+/* Inference only where one unit fits (ranges 300-1100 hPa, -60..60 degC:
+ * the readers' range checks). */
+static void test_units_infer(void **state)
+{
+    (void)state;
+    char c[128];
+    assert_int_equal(hyp_unit_infer(HYP_Q_PRESSURE, 85000, 101000, c, sizeof c), HYP_UNIT_PA);
+    assert_int_equal(hyp_unit_infer(HYP_Q_PRESSURE, 850, 1010, c, sizeof c), HYP_UNIT_HPA);
+    assert_int_equal(hyp_unit_infer(HYP_Q_PRESSURE, 85, 101, c, sizeof c), HYP_UNIT_KPA);
+    /* 700 hPa or 700 mmHg: ambiguous */
+    assert_int_equal(hyp_unit_infer(HYP_Q_PRESSURE, 690, 760, c, sizeof c), HYP_UNIT_NONE);
+    assert_non_null(strstr(c, "hPa"));
+    assert_non_null(strstr(c, "mmHg"));
+    assert_int_equal(hyp_unit_infer(HYP_Q_PRESSURE, 28.5, 30.1, c, sizeof c), HYP_UNIT_INHG);
+    assert_int_equal(hyp_unit_infer(HYP_Q_TEMPERATURE, 270, 300, c, sizeof c), HYP_UNIT_K);
+    assert_int_equal(hyp_unit_infer(HYP_Q_TEMPERATURE, 5, 25, c, sizeof c), HYP_UNIT_NONE);
+}
+
+/* RFC 3339 section 5.8 examples; the expected epoch seconds are GNU date's
+ * (coreutils 9.1, `date -u -d STAMP +%s.%N`). */
+static void test_time_rfc3339(void **state)
+{
+    (void)state;
+    double t;
+    assert_int_equal(hyp_time_parse("1985-04-12T23:20:50.52Z", NULL, &t), HYP_TIME_OK);
+    assert_near(t, 482196050.52, 1e-6);
+    assert_int_equal(hyp_time_parse("1996-12-19T16:39:57-08:00", NULL, &t), HYP_TIME_OK);
+    assert_near(t, 851042397.0, 1e-9);
+    /* a leap second is the same POSIX instant as the next second */
+    assert_int_equal(hyp_time_parse("1990-12-31T23:59:60Z", NULL, &t), HYP_TIME_OK);
+    assert_near(t, 662688000.0, 1e-9);
+    assert_int_equal(hyp_time_parse("1937-01-01T12:00:27.87+00:20", NULL, &t), HYP_TIME_OK);
+    /* GNU date prints %s.%N of a negative time as floor seconds plus a
+     * positive fraction: -1041337173.87 there is -1041337173 + 0.87. */
+    assert_near(t, -1041337172.13, 1e-6);
+    /* ISO 8601 variants: space separator, +hhmm, +hh, no seconds */
+    assert_int_equal(hyp_time_parse("1996-12-19 16:39:57-0800", NULL, &t), HYP_TIME_OK);
+    assert_near(t, 851042397.0, 1e-9);
+    assert_int_equal(hyp_time_parse("1996-12-20T00:39Z", NULL, &t), HYP_TIME_OK);
+    assert_near(t, 851042340.0, 1e-9);
+    /* Unix epoch seconds */
+    assert_int_equal(hyp_time_parse("851042397.25", NULL, &t), HYP_TIME_OK);
+    assert_near(t, 851042397.25, 1e-9);
+}
+
+static void test_time_bad(void **state)
+{
+    (void)state;
+    double t;
+    assert_int_equal(hyp_time_parse("2026-02-30T10:00:00Z", NULL, &t), HYP_TIME_RANGE);
+    assert_int_equal(hyp_time_parse("2026-13-01T10:00:00Z", NULL, &t), HYP_TIME_RANGE);
+    assert_int_equal(hyp_time_parse("2025-02-29T10:00:00Z", NULL, &t), HYP_TIME_RANGE);
+    assert_int_equal(hyp_time_parse("2024-02-29T10:00:00Z", NULL, &t), HYP_TIME_OK);
+    assert_int_equal(hyp_time_parse("9999-01-01T00:00:00Z", NULL, &t), HYP_TIME_RANGE);
+    assert_int_equal(hyp_time_parse("2026-06-14T25:00:00Z", NULL, &t), HYP_TIME_RANGE);
+    assert_int_equal(hyp_time_parse("2026-06-14T10:00:00", NULL, &t), HYP_TIME_NOZONE);
+    assert_int_equal(hyp_time_parse("2026-06-14T10:00:00+1", NULL, &t), HYP_TIME_SYNTAX);
+    assert_int_equal(hyp_time_parse("yesterday", NULL, &t), HYP_TIME_SYNTAX);
+    assert_int_equal(hyp_time_parse("", NULL, &t), HYP_TIME_SYNTAX);
+    assert_int_equal(hyp_time_parse("12", NULL, &t), HYP_TIME_RANGE);
+    assert_int_equal(hyp_time_parse("1e9", NULL, &t), HYP_TIME_SYNTAX);
+}
+
+static void test_time_fixed_zone(void **state)
+{
+    (void)state;
+    hyp_zone z;
+    hyp_zone_init(&z);
+    hyp_error err;
+    assert_int_equal(hyp_zone_parse(&z, "+05:30", NULL, &err), HYP_OK);
+    double t;
+    assert_int_equal(hyp_time_parse("1996-12-20T06:09:57", &z, &t), HYP_TIME_OK);
+    assert_near(t, 851042397.0, 1e-9);
+    assert_int_equal(hyp_zone_parse(&z, "+25:00", NULL, &err), HYP_ERR_VALUE);
+    assert_int_equal(hyp_zone_parse(&z, "../etc/passwd", NULL, &err), HYP_ERR_VALUE);
+    assert_int_equal(hyp_zone_parse(&z, "Nowhere/Atlantis", NULL, &err), HYP_ERR_VALUE);
+    assert_non_null(strstr(err.message, "Nowhere/Atlantis"));
+    hyp_zone_free(&z);
+}
+
+/* Central European time per Directive 2000/84/EC: +01:00, and +02:00 from
+ * the last Sunday of March to the last Sunday of October, switching at
+ * 01:00 UTC (2026-03-29 and 2026-10-25). Read from Debian's tzdata. */
+static void test_time_tz_database(void **state)
+{
+    (void)state;
+    struct stat st;
+    if (stat("/usr/share/zoneinfo/Europe/Vienna", &st) != 0) {
+        print_message("skipped: /usr/share/zoneinfo/Europe/Vienna absent (install tzdata)\n");
+        skip();
+    }
+    hyp_zone z;
+    hyp_zone_init(&z);
+    hyp_error err;
+    assert_int_equal(hyp_zone_parse(&z, "Europe/Vienna", NULL, &err), HYP_OK);
+    double t;
+    assert_int_equal(hyp_time_parse("2026-07-01T12:00:00", &z, &t), HYP_TIME_OK);
+    assert_near(t, 1782900000.0, 1e-9);   /* GNU date: TZ=Europe/Vienna */
+    assert_int_equal(hyp_time_parse("2026-01-15T12:00:00", &z, &t), HYP_TIME_OK);
+    assert_near(t, 1768474800.0, 1e-9);
+    /* 02:30 on 2026-03-29 does not exist: the offset before the gap (+01) */
+    assert_int_equal(hyp_time_parse("2026-03-29T02:30:00", &z, &t), HYP_TIME_OK);
+    assert_near(t, 1774747800.0, 1e-9);   /* 01:30Z */
+    /* 02:30 on 2026-10-25 happens twice: the earlier, summer time (+02) */
+    assert_int_equal(hyp_time_parse("2026-10-25T02:30:00", &z, &t), HYP_TIME_OK);
+    assert_near(t, 1792888200.0, 1e-9);   /* 00:30Z */
+    hyp_zone_free(&z);
+}
+
+static void test_time_format(void **state)
+{
+    (void)state;
+    char b[40];
+    hyp_time_format(482196050.52, b, sizeof b);
+    assert_string_equal(b, "1985-04-12T23:20:50.520Z");
+    hyp_time_format(1782900000.0, b, sizeof b);
+    assert_string_equal(b, "2026-07-01T10:00:00Z");
+    hyp_time_format(-1.0, b, sizeof b);
+    assert_string_equal(b, "1969-12-31T23:59:59Z");
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_units_convert),
+        cmocka_unit_test(test_units_parse),
+        cmocka_unit_test(test_units_infer),
+        cmocka_unit_test(test_time_rfc3339),
+        cmocka_unit_test(test_time_bad),
+        cmocka_unit_test(test_time_fixed_zone),
+        cmocka_unit_test(test_time_tz_database),
+        cmocka_unit_test(test_time_format),
+    };
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}
