@@ -36,6 +36,7 @@ typedef struct gpx_ctx {
     size_t raw_alloc;
     hyp_unit p_attr_unit, t_attr_unit; /* units seen in unit attributes */
     int depth;
+    int terminating;           /* the last, closing call of the parser */
     int root_seen;
     xmlChar *gpx_uri;          /* the root's namespace, NULL for none */
     /* the point or waypoint being read */
@@ -483,7 +484,12 @@ static void on_error(void *ctx, xmlErrorPtr e)
     size_t n = strlen(msg);
     while (n && (msg[n - 1] == '\n' || msg[n - 1] == ' '))
         msg[--n] = '\0';
-    hyp_error_set(g->err, HYP_ERR_FORMAT, "%s:%d: not well-formed XML: %s", g->path, e->line, msg);
+    if (g->terminating && g->depth > 0)
+        hyp_error_set(g->err, HYP_ERR_FORMAT,
+                      "%s:%d: the file ends with %d element(s) still open: cut off while being written? (parser: %s)",
+                      g->path, e->line, g->depth, msg);
+    else
+        hyp_error_set(g->err, HYP_ERR_FORMAT, "%s:%d: not well-formed XML: %s", g->path, e->line, msg);
     g->status = HYP_ERR_FORMAT;
     xmlStopParser(g->ctxt);
 }
@@ -612,8 +618,10 @@ static hyp_status parse_file(gpx_ctx *g, FILE *f)
     }
     if (!g->status && ferror(f))
         hyp_error_set(g->err, g->status = HYP_ERR_IO, "%s: read error", g->path);
-    if (!g->status)
+    if (!g->status) {
+        g->terminating = 1;
         xmlParseChunk(g->ctxt, NULL, 0, 1);
+    }
     if (!g->status && !g->ctxt->wellFormed)
         hyp_error_set(g->err, g->status = HYP_ERR_FORMAT, "%s: not well-formed XML", g->path);
     if (!g->status && !g->root_seen)

@@ -1,0 +1,66 @@
+# CLI golden cases: name, expected exit status, stderr regex, arguments.
+# Exit status: 0 done, 1 an input could not be used, 2 usage error.
+set(B --base @DATA@/base.csv --base-height 812.4 --base-at 46.8,9.9)
+set(R @DATA@/rover.gpx)
+set(O -o @OUT@/out.gpx)
+
+function(hyp_cli_case name rc regex)
+  add_test(NAME cli_${name}
+    COMMAND ${CMAKE_COMMAND} -DEXE=$<TARGET_FILE:hypsolev-cli> -DDATA=${PROJECT_SOURCE_DIR}/tests/data
+            -DWORK=${CMAKE_CURRENT_BINARY_DIR}/cli/${name} -DEXPECT_RC=${rc} "-DEXPECT_ERR=${regex}"
+            "-DARGS=${ARGN}" "-DINPUTS=${HYP_CASE_INPUTS}" "-DGOLDEN=${HYP_CASE_GOLDEN}" "-DGOLDEN_OUT=${HYP_CASE_GOLDEN_OUT}"
+            -P ${PROJECT_SOURCE_DIR}/tests/cli/run_case.cmake)
+  set_tests_properties(cli_${name} PROPERTIES LABELS cli TIMEOUT 30)
+endfunction()
+
+set(HYP_CASE_INPUTS @DATA@/rover.gpx @DATA@/base.csv)
+hyp_cli_case(ok_gpx 0 "61 of 61 corrected.*wrote" correct ${R} ${B} ${O} --table @OUT@/t.csv)
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT t.csv)
+hyp_cli_case(golden_table 0 "wrote" correct ${R} ${B} --table @OUT@/t.csv)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+set(HYP_CASE_INPUTS "")
+
+# malformed or unusable input: exit 1, a message naming file, place, problem
+hyp_cli_case(truncated_xml 1 "truncated.gpx:5: the file ends with [0-9]+ element\\(s\\) still open: cut off while being written" correct @DATA@/bad/truncated.gpx ${B} ${O})
+hyp_cli_case(wrong_root 1 "wrong_root.gpx:2: root element is <kml>, expected <gpx>" correct @DATA@/bad/wrong_root.gpx ${B} ${O})
+hyp_cli_case(missing_time 1 "no_time.gpx: no point has a <time>" correct @DATA@/bad/no_time.gpx ${B} ${O})
+hyp_cli_case(bad_ele 1 "bad_ele.gpx:4: <ele> \"81x2\" is not a number" correct @DATA@/bad/bad_ele.gpx ${B} ${O})
+hyp_cli_case(bad_lat 1 "bad_lat.gpx:4: <trkpt> lat \"north\" is not a number" correct @DATA@/bad/bad_lat.gpx ${B} ${O})
+hyp_cli_case(gpx_unknown_unit 1 "unknown_unit.gpx:4: unit=\"bar\" on <pressure> is unknown; expected one of Pa, hPa" correct @DATA@/bad/unknown_unit.gpx ${B} ${O})
+hyp_cli_case(gpx_no_pressure 1 "no_pressure.gpx: no point has a pressure .*--pressure-field" correct @DATA@/bad/no_pressure.gpx ${B} ${O})
+hyp_cli_case(latin1 1 "latin1.gpx:1: encoding \"ISO-8859-1\" is not supported" correct @DATA@/bad/latin1.gpx ${B} ${O})
+hyp_cli_case(doctype_entities 1 "entities.gpx:[0-9]+: document type declaration \\(DOCTYPE\\) refused" correct @DATA@/bad/entities.gpx ${B} ${O})
+hyp_cli_case(impossible_date 1 "impossible_date.gpx:4: <time> \"2026-02-30T07:00:00Z\" is out of range" correct @DATA@/bad/impossible_date.gpx ${B} ${O})
+hyp_cli_case(empty_base 1 "empty.csv: empty file" correct ${R} --base @DATA@/bad/empty.csv --base-height 800 ${O})
+hyp_cli_case(csv_no_header 1 "no_header.csv:1: header: no \"time\" column .*looks like data" correct ${R} --base @DATA@/bad/no_header.csv --base-height 800 ${O})
+hyp_cli_case(csv_no_pressure 1 "no_pressure_col.csv:1: header: no \"pressure\" column in the header \\(found \"time\", \"temperature\"\\)" correct ${R} --base @DATA@/bad/no_pressure_col.csv --base-height 800 ${O})
+hyp_cli_case(csv_no_zone 1 "no_zone.csv:2: time \"2026-06-18T07:00:00\" has no time zone" correct ${R} --base @DATA@/bad/no_zone.csv --base-height 800 ${O})
+hyp_cli_case(csv_bad_number 1 "bad_number.csv:3: pressure \"1O13.2\" is not a number" correct ${R} --base @DATA@/bad/bad_number.csv --base-height 800 ${O})
+hyp_cli_case(csv_ambiguous_unit 1 "ambiguous_unit.csv: pressure: no unit given and values 700.1 to 700.2 fit hPa or mmHg; give the unit with --pressure-unit" correct ${R} --base @DATA@/bad/ambiguous_unit.csv --base-height 800 ${O})
+hyp_cli_case(csv_unknown_unit 1 "unknown_unit.csv:1: column \"pressure\": unknown unit \"bar\"" correct ${R} --base @DATA@/bad/unknown_unit.csv --base-height 800 ${O})
+hyp_cli_case(csv_nul 1 "nul.csv:1: NUL byte; not a text file" correct ${R} --base @DATA@/bad/nul.csv --base-height 800 ${O})
+hyp_cli_case(csv_rover_no_lon 1 "rover_no_lon.csv:1: header: a rover log needs \"lat\" and \"lon\" columns" correct @DATA@/bad/rover_no_lon.csv ${B} ${O})
+hyp_cli_case(base_one_row 1 "one_row.csv: fewer than two usable base samples" correct ${R} --base @DATA@/bad/one_row.csv --base-height 800 ${O})
+hyp_cli_case(no_time_overlap 1 "no rover sample could be corrected \\(61 outside the base log's time span" correct ${R} --base @DATA@/bad/early_base.csv --base-height 800 ${O})
+hyp_cli_case(directory_input 1 "bad: is a directory" correct @DATA@/bad ${B} ${O})
+hyp_cli_case(missing_file 1 "nothere.gpx: cannot open: No such file" correct @DATA@/nothere.gpx ${B} ${O})
+hyp_cli_case(missing_out_dir 1 "out.gpx: cannot write: the directory does not exist" correct ${R} ${B} -o @OUT@/no/such/dir/out.gpx)
+# copes and warns: exit 0
+hyp_cli_case(unsorted_base 0 "unsorted_base.csv:23: time is earlier than the previous sample's; sample dropped.*unsorted_base.csv:32: pressure 12.50 hPa is outside 300-1100 hPa" correct ${R} --base @DATA@/bad/unsorted_base.csv --base-height 812.4 --base-at 46.8,9.9 ${O})
+
+# usage errors: exit 2
+hyp_cli_case(no_base_height 2 "--base .*base.csv has no --base-height" correct ${R} --base @DATA@/base.csv ${O})
+hyp_cli_case(bad_base_at 2 "--base-at latitude \"95\": expected a number from -90 to 90" correct ${R} --base @DATA@/base.csv --base-height 1 --base-at 95,9 ${O})
+hyp_cli_case(per_base_before_base 2 "--base-height must follow the --base it applies to" correct ${R} --base-height 1 ${O})
+hyp_cli_case(unknown_option 2 "option \"--frobnicate\" is unknown" correct ${R} ${B} ${O} --frobnicate)
+hyp_cli_case(no_output 2 "no output: give -o" correct ${R} ${B})
+hyp_cli_case(bad_zone 2 "--time-zone: time zone \"Mars/Olympus\": no such zone" correct ${R} ${B} ${O} --time-zone Mars/Olympus)
+hyp_cli_case(bad_unit_option 2 "--pressure-unit \"psi\": expected one of Pa, hPa" correct ${R} ${B} ${O} --pressure-unit psi)
+hyp_cli_case(two_bases 2 "two bases given: this version corrects against one base" correct ${R} ${B} --base @DATA@/base.csv --base-height 900 ${O})
+set(HYP_CASE_INPUTS @DATA@/rover.gpx)
+hyp_cli_case(output_is_input 2 "rover.gpx: output would overwrite an input" correct ${R} ${B} -o @DATA@/rover.gpx)
+set(HYP_CASE_INPUTS "")
+hyp_cli_case(help 0 "" correct --help)
+hyp_cli_case(no_command 2 "usage: hypsolev COMMAND")
