@@ -1,0 +1,280 @@
+/* test_gpx.c - the GPX reader and the splicing writer: values read from
+ * varied files, outputs that differ from their input only in the changed
+ * elements (compared byte for byte), and schema validation of what is
+ * written against the GPX 1.0 / 1.1 schemas in ../shared/gpx. */
+#include <stdarg.h>
+#include <stddef.h>
+#include <setjmp.h>
+#include <stdint.h>
+#include <cmocka.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+
+#include <libxml/xmlschemas.h>
+
+#include "hypsolev/hypsolev.h"
+
+#define DATA HYP_SOURCE_DIR "/tests/data/lossless/"
+#define SHARED HYP_SOURCE_DIR "/../shared/gpx/"
+/* The fixtures' own private elements, declared so that GPX 1.0's strict
+ * wildcard can check the input's part as well as ours. */
+#define SENSOR_XSD HYP_SOURCE_DIR "/tests/data/lossless/sensor.xsd"
+
+static char *slurp(const char *path, size_t *n)
+{
+    FILE *f = fopen(path, "rb");
+    assert_non_null(f);
+    fseek(f, 0, SEEK_END);
+    long len = ftell(f);
+    fseek(f, 0, SEEK_SET);
+    char *b = malloc((size_t)len + 1);
+    assert_non_null(b);
+    assert_int_equal(fread(b, 1, (size_t)len, f), (size_t)len);
+    fclose(f);
+    b[len] = '\0';
+    *n = (size_t)len;
+    return b;
+}
+
+/* A result with made-up heights: the writer is under test, not the core. */
+static void fake_result(const hyp_gpx_doc *d, hyp_correct_result *r)
+{
+    hyp_correct_result_init(r);
+    size_t n = d->pts.count;
+    r->count = n;
+    r->height_m = calloc(n, sizeof(double));
+    r->sigma_m = calloc(n, sizeof(double));
+    r->base_p_pa = calloc(n, sizeof(double));
+    r->offset_pa = calloc(n, sizeof(double));
+    r->tcol_k = calloc(n, sizeof(double));
+    r->status = calloc(n, 1);
+    for (size_t i = 0; i < n; i++) {
+        r->status[i] = d->pts.flag[i] ? HYP_PT_REFUSED : HYP_PT_OK;
+        r->height_m[i] = r->status[i] ? NAN : 1000.0 + 0.125 * (double)i;
+        r->sigma_m[i] = r->status[i] ? NAN : 0.5 + 0.001 * (double)i;
+    }
+}
+
+/* The expected output, built from the input bytes and the documented forms
+ * of the changes (docs/formats.md): the namespace declaration on the root,
+ * the new ele text, and the added elements under extensions. */
+static char *expected_output(const char *in, size_t n, const hyp_gpx_doc *d, const hyp_correct_result *r)
+{
+    const hyp_gpx_layout *L = &d->layout;
+    size_t cap = n + 512 * (d->pts.count + 1);
+    char *out = malloc(cap), *w = out;
+    size_t pos = 0;
+    const char *p = L->prefix, *c = L->prefix[0] ? ":" : "";
+#define COPY_TO(off) do { memcpy(w, in + pos, (size_t)(off) - pos); w += (size_t)(off) - pos; pos = (size_t)(off); } while (0)
+    COPY_TO(L->root_attr_ins);
+    w += sprintf(w, " xmlns:hyp=\"urn:hypsolev:gpx:1\"");
+    for (size_t i = 0; i < d->pts.count; i++) {
+        char el[256];
+        if (r->status[i] == HYP_PT_OK) {
+            char ein[64] = "";
+            if (!isnan(d->pts.ele_m[i]))
+                sprintf(ein, "<hyp:ele_in>%.3f</hyp:ele_in>", d->pts.ele_m[i]);
+            sprintf(el, "%s<hyp:sigma>%.3f</hyp:sigma>", ein, r->sigma_m[i]);
+            if (L->ele_beg[i] >= 0) {
+                COPY_TO(L->ele_beg[i]);
+                w += sprintf(w, "%.3f", r->height_m[i]);
+                pos = (size_t)L->ele_end[i];
+            } else {
+                COPY_TO(L->open_end[i]);
+                w += sprintf(w, "<%s%sele>%.3f</%s%sele>", p, c, r->height_m[i], p, c);
+            }
+        } else {
+            sprintf(el, "<hyp:status>not corrected: %s</hyp:status>", hyp_sample_flag_text((hyp_sample_flag)d->pts.flag[i]));
+        }
+        COPY_TO(L->ext_ins[i]);
+        if (L->ext_kind[i] == HYP_EXT_WRAP)
+            w += sprintf(w, "<%s%sextensions>%s</%s%sextensions>", p, c, el, p, c);
+        else
+            w += sprintf(w, "%s", el);
+    }
+    COPY_TO(n);
+#undef COPY_TO
+    *w = '\0';
+    return out;
+}
+
+static int validate(const char *xsd_path, const char *doc_path)
+{
+    xmlSchemaParserCtxtPtr pc = xmlSchemaNewParserCtxt(xsd_path);
+    xmlSchemaPtr schema = xmlSchemaParse(pc);
+    assert_non_null(schema);
+    xmlSchemaValidCtxtPtr vc = xmlSchemaNewValidCtxt(schema);
+    int rc = xmlSchemaValidateFile(vc, doc_path, 0);
+    xmlSchemaFreeValidCtxt(vc);
+    xmlSchemaFree(schema);
+    xmlSchemaFreeParserCtxt(pc);
+    return rc;
+}
+
+/* Validates against the GPX schema together with the project's own schema
+ * for its namespace (needed where GPX 1.0's wildcard is strict). */
+static void validate_or_skip(const char *gpx_xsd, const char *ns, const char *out_path)
+{
+    struct stat st;
+    char xsd[4096];
+    snprintf(xsd, sizeof xsd, "%s%s", SHARED, gpx_xsd);
+    if (stat(xsd, &st) != 0) {
+        print_message("schema check skipped: %s absent (the shared folder is not beside this checkout)\n", xsd);
+        return;
+    }
+    char wrap[4096];
+    snprintf(wrap, sizeof wrap, "%s.wrap.xsd", out_path);
+    FILE *f = fopen(wrap, "w");
+    assert_non_null(f);
+    fprintf(f, "<xsd:schema xmlns:xsd=\"http://www.w3.org/2001/XMLSchema\">\n"
+               "<xsd:import namespace=\"%s\" schemaLocation=\"%s\"/>\n"
+               "<xsd:import namespace=\"urn:hypsolev:gpx:1\" schemaLocation=\"%s/docs/hypsolev-gpx-1.xsd\"/>\n"
+               "<xsd:import namespace=\"urn:example:sensor\" schemaLocation=\"%s\"/>\n"
+               "</xsd:schema>\n", ns, xsd, HYP_SOURCE_DIR, SENSOR_XSD);
+    fclose(f);
+    assert_int_equal(validate(wrap, out_path), 0);
+    remove(wrap);
+}
+
+static void splice_case(const char *name, const char *xsd, const char *ns)
+{
+    char in_path[4096], out_path[4096];
+    snprintf(in_path, sizeof in_path, "%s%s", DATA, name);
+    snprintf(out_path, sizeof out_path, "%s/out-%s", HYP_BINARY_DIR, name);
+    hyp_gpx_doc d;
+    hyp_gpx_doc_init(&d);
+    hyp_error err;
+    hyp_msgs msgs;
+    hyp_msgs_init(&msgs);
+    hyp_read_opts ro;
+    hyp_read_opts_init(&ro);
+    ro.pressure_unit = HYP_UNIT_HPA;
+    ro.temperature_unit = HYP_UNIT_DEGC;
+    hyp_status st = hyp_gpx_read(in_path, &ro, &d, &msgs, &err);
+    if (st)
+        print_message("%s\n", err.message);
+    assert_int_equal(st, HYP_OK);
+    size_t n;
+    char *in = slurp(in_path, &n);
+    /* the layout points at the ele text the reader parsed */
+    for (size_t i = 0; i < d.pts.count; i++)
+        if (d.layout.ele_beg[i] >= 0)
+            assert_true(fabs(strtod(in + d.layout.ele_beg[i], NULL) - d.pts.ele_m[i]) < 1e-9);
+    hyp_correct_result r;
+    fake_result(&d, &r);
+    assert_int_equal(hyp_gpx_write_spliced(in_path, &d, &r, out_path, &err), HYP_OK);
+    size_t m;
+    char *got = slurp(out_path, &m);
+    char *want = expected_output(in, n, &d, &r);
+    assert_int_equal(m, strlen(want));
+    assert_memory_equal(got, want, m);
+    if (xsd)
+        validate_or_skip(xsd, ns, out_path);
+    /* reading the output again is refused: it is this tool's own output */
+    hyp_gpx_doc d2;
+    hyp_gpx_doc_init(&d2);
+    assert_int_equal(hyp_gpx_read(out_path, &ro, &d2, &msgs, &err), HYP_ERR_FORMAT);
+    assert_non_null(strstr(err.message, "this tool's own output"));
+    free(in);
+    free(got);
+    free(want);
+    hyp_correct_result_free(&r);
+    hyp_gpx_doc_free(&d);
+    hyp_msgs_free(&msgs);
+}
+
+static void test_splice_v11_prefixed(void **state)
+{
+    (void)state;
+    splice_case("v11_prefixed.gpx", "gpx-1.1.xsd", "http://www.topografix.com/GPX/1/1");
+}
+
+static void test_splice_v10(void **state)
+{
+    (void)state;
+    splice_case("v10.gpx", "gpx-1.0.xsd", "http://www.topografix.com/GPX/1/0");
+}
+
+static void test_splice_no_namespace(void **state)
+{
+    (void)state;
+    splice_case("no_namespace.gpx", NULL, NULL);
+}
+
+/* What the reader finds in the varied 1.1 file. */
+static void test_read_values(void **state)
+{
+    (void)state;
+    hyp_gpx_doc d;
+    hyp_gpx_doc_init(&d);
+    hyp_error err;
+    hyp_read_opts ro;
+    hyp_read_opts_init(&ro);
+    assert_int_equal(hyp_gpx_read(DATA "v11_prefixed.gpx", &ro, &d, NULL, &err), HYP_OK);
+    assert_int_equal(d.layout.version, 11);
+    assert_string_equal(d.layout.prefix, "g");
+    assert_int_equal(d.pts.count, 5);   /* one rtept, four trkpt */
+    assert_true(fabs(d.pts.pressure_pa[0] - 92300.0) < 1e-6);
+    assert_true(fabs(d.pts.pressure_pa[1] - 92295.0) < 1e-6);   /* nested in a foreign element */
+    assert_true(fabs(d.pts.ele_m[1] - 812.5) < 1e-9);
+    assert_true(isnan(d.pts.ele_m[2]));
+    assert_int_equal(d.pts.flag[3], HYP_SAMPLE_NO_PRESSURE);
+    assert_true(fabs(d.pts.temp_k[4] - 285.65) < 1e-9);
+    assert_int_equal(d.wpts.count, 1);
+    assert_string_equal(d.wpts.name[0], "BM-7");
+    assert_true(fabs(d.wpts.time_s[0] - 1781769600.0) < 1e-9);
+    /* without a unit attribute the option decides; 1.0 file, no namespace */
+    hyp_gpx_doc_free(&d);
+    hyp_msgs msgs;
+    hyp_msgs_init(&msgs);
+    assert_int_equal(hyp_gpx_read(DATA "v10.gpx", &ro, &d, &msgs, &err), HYP_OK);
+    assert_int_equal(d.layout.version, 10);
+    assert_int_equal(d.pressure_unit, HYP_UNIT_HPA);   /* inferred, with a note */
+    assert_true(msgs.count >= 1 && strstr(msgs.items[0].text, "taken as hPa"));
+    hyp_gpx_doc_free(&d);
+    assert_int_equal(hyp_gpx_read(DATA "no_namespace.gpx", &ro, &d, &msgs, &err), HYP_OK);
+    /* 07:00:00.250+02:00 is 05:00:00.250Z */
+    assert_true(fabs(d.pts.time_s[0] - (1781766000.0 - 7200.0 + 0.25)) < 1e-6);
+    hyp_gpx_doc_free(&d);
+    hyp_msgs_free(&msgs);
+}
+
+/* A GPX written from a CSV rover validates against GPX 1.1. */
+static void test_write_new(void **state)
+{
+    (void)state;
+    hyp_series s;
+    hyp_series_init(&s);
+    for (int i = 0; i < 3; i++)
+        hyp_series_push(&s, 1781766000.0 + i, 92300.0, 285.0, NAN, 46.8, 9.9, 812.0, (uint32_t)i + 2, HYP_SAMPLE_OK);
+    hyp_series_push(&s, 1781766010.0, NAN, NAN, NAN, 46.8, 9.9, NAN, 5, HYP_SAMPLE_NO_PRESSURE);
+    hyp_correct_result r;
+    hyp_correct_result_init(&r);
+    r.count = 4;
+    double h[4] = {812.1, 812.2, 812.3, NAN}, sg[4] = {0.4, 0.4, 0.4, NAN};
+    uint8_t stt[4] = {0, 0, 0, HYP_PT_REFUSED};
+    r.height_m = h;
+    r.sigma_m = sg;
+    r.status = stt;
+    char out[4096];
+    snprintf(out, sizeof out, "%s/new-track.gpx", HYP_BINARY_DIR);
+    hyp_error err;
+    assert_int_equal(hyp_gpx_write_new(&s, &r, "a <walk> & more", out, &err), HYP_OK);
+    validate_or_skip("gpx-1.1.xsd", "http://www.topografix.com/GPX/1/1", out);
+    hyp_series_free(&s);
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_read_values),
+        cmocka_unit_test(test_splice_v11_prefixed),
+        cmocka_unit_test(test_splice_v10),
+        cmocka_unit_test(test_splice_no_namespace),
+        cmocka_unit_test(test_write_new),
+    };
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}
