@@ -264,8 +264,9 @@ int main(int argc, char **argv)
     if (!f)
         return 1;
     fprintf(f, "scenario %s\nbase_height_m %.3f\nbase_lat %.6f\nbase_lon %.6f\n"
-               "rover_offset_pa %.2f\nrover_drift_pa_per_h %.2f\nrover_noise_pa %.2f\nbase_noise_pa %.2f\n",
+               "rover_offset_pa %.2f\nrover_drift_pa_per_h %.2f\nrover_noise_pa %.2f\nrover_quantum_pa %.2f\n"
+               "base_noise_pa %.2f\nbase_quantum_pa %.2f\n",
             sc->name, sc->base_h, sc->lat0, sc->lon0, sc->rover_off_pa, sc->rover_drift_pa_h,
-            sc->rover_noise_pa, sc->base_noise_pa);
+            sc->rover_noise_pa, sc->rover_q_pa, sc->base_noise_pa, sc->base_q_pa);
     return fclose(f) != 0;
 }
