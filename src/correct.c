@@ -125,7 +125,7 @@ static hyp_point_status bracket(const base_view *b, double x, double max_gap_s, 
             hi = mid;
     }
     double dt = b->t[lo + 1] - b->t[lo];
-    if (dt > max_gap_s)
+    if (dt > max_gap_s && x != b->t[lo] && x != b->t[lo + 1])
         return HYP_PT_BASE_GAP;
     *k = lo;
     *w = dt > 0.0 ? (x - b->t[lo]) / dt : 0.0;
@@ -212,31 +212,31 @@ static hyp_status find_colocations(const hyp_series *rv, const hyp_base *base, c
     return HYP_OK;
 }
 
-/* Offset model: constant from one calibration, linear in time between the
- * midpoints of successive calibrations (instrument drift), constant beyond
- * the first and last. The 1-sigma follows by linear error propagation of the
- * two independent window means. */
+/* Offset model: constant from one calibration; with several, linear in time
+ * through the midpoints of successive calibrations (instrument drift),
+ * carried on to the ends of the first and last window and held constant
+ * beyond them (no extrapolation of drift into time nothing calibrates). The
+ * 1-sigma follows by linear error propagation of the two window means. */
 static void offset_at(const hyp_correct_result *r, double t, double *off, double *sig)
 {
     const hyp_coloc *c = r->colocs;
     size_t n = r->n_colocs;
-    double m0 = 0.5 * (c[0].start_s + c[0].end_s);
-    if (n == 1 || t <= m0) {
+    if (n == 1) {
         *off = c[0].offset_pa;
         *sig = c[0].se_pa;
         return;
     }
-    for (size_t k = 0; k + 1 < n; k++) {
-        double a = 0.5 * (c[k].start_s + c[k].end_s), b = 0.5 * (c[k + 1].start_s + c[k + 1].end_s);
-        if (t <= b && b > a) {
-            double w = (t - a) / (b - a);
-            *off = (1.0 - w) * c[k].offset_pa + w * c[k + 1].offset_pa;
-            *sig = hypot((1.0 - w) * c[k].se_pa, w * c[k + 1].se_pa);
-            return;
-        }
-    }
-    *off = c[n - 1].offset_pa;
-    *sig = c[n - 1].se_pa;
+    if (t < c[0].start_s)
+        t = c[0].start_s;
+    if (t > c[n - 1].end_s)
+        t = c[n - 1].end_s;
+    size_t k = 0;
+    while (k + 2 < n && t > 0.5 * (c[k + 1].start_s + c[k + 1].end_s))
+        k++;
+    double a = 0.5 * (c[k].start_s + c[k].end_s), b = 0.5 * (c[k + 1].start_s + c[k + 1].end_s);
+    double w = b > a ? (t - a) / (b - a) : 0.0;
+    *off = (1.0 - w) * c[k].offset_pa + w * c[k + 1].offset_pa;
+    *sig = hypot((1.0 - w) * c[k].se_pa, w * c[k + 1].se_pa);
 }
 
 typedef struct column {

@@ -452,6 +452,7 @@ static void print_summary(const char *rover_path, const log_in *rv, const base_a
             fprintf(stderr, "            %zu dropped by the reader: %s\n", r->n_flag[f], hyp_sample_flag_text((hyp_sample_flag)f));
     print_sigma_stats(r);
     fprintf(stderr, "  wrote     %s\n", wrote);
+    fprintf(stderr, "  (not for aviation or navigation; survey deliverables defer to local codes and licensed surveyors)\n");
 }
 
 static hyp_status parse_windows(args *a, const hyp_zone *z, hyp_window *w, hyp_error *err)

@@ -1,0 +1,149 @@
+/* test_correct.c - the single-base correction: the standard atmosphere's
+ * table reproduced end to end through the core, and the behaviour of clock
+ * offsets, co-location drift and base gaps on constructed series. */
+#include <stdarg.h>
+#include <stddef.h>
+#include <setjmp.h>
+#include <stdint.h>
+#include <cmocka.h>
+#include <math.h>
+#include <string.h>
+
+#include "hypsolev/hypsolev.h"
+
+#define T0 1781766000.0   /* 2026-06-18T07:00:00Z */
+
+static void push(hyp_series *s, double t, double p, double tk, double lat, double lon)
+{
+    assert_int_equal(hyp_series_push(s, t, p, tk, 0.0, lat, lon, NAN, 1, HYP_SAMPLE_OK), HYP_OK);
+}
+
+/* US Standard Atmosphere 1976, Table I (geometric), from memory: 101325 Pa
+ * at 0 m and 288.15 K; 89876 Pa at 1000 m, 79501 at 2000 m, 70121 at 3000 m.
+ * A dry base at sea level with the standard 15 degC and lapse rate, and a
+ * rover reading those pressures, must come out at those heights. USSA's
+ * geopotential uses g0 = 9.80665 m/s^2, WGS84 normal gravity's value at
+ * latitude 45.5425 deg (USSA 1976, section 1.2.2), where the two height
+ * scales agree; the 5-digit pressures allow about 5 cm per 1000 m. */
+static void test_reproduces_ussa(void **state)
+{
+    (void)state;
+    const double lat = 45.5425, lon = 0.0;
+    hyp_series base, rover;
+    hyp_series_init(&base);
+    hyp_series_init(&rover);
+    for (int i = 0; i < 10; i++)
+        push(&base, T0 + 60.0 * i, 101325.0, 288.15, lat, lon);
+    static const double p[] = {89876.0, 79501.0, 70121.0}, z[] = {1000.0, 2000.0, 3000.0};
+    for (int i = 0; i < 3; i++)
+        push(&rover, T0 + 60.0 * (i + 1), p[i], NAN, lat, lon);
+    hyp_base b = {.log = &base, .name = "base", .height_m = 0.0, .lat_deg = NAN, .lon_deg = NAN};
+    hyp_correct_opts o;
+    hyp_correct_opts_init(&o);
+    o.offset_pa = 0.0;
+    o.default_rh_pct = 0.0;
+    hyp_correct_result r;
+    hyp_correct_result_init(&r);
+    hyp_error err;
+    assert_int_equal(hyp_correct_single_base(&rover, &b, &o, &r, NULL, &err), HYP_OK);
+    for (int i = 0; i < 3; i++) {
+        print_message("USSA %.0f m: corrected %.3f m\n", z[i], r.height_m[i]);
+        assert_true(fabs(r.height_m[i] - z[i]) < 0.06 * z[i] / 1000.0 + 0.02);
+    }
+    hyp_correct_result_free(&r);
+    hyp_series_free(&base);
+    hyp_series_free(&rover);
+}
+
+/* A base clock 90 s fast in weather changing 3 hPa/h: uncorrected, a rover
+ * standing beside the base is off by 90 s * 0.0833 Pa/s = 7.5 Pa, about
+ * 0.6 m; with --base-clock-offset 90 the error vanishes. */
+static void test_base_clock_offset(void **state)
+{
+    (void)state;
+    const double rate = -300.0 / 3600.0;   /* Pa/s */
+    hyp_series base, rover;
+    hyp_series_init(&base);
+    hyp_series_init(&rover);
+    for (int i = 0; i < 200; i++) {
+        double true_t = T0 + 30.0 * i - 1800.0;
+        push(&base, true_t + 90.0, 90000.0 + rate * (true_t - T0), 285.0, 46.8, 9.9);
+    }
+    for (int i = 0; i < 100; i++) {
+        double t = T0 + 10.0 * i;
+        push(&rover, t, 90000.0 + rate * (t - T0), 285.0, 46.8, 9.9);
+    }
+    hyp_base b = {.log = &base, .name = "base", .height_m = 1000.0, .lat_deg = NAN, .lon_deg = NAN};
+    hyp_correct_opts o;
+    hyp_correct_opts_init(&o);
+    o.offset_pa = 0.0;
+    hyp_correct_result r;
+    hyp_correct_result_init(&r);
+    hyp_error err;
+    assert_int_equal(hyp_correct_single_base(&rover, &b, &o, &r, NULL, &err), HYP_OK);
+    double dz = (90.0 * -rate) / (90000.0 * 9.806 / (287.05 * 285.0));   /* dp / (rho g) */
+    assert_true(fabs(r.height_m[50] - 1000.0 - dz) < 0.02);
+    b.clock_offset_s = 90.0;
+    assert_int_equal(hyp_correct_single_base(&rover, &b, &o, &r, NULL, &err), HYP_OK);
+    assert_true(fabs(r.height_m[50] - 1000.0) < 0.005);
+    hyp_correct_result_free(&r);
+    hyp_series_free(&base);
+    hyp_series_free(&rover);
+}
+
+/* Co-location at the start and the end: an offset drifting linearly from
+ * +40 Pa to +70 Pa is recovered, so heights in between are unbiased; a base
+ * gap longer than max_gap and times outside the base log get no height. */
+static void test_drift_gap_outside(void **state)
+{
+    (void)state;
+    hyp_series base, rover;
+    hyp_series_init(&base);
+    hyp_series_init(&rover);
+    for (int i = 0; i < 500; i++) {
+        double t = T0 - 600.0 + 30.0 * i;
+        if (t > T0 + 5000.0 && t < T0 + 5400.0)
+            continue;   /* a 420 s gap */
+        push(&base, t, 90000.0, 285.0, 46.8, 9.9);
+    }
+    for (int i = 0; i < 1300; i++) {
+        double t = T0 + 10.0 * i, frac = (t - T0) / 12990.0;
+        int at_base = i < 60 || i >= 1240;
+        double lat = at_base ? 46.8 : 46.81;
+        push(&rover, t, 90000.0 + 40.0 + 30.0 * frac, 285.0, lat, 9.9);
+    }
+    push(&rover, T0 + 20000.0, 90000.0, 285.0, 46.81, 9.9);   /* after the base log */
+    hyp_base b = {.log = &base, .name = "base", .height_m = 500.0, .lat_deg = 46.8, .lon_deg = 9.9};
+    hyp_correct_result r;
+    hyp_correct_result_init(&r);
+    hyp_error err;
+    hyp_msgs m;
+    hyp_msgs_init(&m);
+    assert_int_equal(hyp_correct_single_base(&rover, &b, NULL, &r, &m, &err), HYP_OK);
+    assert_int_equal(r.n_colocs, 2);
+    assert_int_equal(r.offset_source, 2);
+    for (size_t i = 0; i < rover.count - 1; i++) {
+        double t = rover.time_s[i];
+        if (t > T0 + 4980.0 && t < T0 + 5400.0) {
+            assert_int_equal(r.status[i], HYP_PT_BASE_GAP);
+            continue;
+        }
+        assert_int_equal(r.status[i], HYP_PT_OK);
+        assert_true(fabs(r.height_m[i] - 500.0) < 0.01);
+    }
+    assert_int_equal(r.status[rover.count - 1], HYP_PT_OUTSIDE_BASE);
+    hyp_correct_result_free(&r);
+    hyp_series_free(&base);
+    hyp_series_free(&rover);
+    hyp_msgs_free(&m);
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(test_reproduces_ussa),
+        cmocka_unit_test(test_base_clock_offset),
+        cmocka_unit_test(test_drift_gap_outside),
+    };
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}
