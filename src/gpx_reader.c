@@ -219,8 +219,14 @@ static void start_point(gpx_ctx *g, const xmlChar *local, int nb_attr, const xml
     g->pt_depth = g->depth;
     g->pt_line = cur_line(g);
     g->ext_depth = 0;
+    /* After a failure the parser is halted and has freed its input, attrs
+     * included: touch nothing more. */
     g->lat = parse_coord(g, attrs, nb_attr, "lat", elem);
+    if (g->status)
+        return;
     g->lon = parse_coord(g, attrs, nb_attr, "lon", elem);
+    if (g->status)
+        return;
     g->ele = g->time_s = g->pres = g->temp = g->rh = NAN;
     g->got_pres = g->got_temp = g->got_rh = g->got_time = 0;
     g->ele_beg = g->ele_end = g->ext_ins = -1;

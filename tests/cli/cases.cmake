@@ -18,6 +18,9 @@ hyp_cli_case(ok_gpx 0 "61 of 61 corrected.*wrote" correct ${R} ${B} ${O} --table
 set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
 set(HYP_CASE_GOLDEN_OUT t.csv)
 hyp_cli_case(golden_table 0 "wrote" correct ${R} ${B} --table @OUT@/t.csv)
+# the same track as a CSV log in local time (semicolons, decimal commas, BOM,
+# CRLF, quotes, comments) gives the same table
+hyp_cli_case(golden_csv_rover_local_time 0 "wrote" correct @DATA@/rover_local.csv --time-zone Europe/Vienna ${B} --table @OUT@/t.csv -o @OUT@/t.gpx)
 set(HYP_CASE_GOLDEN "")
 set(HYP_CASE_GOLDEN_OUT "")
 set(HYP_CASE_INPUTS "")
