@@ -1,5 +1,6 @@
 /* csv_reader.c - CSV logs of base stations and rovers into a hyp_series. */
 #include "reader_common.h"
+#include "csv_lex.h"
 
 #include <ctype.h>
 #include <errno.h>
@@ -10,174 +11,10 @@
 #include <strings.h>
 #include <sys/stat.h>
 
-#define LINE_MAX_BYTES (1u << 20)   /* a longer line is not a log line */
 #define MAX_COLUMNS 4096
 
 enum col { C_TIME, C_PRES, C_TEMP, C_RH, C_LAT, C_LON, C_ELE, C_N };
 static const char *col_label[C_N] = {"time", "pressure", "temperature", "humidity", "lat", "lon", "ele"};
-
-typedef struct line_reader {
-    FILE *f;
-    char *buf;
-    size_t len, alloc;
-    unsigned lineno;
-    int ended_with_newline;
-} line_reader;
-
-/* Reads one line (without its '\n' or '\r\n'); 1 on success, 0 at end of
- * file, -1 when the line is too long, -2 on a NUL byte, -3 on a read error. */
-static int read_line(line_reader *r)
-{
-    r->len = 0;
-    int c, any = 0;
-    r->ended_with_newline = 0;
-    while ((c = getc(r->f)) != EOF) {
-        any = 1;
-        if (c == '\n') {
-            r->ended_with_newline = 1;
-            break;
-        }
-        if (c == '\0')
-            return -2;
-        if (r->len + 2 > r->alloc) {
-            if (r->alloc >= LINE_MAX_BYTES)
-                return -1;
-            size_t n = r->alloc ? 2 * r->alloc : 256;
-            char *p = realloc(r->buf, n);
-            if (!p)
-                return -1;
-            r->buf = p;
-            r->alloc = n;
-        }
-        r->buf[r->len++] = (char)c;
-    }
-    if (ferror(r->f))
-        return -3;
-    if (!any)
-        return 0;
-    r->lineno++;
-    if (r->len && r->buf[r->len - 1] == '\r')
-        r->len--;
-    if (!r->buf) {
-        r->buf = malloc(1);
-        if (!r->buf)
-            return -1;
-        r->alloc = 1;
-    }
-    r->buf[r->len] = '\0';
-    return 1;
-}
-
-typedef struct field { const char *s; size_t len; } field;
-
-/* Splits a line in place into fields; quoted fields lose their quotes and
- * "" becomes ". Returns the field count, -1 for an unterminated quote,
- * -2 for too many columns. */
-static int split(char *line, char delim, field *out, int max)
-{
-    int n = 0;
-    char *p = line;
-    for (;;) {
-        if (n == max)
-            return -2;
-        while (*p == ' ')
-            p++;
-        if (*p == '"') {
-            char *w = ++p, *start = p;
-            for (;;) {
-                if (*p == '\0')
-                    return -1;
-                if (*p == '"') {
-                    if (p[1] == '"') {
-                        *w++ = '"';
-                        p += 2;
-                        continue;
-                    }
-                    p++;
-                    break;
-                }
-                *w++ = *p++;
-            }
-            out[n].s = start;
-            out[n].len = (size_t)(w - start);
-            while (*p == ' ')
-                p++;
-            if (*p && *p != delim)
-                return -1;
-        } else {
-            char *start = p;
-            while (*p && *p != delim)
-                p++;
-            out[n].s = start;
-            out[n].len = (size_t)(p - start);
-        }
-        n++;
-        if (*p != delim)
-            return n;
-        p++;
-    }
-}
-
-static char detect_delimiter(const char *line)
-{
-    size_t nc = 0, ns = 0, nt = 0;
-    int q = 0;
-    for (const char *p = line; *p; p++) {
-        if (*p == '"')
-            q = !q;
-        else if (!q && *p == ',')
-            nc++;
-        else if (!q && *p == ';')
-            ns++;
-        else if (!q && *p == '\t')
-            nt++;
-    }
-    if (nt >= nc && nt >= ns && nt)
-        return '\t';
-    if (ns > nc)
-        return ';';
-    return ',';
-}
-
-/* "Pressure [hPa]" -> name "pressure", unit "hPa"; also "(hPa)". */
-static void header_name(const field *f, char *name, size_t nn, char *unit, size_t nu)
-{
-    size_t len = f->len;
-    const char *s = f->s;
-    while (len && isspace((unsigned char)s[len - 1]))
-        len--;
-    unit[0] = '\0';
-    const char *open = NULL;
-    if (len && (s[len - 1] == ']' || s[len - 1] == ')')) {
-        char o = s[len - 1] == ']' ? '[' : '(';
-        for (size_t i = len; i-- > 0;)
-            if (s[i] == o) {
-                open = s + i;
-                break;
-            }
-    }
-    size_t name_len = open ? (size_t)(open - s) : len;
-    while (name_len && isspace((unsigned char)s[name_len - 1]))
-        name_len--;
-    if (name_len >= nn)
-        name_len = nn - 1;
-    memcpy(name, s, name_len);
-    name[name_len] = '\0';
-    if (open) {
-        size_t ul = (size_t)(s + len - 1 - open - 1);
-        const char *u = open + 1;
-        while (ul && *u == ' ') {
-            u++;
-            ul--;
-        }
-        while (ul && u[ul - 1] == ' ')
-            ul--;
-        if (ul >= nu)
-            ul = nu - 1;
-        memcpy(unit, u, ul);
-        unit[ul] = '\0';
-    }
-}
 
 static int name_matches(const char *name, int col, const hyp_read_opts *o)
 {
@@ -209,14 +46,14 @@ typedef struct csv_state {
     int idx[C_N];
     hyp_unit file_unit[C_N];
     int ncols;
-    field *fields;
+    hyp__csv_field *fields;
 } csv_state;
 
-static hyp_status parse_header(csv_state *cs, line_reader *lr, hyp_error *err)
+static hyp_status parse_header(csv_state *cs, hyp__csv_lines *lr, hyp_error *err)
 {
-    cs->delim = detect_delimiter(lr->buf);
+    cs->delim = hyp__csv_detect_delimiter(lr->buf);
     cs->decimal_comma = cs->delim != ',';
-    int n = split(lr->buf, cs->delim, cs->fields, MAX_COLUMNS);
+    int n = hyp__csv_split(lr->buf, cs->delim, cs->fields, MAX_COLUMNS);
     if (n == -2)
         return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: header has more than %d columns", cs->path, lr->lineno, MAX_COLUMNS);
     if (n < 0)
@@ -227,7 +64,7 @@ static hyp_status parse_header(csv_state *cs, line_reader *lr, hyp_error *err)
         cs->idx[c] = -1;
     for (int i = 0; i < n; i++) {
         char name[128], unit[32];
-        header_name(&cs->fields[i], name, sizeof name, unit, sizeof unit);
+        hyp__csv_header_name(&cs->fields[i], name, sizeof name, unit, sizeof unit);
         size_t fl = strlen(found);
         if (fl < 200)
             snprintf(found + fl, sizeof found - fl, "%s\"%s\"", fl ? ", " : "", name);
@@ -270,10 +107,10 @@ static const char *time_problem(hyp_time_result r)
 
 /* Parses one data row; returns HYP_OK, or an error for a malformed row.
  * *partial is set when the row has too few fields (a cut-off last line). */
-static hyp_status parse_row(csv_state *cs, line_reader *lr, hyp_series *out,
+static hyp_status parse_row(csv_state *cs, hyp__csv_lines *lr, hyp_series *out,
                             int *partial, hyp_error *err)
 {
-    int n = split(lr->buf, cs->delim, cs->fields, MAX_COLUMNS);
+    int n = hyp__csv_split(lr->buf, cs->delim, cs->fields, MAX_COLUMNS);
     *partial = 0;
     if (n == -1) {
         *partial = !lr->ended_with_newline;
@@ -299,7 +136,7 @@ static hyp_status parse_row(csv_state *cs, line_reader *lr, hyp_series *out,
                                      cs->path, lr->lineno, col_label[c], n, cs->ncols);
             continue;
         }
-        const field *f = &cs->fields[i];
+        const hyp__csv_field *f = &cs->fields[i];
         if (c == C_TIME) {
             char tb[128];
             size_t l = f->len < sizeof tb - 1 ? f->len : sizeof tb - 1;
@@ -341,11 +178,11 @@ static hyp_status open_checked(const char *path, FILE **f, hyp_error *err)
     return HYP_OK;
 }
 
-static hyp_status read_rows(csv_state *cs, line_reader *lr, hyp_series *out,
+static hyp_status read_rows(csv_state *cs, hyp__csv_lines *lr, hyp_series *out,
                             hyp_msgs *msgs, hyp_error *err)
 {
     int have_header = 0, r;
-    while ((r = read_line(lr)) == 1) {
+    while ((r = hyp__csv_read_line(lr)) == 1) {
         char *s = lr->buf;
         if (lr->lineno == 1 && (unsigned char)s[0] == 0xEF && (unsigned char)s[1] == 0xBB &&
             (unsigned char)s[2] == 0xBF)
@@ -369,7 +206,7 @@ static hyp_status read_rows(csv_state *cs, line_reader *lr, hyp_series *out,
                          cs->path, lr->lineno);
     }
     if (r == -1)
-        return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: line longer than %u bytes; not a log", cs->path, lr->lineno + 1, LINE_MAX_BYTES);
+        return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: line longer than %u bytes; not a log", cs->path, lr->lineno + 1, HYP_CSV_LINE_MAX);
     if (r == -2)
         return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: NUL byte; not a text file", cs->path, lr->lineno + 1);
     if (r == -3)
@@ -389,7 +226,7 @@ hyp_status hyp_csv_read(const char *path, const hyp_read_opts *opts, hyp_series 
     }
     hyp_series_free(out);
     csv_state cs = {.path = path, .opts = opts};
-    line_reader lr = {0};
+    hyp__csv_lines lr = {0};
     FILE *f = NULL;
     hyp_status st = open_checked(path, &f, err);
     if (st)

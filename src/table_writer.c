@@ -1,6 +1,7 @@
 /* table_writer.c - the per-sample table (CSV) of a correction. Units of
  * every column are fixed and documented in docs/formats.md: degrees for
- * lat/lon, metres for heights, hPa for pressures, degC for temperature. */
+ * lat/lon, metres for heights and every sigma column, hPa for pressures,
+ * degC for temperature. */
 #include "hypsolev/writers.h"
 #include "outfile.h"
 
@@ -22,7 +23,10 @@ hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res, c
     if (st)
         return st;
     FILE *f = o.f;
-    fputs("time,lat,lon,ele_in,height,sigma,p_rover_hpa,p_base_hpa,offset_hpa,tcol_c,status\n", f);
+    fputs("time,lat,lon,ele_in,height,sigma,p_rover_hpa,p_base_hpa,offset_hpa,tcol_c", f);
+    for (int k = 0; k < HYP_B_COUNT; k++)
+        fprintf(f, ",sigma_%s", hyp_budget_term_name((hyp_budget_term)k));
+    fputs(",status\n", f);
     for (size_t i = 0; i < s->count; i++) {
         char t[40] = "";
         if (s->time_s[i] == s->time_s[i])
@@ -37,6 +41,8 @@ hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res, c
         num(f, res->base_p_pa[i] / 100.0, 3);
         num(f, res->offset_pa[i] / 100.0, 3);
         num(f, res->tcol_k[i] - 273.15, 2);
+        for (int k = 0; k < HYP_B_COUNT; k++)
+            num(f, res->budget_m[k][i], 3);
         const char *why = res->status[i] == HYP_PT_REFUSED ? hyp_sample_flag_text((hyp_sample_flag)s->flag[i])
                                                             : hyp_point_status_text((hyp_point_status)res->status[i]);
         fprintf(f, ",%s\n", why);

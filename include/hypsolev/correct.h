@@ -12,6 +12,10 @@
 extern "C" {
 #endif
 
+struct hyp_benchmarks;
+struct hyp_waypoints;
+struct hyp_tie_spec;
+
 /* How the temperature of the air column between base and rover is taken.
  * Default HYP_TCOL_BASE_LAPSE: a rover's thermometer is warmed by the body
  * and the sun (readings several kelvin high are common practice, no
@@ -61,6 +65,27 @@ typedef struct hyp_correct_opts {
      * +-1.5 hPa is typical of the data sheets of small digital barometers;
      * common practice, no source). */
     double uncal_offset_sigma_pa;
+
+    /* Ties to benchmarks (NULL / 0: none). */
+    const struct hyp_benchmarks *benchmarks;
+    const struct hyp_waypoints *waypoints;   /* GPX wpt named like a benchmark */
+    const struct hyp_tie_spec *ties;         /* explicit tie windows */
+    size_t n_ties;
+    double tie_radius_m;       /* automatic ties: within this of a benchmark, default 30 m */
+    double tie_min_s;          /* ... stationary at least this long, default 60 s */
+    double stationary_m;       /* spread of positions that counts as standing still, default 15 m */
+    /* Drift and column calibration. */
+    double scale_min_span_m;   /* estimate a column scale when ties span this, default 200 m */
+    double max_condition;      /* refuse fits whose scaled design is worse, default 1e6 */
+    double drift_rw_pa2_per_s; /* random-walk drift away from calibrations, default
+                                  (2 Pa)^2 per hour (common practice, no source) */
+    /* Error budget. */
+    double smooth_s;           /* centred moving average of rover pressure, s (0: none) */
+    double gradient_sigma_pa_per_m; /* horizontal pressure gradient, default 1 hPa/100 km */
+    double front_speed_m_s;    /* speed of moving pressure patterns, default 30 km/h */
+    double clock_sigma_s;      /* uncertainty of the base clock after correction, default 2 s */
+    double rh_sigma_pct;       /* of a measured humidity, default 5 % */
+    double rapid_pa_per_s;     /* tendency flagged as rapid, default 1 hPa/h */
 } hyp_correct_opts;
 
 void hyp_correct_opts_init(hyp_correct_opts *o);
@@ -76,15 +101,78 @@ typedef enum hyp_point_status {
 
 const char *hyp_point_status_text(hyp_point_status s);
 
-/* One calibration of the rover-minus-base offset. */
-typedef struct hyp_coloc {
+/* One calibration: the rover beside the base (co-location) or on a
+ * benchmark (tie), over a window of samples. */
+typedef enum hyp_calib_kind { HYP_CAL_BASE = 0, HYP_CAL_BENCHMARK = 1 } hyp_calib_kind;
+typedef enum hyp_calib_how {
+    HYP_HOW_POSITION = 0,   /* found from positions */
+    HYP_HOW_WAYPOINT = 1,   /* a GPX waypoint named like the benchmark */
+    HYP_HOW_EXPLICIT = 2    /* a window the user gave */
+} hyp_calib_how;
+
+typedef struct hyp_calib {
+    hyp_calib_kind kind;
+    hyp_calib_how how;
+    char name[64];             /* benchmark name, or "base" */
     double start_s, end_s;     /* true time */
     size_t n;                  /* samples used */
-    double offset_pa;          /* mean rover - base pressure */
-    double se_pa;              /* its standard error */
-    double scatter_pa;         /* sample standard deviation of the difference */
-    int automatic;             /* found from positions (1) or given (0) */
-} hyp_coloc;
+    double lat_deg, lon_deg;   /* mean rover position */
+    double known_m, known_sigma_m; /* height it is tied to, m */
+    double raw_m;              /* mean height with no offset and no scale, m */
+    double se_m;               /* standard error of raw_m */
+    double sens_m_per_pa;      /* dh/dp of the rover pressure there, m/Pa */
+    double offset_pa;          /* rover - expected pressure that closes it */
+    double scatter_pa;         /* sample standard deviation of the pressure */
+    double misclosure_m;       /* raw_m - known_m: before adjustment */
+    double residual_m;         /* corrected - known_m: after the fit */
+} hyp_calib;
+
+/* The offset model fitted to the calibrations: offset(t) piecewise linear
+ * through knots (constant beyond the first and last), and optionally a
+ * scale on the height difference (a column temperature correction). */
+typedef enum hyp_drift_kind {
+    HYP_DRIFT_NONE = 0,       /* uncalibrated: offset 0 */
+    HYP_DRIFT_EXPLICIT = 1,   /* --offset */
+    HYP_DRIFT_CONSTANT = 2,
+    HYP_DRIFT_LINEAR = 3,
+    HYP_DRIFT_PIECEWISE = 4
+} hyp_drift_kind;
+
+#define HYP_MAX_KNOTS 16
+
+typedef struct hyp_drift {
+    hyp_drift_kind kind;
+    size_t n_knots;
+    double t_lo_s, t_hi_s;     /* calibrated span: the model is linear out to
+                                  here, constant beyond */
+    double knot_s[HYP_MAX_KNOTS];
+    double knot_pa[HYP_MAX_KNOTS];
+    int has_scale;
+    double scale, scale_sigma; /* dimensionless: h = base + dz (1 + scale) */
+    size_t p;                  /* parameters: knots, then the scale */
+    double cov[(HYP_MAX_KNOTS + 1) * (HYP_MAX_KNOTS + 1)];
+    double chi2;
+    size_t dof;
+    double condition;
+    double inflation;          /* factor applied to the covariance (>= 1) */
+    char note[320];            /* what the rule chose and why */
+} hyp_drift;
+
+/* The error budget: 1-sigma components of each height, m. */
+typedef enum hyp_budget_term {
+    HYP_B_NOISE = 0,   /* rover and base sensor noise (after smoothing) */
+    HYP_B_FIT,         /* offset/drift/scale model, and drift away from ties */
+    HYP_B_TCOL,        /* column temperature */
+    HYP_B_RH,          /* humidity */
+    HYP_B_INTERP,      /* base interpolation in time */
+    HYP_B_CLOCK,       /* base clock */
+    HYP_B_HORIZ,       /* horizontal pressure gradient over the separation */
+    HYP_B_COUNT
+} hyp_budget_term;
+
+const char *hyp_budget_term_name(hyp_budget_term t);
+
+typedef struct hyp_period { double start_s, end_s, max_rate_pa_s; } hyp_period;
 
 typedef struct hyp_correct_result {
     size_t count;              /* = rover sample count */
@@ -98,9 +186,13 @@ typedef struct hyp_correct_result {
     size_t n_status[HYP_PT_STATUS_COUNT];
     size_t n_flag[HYP_SAMPLE_FLAG_COUNT]; /* rover samples refused, by flag */
     size_t base_refused;       /* base samples the reader refused */
-    hyp_coloc *colocs;
-    size_t n_colocs;
-    int offset_source;         /* 0 none, 1 explicit value, 2 co-location */
+    double *budget_m[HYP_B_COUNT]; /* per point, per term */
+    hyp_calib *calibs;
+    size_t n_calibs;
+    hyp_drift drift;
+    hyp_period *rapid;         /* periods of rapid pressure change at the base */
+    size_t n_rapid;
+    double max_rate_pa_s;      /* largest hourly tendency at the base */
     double base_noise_pa;      /* estimated white-noise level of the base */
     double diff_noise_pa;      /* scatter of rover - base in co-locations */
     double rover_noise_pa;     /* rover noise derived from the two above */

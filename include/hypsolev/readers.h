@@ -85,6 +85,36 @@ hyp_status hyp_csv_read(const char *path, const hyp_read_opts *opts,
                         hyp_series *out, hyp_unit *pressure_unit_found,
                         hyp_msgs *msgs, hyp_error *err);
 
+/* Known points: a CSV with a header and columns name, lat, lon (degrees),
+ * height (m), optional sigma (m, the known height's 1-sigma; default
+ * `default_sigma_m`) and optional note. */
+typedef struct hyp_benchmarks {
+    size_t count, alloc;
+    char **name;
+    char **note;
+    double *lat_deg, *lon_deg, *height_m, *sigma_m;
+} hyp_benchmarks;
+
+void hyp_benchmarks_init(hyp_benchmarks *b);
+void hyp_benchmarks_free(hyp_benchmarks *b);
+hyp_status hyp_benchmarks_read(const char *path, double default_sigma_m, hyp_benchmarks *out,
+                               hyp_msgs *msgs, hyp_error *err);
+/* Index of the benchmark called name (case-insensitive), or -1. */
+long hyp_benchmarks_find(const hyp_benchmarks *b, const char *name);
+
+/* An explicit tie: the rover stood on benchmark `name` from start to end
+ * (true time). The name "base" means the (first) base station. */
+typedef struct hyp_tie_spec {
+    char name[64];
+    double start_s, end_s;
+    unsigned line;
+} hyp_tie_spec;
+
+/* Reads a tie list: CSV with columns name, start, end (times as in logs;
+ * `zone` for times without one). *out is allocated; free() it. */
+hyp_status hyp_ties_read(const char *path, const hyp_zone *zone, hyp_tie_spec **out,
+                         size_t *count, hyp_error *err);
+
 /* 1 when the file looks like XML (first non-blank byte after an optional
  * byte-order mark is '<'), 0 when not, -1 when it cannot be read. */
 int hyp_file_is_xml(const char *path);

@@ -29,6 +29,8 @@ typedef struct args {
     base_arg bases[MAX_BASES];
     int n_bases;
     const char *out, *out_dir, *table, *rover_zone;
+    const char *benchmarks_path, *ties_path;
+    double benchmark_sigma_m;
     const char *colocate_text[MAX_WINDOWS];
     int n_colocate;
     int quiet;
@@ -59,6 +61,20 @@ static void help(void)
 "  --no-auto-colocate       do not look for co-location from positions\n"
 "  --colocate-radius M      co-location radius, m (default 30)\n"
 "  --colocate-min S         minimum co-location time, s (default 300)\n"
+"\n"
+"benchmarks and ties:\n"
+"  --benchmarks FILE        CSV: name, lat, lon, height [m], optional sigma [m], note\n"
+"  --benchmark-sigma M      sigma of benchmarks that give none (default 0.01 m)\n"
+"  --ties FILE              CSV: name, start, end: the rover stood on benchmark name\n"
+"                           (or \"base\") over that window\n"
+"  --tie-radius M           automatic ties: within M of a benchmark (default 30)\n"
+"  --tie-min S              ... and standing still at least S (default 60)\n"
+"                           GPX waypoints named like a benchmark are ties too\n"
+"\n"
+"error budget:\n"
+"  --smooth S               centred moving average of rover pressure over S seconds\n"
+"  --gradient-sigma G       horizontal pressure gradient, hPa per 100 km (default 1)\n"
+"  --clock-sigma S          base clock uncertainty, s (default 2)\n"
 "\n"
 "air column:\n"
 "  --column-temp MODE       base (base thermometer and lapse rate, default),\n"
@@ -120,7 +136,8 @@ static int parse_double(const char *s, double *v)
 enum {
     O_BASE = 256, O_BASE_HEIGHT, O_BASE_AT, O_BASE_CLOCK, O_BASE_TZ, O_OFFSET, O_OFFSET_SIGMA,
     O_COLOC, O_NO_AUTO, O_COLOC_R, O_COLOC_MIN, O_TCOL, O_LAPSE, O_RH, O_GAP, O_PUNIT, O_TUNIT,
-    O_PFIELD, O_TFIELD, O_HFIELD, O_TZ, O_OUTDIR, O_TABLE, O_HELP
+    O_PFIELD, O_TFIELD, O_HFIELD, O_TZ, O_OUTDIR, O_TABLE, O_HELP, O_BENCH, O_BENCH_SIG, O_TIES,
+    O_TIE_R, O_TIE_MIN, O_SMOOTH, O_GRAD, O_CLOCK_SIG
 };
 
 static const struct option longopts[] = {
@@ -150,6 +167,14 @@ static const struct option longopts[] = {
     {"table", required_argument, 0, O_TABLE},
     {"quiet", no_argument, 0, 'q'},
     {"help", no_argument, 0, O_HELP},
+    {"benchmarks", required_argument, 0, O_BENCH},
+    {"benchmark-sigma", required_argument, 0, O_BENCH_SIG},
+    {"ties", required_argument, 0, O_TIES},
+    {"tie-radius", required_argument, 0, O_TIE_R},
+    {"tie-min", required_argument, 0, O_TIE_MIN},
+    {"smooth", required_argument, 0, O_SMOOTH},
+    {"gradient-sigma", required_argument, 0, O_GRAD},
+    {"clock-sigma", required_argument, 0, O_CLOCK_SIG},
     {0, 0, 0, 0},
 };
 
@@ -260,6 +285,20 @@ static int parse_one(args *a, int c, const char *arg)
     case O_OUTDIR: a->out_dir = arg; return 0;
     case O_TABLE: a->table = arg; return 0;
     case 'q': a->quiet = 1; return 0;
+    case O_BENCH: a->benchmarks_path = arg; return 0;
+    case O_BENCH_SIG: return num_opt("--benchmark-sigma", arg, 0, 100, &a->benchmark_sigma_m) ? EXIT_USAGE : 0;
+    case O_TIES: a->ties_path = arg; return 0;
+    case O_TIE_R: return num_opt("--tie-radius", arg, 1, 10000, &o->tie_radius_m) ? EXIT_USAGE : 0;
+    case O_TIE_MIN: return num_opt("--tie-min", arg, 1, 86400, &o->tie_min_s) ? EXIT_USAGE : 0;
+    case O_SMOOTH: return num_opt("--smooth", arg, 0, 3600, &o->smooth_s) ? EXIT_USAGE : 0;
+    case O_GRAD: {
+        double g;
+        if (num_opt("--gradient-sigma", arg, 0, 100, &g))
+            return EXIT_USAGE;
+        o->gradient_sigma_pa_per_m = g * 100.0 / 100000.0;
+        return 0;
+    }
+    case O_CLOCK_SIG: return num_opt("--clock-sigma", arg, 0, 3600, &o->clock_sigma_s) ? EXIT_USAGE : 0;
     }
     return EXIT_USAGE;
 }
@@ -291,6 +330,7 @@ static int parse_args(args *a, int argc, char **argv)
     memset(a, 0, sizeof *a);
     hyp_read_opts_init(&a->ropts);
     hyp_correct_opts_init(&a->copts);
+    a->benchmark_sigma_m = 0.01;
     a->rovers = calloc((size_t)argc, sizeof *a->rovers);
     if (!a->rovers)
         return EXIT_INPUT;
@@ -391,23 +431,113 @@ static int cmp_d(const void *x, const void *y)
     return (a > b) - (a < b);
 }
 
-static void print_sigma_stats(const hyp_correct_result *r)
+
+static const char *how_text(hyp_calib_how h)
 {
-    double *v = malloc((r->n_ok ? r->n_ok : 1) * sizeof *v);
-    if (!v)
+    return h == HYP_HOW_POSITION ? "found from positions" : h == HYP_HOW_WAYPOINT ? "waypoint" : "given";
+}
+
+static void print_calibrations(const hyp_correct_result *r)
+{
+    if (!r->n_calibs)
         return;
-    size_t n = 0;
+    fprintf(stderr, "  ties      %zu calibration(s); misclosure = height before adjustment - known, residual = after\n", r->n_calibs);
+    for (size_t k = 0; k < r->n_calibs; k++) {
+        const hyp_calib *c = &r->calibs[k];
+        char a[40], b[40];
+        hyp_time_format(c->start_s, a, sizeof a);
+        hyp_time_format(c->end_s, b, sizeof b);
+        fprintf(stderr, "            %-10s %s to %s, %zu samples (%s): known %.3f m +- %.3f m, misclosure %+.3f m, residual %+.3f m, offset %+.3f hPa\n",
+                c->name, a, b + 11, c->n, how_text(c->how), c->known_m, c->known_sigma_m, c->misclosure_m,
+                c->residual_m, c->offset_pa / 100.0);
+    }
+}
+
+static void print_drift(const hyp_correct_result *r)
+{
+    const hyp_drift *d = &r->drift;
+    fprintf(stderr, "  offset    %s\n", d->note);
+    if (d->kind == HYP_DRIFT_NONE)
+        return;
+    for (size_t j = 0; j < d->n_knots; j++) {
+        char t[40];
+        hyp_time_format(d->knot_s[j], t, sizeof t);
+        fprintf(stderr, "            %s %+.3f hPa +- %.3f hPa\n", d->kind == HYP_DRIFT_EXPLICIT ? "(all times)" : t,
+                d->knot_pa[j] / 100.0, sqrt(d->cov[j * d->p + j]) / 100.0);
+    }
+    if (d->n_knots >= 2)
+        fprintf(stderr, "            drift %+.3f hPa/h between the first and last knot\n",
+                (d->knot_pa[d->n_knots - 1] - d->knot_pa[0]) / 100.0 / ((d->knot_s[d->n_knots - 1] - d->knot_s[0]) / 3600.0));
+    if (d->has_scale)
+        fprintf(stderr, "            column scale %+.3f %% +- %.3f %% (about %+.2f K on the column temperature)\n",
+                100.0 * d->scale, 100.0 * d->scale_sigma, 100.0 * d->scale * 2.85);
+    if (d->kind >= HYP_DRIFT_CONSTANT)
+        fprintf(stderr, "            fit: chi-square %.2f on %zu degree(s) of freedom, condition %.1e%s\n", d->chi2, d->dof,
+                d->condition, d->inflation > 1.0 ? ", covariance inflated to match the misfit" : "");
+}
+
+static void budget_row(const hyp_correct_result *r, size_t i, const char *label)
+{
+    fprintf(stderr, "            %-7s", label);
+    for (int k = 0; k < HYP_B_COUNT; k++)
+        fprintf(stderr, " %6.2f", r->budget_m[k][i]);
+    fprintf(stderr, "  %6.2f\n", r->sigma_m[i]);
+}
+
+static void print_budget(const hyp_series *s, const hyp_correct_result *r)
+{
+    size_t *idx = malloc((r->n_ok ? r->n_ok : 1) * sizeof *idx), n = 0;
+    if (!idx || !r->n_ok) {
+        free(idx);
+        return;
+    }
     for (size_t i = 0; i < r->count; i++)
         if (r->status[i] == HYP_PT_OK)
-            v[n++] = r->sigma_m[i];
-    qsort(v, n, sizeof *v, cmp_d);
-    if (n)
+            idx[n++] = i;
+    /* the median and the worst point by sigma (selection, not a full sort) */
+    size_t worst = idx[0];
+    for (size_t k = 0; k < n; k++)
+        if (r->sigma_m[idx[k]] > r->sigma_m[worst])
+            worst = idx[k];
+    size_t med = idx[0];
+    double *v = malloc(n * sizeof *v);
+    if (v) {
+        for (size_t k = 0; k < n; k++)
+            v[k] = r->sigma_m[idx[k]];
+        qsort(v, n, sizeof *v, cmp_d);
+        for (size_t k = 0; k < n; k++)
+            if (r->sigma_m[idx[k]] == v[n / 2])
+                med = idx[k];
         fprintf(stderr, "  sigma     median %.2f m, largest %.2f m (1 sigma)\n", v[n / 2], v[n - 1]);
+    }
+    fprintf(stderr, "  budget    1 sigma, m:");
+    for (int k = 0; k < HYP_B_COUNT; k++)
+        fprintf(stderr, " %6s", hyp_budget_term_name((hyp_budget_term)k));
+    fprintf(stderr, "   total\n");
+    budget_row(r, med, "median");
+    budget_row(r, worst, "worst");
+    char t[40];
+    hyp_time_format(s->time_s[worst], t, sizeof t);
+    fprintf(stderr, "            (worst point: line %u, %s)\n", s->line[worst], t);
     free(v);
+    free(idx);
+}
+
+static void print_weather(const hyp_correct_result *r, double rapid_pa_s)
+{
+    fprintf(stderr, "  weather   base pressure trend %+.3f hPa/h over the log; largest hourly tendency %.2f hPa/h\n",
+            r->base_tendency_pa_s * 36.0, r->max_rate_pa_s * 36.0);
+    for (size_t k = 0; k < r->n_rapid; k++) {
+        char a[40], b[40];
+        hyp_time_format(r->rapid[k].start_s, a, sizeof a);
+        hyp_time_format(r->rapid[k].end_s, b, sizeof b);
+        fprintf(stderr, "            rapid change (over %.1f hPa/h): %s to %s, up to %.2f hPa/h\n", rapid_pa_s * 36.0, a, b,
+                r->rapid[k].max_rate_pa_s * 36.0);
+    }
 }
 
 static void print_summary(const char *rover_path, const log_in *rv, const base_arg *ba, const log_in *bl,
-                          const hyp_correct_result *r, const char *wrote)
+                          const hyp_correct_result *r, const char *wrote, double rapid_pa_s)
 {
     char span[200];
     fprintf(stderr, "hypsolev correct: %s\n", rover_path);
@@ -420,28 +550,13 @@ static void print_summary(const char *rover_path, const log_in *rv, const base_a
         fprintf(stderr, ", at %.6f, %.6f deg", ba->lat_deg, ba->lon_deg);
     fprintf(stderr, ", clock offset %+.1f s\n", ba->clock_s);
     fprintf(stderr, "  method    %s\n", r->method);
-    if (r->offset_source == 1)
-        fprintf(stderr, "  offset    %+.2f hPa given (--offset)\n", r->offset_pa[0] == r->offset_pa[0] ? r->offset_pa[0] / 100.0 : NAN);
-    else if (r->offset_source == 0)
-        fprintf(stderr, "  offset    none: not calibrated (no co-location, no --offset)\n");
-    for (size_t k = 0; k < r->n_colocs; k++) {
-        const hyp_coloc *c = &r->colocs[k];
-        char a[40], b[40];
-        hyp_time_format(c->start_s, a, sizeof a);
-        hyp_time_format(c->end_s, b, sizeof b);
-        fprintf(stderr, "  %s co-location %s to %s: rover - base %+.3f hPa, standard error %.3f hPa, %zu samples%s\n",
-                k ? "         " : "offset   ", a, b, c->offset_pa / 100.0, c->se_pa / 100.0, c->n,
-                c->automatic ? " (found from positions)" : " (given)");
-    }
-    if (r->n_colocs > 1)
-        fprintf(stderr, "            offset interpolated linearly in time between co-locations (instrument drift %+.3f hPa/h)\n",
-                (r->colocs[r->n_colocs - 1].offset_pa - r->colocs[0].offset_pa) / 100.0 /
-                    ((r->colocs[r->n_colocs - 1].start_s + r->colocs[r->n_colocs - 1].end_s - r->colocs[0].start_s - r->colocs[0].end_s) / 7200.0));
+    print_calibrations(r);
+    print_drift(r);
     fprintf(stderr, "  noise     rover %.3f hPa, base %.3f hPa (1 sigma, estimated from the data)\n",
             r->rover_noise_pa / 100.0, r->base_noise_pa / 100.0);
     if (r->n_ok)
         fprintf(stderr, "  column    mean virtual temperature %.2f to %.2f degC\n", r->tcol_min_k - 273.15, r->tcol_max_k - 273.15);
-    fprintf(stderr, "  weather   base pressure trend %+.3f hPa/h over the log\n", r->base_tendency_pa_s * 36.0);
+    print_weather(r, rapid_pa_s);
     fprintf(stderr, "  heights   %zu of %zu corrected", r->n_ok, r->count);
     for (int s = 1; s < HYP_PT_STATUS_COUNT; s++)
         if (r->n_status[s])
@@ -450,7 +565,7 @@ static void print_summary(const char *rover_path, const log_in *rv, const base_a
     for (int f = 1; f < HYP_SAMPLE_FLAG_COUNT; f++)
         if (r->n_flag[f])
             fprintf(stderr, "            %zu dropped by the reader: %s\n", r->n_flag[f], hyp_sample_flag_text((hyp_sample_flag)f));
-    print_sigma_stats(r);
+    print_budget(log_series(rv), r);
     fprintf(stderr, "  wrote     %s\n", wrote);
     fprintf(stderr, "  (not for aviation or navigation; survey deliverables defer to local codes and licensed surveyors)\n");
 }
@@ -550,14 +665,16 @@ static int correct_one(args *a, const char *rover_path, const log_in *bl, const 
         const base_arg *ba = &a->bases[0];
         hyp_base base = {.log = log_series(bl), .name = ba->path, .height_m = ba->height_m,
                          .lat_deg = ba->lat_deg, .lon_deg = ba->lon_deg, .clock_offset_s = ba->clock_s};
-        st = hyp_correct_single_base(log_series(&rv), &base, &a->copts, &res, &msgs, &err);
+        hyp_correct_opts co = a->copts;
+        co.waypoints = rv.is_gpx ? &rv.doc.wpts : NULL;
+        st = hyp_correct_single_base(log_series(&rv), &base, &co, &res, &msgs, &err);
     }
     char wrote[8300] = "";
     if (!st)
         st = write_outputs(a, rover_path, &rv, &res, wrote, sizeof wrote, &err);
     print_msgs(&msgs, a->quiet);
     if (!st && !a->quiet)
-        print_summary(rover_path, &rv, &a->bases[0], bl, &res, wrote);
+        print_summary(rover_path, &rv, &a->bases[0], bl, &res, wrote, a->copts.rapid_pa_per_s);
     if (st)
         fprintf(stderr, "hypsolev: error: %s\n", err.message);
     hyp_correct_result_free(&res);
@@ -598,6 +715,26 @@ static int run(args *a)
         fprintf(stderr, "hypsolev correct: %s\n", err.message);
         rc = EXIT_USAGE;
     }
+    hyp_benchmarks bms;
+    hyp_benchmarks_init(&bms);
+    hyp_tie_spec *ties = NULL;
+    size_t n_ties = 0;
+    if (!rc && a->benchmarks_path) {
+        if (hyp_benchmarks_read(a->benchmarks_path, a->benchmark_sigma_m, &bms, &msgs, &err)) {
+            fprintf(stderr, "hypsolev: error: %s\n", err.message);
+            rc = EXIT_INPUT;
+        } else
+            a->copts.benchmarks = &bms;
+    }
+    if (!rc && a->ties_path) {
+        if (hyp_ties_read(a->ties_path, &rz, &ties, &n_ties, &err)) {
+            fprintf(stderr, "hypsolev: error: %s\n", err.message);
+            rc = EXIT_INPUT;
+        } else {
+            a->copts.ties = ties;
+            a->copts.n_ties = n_ties;
+        }
+    }
     if (!rc) {
         hyp_read_opts ro = a->ropts;
         ro.zone = &bz;
@@ -618,6 +755,8 @@ static int run(args *a)
             rc = r;
     }
     log_free(&bl);
+    hyp_benchmarks_free(&bms);
+    free(ties);
     hyp_msgs_free(&msgs);
     hyp_zone_free(&rz);
     hyp_zone_free(&bz);

@@ -1,0 +1,294 @@
+/* benchmark_reader.c - benchmark lists and explicit tie lists (CSV). */
+#include "csv_lex.h"
+#include "reader_common.h"
+
+#include <errno.h>
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+#include <strings.h>
+#include <sys/stat.h>
+
+#define MAX_FIELDS 64
+
+void hyp_benchmarks_init(hyp_benchmarks *b)
+{
+    memset(b, 0, sizeof *b);
+}
+
+void hyp_benchmarks_free(hyp_benchmarks *b)
+{
+    for (size_t i = 0; i < b->count; i++) {
+        free(b->name[i]);
+        free(b->note[i]);
+    }
+    free(b->name);
+    free(b->note);
+    free(b->lat_deg);
+    free(b->lon_deg);
+    free(b->height_m);
+    free(b->sigma_m);
+    hyp_benchmarks_init(b);
+}
+
+long hyp_benchmarks_find(const hyp_benchmarks *b, const char *name)
+{
+    for (size_t i = 0; b && i < b->count; i++)
+        if (strcasecmp(b->name[i], name) == 0)
+            return (long)i;
+    return -1;
+}
+
+static hyp_status bm_push(hyp_benchmarks *b, const char *name, const char *note, double lat, double lon,
+                          double h, double sig)
+{
+    if (b->count == b->alloc) {
+        size_t a = b->alloc ? 2 * b->alloc : 32;
+        if (a > 1000000)
+            return HYP_ERR_NOMEM;
+        void *p;
+        if (!(p = realloc(b->name, a * sizeof(char *)))) return HYP_ERR_NOMEM;
+        b->name = p;
+        if (!(p = realloc(b->note, a * sizeof(char *)))) return HYP_ERR_NOMEM;
+        b->note = p;
+        if (!(p = realloc(b->lat_deg, a * sizeof(double)))) return HYP_ERR_NOMEM;
+        b->lat_deg = p;
+        if (!(p = realloc(b->lon_deg, a * sizeof(double)))) return HYP_ERR_NOMEM;
+        b->lon_deg = p;
+        if (!(p = realloc(b->height_m, a * sizeof(double)))) return HYP_ERR_NOMEM;
+        b->height_m = p;
+        if (!(p = realloc(b->sigma_m, a * sizeof(double)))) return HYP_ERR_NOMEM;
+        b->sigma_m = p;
+        b->alloc = a;
+    }
+    char *n = strdup(name), *t = strdup(note);
+    if (!n || !t) {
+        free(n);
+        free(t);
+        return HYP_ERR_NOMEM;
+    }
+    size_t i = b->count++;
+    b->name[i] = n;
+    b->note[i] = t;
+    b->lat_deg[i] = lat;
+    b->lon_deg[i] = lon;
+    b->height_m[i] = h;
+    b->sigma_m[i] = sig;
+    return HYP_OK;
+}
+
+/* A small CSV table: header names to column indices. */
+typedef struct table {
+    const char *path;
+    hyp__csv_lines lr;
+    char delim;
+    hyp__csv_field f[MAX_FIELDS];
+    int nf;
+} table;
+
+static hyp_status table_open(table *t, const char *path, hyp_error *err)
+{
+    memset(t, 0, sizeof *t);
+    t->path = path;
+    struct stat st;
+    if (stat(path, &st) != 0)
+        return hyp_error_set(err, HYP_ERR_IO, "%s: cannot open: %s", path, strerror(errno));
+    if (S_ISDIR(st.st_mode))
+        return hyp_error_set(err, HYP_ERR_IO, "%s: is a directory, expected a CSV file", path);
+    t->lr.f = fopen(path, "rb");
+    if (!t->lr.f)
+        return hyp_error_set(err, HYP_ERR_IO, "%s: cannot open: %s", path, strerror(errno));
+    return HYP_OK;
+}
+
+static void table_close(table *t)
+{
+    if (t->lr.f)
+        fclose(t->lr.f);
+    free(t->lr.buf);
+}
+
+/* Next non-blank, non-comment line split into fields: 1, 0 at the end. */
+static int table_next(table *t, hyp_error *err, hyp_status *st)
+{
+    int r;
+    while ((r = hyp__csv_read_line(&t->lr)) == 1) {
+        char *s = t->lr.buf;
+        if (t->lr.lineno == 1 && (unsigned char)s[0] == 0xEF && (unsigned char)s[1] == 0xBB && (unsigned char)s[2] == 0xBF)
+            s += 3;
+        size_t lead = strspn(s, " \t");
+        if (s[lead] == '\0' || s[lead] == '#')
+            continue;
+        if (!t->delim)
+            t->delim = hyp__csv_detect_delimiter(s);
+        t->nf = hyp__csv_split(s, t->delim, t->f, MAX_FIELDS);
+        if (t->nf < 0) {
+            *st = hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: %s", t->path, t->lr.lineno,
+                                t->nf == -1 ? "unterminated quote" : "too many fields");
+            return -1;
+        }
+        return 1;
+    }
+    if (r < 0) {
+        *st = hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: %s", t->path, t->lr.lineno + 1,
+                            r == -2 ? "NUL byte; not a text file" : r == -1 ? "line too long" : "read error");
+        return -1;
+    }
+    return 0;
+}
+
+static int column(const table *t, const char *name)
+{
+    for (int i = 0; i < t->nf; i++) {
+        char n[64], u[16];
+        hyp__csv_header_name(&t->f[i], n, sizeof n, u, sizeof u);
+        if (strcasecmp(n, name) == 0)
+            return i;
+    }
+    return -1;
+}
+
+static void field_text(const table *t, int i, char *buf, size_t n)
+{
+    size_t len = i >= 0 && i < t->nf ? t->f[i].len : 0;
+    if (len >= n)
+        len = n - 1;
+    if (len)
+        memcpy(buf, t->f[i].s, len);
+    buf[len] = '\0';
+    while (len && (buf[len - 1] == ' ' || buf[len - 1] == '\r'))
+        buf[--len] = '\0';
+}
+
+static hyp_status field_number(const table *t, int i, const char *what, double lo, double hi, int required,
+                               double *v, hyp_error *err)
+{
+    if (i < 0 || i >= t->nf || hyp__parse_number(t->f[i].s, t->f[i].len, t->delim != ',', v) == 2) {
+        *v = NAN;
+        if (!required)
+            return HYP_OK;
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: %s is missing", t->path, t->lr.lineno, what);
+    }
+    char text[64];
+    field_text(t, i, text, sizeof text);
+    if (hyp__parse_number(t->f[i].s, t->f[i].len, t->delim != ',', v) != 1)
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: %s \"%s\" is not a number", t->path, t->lr.lineno, what, text);
+    if (!(*v >= lo && *v <= hi))
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: %s %s is outside %g to %g", t->path, t->lr.lineno, what, text, lo, hi);
+    return HYP_OK;
+}
+
+static hyp_status bm_row(table *t, const int *c, double default_sigma_m, hyp_benchmarks *out, hyp_error *err)
+{
+    char name[64], note[256];
+    field_text(t, c[0], name, sizeof name);
+    field_text(t, c[5], note, sizeof note);
+    if (!name[0])
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: name is empty", t->path, t->lr.lineno);
+    if (hyp_benchmarks_find(out, name) >= 0)
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: benchmark \"%s\" is listed twice", t->path, t->lr.lineno, name);
+    double lat, lon, h, sig;
+    hyp_status st = field_number(t, c[1], "lat", -90, 90, 1, &lat, err);
+    if (!st) st = field_number(t, c[2], "lon", -180, 180, 1, &lon, err);
+    if (!st) st = field_number(t, c[3], "height", -500, 9000, 1, &h, err);
+    if (!st) st = field_number(t, c[4], "sigma", 0, 100, 0, &sig, err);
+    if (st)
+        return st;
+    if (sig != sig)
+        sig = default_sigma_m;
+    if (bm_push(out, name, note, lat, lon, h, sig))
+        return hyp_error_set(err, HYP_ERR_NOMEM, "%s: out of memory", t->path);
+    return HYP_OK;
+}
+
+hyp_status hyp_benchmarks_read(const char *path, double default_sigma_m, hyp_benchmarks *out,
+                               hyp_msgs *msgs, hyp_error *err)
+{
+    (void)msgs;
+    hyp_benchmarks_free(out);
+    table t;
+    hyp_status st = table_open(&t, path, err);
+    if (st)
+        return st;
+    int r = table_next(&t, err, &st);
+    if (r == 0)
+        st = hyp_error_set(err, HYP_ERR_NODATA, "%s: empty file: no header row", path);
+    int c[6] = {-1, -1, -1, -1, -1, -1};
+    static const char *names[6] = {"name", "lat", "lon", "height", "sigma", "note"};
+    if (r == 1) {
+        for (int k = 0; k < 6; k++)
+            c[k] = column(&t, names[k]);
+        for (int k = 0; k < 4 && !st; k++)
+            if (c[k] < 0)
+                st = hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: header: no \"%s\" column (expected name, lat, lon, height[, sigma, note])",
+                                   path, t.lr.lineno, names[k]);
+    }
+    while (!st && (r = table_next(&t, err, &st)) == 1)
+        st = bm_row(&t, c, default_sigma_m, out, err);
+    if (!st && out->count == 0)
+        st = hyp_error_set(err, HYP_ERR_NODATA, "%s: no benchmark rows", path);
+    table_close(&t);
+    if (st)
+        hyp_benchmarks_free(out);
+    return st;
+}
+
+static hyp_status tie_row(table *t, const int *c, const hyp_zone *zone, hyp_tie_spec *ts, hyp_error *err)
+{
+    char a[96], b[96];
+    field_text(t, c[0], ts->name, sizeof ts->name);
+    field_text(t, c[1], a, sizeof a);
+    field_text(t, c[2], b, sizeof b);
+    ts->line = t->lr.lineno;
+    if (!ts->name[0])
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: name is empty", t->path, t->lr.lineno);
+    if (hyp_time_parse(a, zone, &ts->start_s) != HYP_TIME_OK)
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: start \"%s\" is not a time with zone (ISO 8601)", t->path, t->lr.lineno, a);
+    if (hyp_time_parse(b, zone, &ts->end_s) != HYP_TIME_OK)
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: end \"%s\" is not a time with zone (ISO 8601)", t->path, t->lr.lineno, b);
+    if (!(ts->end_s > ts->start_s))
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: end %s is not after start %s", t->path, t->lr.lineno, b, a);
+    return HYP_OK;
+}
+
+hyp_status hyp_ties_read(const char *path, const hyp_zone *zone, hyp_tie_spec **out, size_t *count,
+                         hyp_error *err)
+{
+    *out = NULL;
+    *count = 0;
+    table t;
+    hyp_status st = table_open(&t, path, err);
+    if (st)
+        return st;
+    int r = table_next(&t, err, &st);
+    int c[3] = {-1, -1, -1};
+    static const char *names[3] = {"name", "start", "end"};
+    if (r == 0)
+        st = hyp_error_set(err, HYP_ERR_NODATA, "%s: empty file: no header row", path);
+    for (int k = 0; r == 1 && k < 3 && !st; k++)
+        if ((c[k] = column(&t, names[k])) < 0)
+            st = hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: header: no \"%s\" column (expected name, start, end)",
+                               path, t.lr.lineno, names[k]);
+    size_t alloc = 0;
+    while (!st && (r = table_next(&t, err, &st)) == 1) {
+        if (*count == alloc) {
+            alloc = alloc ? 2 * alloc : 16;
+            hyp_tie_spec *p = alloc > 100000 ? NULL : realloc(*out, alloc * sizeof *p);
+            if (!p) {
+                st = hyp_error_set(err, HYP_ERR_NOMEM, "%s: out of memory", path);
+                break;
+            }
+            *out = p;
+        }
+        st = tie_row(&t, c, zone, &(*out)[*count], err);
+        if (!st)
+            (*count)++;
+    }
+    table_close(&t);
+    if (st) {
+        free(*out);
+        *out = NULL;
+        *count = 0;
+    }
+    return st;
+}

@@ -1,0 +1,91 @@
+/* budget.c - the error budget of each corrected height: 1-sigma components
+ * combined in quadrature. Every default and its origin is listed in
+ * docs/methods.md section 4. */
+#include "correct_int.h"
+#include "hypsolev/atmosphere.h"
+#include "hypsolev/geo.h"
+
+#include <math.h>
+
+const char *hyp_budget_term_name(hyp_budget_term t)
+{
+    static const char *n[HYP_B_COUNT] = {"noise", "fit", "tcol", "rh", "interp", "clock", "horiz"};
+    return t < HYP_B_COUNT ? n[t] : "?";
+}
+
+/* Model part: g^T C g with g = dh/d(parameters): c phi_j(t) for each knot,
+ * dz for the scale; plus the random-walk drift away from the calibrations. */
+static double fit_term(const hyp__work *w, size_t i, double dz, double c)
+{
+    const hyp_drift *d = &w->r->drift;
+    double g[HYP_MAX_KNOTS + 1], phi[HYP_MAX_KNOTS];
+    size_t p = d->p;
+    hyp__drift_offset(d, w->rv->time_s[i], phi);
+    for (size_t j = 0; j < d->n_knots && j < p; j++)
+        g[j] = c * phi[j];
+    if (d->has_scale)
+        g[d->n_knots] = dz;
+    double v = 0;
+    for (size_t j = 0; j < p; j++)
+        for (size_t k = 0; k < p; k++)
+            v += g[j] * d->cov[j * p + k] * g[k];
+    double rw = w->o->drift_rw_pa2_per_s * hyp__drift_distance_s(d, w->rv->time_s[i]);
+    return sqrt(v + c * c * rw);
+}
+
+/* Distance (m) over which the horizontal gradient acts: from the nearest
+ * calibration's position (whose offset absorbed the gradient there), else
+ * from the base; 0 when positions are unknown. */
+static double separation_m(const hyp__work *w, size_t i)
+{
+    double la = w->rv->lat_deg[i], lo = w->rv->lon_deg[i];
+    if (la != la)
+        return 0.0;
+    double best = INFINITY;
+    const hyp_correct_result *r = w->r;
+    if (r->drift.kind != HYP_DRIFT_NONE && r->drift.kind != HYP_DRIFT_EXPLICIT)
+        for (size_t k = 0; k < r->n_calibs; k++) {
+            double d = hyp_geo_distance_m(la, lo, r->calibs[k].lat_deg, r->calibs[k].lon_deg);
+            if (d == d && d < best)
+                best = d;
+        }
+    if (best == INFINITY && w->base->lat_deg == w->base->lat_deg)
+        best = hyp_geo_distance_m(la, lo, w->base->lat_deg, w->base->lon_deg);
+    return best == INFINITY ? 0.0 : best;
+}
+
+static double rh_term(const hyp__work *w, size_t i, double dz, double tv)
+{
+    int measured = w->rv->rh_pct[i] == w->rv->rh_pct[i] || w->rhb[i] == w->rhb[i];
+    double sig = measured ? w->o->rh_sigma_pct : w->o->default_rh_sigma_pct;
+    double rh = w->rhr[i], p = w->r->base_p_pa[i], t = w->tb[i];
+    double hi = rh + sig > 100.0 ? 100.0 : rh + sig;
+    double t1 = hyp_virtual_temperature_k(t, rh, p), t2 = hyp_virtual_temperature_k(t, hi, p);
+    if (t1 != t1 || t2 != t2)
+        return 0.0;
+    return fabs(dz) * fabs(t2 - t1) * (sig / (hi - rh > 0 ? hi - rh : sig)) / tv;
+}
+
+void hyp__budget(hyp__work *w, size_t i, double dz)
+{
+    const hyp_correct_opts *o = w->o;
+    hyp_correct_result *r = w->r;
+    double c = w->sens[i], tv = r->tcol_k[i], rate = fabs(w->rate[i]);
+    double b[HYP_B_COUNT];
+    double rn = r->rover_noise_pa, bn = r->base_noise_pa;
+    b[HYP_B_NOISE] = c * sqrt(rn * rn / w->navg[i] + bn * bn);
+    b[HYP_B_FIT] = fit_term(w, i, dz, c);
+    double st = hypot(w->tsig_k, o->lapse_sigma_k_per_m * 0.5 * dz);
+    b[HYP_B_TCOL] = w->tcol_scaled ? 0.0 : fabs(dz) * st / tv;
+    b[HYP_B_RH] = rh_term(w, i, dz, tv);
+    b[HYP_B_INTERP] = c * rate * w->dt_base[i] / sqrt(12.0);
+    b[HYP_B_CLOCK] = c * rate * o->clock_sigma_s;
+    double grad = hypot(o->gradient_sigma_pa_per_m, rate / o->front_speed_m_s);
+    b[HYP_B_HORIZ] = c * grad * separation_m(w, i);
+    double ss = 0;
+    for (int k = 0; k < HYP_B_COUNT; k++) {
+        r->budget_m[k][i] = b[k];
+        ss += b[k] * b[k];
+    }
+    r->sigma_m[i] = sqrt(ss);
+}

@@ -1,0 +1,273 @@
+/* calib.c - calibration windows: the rover beside the base (co-location)
+ * and on benchmarks (ties), found from positions, from GPX waypoints named
+ * like a benchmark, or given explicitly; and their statistics. */
+#include "correct_int.h"
+#include "hypsolev/geo.h"
+#include "hypsolev/timeparse.h"
+#include "stats.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+static hyp_status push(hyp_correct_result *r, const hyp_calib *c)
+{
+    hyp_calib *p = realloc(r->calibs, (r->n_calibs + 1) * sizeof *p);
+    if (!p)
+        return HYP_ERR_NOMEM;
+    r->calibs = p;
+    r->calibs[r->n_calibs++] = *c;
+    return HYP_OK;
+}
+
+/* Statistics of the raw heights over [t0, t1]. 0 when fewer than 2 samples. */
+static int window_stats(hyp__work *w, hyp_calib *c, double *buf)
+{
+    size_t n = 0;
+    double sens = 0, lat = 0, lon = 0, dp_buf_sum = 0;
+    size_t npos = 0;
+    for (size_t i = 0; i < w->n; i++) {
+        if (w->r->status[i] != HYP_PT_OK || w->rv->time_s[i] < c->start_s || w->rv->time_s[i] > c->end_s)
+            continue;
+        buf[n++] = w->raw[i];
+        sens += w->sens[i];
+        dp_buf_sum += w->pr[i] - w->r->base_p_pa[i];
+        if (w->rv->lat_deg[i] == w->rv->lat_deg[i]) {
+            lat += w->rv->lat_deg[i];
+            lon += w->rv->lon_deg[i];
+            npos++;
+        }
+    }
+    (void)dp_buf_sum;
+    if (n < 2)
+        return 0;
+    double mean, sd, neff;
+    hyp__mean_sd_neff(buf, n, &mean, &sd, &neff);
+    c->n = n;
+    c->raw_m = mean;
+    c->se_m = sd / sqrt(neff);
+    c->sens_m_per_pa = sens / (double)n;
+    c->scatter_pa = sd / c->sens_m_per_pa;
+    c->lat_deg = npos ? lat / (double)npos : w->base->lat_deg;
+    c->lon_deg = npos ? lon / (double)npos : w->base->lon_deg;
+    /* the offset that closes it: h(p - o) = known, h(p - o) ~ raw + sens o */
+    c->offset_pa = (c->known_m - c->raw_m) / c->sens_m_per_pa;
+    c->misclosure_m = c->raw_m - c->known_m;
+    return 1;
+}
+
+static double dist_to(const hyp__work *w, size_t i, double lat, double lon)
+{
+    return hyp_geo_distance_m(w->rv->lat_deg[i], w->rv->lon_deg[i], lat, lon);
+}
+
+/* Largest distance of samples i..j from their mean position. */
+static double spread_m(const hyp__work *w, size_t i, size_t j)
+{
+    double la = 0, lo = 0;
+    for (size_t k = i; k <= j; k++) {
+        la += w->rv->lat_deg[k];
+        lo += w->rv->lon_deg[k];
+    }
+    la /= (double)(j - i + 1);
+    lo /= (double)(j - i + 1);
+    double m = 0;
+    for (size_t k = i; k <= j; k++) {
+        double d = dist_to(w, k, la, lo);
+        if (d > m)
+            m = d;
+    }
+    return m;
+}
+
+/* Runs of samples within radius of (lat, lon) lasting at least min_s (and,
+ * when max_spread_m > 0, standing still within it). */
+static hyp_status find_near(hyp__work *w, hyp_calib *proto, double lat, double lon, double radius,
+                            double min_s, double max_spread_m, double *buf)
+{
+    const hyp_series *rv = w->rv;
+    size_t i = 0;
+    while (i < w->n) {
+        if (!(w->r->status[i] == HYP_PT_OK && dist_to(w, i, lat, lon) <= radius)) {
+            i++;
+            continue;
+        }
+        size_t j = i;
+        while (j + 1 < w->n && !rv->flag[j + 1] && dist_to(w, j + 1, lat, lon) <= radius)
+            j++;
+        if (rv->time_s[j] - rv->time_s[i] >= min_s && (max_spread_m <= 0 || spread_m(w, i, j) <= max_spread_m)) {
+            hyp_calib c = *proto;
+            c.start_s = rv->time_s[i];
+            c.end_s = rv->time_s[j];
+            if (window_stats(w, &c, buf) && push(w->r, &c))
+                return HYP_ERR_NOMEM;
+        }
+        i = j + 1;
+    }
+    return HYP_OK;
+}
+
+static void proto_for(hyp__work *w, hyp_calib *c, long bm, hyp_calib_how how)
+{
+    memset(c, 0, sizeof *c);
+    c->how = how;
+    if (bm < 0) {
+        c->kind = HYP_CAL_BASE;
+        snprintf(c->name, sizeof c->name, "base");
+        c->known_m = w->base->height_m;
+        c->known_sigma_m = 0.0;
+    } else {
+        const hyp_benchmarks *b = w->o->benchmarks;
+        c->kind = HYP_CAL_BENCHMARK;
+        snprintf(c->name, sizeof c->name, "%s", b->name[bm]);
+        c->known_m = b->height_m[bm];
+        c->known_sigma_m = b->sigma_m[bm];
+    }
+}
+
+static hyp_status explicit_windows(hyp__work *w, double *buf, hyp_error *err)
+{
+    const hyp_correct_opts *o = w->o;
+    for (size_t k = 0; k < o->n_colocate + o->n_ties; k++) {
+        hyp_calib c;
+        long bm = -1;
+        double t0, t1;
+        if (k < o->n_colocate) {
+            t0 = o->colocate[k].start_s;
+            t1 = o->colocate[k].end_s;
+        } else {
+            const hyp_tie_spec *ts = &o->ties[k - o->n_colocate];
+            t0 = ts->start_s;
+            t1 = ts->end_s;
+            if (strcmp(ts->name, "base") != 0 && (bm = hyp_benchmarks_find(o->benchmarks, ts->name)) < 0)
+                return hyp_error_set(err, HYP_ERR_VALUE, "tie list line %u: \"%s\" is not a benchmark (nor \"base\")",
+                                     ts->line, ts->name);
+        }
+        proto_for(w, &c, bm, HYP_HOW_EXPLICIT);
+        c.start_s = t0;
+        c.end_s = t1;
+        if (!window_stats(w, &c, buf)) {
+            char a[40], b[40];
+            hyp_time_format(t0, a, sizeof a);
+            hyp_time_format(t1, b, sizeof b);
+            return hyp_error_set(err, HYP_ERR_NODATA, "%s window %s to %s holds fewer than two rover samples with base pressure",
+                                 c.name, a, b);
+        }
+        if (push(w->r, &c))
+            return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    }
+    return HYP_OK;
+}
+
+/* Nearest usable rover sample to time t, or -1 beyond max_dt_s. */
+static long nearest_sample(const hyp__work *w, double t, double max_dt_s)
+{
+    long best = -1;
+    double bd = max_dt_s;
+    for (size_t i = 0; i < w->n; i++)
+        if (w->r->status[i] == HYP_PT_OK && fabs(w->rv->time_s[i] - t) <= bd) {
+            bd = fabs(w->rv->time_s[i] - t);
+            best = (long)i;
+        }
+    return best;
+}
+
+/* A waypoint named like a benchmark: the stationary run of samples around
+ * its time (within stationary_m of the sample nearest to it, at most 10
+ * minutes either side). */
+static hyp_status waypoint_ties(hyp__work *w, double *buf)
+{
+    const hyp_waypoints *wp = w->o->waypoints;
+    for (size_t k = 0; wp && k < wp->count; k++) {
+        long bm = hyp_benchmarks_find(w->o->benchmarks, wp->name[k]);
+        if (bm < 0 || wp->time_s[k] != wp->time_s[k])
+            continue;
+        long a = nearest_sample(w, wp->time_s[k], 120.0);
+        if (a < 0) {
+            hyp_msgs_add(w->msgs, HYP_WARNING, "waypoint %s: no rover sample within 2 minutes of its time; not used as a tie",
+                         wp->name[k]);
+            continue;
+        }
+        double la = w->rv->lat_deg[a], lo = w->rv->lon_deg[a];
+        double d = hyp_geo_distance_m(la, lo, w->o->benchmarks->lat_deg[bm], w->o->benchmarks->lon_deg[bm]);
+        if (d > w->o->tie_radius_m)
+            hyp_msgs_add(w->msgs, HYP_WARNING, "waypoint %s is %.0f m from the benchmark's listed position; tied as the waypoint says",
+                         wp->name[k], d);
+        size_t i = (size_t)a, j = (size_t)a;
+        double t = w->rv->time_s[a];
+        while (i > 0 && w->r->status[i - 1] == HYP_PT_OK && t - w->rv->time_s[i - 1] <= 600.0 &&
+               !(dist_to(w, i - 1, la, lo) > w->o->stationary_m))
+            i--;
+        while (j + 1 < w->n && w->r->status[j + 1] == HYP_PT_OK && w->rv->time_s[j + 1] - t <= 600.0 &&
+               !(dist_to(w, j + 1, la, lo) > w->o->stationary_m))
+            j++;
+        hyp_calib c;
+        proto_for(w, &c, bm, HYP_HOW_WAYPOINT);
+        c.start_s = w->rv->time_s[i];
+        c.end_s = w->rv->time_s[j];
+        if (j - i >= 2 && window_stats(w, &c, buf) && push(w->r, &c))
+            return HYP_ERR_NOMEM;
+    }
+    return HYP_OK;
+}
+
+/* Drops a window that overlaps an earlier one for the same point found a
+ * more trusted way (explicit > waypoint > positions). */
+static void dedup(hyp_correct_result *r)
+{
+    size_t out = 0;
+    for (size_t k = 0; k < r->n_calibs; k++) {
+        const hyp_calib *c = &r->calibs[k];
+        int dup = 0;
+        for (size_t j = 0; j < r->n_calibs && !dup; j++) {
+            const hyp_calib *d = &r->calibs[j];
+            if (j == k || strcmp(c->name, d->name) != 0 || d->end_s < c->start_s || d->start_s > c->end_s)
+                continue;
+            dup = d->how > c->how || (d->how == c->how && j < k);
+        }
+        if (!dup)
+            r->calibs[out++] = *c;
+    }
+    r->n_calibs = out;
+}
+
+static int by_time(const void *a, const void *b)
+{
+    double x = ((const hyp_calib *)a)->start_s, y = ((const hyp_calib *)b)->start_s;
+    return (x > y) - (x < y);
+}
+
+hyp_status hyp__find_calibrations(hyp__work *w, hyp_error *err)
+{
+    const hyp_correct_opts *o = w->o;
+    double *buf = malloc((w->n ? w->n : 1) * sizeof *buf);
+    if (!buf)
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    hyp_status st = explicit_windows(w, buf, err);
+    int base_pos = w->base->lat_deg == w->base->lat_deg && w->rv->has_position;
+    if (!st && o->auto_colocate && o->n_colocate == 0 && base_pos) {
+        hyp_calib proto;
+        proto_for(w, &proto, -1, HYP_HOW_POSITION);
+        if (find_near(w, &proto, w->base->lat_deg, w->base->lon_deg, o->coloc_radius_m, o->coloc_min_s, 0, buf))
+            st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    }
+    if (!st && o->benchmarks && waypoint_ties(w, buf))
+        st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    for (size_t b = 0; !st && o->benchmarks && w->rv->has_position && b < o->benchmarks->count; b++) {
+        hyp_calib proto;
+        proto_for(w, &proto, (long)b, HYP_HOW_POSITION);
+        if (find_near(w, &proto, o->benchmarks->lat_deg[b], o->benchmarks->lon_deg[b], o->tie_radius_m,
+                      o->tie_min_s, o->stationary_m, buf))
+            st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    }
+    if (!st && o->auto_colocate && o->n_colocate == 0 && !base_pos && o->offset_pa != o->offset_pa)
+        hyp_msgs_add(w->msgs, HYP_WARNING, "%s: no base position (--base-at) or no rover positions: co-location cannot be found automatically",
+                     w->base->name);
+    free(buf);
+    if (!st) {
+        dedup(w->r);
+        qsort(w->r->calibs, w->r->n_calibs, sizeof *w->r->calibs, by_time);
+    }
+    return st;
+}
