@@ -75,8 +75,11 @@ void hyp__budget(hyp__work *w, size_t i, double dz)
     double rn = r->rover_noise_pa, bn = r->base_noise_pa;
     b[HYP_B_NOISE] = c * sqrt(rn * rn / w->navg[i] + bn * bn);
     b[HYP_B_FIT] = fit_term(w, i, dz, c);
+    /* A column temperature error dT shifts heights by dz dT / Tv; an offset
+     * calibrated at height difference dz_ref absorbs dz_ref dT / Tv of it,
+     * leaving (dz - dz_ref) dT / Tv. */
     double st = hypot(w->tsig_k, o->lapse_sigma_k_per_m * 0.5 * dz);
-    b[HYP_B_TCOL] = w->tcol_scaled ? 0.0 : fabs(dz) * st / tv;
+    b[HYP_B_TCOL] = w->tcol_scaled ? 0.0 : fabs(dz - w->dz_ref_m) * st / tv;
     b[HYP_B_RH] = rh_term(w, i, dz, tv);
     b[HYP_B_INTERP] = c * rate * w->dt_base[i] / sqrt(12.0);
     b[HYP_B_CLOCK] = c * rate * o->clock_sigma_s;

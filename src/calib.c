@@ -62,29 +62,32 @@ static double dist_to(const hyp__work *w, size_t i, double lat, double lon)
     return hyp_geo_distance_m(w->rv->lat_deg[i], w->rv->lon_deg[i], lat, lon);
 }
 
-/* Largest distance of samples i..j from their mean position. */
-static double spread_m(const hyp__work *w, size_t i, size_t j)
+/* Within the run i..j near a point, the stretch where the rover stood
+ * still: grown from the sample nearest the point while positions stay within
+ * stationary_m of it. */
+static void stationary_part(const hyp__work *w, size_t *i, size_t *j, double lat, double lon)
 {
-    double la = 0, lo = 0;
-    for (size_t k = i; k <= j; k++) {
-        la += w->rv->lat_deg[k];
-        lo += w->rv->lon_deg[k];
+    size_t a = *i;
+    double best = INFINITY;
+    for (size_t k = *i; k <= *j; k++) {
+        double d = dist_to(w, k, lat, lon);
+        if (d < best)
+            best = d, a = k;
     }
-    la /= (double)(j - i + 1);
-    lo /= (double)(j - i + 1);
-    double m = 0;
-    for (size_t k = i; k <= j; k++) {
-        double d = dist_to(w, k, la, lo);
-        if (d > m)
-            m = d;
-    }
-    return m;
+    double la = w->rv->lat_deg[a], lo = w->rv->lon_deg[a], r = w->o->stationary_m;
+    size_t lo_i = a, hi_i = a;
+    while (lo_i > *i && dist_to(w, lo_i - 1, la, lo) <= r)
+        lo_i--;
+    while (hi_i < *j && dist_to(w, hi_i + 1, la, lo) <= r)
+        hi_i++;
+    *i = lo_i;
+    *j = hi_i;
 }
 
-/* Runs of samples within radius of (lat, lon) lasting at least min_s (and,
- * when max_spread_m > 0, standing still within it). */
+/* Runs of samples within radius of (lat, lon), standing still there for at
+ * least min_s. */
 static hyp_status find_near(hyp__work *w, hyp_calib *proto, double lat, double lon, double radius,
-                            double min_s, double max_spread_m, double *buf)
+                            double min_s, double *buf)
 {
     const hyp_series *rv = w->rv;
     size_t i = 0;
@@ -96,14 +99,16 @@ static hyp_status find_near(hyp__work *w, hyp_calib *proto, double lat, double l
         size_t j = i;
         while (j + 1 < w->n && !rv->flag[j + 1] && dist_to(w, j + 1, lat, lon) <= radius)
             j++;
-        if (rv->time_s[j] - rv->time_s[i] >= min_s && (max_spread_m <= 0 || spread_m(w, i, j) <= max_spread_m)) {
+        size_t next = j + 1, a = i, b = j;
+        stationary_part(w, &a, &b, lat, lon);
+        if (rv->time_s[b] - rv->time_s[a] >= min_s) {
             hyp_calib c = *proto;
-            c.start_s = rv->time_s[i];
-            c.end_s = rv->time_s[j];
+            c.start_s = rv->time_s[a];
+            c.end_s = rv->time_s[b];
             if (window_stats(w, &c, buf) && push(w->r, &c))
                 return HYP_ERR_NOMEM;
         }
-        i = j + 1;
+        i = next;
     }
     return HYP_OK;
 }
@@ -249,7 +254,7 @@ hyp_status hyp__find_calibrations(hyp__work *w, hyp_error *err)
     if (!st && o->auto_colocate && o->n_colocate == 0 && base_pos) {
         hyp_calib proto;
         proto_for(w, &proto, -1, HYP_HOW_POSITION);
-        if (find_near(w, &proto, w->base->lat_deg, w->base->lon_deg, o->coloc_radius_m, o->coloc_min_s, 0, buf))
+        if (find_near(w, &proto, w->base->lat_deg, w->base->lon_deg, o->coloc_radius_m, o->coloc_min_s, buf))
             st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     }
     if (!st && o->benchmarks && waypoint_ties(w, buf))
@@ -258,7 +263,7 @@ hyp_status hyp__find_calibrations(hyp__work *w, hyp_error *err)
         hyp_calib proto;
         proto_for(w, &proto, (long)b, HYP_HOW_POSITION);
         if (find_near(w, &proto, o->benchmarks->lat_deg[b], o->benchmarks->lon_deg[b], o->tie_radius_m,
-                      o->tie_min_s, o->stationary_m, buf))
+                      o->tie_min_s, buf))
             st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     }
     if (!st && o->auto_colocate && o->n_colocate == 0 && !base_pos && o->offset_pa != o->offset_pa)

@@ -22,7 +22,7 @@ void hyp_correct_opts_init(hyp_correct_opts *o)
     o->max_gap_s = 180.0;
     o->tcol = HYP_TCOL_BASE_LAPSE;
     o->lapse_k_per_m = -0.0065;
-    o->tcol_sigma_k = 1.0;
+    o->tcol_sigma_k = 0.5;
     o->lapse_sigma_k_per_m = 0.001;
     o->default_rh_pct = 50.0;
     o->default_rh_sigma_pct = 30.0;
@@ -497,6 +497,10 @@ hyp_status hyp_correct_single_base(const hyp_series *rover, const hyp_base *base
     if ((st = hyp__find_calibrations(&w, err)) || (st = hyp__fit_drift(&w, err)))
         goto out;
     w.tcol_scaled = res->drift.has_scale;
+    if (res->drift.kind >= HYP_DRIFT_CONSTANT) {
+        for (size_t k = 0; k < res->n_calibs; k++)
+            w.dz_ref_m += (res->calibs[k].known_m - base->height_m) / (double)res->n_calibs;
+    }
     warn_uncalibrated(&w);
     estimate_noise(&w);
     rapid_periods(&w);

@@ -31,6 +31,7 @@ typedef struct hyp__work {
     double *tv;        /* column mean virtual temperature, K */
     double tsig_k;     /* column temperature uncertainty at the base end */
     int tcol_scaled;   /* the column is calibrated by the fitted scale */
+    double dz_ref_m;   /* mean height above the base of the calibrations */
 } hyp__work;
 
 /* Height above the base (m) for base pressure pb and rover pressure pr (Pa),

@@ -51,9 +51,9 @@ typedef struct hyp_correct_opts {
     double lapse_k_per_m;      /* default -0.0065 K/m (USSA 1976 troposphere) */
     /* 1-sigma uncertainty of the column mean temperature is
      * sqrt(tcol_sigma_k^2 + (lapse_sigma_k_per_m * dz / 2)^2): the base
-     * thermometer's error as a measure of the air at the base (default 1 K:
-     * radiation error and siting of a shaded logger, common practice, no
-     * source) and the spread of real lapse rates about the assumed one
+     * thermometer's error as a measure of the air at the base (default
+     * 0.5 K: radiation error and siting of a shaded logger, common practice,
+     * no source) and the spread of real lapse rates about the assumed one
      * (default 1 K/km, from memory: daytime mountain lapse rates mostly lie
      * between -5 and -8 K/km). Its height effect is dz * sigma / Tv. */
     double tcol_sigma_k;

@@ -81,6 +81,8 @@ static void help(void)
 "                           rover (base and rover thermometers), both (their mean)\n"
 "  --lapse-rate K_PER_KM    default -6.5 K/km (standard atmosphere)\n"
 "  --humidity PCT           humidity when no log has one (default 50 %)\n"
+"  --column-temp-sigma K    base thermometer as a measure of the air, 1 sigma (default 0.5 K)\n"
+"  --lapse-sigma K_PER_KM   spread of real lapse rates about --lapse-rate (default 1 K/km)\n"
 "  --max-gap S              longest base gap bridged, s (default 180)\n"
 "\n"
 "inputs:\n"
@@ -137,7 +139,7 @@ enum {
     O_BASE = 256, O_BASE_HEIGHT, O_BASE_AT, O_BASE_CLOCK, O_BASE_TZ, O_OFFSET, O_OFFSET_SIGMA,
     O_COLOC, O_NO_AUTO, O_COLOC_R, O_COLOC_MIN, O_TCOL, O_LAPSE, O_RH, O_GAP, O_PUNIT, O_TUNIT,
     O_PFIELD, O_TFIELD, O_HFIELD, O_TZ, O_OUTDIR, O_TABLE, O_HELP, O_BENCH, O_BENCH_SIG, O_TIES,
-    O_TIE_R, O_TIE_MIN, O_SMOOTH, O_GRAD, O_CLOCK_SIG
+    O_TIE_R, O_TIE_MIN, O_SMOOTH, O_GRAD, O_CLOCK_SIG, O_TSIG, O_LSIG
 };
 
 static const struct option longopts[] = {
@@ -175,6 +177,8 @@ static const struct option longopts[] = {
     {"smooth", required_argument, 0, O_SMOOTH},
     {"gradient-sigma", required_argument, 0, O_GRAD},
     {"clock-sigma", required_argument, 0, O_CLOCK_SIG},
+    {"column-temp-sigma", required_argument, 0, O_TSIG},
+    {"lapse-sigma", required_argument, 0, O_LSIG},
     {0, 0, 0, 0},
 };
 
@@ -299,6 +303,14 @@ static int parse_one(args *a, int c, const char *arg)
         return 0;
     }
     case O_CLOCK_SIG: return num_opt("--clock-sigma", arg, 0, 3600, &o->clock_sigma_s) ? EXIT_USAGE : 0;
+    case O_TSIG: return num_opt("--column-temp-sigma", arg, 0, 30, &o->tcol_sigma_k) ? EXIT_USAGE : 0;
+    case O_LSIG: {
+        double l;
+        if (num_opt("--lapse-sigma", arg, 0, 10, &l))
+            return EXIT_USAGE;
+        o->lapse_sigma_k_per_m = l / 1000.0;
+        return 0;
+    }
     }
     return EXIT_USAGE;
 }

@@ -5,10 +5,12 @@
  * the library's formulas - and the truth is written beside the logs so tests
  * can score a correction against it.
  *
- *   hypsim SCENARIO OUTDIR [--seed N]     scenarios: demo, calm
+ *   hypsim SCENARIO OUTDIR [--seed N] [--lapse K_PER_KM]
+ *   scenarios: demo, calm, ties, front, faraway, warm
  *
  * Writes OUTDIR/rover.gpx, OUTDIR/base.csv, OUTDIR/truth.csv and
- * OUTDIR/scenario.txt (the parameters). Everything is invented. */
+ * OUTDIR/scenario.txt (the parameters), and OUTDIR/benchmarks.csv where the
+ * scenario has benchmarks. Everything is invented. */
 #define _DEFAULT_SOURCE
 #include <math.h>
 #include <stdint.h>
@@ -17,12 +19,14 @@
 #include <string.h>
 #include <time.h>
 
+typedef struct stop { double frac, dur_s; const char *name; int waypoint; } stop;
+
 typedef struct scenario {
     const char *name;
     double lat0, lon0, base_h;      /* base position and height (m) */
     double top_h, route_km;         /* highest point, one-way length */
     double t0;                      /* start, Unix s */
-    double coloc_s, rest_s;         /* standing at the base, at the top */
+    double coloc_s, rest_s;         /* standing at the start, at the top */
     double walk_speed;              /* m/s horizontally */
     double rover_dt, base_dt;       /* sampling, s */
     /* atmosphere */
@@ -35,17 +39,53 @@ typedef struct scenario {
     double base_off_pa, base_noise_pa, base_q_pa;
     double body_warming_k;          /* rover thermometer warming while walking */
     double gnss_sd_m, gnss_tau_s;   /* correlated GNSS height error */
+    /* later additions (zero in the first scenarios) */
+    int n_stops;                    /* stops on the way up, at benchmarks */
+    stop stops[4];
+    double th_east_km, th_north_km, th_h; /* trailhead from the base, km; its height */
+    int th_is_benchmark;            /* write the trailhead as benchmark TH */
+    double base_clock_s;            /* base logger clock ahead of true time */
+    double front_pa, front_kmh, front_dir_deg, front_t_s, front_km; /* a moving pressure step */
 } scenario;
 
 static const scenario scenarios[] = {
     {"demo", 46.80, 9.90, 812.4, 1968.0, 7.5, 1781766000.0 /* 2026-06-18T07:00Z */,
      900, 1200, 1.05, 5, 30,
      101600, -0.35, 0.02, -0.03, 291.0, -6.2, 3.0, 70, -8,
-     42.0, 5.0, 2.5, 1.0, 0.0, 1.2, 1.0, 2.5, 4.0, 400},
+     42.0, 5.0, 2.5, 1.0, 0.0, 1.2, 1.0, 2.5, 4.0, 400, .n_stops = 0},
     {"calm", 46.80, 9.90, 812.4, 1468.0, 4.0, 1781766000.0,
      900, 900, 1.0, 5, 30,
      101400, 0.0, 0.0, 0.0, 290.0, -6.5, 1.0, 60, -5,
-     30.0, 0.0, 2.0, 1.0, 0.0, 1.0, 1.0, 0.0, 4.0, 400},
+     30.0, 0.0, 2.0, 1.0, 0.0, 1.0, 1.0, 0.0, 4.0, 400, .n_stops = 0},
+    /* a calm day with ties at three heights; the real lapse rate (-5.4 K/km)
+     * differs from the standard one the correction assumes */
+    {"ties", 46.80, 9.90, 812.4, 2050.0, 8.0, 1781766000.0,
+     900, 900, 1.0, 5, 30,
+     101500, -0.15, 0.01, 0.0, 289.0, -5.4, 2.0, 65, -6,
+     35.0, 4.0, 2.5, 1.0, 0.0, 1.2, 1.0, 2.5, 4.0, 400,
+     .n_stops = 3, .stops = {{0.3, 240, "BM-LOW", 1}, {0.6, 240, "BM-MID", 0}, {0.92, 240, "BM-HIGH", 1}}},
+    /* a front passes between base and rover: -3 hPa over 12 km moving NE at
+     * 35 km/h, its middle over the base at 10:00; the lapse rate (-7.4 K/km)
+     * departs from the standard one by a typical day-to-day amount */
+    {"front", 46.80, 9.90, 812.4, 1700.0, 9.0, 1781766000.0,
+     900, 900, 1.0, 5, 30,
+     101300, -0.2, 0.0, 0.0, 290.0, -7.4, 2.0, 70, -8,
+     38.0, 3.0, 2.5, 1.0, 0.0, 1.2, 1.0, 2.5, 4.0, 400,
+     .front_pa = -300.0, .front_kmh = 35.0, .front_dir_deg = 37.0, .front_t_s = 3 * 3600.0, .front_km = 12.0},
+    /* the base 35 km SW of the trailhead, a stiff gradient (3 hPa/100 km),
+     * falling pressure and a base clock 90 s fast; the rover starts and ends
+     * on the trailhead benchmark TH; lapse rate -5.6 K/km */
+    {"faraway", 46.58, 9.58, 455.0, 1650.0, 6.0, 1781766000.0,
+     900, 900, 1.0, 5, 30,
+     101200, -1.0, 0.021, 0.021, 290.0, -5.6, 2.0, 70, -8,
+     40.0, 4.0, 2.5, 1.0, 0.0, 1.2, 1.0, 2.5, 4.0, 400,
+     .th_east_km = 24.0, .th_north_km = 24.5, .th_h = 812.4, .th_is_benchmark = 1, .base_clock_s = 90.0},
+    /* the rover's thermometer warmed 5 K by the body while walking; a warm
+     * afternoon with a steep lapse rate (-7.6 K/km) */
+    {"warm", 46.80, 9.90, 812.4, 1900.0, 7.0, 1781766000.0,
+     900, 1200, 1.05, 5, 30,
+     101600, -0.3, 0.0, 0.0, 294.0, -7.6, 3.0, 60, -8,
+     40.0, 4.0, 2.5, 1.0, 0.0, 1.2, 1.0, 5.0, 4.0, 400, .n_stops = 0},
 };
 
 /* --- deterministic random numbers: xorshift64* and Box-Muller --- */
@@ -96,8 +136,16 @@ static double sim_es(double tk)
 
 static double sea_level_pressure(const scenario *sc, double east_km, double north_km, double t)
 {
-    return sc->slp_pa + sc->trend_pa_h * 100.0 * (t - sc->t0) / 3600.0 +
-           sc->grad_pa_km_e * 100.0 * east_km + sc->grad_pa_km_n * 100.0 * north_km;
+    double p = sc->slp_pa + sc->trend_pa_h * 100.0 * (t - sc->t0) / 3600.0 +
+               sc->grad_pa_km_e * 100.0 * east_km + sc->grad_pa_km_n * 100.0 * north_km;
+    if (sc->front_pa != 0.0) {
+        /* a pressure step of width front_km moving towards front_dir_deg */
+        double a = sc->front_dir_deg * M_PI / 180.0;
+        double x = east_km * sin(a) + north_km * cos(a);
+        double pos = sc->front_kmh / 3600.0 * (t - sc->t0 - sc->front_t_s);
+        p += sc->front_pa * 0.5 * (1.0 + tanh((pos - x) / (0.5 * sc->front_km)));
+    }
+    return p;
 }
 
 /* dp/dz = -p g / (Rd Tv), integrated by RK4 from sea level in steps <= 5 m. */
@@ -131,32 +179,87 @@ static double true_pressure(const scenario *sc, double lat, double east_km, doub
 /* --- the route: out and back along a bent line, a smooth climb --- */
 typedef struct state { double east_km, north_km, z, walking; } state;
 
+/* Distance along the route (km) after tt seconds of the way up, with the
+ * stops; *walking is 0 during a stop. */
+static double up_distance(const scenario *sc, double tt, double *walking)
+{
+    double v = sc->walk_speed / 1000.0, done = 0.0, s_prev = 0.0;
+    *walking = 1.0;
+    for (int k = 0; k < sc->n_stops; k++) {
+        double sk = sc->stops[k].frac * sc->route_km, reach = done + (sk - s_prev) / v;
+        if (tt < reach)
+            return s_prev + (tt - done) * v;
+        if (tt < reach + sc->stops[k].dur_s) {
+            *walking = 0.0;
+            return sk;
+        }
+        done = reach + sc->stops[k].dur_s;
+        s_prev = sk;
+    }
+    return s_prev + (tt - done) * v;
+}
+
+static double stops_s(const scenario *sc)
+{
+    double d = 0;
+    for (int k = 0; k < sc->n_stops; k++)
+        d += sc->stops[k].dur_s;
+    return d;
+}
+
+static double start_h(const scenario *sc)
+{
+    return sc->th_h > 0 ? sc->th_h : sc->base_h;
+}
+
+static state at_distance(const scenario *sc, double s_km)
+{
+    double f = s_km / sc->route_km;
+    state st;
+    st.east_km = sc->th_east_km + 0.8 * s_km + 0.3 * sin(3.0 * f);
+    st.north_km = sc->th_north_km + 0.6 * s_km;
+    /* climb with a dip and a steep last third */
+    double prof = 0.5 - 0.5 * cos(M_PI * f) + 0.04 * sin(5.0 * M_PI * f);
+    st.z = start_h(sc) + (sc->top_h - start_h(sc)) * prof;
+    st.walking = 1.0;
+    return st;
+}
+
 static state where(const scenario *sc, double t)
 {
     double walk_s = sc->route_km * 1000.0 / sc->walk_speed;
+    double up_s = walk_s + stops_s(sc);
     double tt = t - sc->t0;
-    double s_km;   /* distance along the route from the base */
+    double s_km;   /* distance along the route from the start */
     double walking = 1.0;
     if (tt < sc->coloc_s) { s_km = 0; walking = 0; }
-    else if (tt < sc->coloc_s + walk_s) s_km = (tt - sc->coloc_s) * sc->walk_speed / 1000.0;
-    else if (tt < sc->coloc_s + walk_s + sc->rest_s) { s_km = sc->route_km; walking = 0; }
-    else if (tt < sc->coloc_s + 2 * walk_s + sc->rest_s)
-        s_km = sc->route_km - (tt - sc->coloc_s - walk_s - sc->rest_s) * sc->walk_speed / 1000.0;
+    else if (tt < sc->coloc_s + up_s) s_km = up_distance(sc, tt - sc->coloc_s, &walking);
+    else if (tt < sc->coloc_s + up_s + sc->rest_s) { s_km = sc->route_km; walking = 0; }
+    else if (tt < sc->coloc_s + up_s + walk_s + sc->rest_s)
+        s_km = sc->route_km - (tt - sc->coloc_s - up_s - sc->rest_s) * sc->walk_speed / 1000.0;
     else { s_km = 0; walking = 0; }
-    double f = s_km / sc->route_km;
-    state st;
-    st.east_km = 0.8 * s_km + 0.3 * sin(3.0 * f);
-    st.north_km = 0.6 * s_km;
-    /* climb with a dip and a steep last third */
-    double prof = 0.5 - 0.5 * cos(M_PI * f) + 0.04 * sin(5.0 * M_PI * f);
-    st.z = sc->base_h + (sc->top_h - sc->base_h) * prof;
+    state st = at_distance(sc, s_km);
     st.walking = walking;
     return st;
 }
 
 static double total_s(const scenario *sc)
 {
-    return 2 * sc->coloc_s + 2 * sc->route_km * 1000.0 / sc->walk_speed + sc->rest_s;
+    return 2 * sc->coloc_s + 2 * sc->route_km * 1000.0 / sc->walk_speed + sc->rest_s + stops_s(sc);
+}
+
+/* Middle of stop k, Unix s. */
+static double stop_mid_time(const scenario *sc, int k)
+{
+    double v = sc->walk_speed / 1000.0, t = sc->t0 + sc->coloc_s, s_prev = 0.0;
+    for (int j = 0; j <= k; j++) {
+        double sk = sc->stops[j].frac * sc->route_km;
+        t += (sk - s_prev) / v;
+        if (j < k)
+            t += sc->stops[j].dur_s;
+        s_prev = sk;
+    }
+    return t + 0.5 * sc->stops[k].dur_s;
 }
 
 static void iso(double t, char *buf, size_t n)
@@ -201,7 +304,7 @@ static int write_base(const scenario *sc, const char *dir)
         double pm = quant(p + sc->base_off_pa + sc->base_noise_pa * nrand(), sc->base_q_pa);
         double tk = air_temp(sc, sc->base_h, t) + 0.2 * nrand();
         char ts[40];
-        iso(t, ts, sizeof ts);
+        iso(t + sc->base_clock_s, ts, sizeof ts);   /* the logger's clock */
         fprintf(f, "%s,%.2f,%.2f,%.1f\n", ts, pm / 100.0, tk - 273.15, air_rh(sc, sc->base_h));
     }
     return fclose(f) != 0;
@@ -215,8 +318,19 @@ static int write_rover(const scenario *sc, const char *dir)
     fprintf(g, "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n"
                "<gpx version=\"1.1\" creator=\"hypsim\" xmlns=\"http://www.topografix.com/GPX/1/1\"\n"
                "     xmlns:lg=\"urn:example:field-logger:1\">\n"
-               "  <metadata><name>simulated walk (%s)</name></metadata>\n"
-               "  <trk>\n    <name>walk</name>\n    <trkseg>\n", sc->name);
+               "  <metadata><name>simulated walk (%s)</name></metadata>\n", sc->name);
+    for (int k = 0; k < sc->n_stops; k++) {
+        if (!sc->stops[k].waypoint)
+            continue;
+        state st = at_distance(sc, sc->stops[k].frac * sc->route_km);
+        double lat, lon;
+        latlon(sc, st.east_km, st.north_km, &lat, &lon);
+        char ts[40];
+        iso(stop_mid_time(sc, k), ts, sizeof ts);
+        fprintf(g, "  <wpt lat=\"%.7f\" lon=\"%.7f\"><time>%s</time><name>%s</name></wpt>\n", lat, lon, ts,
+                sc->stops[k].name);
+    }
+    fputs("  <trk>\n    <name>walk</name>\n    <trkseg>\n", g);
     fprintf(tr, "time,lat,lon,height_m,pressure_pa\n");
     double gnss_err = 0.0, a = exp(-sc->rover_dt / sc->gnss_tau_s);
     double t_end = sc->t0 + total_s(sc);
@@ -242,6 +356,28 @@ static int write_rover(const scenario *sc, const char *dir)
     return (fclose(g) != 0) | (fclose(tr) != 0);
 }
 
+static int write_benchmarks(const scenario *sc, const char *dir)
+{
+    if (sc->n_stops == 0 && !sc->th_is_benchmark)
+        return 0;
+    FILE *f = open_out(dir, "benchmarks.csv");
+    if (!f)
+        return 1;
+    fprintf(f, "name,lat,lon,height,sigma,note\n");
+    double lat, lon;
+    if (sc->th_is_benchmark) {
+        state st = at_distance(sc, 0.0);
+        latlon(sc, st.east_km, st.north_km, &lat, &lon);
+        fprintf(f, "TH,%.7f,%.7f,%.3f,0.005,trailhead bolt (simulated)\n", lat, lon, st.z);
+    }
+    for (int k = 0; k < sc->n_stops; k++) {
+        state st = at_distance(sc, sc->stops[k].frac * sc->route_km);
+        latlon(sc, st.east_km, st.north_km, &lat, &lon);
+        fprintf(f, "%s,%.7f,%.7f,%.3f,0.005,simulated benchmark\n", sc->stops[k].name, lat, lon, st.z);
+    }
+    return fclose(f) != 0;
+}
+
 int main(int argc, char **argv)
 {
     if (argc < 3) {
@@ -256,17 +392,27 @@ int main(int argc, char **argv)
         fprintf(stderr, "hypsim: unknown scenario %s\n", argv[1]);
         return 2;
     }
-    if (argc >= 5 && strcmp(argv[3], "--seed") == 0)
-        rng_state ^= strtoull(argv[4], NULL, 10) * 0x9E3779B97F4A7C15ULL;
-    if (write_base(sc, argv[2]) || write_rover(sc, argv[2]))
+    scenario custom = *sc;
+    for (int k = 3; k + 1 < argc; k += 2) {
+        if (strcmp(argv[k], "--seed") == 0)
+            rng_state ^= strtoull(argv[k + 1], NULL, 10) * 0x9E3779B97F4A7C15ULL;
+        else if (strcmp(argv[k], "--lapse") == 0)   /* K/km: another day's atmosphere */
+            custom.lapse_k_km = strtod(argv[k + 1], NULL);
+        else {
+            fprintf(stderr, "hypsim: unknown option %s\n", argv[k]);
+            return 2;
+        }
+    }
+    sc = &custom;
+    if (write_base(sc, argv[2]) || write_rover(sc, argv[2]) || write_benchmarks(sc, argv[2]))
         return 1;
     FILE *f = open_out(argv[2], "scenario.txt");
     if (!f)
         return 1;
     fprintf(f, "scenario %s\nbase_height_m %.3f\nbase_lat %.6f\nbase_lon %.6f\n"
                "rover_offset_pa %.2f\nrover_drift_pa_per_h %.2f\nrover_noise_pa %.2f\nrover_quantum_pa %.2f\n"
-               "base_noise_pa %.2f\nbase_quantum_pa %.2f\n",
+               "base_noise_pa %.2f\nbase_quantum_pa %.2f\nbase_clock_s %.1f\n",
             sc->name, sc->base_h, sc->lat0, sc->lon0, sc->rover_off_pa, sc->rover_drift_pa_h,
-            sc->rover_noise_pa, sc->rover_q_pa, sc->base_noise_pa, sc->base_q_pa);
+            sc->rover_noise_pa, sc->rover_q_pa, sc->base_noise_pa, sc->base_q_pa, sc->base_clock_s);
     return fclose(f) != 0;
 }
