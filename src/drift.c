@@ -170,11 +170,20 @@ static void note(hyp_drift *d, const char *text)
 static int fit_kind(hyp__work *w, hyp_drift *d, const double *knots, size_t nk, int want_scale)
 {
     if (want_scale) {
-        if (try_fit(w, d, knots, nk, 1) == HYP_OK)
+        /* The scale is kept only when the ties determine it better than the
+         * prior on the column temperature does (sigma_T / Tv at 285 K):
+         * otherwise drift and scale are not separated (ties on a steady
+         * climb, where height grows with time) and the fit would only
+         * trade one for the other. */
+        double prior = w->tsig_k / 285.0;
+        hyp_drift trial = *d;
+        if (try_fit(w, &trial, knots, nk, 1) == HYP_OK && trial.scale_sigma < prior) {
+            *d = trial;
             return 0;
-        char buf[160];
-        snprintf(buf, sizeof buf, "column scale not estimated: the ties do not separate it from the drift (condition %.1e)",
-                 d->condition);
+        }
+        char buf[200];
+        snprintf(buf, sizeof buf, "column scale not estimated: the ties do not separate it from the drift (condition %.1e, scale sigma %.2f %% against a prior of %.2f %%)",
+                 trial.condition, 100.0 * trial.scale_sigma, 100.0 * prior);
         note(d, buf);
     }
     return try_fit(w, d, knots, nk, 0) == HYP_OK ? 0 : -1;
