@@ -38,6 +38,7 @@ void hyp_correct_opts_init(hyp_correct_opts *o)
     o->clock_sigma_s = 2.0;
     o->rh_sigma_pct = 5.0;
     o->rapid_pa_per_s = 100.0 / 3600.0;
+    o->clock_max_lag_s = 600.0;
 }
 
 void hyp_correct_result_init(hyp_correct_result *r)
@@ -469,15 +470,10 @@ static void warn_uncalibrated(hyp__work *w)
                      w->base->name, w->o->uncal_offset_sigma_pa, w->o->uncal_offset_sigma_pa / 12.0);
 }
 
-hyp_status hyp_correct_single_base(const hyp_series *rover, const hyp_base *base,
-                                   const hyp_correct_opts *opts, hyp_correct_result *res,
-                                   hyp_msgs *msgs, hyp_error *err)
+static hyp_status correct_once(const hyp_series *rover, const hyp_base *base,
+                               const hyp_correct_opts *opts, hyp_correct_result *res,
+                               hyp_msgs *msgs, hyp_error *err)
 {
-    hyp_correct_opts dflt;
-    if (!opts) {
-        hyp_correct_opts_init(&dflt);
-        opts = &dflt;
-    }
     hyp_correct_result_free(res);
     if (!(base->height_m == base->height_m && fabs(base->height_m) < 10000.0))
         return hyp_error_set(err, HYP_ERR_USAGE, "%s: base height %g m is not a height between -10000 and 10000 m",
@@ -512,5 +508,38 @@ hyp_status hyp_correct_single_base(const hyp_series *rover, const hyp_base *base
                            res->n_status[HYP_PT_OUTSIDE_BASE], res->n_status[HYP_PT_BASE_GAP], res->n_status[HYP_PT_REFUSED]);
 out:
     work_free(&w);
+    return st;
+}
+
+hyp_status hyp_correct_single_base(const hyp_series *rover, const hyp_base *base,
+                                   const hyp_correct_opts *opts, hyp_correct_result *res,
+                                   hyp_msgs *msgs, hyp_error *err)
+{
+    hyp_correct_opts dflt;
+    if (!opts) {
+        hyp_correct_opts_init(&dflt);
+        opts = &dflt;
+    }
+    /* With an estimated clock the first pass only finds the co-locations;
+     * its messages would repeat, so they are dropped. */
+    hyp_status st = correct_once(rover, base, opts, res, opts->estimate_clock ? NULL : msgs, err);
+    if (st)
+        return st;
+    double est = NAN, sig = NAN;
+    hyp_error cerr;
+    int ok = hyp_estimate_base_clock(rover, base, res, opts->clock_max_lag_s, &est, &sig, &cerr) == HYP_OK;
+    double applied = base->clock_offset_s;
+    if (opts->estimate_clock) {
+        hyp_base b2 = *base;
+        if (ok)
+            b2.clock_offset_s = applied = est;
+        else
+            hyp_msgs_add(msgs, HYP_WARNING, "%s: %s; clock offset left at %+.1f s", base->name, cerr.message, base->clock_offset_s);
+        st = correct_once(rover, &b2, opts, res, msgs, err);
+    }
+    res->clock_est_ok = ok;
+    res->clock_est_s = est;
+    res->clock_est_sigma_s = sig;
+    res->clock_applied_s = applied;
     return st;
 }

@@ -261,6 +261,48 @@ static void test_scenario_ties(void **state)
     assert_true(sc.coverage >= 0.85 && sc.coverage <= 0.99);
 }
 
+/* A base clock 90 s fast (the simulator's "clock" day): the estimate from
+ * the co-locations must find it within 3 sigma, with a sigma under 10 s;
+ * on the calm day, which has no pressure waves to line up, it must not
+ * claim a precise answer. */
+static void test_clock_estimate(void **state)
+{
+    (void)state;
+    char dir[4096], cmd[8192];
+    snprintf(dir, sizeof dir, "%s/scen-clock", HYP_BINARY_DIR);
+    snprintf(cmd, sizeof cmd, "mkdir -p '%s' && '%s' clock '%s'", dir, HYP_SIM_EXE, dir);
+    assert_int_equal(system(cmd), 0);
+    const char *dirs[2] = {dir, HYP_BINARY_DIR "/sim-calm"};
+    for (int k = 0; k < 2; k++) {
+        char rover[4200], base[4200];
+        snprintf(rover, sizeof rover, "%s/rover.gpx", dirs[k]);
+        snprintf(base, sizeof base, "%s/base.csv", dirs[k]);
+        hyp_gpx_doc d;
+        hyp_gpx_doc_init(&d);
+        hyp_series b;
+        hyp_series_init(&b);
+        hyp_error err;
+        assert_int_equal(hyp_gpx_read(rover, NULL, &d, NULL, &err), HYP_OK);
+        assert_int_equal(hyp_csv_read(base, NULL, &b, NULL, NULL, &err), HYP_OK);
+        hyp_base hb = {.log = &b, .name = base, .height_m = 812.4, .lat_deg = 46.8, .lon_deg = 9.9};
+        hyp_correct_result r;
+        hyp_correct_result_init(&r);
+        assert_int_equal(hyp_correct_single_base(&d.pts, &hb, NULL, &r, NULL, &err), HYP_OK);
+        print_message("%s: clock estimate %s %+.1f s +- %.1f s\n", dirs[k], r.clock_est_ok ? "ok" : "not determined",
+                      r.clock_est_s, r.clock_est_sigma_s);
+        if (k == 0) {
+            assert_true(r.clock_est_ok);
+            assert_true(r.clock_est_sigma_s < 10.0);
+            assert_true(fabs(r.clock_est_s - 90.0) < 3.0 * r.clock_est_sigma_s);
+        } else {
+            assert_true(!r.clock_est_ok || r.clock_est_sigma_s > 10.0);
+        }
+        hyp_correct_result_free(&r);
+        hyp_gpx_doc_free(&d);
+        hyp_series_free(&b);
+    }
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -268,6 +310,7 @@ int main(void)
         cmocka_unit_test(test_demo_survey),
         cmocka_unit_test(test_scenario_ties),
         cmocka_unit_test(test_scenarios_pooled),
+        cmocka_unit_test(test_clock_estimate),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -295,6 +295,44 @@ static void test_budget_tcol(void **state)
     hyp_series_free(&rover);
 }
 
+/* Smoothing over 60 s of 10 s samples averages 7 samples (centred, both
+ * ends inclusive), so the rover's share of the noise term falls by sqrt(7)
+ * (white noise: variance of a mean of n is sigma^2 / n). */
+static void test_budget_smoothing(void **state)
+{
+    (void)state;
+    hyp_series base, rover;
+    hyp_series_init(&base);
+    hyp_series_init(&rover);
+    for (int i = 0; i < 100; i++)
+        push(&base, T0 - 600 + 30.0 * i, 90000.0, 45.0, 7.0);
+    uint64_t x = 12345;
+    for (int i = 0; i < 200; i++) {
+        x ^= x << 13, x ^= x >> 7, x ^= x << 17;
+        push(&rover, T0 + 10.0 * i, 90000.0 + 3.0 * ((double)(x % 1000) / 1000.0 - 0.5), 45.0, 7.0);
+    }
+    hyp_base b = {.log = &base, .name = "base", .height_m = 0.0, .lat_deg = NAN, .lon_deg = NAN};
+    hyp_correct_opts o;
+    hyp_correct_opts_init(&o);
+    o.offset_pa = 0.0;
+    hyp_correct_result r0, r1;
+    hyp_correct_result_init(&r0);
+    hyp_correct_result_init(&r1);
+    hyp_error err;
+    assert_int_equal(hyp_correct_single_base(&rover, &b, &o, &r0, NULL, &err), HYP_OK);
+    o.smooth_s = 60.0;
+    assert_int_equal(hyp_correct_single_base(&rover, &b, &o, &r1, NULL, &err), HYP_OK);
+    size_t i = 100;
+    double c = r0.budget_m[HYP_B_NOISE][i] / hypot(r0.rover_noise_pa, r0.base_noise_pa);
+    double want = c * sqrt(r0.rover_noise_pa * r0.rover_noise_pa / 7.0 + r0.base_noise_pa * r0.base_noise_pa);
+    assert_near(r1.budget_m[HYP_B_NOISE][i], want, 1e-6);
+    assert_true(r1.budget_m[HYP_B_NOISE][i] < r0.budget_m[HYP_B_NOISE][i]);
+    hyp_correct_result_free(&r0);
+    hyp_correct_result_free(&r1);
+    hyp_series_free(&base);
+    hyp_series_free(&rover);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -304,6 +342,7 @@ int main(void)
         cmocka_unit_test(test_collinear_ties),
         cmocka_unit_test(test_budget_terms),
         cmocka_unit_test(test_budget_tcol),
+        cmocka_unit_test(test_budget_smoothing),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

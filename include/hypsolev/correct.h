@@ -86,6 +86,10 @@ typedef struct hyp_correct_opts {
     double clock_sigma_s;      /* uncertainty of the base clock after correction, default 2 s */
     double rh_sigma_pct;       /* of a measured humidity, default 5 % */
     double rapid_pa_per_s;     /* tendency flagged as rapid, default 1 hPa/h */
+    /* Base clock: estimated from co-locations always (reported); applied
+     * in place of base->clock_offset_s only when estimate_clock is set. */
+    int estimate_clock;
+    double clock_max_lag_s;    /* search range either side, default 600 s */
 } hyp_correct_opts;
 
 void hyp_correct_opts_init(hyp_correct_opts *o);
@@ -193,6 +197,12 @@ typedef struct hyp_correct_result {
     hyp_period *rapid;         /* periods of rapid pressure change at the base */
     size_t n_rapid;
     double max_rate_pa_s;      /* largest hourly tendency at the base */
+    /* Base clock offset estimated from the co-locations (s the base clock is
+     * ahead of the rover's), with its 1-sigma; clock_est_ok 0 when the data
+     * do not determine it (no co-location, or no pressure changes to line
+     * up); clock_applied_s is the offset the heights used. */
+    int clock_est_ok;
+    double clock_est_s, clock_est_sigma_s, clock_applied_s;
     double base_noise_pa;      /* estimated white-noise level of the base */
     double diff_noise_pa;      /* scatter of rover - base in co-locations */
     double rover_noise_pa;     /* rover noise derived from the two above */
@@ -214,6 +224,20 @@ hyp_status hyp_correct_single_base(const hyp_series *rover,
                                    const hyp_correct_opts *opts,
                                    hyp_correct_result *res,
                                    hyp_msgs *msgs, hyp_error *err);
+
+/* The base clock offset (s the base clock is ahead of true time) that
+ * best lines up the rover's and the base's pressure changes in the base
+ * co-locations of `res` (a correction of the same rover and base): the lag
+ * minimising the scatter of rover - base pressure about each window's mean,
+ * searched over +-max_lag_s around base->clock_offset_s, refined by a
+ * parabola; its 1-sigma from the curvature of that scatter (least-squares
+ * theory, e.g. Bevington and Robinson, Data Reduction and Error Analysis,
+ * 3rd ed., section 8.1), inflated for autocorrelated residuals.
+ * HYP_ERR_NODATA when no co-location holds enough samples or the minimum is
+ * not determined. */
+hyp_status hyp_estimate_base_clock(const hyp_series *rover, const hyp_base *base,
+                                   const hyp_correct_result *res, double max_lag_s,
+                                   double *offset_s, double *sigma_s, hyp_error *err);
 
 #ifdef __cplusplus
 }

@@ -50,7 +50,8 @@ static void help(void)
 "  --base FILE              base log (CSV or GPX) with time and pressure\n"
 "  --base-height M          height of the base sensor, m (required)\n"
 "  --base-at LAT,LON        base position, degrees; enables automatic co-location\n"
-"  --base-clock-offset S    seconds the base logger's clock is ahead of true time\n"
+"  --base-clock-offset S    seconds the base logger's clock is ahead of true time;\n"
+"                           auto: estimated from co-locations (pressure changes)\n"
 "  --base-time-zone Z       zone of base times that carry none (+HH:MM, UTC, Area/City)\n"
 "\n"
 "rover-minus-base instrument offset:\n"
@@ -220,8 +221,14 @@ static int parse_base_opt(args *a, int c, const char *arg)
         return EXIT_USAGE;
     if (c == O_BASE_HEIGHT)
         return num_opt(name, arg, -500.0, 9000.0, &b->height_m) ? EXIT_USAGE : 0;
-    if (c == O_BASE_CLOCK)
+    if (c == O_BASE_CLOCK) {
+        if (strcmp(arg, "auto") == 0) {
+            a->copts.estimate_clock = 1;
+            b->clock_s = 0.0;
+            return 0;
+        }
         return num_opt(name, arg, -86400.0, 86400.0, &b->clock_s) ? EXIT_USAGE : 0;
+    }
     if (c == O_BASE_TZ) {
         b->zone = arg;
         return 0;
@@ -560,7 +567,10 @@ static void print_summary(const char *rover_path, const log_in *rv, const base_a
     fprintf(stderr, "            height %.3f m", ba->height_m);
     if (ba->lat_deg == ba->lat_deg)
         fprintf(stderr, ", at %.6f, %.6f deg", ba->lat_deg, ba->lon_deg);
-    fprintf(stderr, ", clock offset %+.1f s\n", ba->clock_s);
+    fprintf(stderr, ", clock offset %+.1f s applied\n", r->clock_applied_s);
+    if (r->clock_est_ok)
+        fprintf(stderr, "            clock offset estimated from the co-locations: %+.1f s +- %.1f s%s\n", r->clock_est_s,
+                r->clock_est_sigma_s, ba->clock_s == r->clock_applied_s && !(r->clock_est_s == r->clock_applied_s) ? " (not applied; --base-clock-offset auto applies it)" : "");
     fprintf(stderr, "  method    %s\n", r->method);
     print_calibrations(r);
     print_drift(r);

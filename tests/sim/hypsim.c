@@ -6,7 +6,7 @@
  * can score a correction against it.
  *
  *   hypsim SCENARIO OUTDIR [--seed N] [--lapse K_PER_KM]
- *   scenarios: demo, calm, ties, front, faraway, warm
+ *   scenarios: demo, calm, ties, front, faraway, clock, warm
  *
  * Writes OUTDIR/rover.gpx, OUTDIR/base.csv, OUTDIR/truth.csv and
  * OUTDIR/scenario.txt (the parameters), and OUTDIR/benchmarks.csv where the
@@ -46,6 +46,7 @@ typedef struct scenario {
     int th_is_benchmark;            /* write the trailhead as benchmark TH */
     double base_clock_s;            /* base logger clock ahead of true time */
     double front_pa, front_kmh, front_dir_deg, front_t_s, front_km; /* a moving pressure step */
+    double micro_pa, micro_tau_s;   /* small pressure waves seen alike everywhere nearby */
 } scenario;
 
 static const scenario scenarios[] = {
@@ -80,6 +81,14 @@ static const scenario scenarios[] = {
      101200, -1.0, 0.021, 0.021, 290.0, -5.6, 2.0, 70, -8,
      40.0, 4.0, 2.5, 1.0, 0.0, 1.2, 1.0, 2.5, 4.0, 400,
      .th_east_km = 24.0, .th_north_km = 24.5, .th_h = 812.4, .th_is_benchmark = 1, .base_clock_s = 90.0},
+    /* a base logger whose clock runs 90 s fast, beside the rover at the start
+     * and the end, in falling pressure with small pressure waves (4 Pa,
+     * a few minutes) that both loggers see */
+    {"clock", 46.80, 9.90, 812.4, 1500.0, 5.0, 1781766000.0,
+     1200, 900, 1.0, 5, 30,
+     101200, -1.5, 0.0, 0.0, 290.0, -6.5, 2.0, 70, -8,
+     30.0, 3.0, 2.5, 1.0, 0.0, 1.2, 1.0, 2.5, 4.0, 400,
+     .base_clock_s = 90.0, .micro_pa = 4.0, .micro_tau_s = 240.0},
     /* the rover's thermometer warmed 5 K by the body while walking; a warm
      * afternoon with a steep lapse rate (-7.6 K/km) */
     {"warm", 46.80, 9.90, 812.4, 1900.0, 7.0, 1781766000.0,
@@ -158,9 +167,43 @@ static double dpdz(const scenario *sc, double lat, double z, double p, double t)
     return -p * sim_gravity(lat, z) / (rd * tv);
 }
 
+/* Small pressure waves: an AR(1) series on a 1 s grid from its own
+ * generator (so the other noises stay as they were), the same everywhere
+ * in the survey area at one time. */
+#define MICRO_N 200000
+static double micro[MICRO_N];
+static double micro_t0;
+
+static void micro_init(const scenario *sc)
+{
+    uint64_t st = 0x2545F4914F6CDD1DULL;
+    double a = sc->micro_tau_s > 0 ? exp(-1.0 / sc->micro_tau_s) : 0.0, x = 0.0;
+    micro_t0 = sc->t0 - 7200.0;
+    for (int i = 0; i < MICRO_N; i++) {
+        st ^= st >> 12, st ^= st << 25, st ^= st >> 27;
+        double u = (double)((st * 2685821657736338717ULL) >> 11) * (1.0 / 9007199254740992.0);
+        st ^= st >> 12, st ^= st << 25, st ^= st >> 27;
+        double v = (double)((st * 2685821657736338717ULL) >> 11) * (1.0 / 9007199254740992.0);
+        double g = sqrt(-2.0 * log(u < 1e-300 ? 1e-300 : u)) * cos(2.0 * M_PI * v);
+        x = a * x + sqrt(1.0 - a * a) * sc->micro_pa * g;
+        micro[i] = x;
+    }
+}
+
+static double micro_at(const scenario *sc, double t)
+{
+    if (sc->micro_pa == 0.0)
+        return 0.0;
+    double x = t - micro_t0;
+    int i = (int)floor(x);
+    if (i < 0 || i + 1 >= MICRO_N)
+        return 0.0;
+    return micro[i] + (x - i) * (micro[i + 1] - micro[i]);
+}
+
 static double true_pressure(const scenario *sc, double lat, double east_km, double north_km, double z, double t)
 {
-    double p = sea_level_pressure(sc, east_km, north_km, t);
+    double p = sea_level_pressure(sc, east_km, north_km, t) + micro_at(sc, t);
     int n = (int)ceil(fabs(z) / 5.0);
     if (n < 1)
         n = 1;
@@ -404,6 +447,7 @@ int main(int argc, char **argv)
         }
     }
     sc = &custom;
+    micro_init(sc);
     if (write_base(sc, argv[2]) || write_rover(sc, argv[2]) || write_benchmarks(sc, argv[2]))
         return 1;
     FILE *f = open_out(argv[2], "scenario.txt");
