@@ -233,7 +233,8 @@ hyp_status hyp_benchmarks_read(const char *path, double default_sigma_m, hyp_ben
     return st;
 }
 
-static hyp_status tie_row(table *t, const int *c, const hyp_zone *zone, hyp_tie_spec *ts, hyp_error *err)
+static hyp_status tie_row(table *t, const int *c, const hyp_zone *zone, const hyp_benchmarks *bm,
+                          hyp_tie_spec *ts, hyp_error *err)
 {
     char a[96], b[96];
     field_text(t, c[0], ts->name, sizeof ts->name);
@@ -242,6 +243,9 @@ static hyp_status tie_row(table *t, const int *c, const hyp_zone *zone, hyp_tie_
     ts->line = t->lr.lineno;
     if (!ts->name[0])
         return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: name is empty", t->path, t->lr.lineno);
+    if (strcmp(ts->name, "base") != 0 && hyp_benchmarks_find(bm, ts->name) < 0)
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: name \"%s\" is not a benchmark%s (nor \"base\")", t->path,
+                             t->lr.lineno, ts->name, bm ? " of --benchmarks" : " (no --benchmarks given)");
     if (hyp_time_parse(a, zone, &ts->start_s) != HYP_TIME_OK)
         return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: start \"%s\" is not a time with zone (ISO 8601)", t->path, t->lr.lineno, a);
     if (hyp_time_parse(b, zone, &ts->end_s) != HYP_TIME_OK)
@@ -251,8 +255,8 @@ static hyp_status tie_row(table *t, const int *c, const hyp_zone *zone, hyp_tie_
     return HYP_OK;
 }
 
-hyp_status hyp_ties_read(const char *path, const hyp_zone *zone, hyp_tie_spec **out, size_t *count,
-                         hyp_error *err)
+hyp_status hyp_ties_read(const char *path, const hyp_zone *zone, const hyp_benchmarks *benchmarks,
+                         hyp_tie_spec **out, size_t *count, hyp_error *err)
 {
     *out = NULL;
     *count = 0;
@@ -280,7 +284,7 @@ hyp_status hyp_ties_read(const char *path, const hyp_zone *zone, hyp_tie_spec **
             }
             *out = p;
         }
-        st = tie_row(&t, c, zone, &(*out)[*count], err);
+        st = tie_row(&t, c, zone, benchmarks, &(*out)[*count], err);
         if (!st)
             (*count)++;
     }

@@ -111,9 +111,10 @@ typedef struct hyp_tie_spec {
 } hyp_tie_spec;
 
 /* Reads a tie list: CSV with columns name, start, end (times as in logs;
- * `zone` for times without one). *out is allocated; free() it. */
-hyp_status hyp_ties_read(const char *path, const hyp_zone *zone, hyp_tie_spec **out,
-                         size_t *count, hyp_error *err);
+ * `zone` for times without one). Every name must be "base" or one of
+ * `benchmarks` (which may be NULL). *out is allocated; free() it. */
+hyp_status hyp_ties_read(const char *path, const hyp_zone *zone, const hyp_benchmarks *benchmarks,
+                         hyp_tie_spec **out, size_t *count, hyp_error *err);
 
 /* 1 when the file looks like XML (first non-blank byte after an optional
  * byte-order mark is '<'), 0 when not, -1 when it cannot be read. */

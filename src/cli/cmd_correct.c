@@ -749,7 +749,7 @@ static int run(args *a)
             a->copts.benchmarks = &bms;
     }
     if (!rc && a->ties_path) {
-        if (hyp_ties_read(a->ties_path, &rz, &ties, &n_ties, &err)) {
+        if (hyp_ties_read(a->ties_path, &rz, a->copts.benchmarks, &ties, &n_ties, &err)) {
             fprintf(stderr, "hypsolev: error: %s\n", err.message);
             rc = EXIT_INPUT;
         } else {

@@ -67,3 +67,12 @@ hyp_cli_case(output_is_input 2 "rover.gpx: output would overwrite an input" corr
 set(HYP_CASE_INPUTS "")
 hyp_cli_case(help 0 "" correct --help)
 hyp_cli_case(no_command 2 "usage: hypsolev COMMAND")
+
+# benchmarks and ties
+hyp_cli_case(ties_ok 0 "ties      3 calibration.*BM-2 .*\\(given\\): known 1004.400 m" correct ${R} ${B} --benchmarks @DATA@/benchmarks.csv --ties @DATA@/ties.csv --table @OUT@/t.csv)
+hyp_cli_case(bench_no_height 1 "bench_no_height.csv:1: header: no \"height\" column" correct ${R} ${B} ${O} --benchmarks @DATA@/bad/bench_no_height.csv)
+hyp_cli_case(bench_bad_lat 1 "bench_bad_lat.csv:2: lat 95 is outside -90 to 90" correct ${R} ${B} ${O} --benchmarks @DATA@/bad/bench_bad_lat.csv)
+hyp_cli_case(bench_duplicate 1 "bench_duplicate.csv:3: benchmark \"bm-1\" is listed twice" correct ${R} ${B} ${O} --benchmarks @DATA@/bad/bench_duplicate.csv)
+hyp_cli_case(ties_unknown 1 "ties_unknown.csv:2: name \"BM-X\" is not a benchmark of --benchmarks" correct ${R} ${B} ${O} --benchmarks @DATA@/benchmarks.csv --ties @DATA@/bad/ties_unknown.csv)
+hyp_cli_case(ties_reversed 1 "ties_reversed.csv:2: end 2026-06-18T07:00:00Z is not after start" correct ${R} ${B} ${O} --ties @DATA@/bad/ties_reversed.csv)
+hyp_cli_case(bad_smooth 2 "--smooth \"-5\": expected a number from 0 to 3600" correct ${R} ${B} ${O} --smooth -5)
