@@ -270,7 +270,7 @@ hyp_status hyp__find_calibrations(hyp__work *w, hyp_error *err)
         hyp_msgs_add(w->msgs, HYP_WARNING, "%s: no base position (--base-at) or no rover positions: co-location cannot be found automatically",
                      w->base->name);
     free(buf);
-    if (!st) {
+    if (!st && w->r->n_calibs) {
         dedup(w->r);
         qsort(w->r->calibs, w->r->n_calibs, sizeof *w->r->calibs, by_time);
     }
