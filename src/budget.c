@@ -18,6 +18,11 @@ const char *hyp_budget_term_name(hyp_budget_term t)
 static double fit_term(const hyp__work *w, size_t i, double dz, double c)
 {
     const hyp_drift *d = &w->r->drift;
+    if (d->kind == HYP_DRIFT_GNSS) {
+        double tau = w->rv->time_s[i] - d->gnss_t0_s;
+        double v = d->gnss_cov[0] + 2 * tau * d->gnss_cov[1] + tau * tau * d->gnss_cov[3];
+        return sqrt(v + d->gnss_floor_m * d->gnss_floor_m);
+    }
     double g[HYP_MAX_KNOTS + 1], phi[HYP_MAX_KNOTS];
     size_t p = d->p;
     hyp__drift_offset(d, w->rv->time_s[i], phi);

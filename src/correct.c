@@ -39,6 +39,8 @@ void hyp_correct_opts_init(hyp_correct_opts *o)
     o->rh_sigma_pct = 5.0;
     o->rapid_pa_per_s = 100.0 / 3600.0;
     o->clock_max_lag_s = 600.0;
+    o->gnss_anchor = 1;
+    o->gnss_bias_sigma_m = 1.0;
 }
 
 void hyp_correct_result_init(hyp_correct_result *r)
@@ -344,6 +346,8 @@ static void corrected_heights(hyp__work *w)
             continue;
         }
         dz *= 1.0 + d->scale;
+        if (d->kind == HYP_DRIFT_GNSS)
+            dz += d->gnss_a_m + d->gnss_b_m_per_s * (w->rv->time_s[i] - d->gnss_t0_s);
         r->height_m[i] = w->base->height_m + dz;
         r->offset_pa[i] = off;
         r->tcol_k[i] = tv * (1.0 + d->scale);
@@ -464,6 +468,10 @@ static void column_setup(hyp__work *w)
 
 static void warn_uncalibrated(hyp__work *w)
 {
+    if (w->r->drift.kind == HYP_DRIFT_GNSS)
+        hyp_msgs_add(w->msgs, HYP_WARNING,
+                     "%s: no co-location, no tie and no --offset: the level is GNSS-anchored (the track's own GNSS heights, %zu samples worth %.0f independent ones), a lower grade than a tie",
+                     w->base->name, w->r->drift.gnss_n, w->r->drift.gnss_neff);
     if (w->r->drift.kind == HYP_DRIFT_NONE)
         hyp_msgs_add(w->msgs, HYP_WARNING,
                      "%s: no co-location, no tie and no --offset: rover and base are taken to read alike, with a 1-sigma offset of %.0f Pa (about %.0f m) in every height",
@@ -492,6 +500,11 @@ static hyp_status correct_once(const hyp_series *rover, const hyp_base *base,
     raw_heights(&w);
     if ((st = hyp__find_calibrations(&w, err)) || (st = hyp__fit_drift(&w, err)))
         goto out;
+    if (res->drift.kind == HYP_DRIFT_NONE && opts->gnss_height_m && opts->gnss_anchor &&
+        hyp__gnss_anchor(&w)) {
+        st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+        goto out;
+    }
     w.tcol_scaled = res->drift.has_scale;
     if (res->drift.kind >= HYP_DRIFT_CONSTANT) {
         for (size_t k = 0; k < res->n_calibs; k++)

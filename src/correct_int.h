@@ -54,6 +54,10 @@ double hyp__drift_offset(const hyp_drift *d, double t, double *phi);
 /* Drift not captured by the model at t, as seconds of random walk. */
 double hyp__drift_distance_s(const hyp_drift *d, double t);
 
+/* With no calibration and GNSS heights given: levels the track on them
+ * (r->drift becomes HYP_DRIFT_GNSS); leaves it alone with too few. */
+hyp_status hyp__gnss_anchor(hyp__work *w);
+
 /* The error budget of sample i with corrected height difference dz_m. */
 void hyp__budget(hyp__work *w, size_t i, double dz_m);
 

@@ -21,7 +21,7 @@
 #define TEXT_MAX 255
 #define CHUNK 65536
 
-enum capture { CAP_NONE, CAP_ELE, CAP_TIME, CAP_PRES, CAP_TEMP, CAP_RH, CAP_NAME };
+enum capture { CAP_NONE, CAP_ELE, CAP_TIME, CAP_PRES, CAP_TEMP, CAP_RH, CAP_NAME, CAP_GEOID };
 
 typedef struct gpx_ctx {
     const char *path;
@@ -42,7 +42,8 @@ typedef struct gpx_ctx {
     /* the point or waypoint being read */
     int in_pt, in_wpt, pt_depth, ext_depth, pt_selfclosed;
     unsigned pt_line;
-    double lat, lon, ele, time_s, pres, temp, rh;
+    double lat, lon, ele, time_s, pres, temp, rh, geoid;
+    int meta_depth, meta_ext_depth;
     int pres_raw, temp_raw, got_pres, got_temp, got_rh, got_time;
     int64_t open_end, ele_beg, ele_end, ext_ins;
     char name[TEXT_MAX + 1];
@@ -165,6 +166,7 @@ static void start_root(gpx_ctx *g, const xmlChar *local, const xmlChar *prefix, 
     }
     /* The parser stands on the '>' (or "/>") closing the start tag. */
     L->root_attr_ins = offset_now(g);
+    L->root_open_end = g->ctxt->input->cur[0] == '/' ? -1 : L->root_attr_ins + 1;
 }
 
 static hyp_status grow_points(gpx_ctx *g)
@@ -187,6 +189,9 @@ static hyp_status grow_points(gpx_ctx *g)
     GROW(ext_ins, int64_t);
     GROW(ext_kind, uint8_t);
 #undef GROW
+    if (!(p = realloc(g->doc->geoidheight_m, a * sizeof(double))))
+        return HYP_ERR_NOMEM;
+    g->doc->geoidheight_m = p;
     if (!(p = realloc(g->p_raw, a))) return HYP_ERR_NOMEM;
     g->p_raw = p;
     if (!(p = realloc(g->t_raw, a))) return HYP_ERR_NOMEM;
@@ -227,7 +232,7 @@ static void start_point(gpx_ctx *g, const xmlChar *local, int nb_attr, const xml
     g->lon = parse_coord(g, attrs, nb_attr, "lon", elem);
     if (g->status)
         return;
-    g->ele = g->time_s = g->pres = g->temp = g->rh = NAN;
+    g->ele = g->time_s = g->pres = g->temp = g->rh = g->geoid = NAN;
     g->got_pres = g->got_temp = g->got_rh = g->got_time = 0;
     g->ele_beg = g->ele_end = g->ext_ins = -1;
     g->name[0] = '\0';
@@ -277,6 +282,12 @@ static void on_start(void *ctx, const xmlChar *local, const xmlChar *prefix, con
         return;
     }
     int gpx = is_gpx_ns(g, uri);
+    if (gpx && g->depth == 2 && xmlStrEqual(local, BAD_CAST "metadata")) {
+        g->meta_depth = 2;
+        if (g->ctxt->input->cur[0] == '/')
+            g->doc->layout.meta_kind = 3;
+    } else if (gpx && g->meta_depth && g->depth == 3 && xmlStrEqual(local, BAD_CAST "extensions"))
+        g->meta_ext_depth = 3;
     if (!g->in_pt && !g->in_wpt) {
         if (gpx && g->depth >= 2 && (xmlStrEqual(local, BAD_CAST "trkpt") || xmlStrEqual(local, BAD_CAST "rtept")))
             start_point(g, local, nb_attr, attrs, 0);
@@ -299,6 +310,8 @@ static void on_start(void *ctx, const xmlChar *local, const xmlChar *prefix, con
             start_capture(g, CAP_TIME, nb_attr, attrs);
         else if (g->in_wpt && xmlStrEqual(local, BAD_CAST "name"))
             start_capture(g, CAP_NAME, nb_attr, attrs);
+        else if (!g->in_wpt && xmlStrEqual(local, BAD_CAST "geoidheight"))
+            start_capture(g, CAP_GEOID, nb_attr, attrs);
         else if (xmlStrEqual(local, BAD_CAST "extensions"))
             g->ext_depth = g->depth;
         return;
@@ -339,6 +352,7 @@ static const char *cap_label(gpx_ctx *g, int cap)
     case CAP_TEMP: return field_name(g->opts->temperature_field, "temperature");
     case CAP_RH: return field_name(g->opts->humidity_field, "humidity");
     case CAP_NAME: return "name";
+    case CAP_GEOID: return "geoidheight";
     }
     return "?";
 }
@@ -397,6 +411,9 @@ static void end_capture(gpx_ctx *g)
         g->got_rh = 1;
         g->rh = v;
         break;
+    case CAP_GEOID:
+        g->geoid = v;
+        break;
     }
 }
 
@@ -454,6 +471,8 @@ static void end_point(gpx_ctx *g)
         L->ext_ins[i] = g->pt_selfclosed ? -1 : end_tag_start(g);
         L->ext_kind[i] = L->version == 10 ? HYP_EXT_BARE : HYP_EXT_WRAP;
     }
+    d->geoidheight_m[i] = g->geoid;
+    d->has_geoidheight |= g->geoid == g->geoid;
     g->p_raw[i] = (uint8_t)(g->got_pres && g->pres_raw);
     g->t_raw[i] = (uint8_t)(g->got_temp && g->temp_raw);
     hyp_sample_flag flag = !g->got_time ? HYP_SAMPLE_NO_TIME : !g->got_pres ? HYP_SAMPLE_NO_PRESSURE : HYP_SAMPLE_OK;
@@ -476,6 +495,18 @@ static void on_end(void *ctx, const xmlChar *local, const xmlChar *prefix, const
             g->ext_depth = 0;
         } else if ((g->in_pt || g->in_wpt) && g->depth == g->pt_depth)
             end_point(g);
+        else if (g->meta_ext_depth && g->depth == g->meta_ext_depth) {
+            g->doc->layout.meta_ins = end_tag_start(g);
+            g->doc->layout.meta_kind = 1;
+            g->meta_ext_depth = 0;
+        } else if (g->meta_depth && g->depth == g->meta_depth) {
+            if (g->doc->layout.meta_kind == 0) {
+                g->doc->layout.meta_ins = end_tag_start(g);
+                g->doc->layout.meta_kind = 2;
+            }
+            g->meta_depth = 0;
+        } else if (g->depth == 1)
+            g->doc->layout.root_close = end_tag_start(g);
     }
     g->depth--;
 }
@@ -704,6 +735,7 @@ void hyp_gpx_doc_free(hyp_gpx_doc *d)
     free(L->ele_end);
     free(L->ext_ins);
     free(L->ext_kind);
+    free(d->geoidheight_m);
     for (size_t i = 0; i < d->wpts.count; i++)
         free(d->wpts.name[i]);
     free(d->wpts.name);

@@ -135,8 +135,41 @@ static hyp_status splice_point(src *s, FILE *out, const char *in, const hyp_gpx_
     return HYP_OK;
 }
 
+/* The document-level note of the vertical reference: GPX 1.1 in
+ * <metadata><extensions> (metadata is the root's first child), GPX 1.0 as a
+ * private element before </gpx>. */
+static hyp_status splice_vref(src *s, FILE *out, const char *in_path, const hyp_gpx_layout *L,
+                              const char *vref, int at_end, hyp_error *err)
+{
+    const char *gp = L->prefix, *colon = L->prefix[0] ? ":" : "";
+    char el[256], esc[160];
+    escape_into(esc, sizeof esc, vref);
+    snprintf(el, sizeof el, "<%s:vertical_ref>%s</%s:vertical_ref>", HYP_GPX_PREFIX, esc, HYP_GPX_PREFIX);
+    if (L->version == 10) {
+        if (!at_end || L->root_close < 0)
+            return HYP_OK;
+        if (src_advance(s, L->root_close, out) || src_peek(s) != '<')
+            return layout_error(err, in_path, L->root_close);
+        fputs(el, out);
+        return HYP_OK;
+    }
+    if (at_end || L->meta_kind == 3 || L->root_open_end < 0)
+        return HYP_OK;
+    int64_t at = L->meta_kind ? L->meta_ins : L->root_open_end;
+    if (src_advance(s, at, out) || (L->meta_kind ? src_peek(s) != '<' : s->last != '>'))
+        return layout_error(err, in_path, at);
+    if (L->meta_kind == 1)
+        fputs(el, out);
+    else if (L->meta_kind == 2)
+        fprintf(out, "<%s%sextensions>%s</%s%sextensions>", gp, colon, el, gp, colon);
+    else
+        fprintf(out, "<%s%smetadata><%s%sextensions>%s</%s%sextensions></%s%smetadata>", gp, colon, gp, colon, el, gp,
+                colon, gp, colon);
+    return HYP_OK;
+}
+
 static hyp_status splice_all(src *s, FILE *out, const char *in_path, const hyp_gpx_doc *doc,
-                             const hyp_correct_result *res, hyp_error *err)
+                             const hyp_correct_result *res, const char *vref, hyp_error *err)
 {
     const hyp_gpx_layout *L = &doc->layout;
     if (!L->has_hyp_ns) {
@@ -145,11 +178,16 @@ static hyp_status splice_all(src *s, FILE *out, const char *in_path, const hyp_g
             return layout_error(err, in_path, L->root_attr_ins);
         fprintf(out, " xmlns:%s=\"%s\"", HYP_GPX_PREFIX, HYP_GPX_NS);
     }
+    hyp_status st;
+    if (vref && (st = splice_vref(s, out, in_path, L, vref, 0, err)))
+        return st;
     for (size_t i = 0; i < doc->pts.count; i++) {
-        hyp_status st = splice_point(s, out, in_path, doc, res, i, err);
+        st = splice_point(s, out, in_path, doc, res, i, err);
         if (st)
             return st;
     }
+    if (vref && (st = splice_vref(s, out, in_path, L, vref, 1, err)))
+        return st;
     if (src_advance(s, L->file_size, out))
         return hyp_error_set(err, HYP_ERR_IO, "%s: write error or input cut short", in_path);
     if (src_fill(s))
@@ -158,8 +196,8 @@ static hyp_status splice_all(src *s, FILE *out, const char *in_path, const hyp_g
 }
 
 hyp_status hyp_gpx_write_spliced(const char *in_path, const hyp_gpx_doc *doc,
-                                 const hyp_correct_result *res, const char *out_path,
-                                 hyp_error *err)
+                                 const hyp_correct_result *res, const hyp_output_info *info,
+                                 const char *out_path, hyp_error *err)
 {
     if (hyp_same_file(in_path, out_path))
         return hyp_error_set(err, HYP_ERR_USAGE, "%s: output would overwrite the input; choose another name", out_path);
@@ -185,7 +223,7 @@ hyp_status hyp_gpx_write_spliced(const char *in_path, const hyp_gpx_doc *doc,
     st = hyp__out_open(&o, out_path, err);
     if (st)
         goto close_in;
-    st = splice_all(s, o.f, in_path, doc, res, err);
+    st = splice_all(s, o.f, in_path, doc, res, info ? info->vref : NULL, err);
     if (!st)
         st = hyp__out_commit(&o, err);
     else
@@ -196,8 +234,8 @@ close_in:
     return st;
 }
 
-hyp_status hyp_gpx_write_new(const hyp_series *s, const hyp_correct_result *res, const char *track_name,
-                             const char *out_path, hyp_error *err)
+hyp_status hyp_gpx_write_new(const hyp_series *s, const hyp_correct_result *res, const hyp_output_info *info,
+                             const char *track_name, const char *out_path, hyp_error *err)
 {
     hyp__outfile o;
     hyp_status st = hyp__out_open(&o, out_path, err);
@@ -207,9 +245,15 @@ hyp_status hyp_gpx_write_new(const hyp_series *s, const hyp_correct_result *res,
     escape_into(name, sizeof name, track_name ? track_name : "track");
     FILE *f = o.f;
     fprintf(f, "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n"
-               "<gpx version=\"1.1\" creator=\"hypsolev\" xmlns=\"http://www.topografix.com/GPX/1/1\" xmlns:%s=\"%s\">\n"
-               "  <trk>\n    <name>%s</name>\n    <trkseg>\n",
-            HYP_GPX_PREFIX, HYP_GPX_NS, name);
+               "<gpx version=\"1.1\" creator=\"hypsolev\" xmlns=\"http://www.topografix.com/GPX/1/1\" xmlns:%s=\"%s\">\n",
+            HYP_GPX_PREFIX, HYP_GPX_NS);
+    if (info && info->vref) {
+        char v[160];
+        escape_into(v, sizeof v, info->vref);
+        fprintf(f, "  <metadata><extensions><%s:vertical_ref>%s</%s:vertical_ref></extensions></metadata>\n",
+                HYP_GPX_PREFIX, v, HYP_GPX_PREFIX);
+    }
+    fprintf(f, "  <trk>\n    <name>%s</name>\n    <trkseg>\n", name);
     for (size_t i = 0; i < s->count; i++) {
         if (s->lat_deg[i] != s->lat_deg[i] || s->lon_deg[i] != s->lon_deg[i])
             continue;   /* GPX needs a position */

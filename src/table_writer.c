@@ -15,9 +15,12 @@ static void num(FILE *f, double v, int prec)
         fputs(",", f);
 }
 
-hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res, const char *out_path,
-                           hyp_error *err)
+hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res, const hyp_output_info *info,
+                           const char *out_path, hyp_error *err)
 {
+    hyp_output_info none = {0};
+    if (!info)
+        info = &none;
     hyp__outfile o;
     hyp_status st = hyp__out_open(&o, out_path, err);
     if (st)
@@ -26,6 +29,10 @@ hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res, c
     fputs("time,lat,lon,ele_in,height,sigma,p_rover_hpa,p_base_hpa,offset_hpa,tcol_c", f);
     for (int k = 0; k < HYP_B_COUNT; k++)
         fprintf(f, ",sigma_%s", hyp_budget_term_name((hyp_budget_term)k));
+    if (info->gnss_m)
+        fputs(",gnss_minus_height", f);
+    if (info->easting_m)
+        fputs(",easting,northing", f);
     fputs(",status\n", f);
     for (size_t i = 0; i < s->count; i++) {
         char t[40] = "";
@@ -43,6 +50,12 @@ hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res, c
         num(f, res->tcol_k[i] - 273.15, 2);
         for (int k = 0; k < HYP_B_COUNT; k++)
             num(f, res->budget_m[k][i], 3);
+        if (info->gnss_m)
+            num(f, info->gnss_m[i] - res->height_m[i], 3);
+        if (info->easting_m) {
+            num(f, info->easting_m[i], 3);
+            num(f, info->northing_m[i], 3);
+        }
         const char *why = res->status[i] == HYP_PT_REFUSED ? hyp_sample_flag_text((hyp_sample_flag)s->flag[i])
                                                             : hyp_point_status_text((hyp_point_status)res->status[i]);
         fprintf(f, ",%s\n", why);

@@ -18,6 +18,7 @@
 #include "hypsolev/hypsolev.h"
 
 #define DATA HYP_SOURCE_DIR "/tests/data/lossless/"
+#define VREF "EGM96 geoid (EPSG:5773)"
 #define SHARED HYP_SOURCE_DIR "/../shared/gpx/"
 /* The fixtures' own private elements, declared so that GPX 1.0's strict
  * wildcard can check the input's part as well as ours. */
@@ -71,6 +72,17 @@ static char *expected_output(const char *in, size_t n, const hyp_gpx_doc *d, con
 #define COPY_TO(off) do { memcpy(w, in + pos, (size_t)(off) - pos); w += (size_t)(off) - pos; pos = (size_t)(off); } while (0)
     COPY_TO(L->root_attr_ins);
     w += sprintf(w, " xmlns:hyp=\"urn:hypsolev:gpx:1\"");
+    const char *vr = "<hyp:vertical_ref>" VREF "</hyp:vertical_ref>";
+    if (L->version == 11 && L->meta_kind == 0) {
+        COPY_TO(L->root_open_end);
+        w += sprintf(w, "<%s%smetadata><%s%sextensions>%s</%s%sextensions></%s%smetadata>", p, c, p, c, vr, p, c, p, c);
+    } else if (L->version == 11 && L->meta_kind == 1) {
+        COPY_TO(L->meta_ins);
+        w += sprintf(w, "%s", vr);
+    } else if (L->version == 11 && L->meta_kind == 2) {
+        COPY_TO(L->meta_ins);
+        w += sprintf(w, "<%s%sextensions>%s</%s%sextensions>", p, c, vr, p, c);
+    }
     for (size_t i = 0; i < d->pts.count; i++) {
         char el[256];
         if (r->status[i] == HYP_PT_OK) {
@@ -94,6 +106,10 @@ static char *expected_output(const char *in, size_t n, const hyp_gpx_doc *d, con
             w += sprintf(w, "<%s%sextensions>%s</%s%sextensions>", p, c, el, p, c);
         else
             w += sprintf(w, "%s", el);
+    }
+    if (L->version == 10) {
+        COPY_TO(L->root_close);
+        w += sprintf(w, "%s", vr);
     }
     COPY_TO(n);
 #undef COPY_TO
@@ -165,7 +181,8 @@ static void splice_case(const char *name, const char *xsd, const char *ns)
             assert_true(fabs(strtod(in + d.layout.ele_beg[i], NULL) - d.pts.ele_m[i]) < 1e-9);
     hyp_correct_result r;
     fake_result(&d, &r);
-    assert_int_equal(hyp_gpx_write_spliced(in_path, &d, &r, out_path, &err), HYP_OK);
+    hyp_output_info info = {.vref = VREF};
+    assert_int_equal(hyp_gpx_write_spliced(in_path, &d, &r, &info, out_path, &err), HYP_OK);
     size_t m;
     char *got = slurp(out_path, &m);
     char *want = expected_output(in, n, &d, &r);
@@ -262,7 +279,8 @@ static void test_write_new(void **state)
     char out[4096];
     snprintf(out, sizeof out, "%s/new-track.gpx", HYP_BINARY_DIR);
     hyp_error err;
-    assert_int_equal(hyp_gpx_write_new(&s, &r, "a <walk> & more", out, &err), HYP_OK);
+    hyp_output_info info = {.vref = VREF};
+    assert_int_equal(hyp_gpx_write_new(&s, &r, &info, "a <walk> & more", out, &err), HYP_OK);
     validate_or_skip("gpx-1.1.xsd", "http://www.topografix.com/GPX/1/1", out);
     hyp_series_free(&s);
 }

@@ -90,6 +90,12 @@ typedef struct hyp_correct_opts {
      * in place of base->clock_offset_s only when estimate_clock is set. */
     int estimate_clock;
     double clock_max_lag_s;    /* search range either side, default 600 s */
+    /* GNSS anchoring: the track's own GNSS heights in the reference of the
+     * known heights (one per rover sample, NaN where none; NULL: none),
+     * used for the level when there is no calibration and no --offset. */
+    const double *gnss_height_m;
+    int gnss_anchor;           /* default 1 */
+    double gnss_bias_sigma_m;  /* default 1 m (common practice, no source) */
 } hyp_correct_opts;
 
 void hyp_correct_opts_init(hyp_correct_opts *o);
@@ -139,7 +145,8 @@ typedef enum hyp_drift_kind {
     HYP_DRIFT_EXPLICIT = 1,   /* --offset */
     HYP_DRIFT_CONSTANT = 2,
     HYP_DRIFT_LINEAR = 3,
-    HYP_DRIFT_PIECEWISE = 4
+    HYP_DRIFT_PIECEWISE = 4,
+    HYP_DRIFT_GNSS = 5        /* no calibration: levelled on the track's GNSS heights */
 } hyp_drift_kind;
 
 #define HYP_MAX_KNOTS 16
@@ -160,6 +167,14 @@ typedef struct hyp_drift {
     double condition;
     double inflation;          /* factor applied to the covariance (>= 1) */
     char note[320];            /* what the rule chose and why */
+    /* HYP_DRIFT_GNSS: heights += a + b (t - t0), fitted robustly to
+     * GNSS - barometric heights; covariance over an effective number of
+     * independent samples (GNSS errors are correlated for minutes). */
+    double gnss_a_m, gnss_b_m_per_s, gnss_t0_s;
+    double gnss_cov[4];
+    double gnss_floor_m;       /* GNSS height bias no averaging removes */
+    double gnss_neff;
+    size_t gnss_n;
 } hyp_drift;
 
 /* The error budget: 1-sigma components of each height, m. */

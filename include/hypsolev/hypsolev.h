@@ -13,5 +13,6 @@
 #include "hypsolev/readers.h"
 #include "hypsolev/correct.h"
 #include "hypsolev/writers.h"
+#include "hypsolev/vertical.h"
 
 #endif

@@ -46,6 +46,12 @@ typedef struct hyp_gpx_layout {
     char prefix[64];        /* prefix of the GPX namespace ("" for default) */
     int64_t root_attr_ins;  /* where xmlns:hyp="..." goes in the root tag */
     int has_hyp_ns;         /* the root already declares our namespace */
+    int64_t root_open_end;  /* just after the root start tag's '>' (-1: <gpx/>) */
+    int64_t root_close;     /* start of </gpx> */
+    int64_t meta_ins;       /* GPX 1.1: where document-level elements go */
+    int meta_kind;          /* 0 no <metadata>, 1 inside its <extensions>,
+                               2 before </metadata> (needs <extensions>),
+                               3 <metadata/> (nowhere to add) */
     int64_t *open_end;      /* just after the '>' of each point's start tag */
     int64_t *ele_beg;       /* start of <ele>'s text, -1 without <ele> */
     int64_t *ele_end;       /* end of <ele>'s text (start of </ele>) */
@@ -65,6 +71,8 @@ typedef struct hyp_gpx_doc {
     hyp_gpx_layout layout;
     hyp_waypoints wpts;
     hyp_unit pressure_unit, temperature_unit;  /* as found or inferred */
+    double *geoidheight_m;  /* per point: <geoidheight> (m), NaN where absent */
+    int has_geoidheight;
 } hyp_gpx_doc;
 
 void hyp_gpx_doc_init(hyp_gpx_doc *d);

@@ -29,7 +29,10 @@ typedef struct args {
     base_arg bases[MAX_BASES];
     int n_bases;
     const char *out, *out_dir, *table, *rover_zone;
-    const char *benchmarks_path, *ties_path;
+    const char *benchmarks_path, *ties_path, *crs;
+    hyp_vref gnss_ref, known_ref, out_ref;
+    int out_ref_set;
+    hyp_geo *geo;
     double benchmark_sigma_m;
     const char *colocate_text[MAX_WINDOWS];
     int n_colocate;
@@ -71,6 +74,15 @@ static void help(void)
 "  --tie-radius M           automatic ties: within M of a benchmark (default 30)\n"
 "  --tie-min S              ... and standing still at least S (default 60)\n"
 "                           GPX waypoints named like a benchmark are ties too\n"
+"\n"
+"heights and positions:\n"
+"  --gnss-heights REF       what the track's own ele is: geoid (EGM96, default) or\n"
+"                           ellipsoidal; a point's <geoidheight> is used where given\n"
+"  --known-heights REF      reference of --base-height and benchmarks (default geoid)\n"
+"  --height-crs REF         reference of the heights written (default: as known)\n"
+"  --crs CRS                add easting/northing: EPSG:n, a PROJ string, WKT, or utm\n"
+"  --no-gnss-anchor         with no co-location, tie or offset, do not level the\n"
+"                           track on its GNSS heights\n"
 "\n"
 "error budget:\n"
 "  --smooth S               centred moving average of rover pressure over S seconds\n"
@@ -140,7 +152,8 @@ enum {
     O_BASE = 256, O_BASE_HEIGHT, O_BASE_AT, O_BASE_CLOCK, O_BASE_TZ, O_OFFSET, O_OFFSET_SIGMA,
     O_COLOC, O_NO_AUTO, O_COLOC_R, O_COLOC_MIN, O_TCOL, O_LAPSE, O_RH, O_GAP, O_PUNIT, O_TUNIT,
     O_PFIELD, O_TFIELD, O_HFIELD, O_TZ, O_OUTDIR, O_TABLE, O_HELP, O_BENCH, O_BENCH_SIG, O_TIES,
-    O_TIE_R, O_TIE_MIN, O_SMOOTH, O_GRAD, O_CLOCK_SIG, O_TSIG, O_LSIG
+    O_TIE_R, O_TIE_MIN, O_SMOOTH, O_GRAD, O_CLOCK_SIG, O_TSIG, O_LSIG, O_GNSS_REF, O_KNOWN_REF,
+    O_OUT_REF, O_CRS, O_NO_ANCHOR
 };
 
 static const struct option longopts[] = {
@@ -180,6 +193,11 @@ static const struct option longopts[] = {
     {"clock-sigma", required_argument, 0, O_CLOCK_SIG},
     {"column-temp-sigma", required_argument, 0, O_TSIG},
     {"lapse-sigma", required_argument, 0, O_LSIG},
+    {"gnss-heights", required_argument, 0, O_GNSS_REF},
+    {"known-heights", required_argument, 0, O_KNOWN_REF},
+    {"height-crs", required_argument, 0, O_OUT_REF},
+    {"crs", required_argument, 0, O_CRS},
+    {"no-gnss-anchor", no_argument, 0, O_NO_ANCHOR},
     {0, 0, 0, 0},
 };
 
@@ -310,6 +328,18 @@ static int parse_one(args *a, int c, const char *arg)
         return 0;
     }
     case O_CLOCK_SIG: return num_opt("--clock-sigma", arg, 0, 3600, &o->clock_sigma_s) ? EXIT_USAGE : 0;
+    case O_GNSS_REF: case O_KNOWN_REF: case O_OUT_REF: {
+        int v = hyp_vref_parse(arg);
+        if (v < 0)
+            return usage_error("%s \"%s\": expected geoid or ellipsoidal",
+                               c == O_GNSS_REF ? "--gnss-heights" : c == O_KNOWN_REF ? "--known-heights" : "--height-crs", arg);
+        if (c == O_GNSS_REF) a->gnss_ref = (hyp_vref)v;
+        else if (c == O_KNOWN_REF) a->known_ref = (hyp_vref)v;
+        else a->out_ref = (hyp_vref)v, a->out_ref_set = 1;
+        return 0;
+    }
+    case O_CRS: a->crs = arg; return 0;
+    case O_NO_ANCHOR: o->gnss_anchor = 0; return 0;
     case O_TSIG: return num_opt("--column-temp-sigma", arg, 0, 30, &o->tcol_sigma_k) ? EXIT_USAGE : 0;
     case O_LSIG: {
         double l;
@@ -379,6 +409,8 @@ static int parse_args(args *a, int argc, char **argv)
         if (r)
             return r;
     }
+    if (!a->out_ref_set)
+        a->out_ref = a->known_ref;
     return check_args(a);
 }
 
@@ -556,7 +588,7 @@ static void print_weather(const hyp_correct_result *r, double rapid_pa_s)
 }
 
 static void print_summary(const char *rover_path, const log_in *rv, const base_arg *ba, const log_in *bl,
-                          const hyp_correct_result *r, const char *wrote, double rapid_pa_s)
+                          const hyp_correct_result *r, double rapid_pa_s)
 {
     char span[200];
     fprintf(stderr, "hypsolev correct: %s\n", rover_path);
@@ -588,6 +620,10 @@ static void print_summary(const char *rover_path, const log_in *rv, const base_a
         if (r->n_flag[f])
             fprintf(stderr, "            %zu dropped by the reader: %s\n", r->n_flag[f], hyp_sample_flag_text((hyp_sample_flag)f));
     print_budget(log_series(rv), r);
+}
+
+static void print_footer(const char *wrote)
+{
     fprintf(stderr, "  wrote     %s\n", wrote);
     fprintf(stderr, "  (not for aviation or navigation; survey deliverables defer to local codes and licensed surveyors)\n");
 }
@@ -631,7 +667,8 @@ static int same_as_any_input(const args *a, const char *out)
 }
 
 static hyp_status write_outputs(const args *a, const char *rover_path, const log_in *rv,
-                                const hyp_correct_result *res, char *wrote, size_t wn, hyp_error *err)
+                                const hyp_correct_result *res, const hyp_output_info *info,
+                                char *wrote, size_t wn, hyp_error *err)
 {
     char gpx_path[4096] = "", csv_path[4096] = "";
     if (a->out)
@@ -654,20 +691,80 @@ static hyp_status write_outputs(const args *a, const char *rover_path, const log
     if (gpx_path[0]) {
         char name[1024];
         stem_of(rover_path, name, sizeof name);
-        st = rv->is_gpx ? hyp_gpx_write_spliced(rover_path, &rv->doc, res, gpx_path, err)
-                        : hyp_gpx_write_new(&rv->csv, res, name, gpx_path, err);
+        st = rv->is_gpx ? hyp_gpx_write_spliced(rover_path, &rv->doc, res, info, gpx_path, err)
+                        : hyp_gpx_write_new(&rv->csv, res, info, name, gpx_path, err);
         if (st)
             return st;
         snprintf(wrote, wn, "%s", gpx_path);
     }
     if (csv_path[0]) {
-        st = hyp_table_write(log_series(rv), res, csv_path, err);
+        st = hyp_table_write(log_series(rv), res, info, csv_path, err);
         if (st)
             return st;
         size_t l = strlen(wrote);
         snprintf(wrote + l, wn - l, "%s%s", l ? ", " : "", strcmp(csv_path, "-") ? csv_path : "(table on standard output)");
     }
     return HYP_OK;
+}
+
+/* Per-rover arrays beside the result: GNSS heights in the known and the
+ * output reference, and projected positions. */
+typedef struct extras {
+    double *gnss_known, *gnss_out, *east, *north;
+    char crs_name[256];
+} extras;
+
+static void extras_free(extras *x)
+{
+    free(x->gnss_known);
+    free(x->gnss_out);
+    free(x->east);
+    free(x->north);
+}
+
+static hyp_status prepare_extras(args *a, const log_in *rv, extras *x, hyp_error *err)
+{
+    const hyp_series *s = log_series(rv);
+    size_t n = s->count ? s->count : 1;
+    memset(x, 0, sizeof *x);
+    x->gnss_known = malloc(n * sizeof(double));
+    x->gnss_out = malloc(n * sizeof(double));
+    if (!x->gnss_known || !x->gnss_out)
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    const double *gh = rv->is_gpx && rv->doc.has_geoidheight ? rv->doc.geoidheight_m : NULL;
+    hyp_status st = hyp_track_heights(a->geo, s, gh, a->gnss_ref, a->known_ref, x->gnss_known, err);
+    if (!st)
+        st = hyp_track_heights(a->geo, s, gh, a->gnss_ref, a->out_ref, x->gnss_out, err);
+    if (st || !a->crs)
+        return st;
+    double la = NAN, lo = NAN;
+    for (size_t i = 0; i < s->count && la != la; i++)
+        if (s->lat_deg[i] == s->lat_deg[i])
+            la = s->lat_deg[i], lo = s->lon_deg[i];
+    st = hyp_geo_set_crs(a->geo, a->crs, la, lo, x->crs_name, sizeof x->crs_name, err);
+    if (st)
+        return st;
+    x->east = malloc(n * sizeof(double));
+    x->north = malloc(n * sizeof(double));
+    if (!x->east || !x->north)
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    for (size_t i = 0; i < s->count; i++)
+        if (hyp_geo_project(a->geo, s->lat_deg[i], s->lon_deg[i], &x->east[i], &x->north[i]))
+            x->east[i] = x->north[i] = NAN;
+    return HYP_OK;
+}
+
+static void print_heights(const args *a, const hyp_correct_result *res, const extras *x)
+{
+    fprintf(stderr, "  heights   in %s; known heights in %s; the track's own heights taken as %s\n",
+            hyp_vref_name(a->out_ref), hyp_vref_name(a->known_ref), hyp_vref_name(a->gnss_ref));
+    double m, sd;
+    size_t k;
+    hyp_diff_stats(x->gnss_out, res->height_m, res->count, &m, &sd, &k);
+    if (k)
+        fprintf(stderr, "  gnss      GNSS - corrected height: mean %+.2f m, standard deviation %.2f m over %zu points\n", m, sd, k);
+    if (x->east)
+        fprintf(stderr, "  crs       easting/northing in %s\n", x->crs_name);
 }
 
 static int correct_one(args *a, const char *rover_path, const log_in *bl, const hyp_zone *rz)
@@ -677,29 +774,41 @@ static int correct_one(args *a, const char *rover_path, const log_in *bl, const 
     hyp_error err;
     hyp_error_clear(&err);
     log_in rv;
+    extras x = {0};
     hyp_correct_result res;
     hyp_correct_result_init(&res);
     hyp_read_opts ro = a->ropts;
     ro.zone = rz;
     ro.need_position = 1;
     hyp_status st = read_log(rover_path, &ro, &rv, &msgs, &err);
+    if (!st)
+        st = prepare_extras(a, &rv, &x, &err);
     if (!st) {
         const base_arg *ba = &a->bases[0];
         hyp_base base = {.log = log_series(bl), .name = ba->path, .height_m = ba->height_m,
                          .lat_deg = ba->lat_deg, .lon_deg = ba->lon_deg, .clock_offset_s = ba->clock_s};
         hyp_correct_opts co = a->copts;
         co.waypoints = rv.is_gpx ? &rv.doc.wpts : NULL;
+        co.gnss_height_m = x.gnss_known;
         st = hyp_correct_single_base(log_series(&rv), &base, &co, &res, &msgs, &err);
     }
-    char wrote[8300] = "";
     if (!st)
-        st = write_outputs(a, rover_path, &rv, &res, wrote, sizeof wrote, &err);
+        st = hyp_heights_convert(a->geo, log_series(&rv), res.height_m, a->known_ref, a->out_ref, &err);
+    char wrote[8300] = "";
+    hyp_output_info info = {.vref = hyp_vref_name(a->out_ref), .gnss_m = x.gnss_out, .easting_m = x.east,
+                            .northing_m = x.north, .crs_name = x.crs_name};
+    if (!st)
+        st = write_outputs(a, rover_path, &rv, &res, &info, wrote, sizeof wrote, &err);
     print_msgs(&msgs, a->quiet);
-    if (!st && !a->quiet)
-        print_summary(rover_path, &rv, &a->bases[0], bl, &res, wrote, a->copts.rapid_pa_per_s);
+    if (!st && !a->quiet) {
+        print_summary(rover_path, &rv, &a->bases[0], bl, &res, a->copts.rapid_pa_per_s);
+        print_heights(a, &res, &x);
+        print_footer(wrote);
+    }
     if (st)
         fprintf(stderr, "hypsolev: error: %s\n", err.message);
     hyp_correct_result_free(&res);
+    extras_free(&x);
     log_free(&rv);
     hyp_msgs_free(&msgs);
     return st == HYP_ERR_USAGE ? EXIT_USAGE : st ? EXIT_INPUT : 0;
@@ -736,6 +845,10 @@ static int run(args *a)
     if (!rc && parse_windows(a, &rz, w, &err)) {
         fprintf(stderr, "hypsolev correct: %s\n", err.message);
         rc = EXIT_USAGE;
+    }
+    if (!rc && hyp_geo_open(&a->geo, &err)) {
+        fprintf(stderr, "hypsolev: error: %s\n", err.message);
+        rc = EXIT_INPUT;
     }
     hyp_benchmarks bms;
     hyp_benchmarks_init(&bms);
@@ -777,6 +890,8 @@ static int run(args *a)
             rc = r;
     }
     log_free(&bl);
+    hyp_geo_close(a->geo);
+    a->geo = NULL;
     hyp_benchmarks_free(&bms);
     free(ties);
     hyp_msgs_free(&msgs);

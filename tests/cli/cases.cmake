@@ -9,6 +9,7 @@ function(hyp_cli_case name rc regex)
     COMMAND ${CMAKE_COMMAND} -DEXE=$<TARGET_FILE:hypsolev-cli> -DDATA=${PROJECT_SOURCE_DIR}/tests/data
             -DWORK=${CMAKE_CURRENT_BINARY_DIR}/cli/${name} -DEXPECT_RC=${rc} "-DEXPECT_ERR=${regex}"
             "-DARGS=${ARGN}" "-DINPUTS=${HYP_CASE_INPUTS}" "-DGOLDEN=${HYP_CASE_GOLDEN}" "-DGOLDEN_OUT=${HYP_CASE_GOLDEN_OUT}"
+            "-DPROJ_DB_ONLY=${HYP_CASE_PROJ_DB_ONLY}"
             -P ${PROJECT_SOURCE_DIR}/tests/cli/run_case.cmake)
   set_tests_properties(cli_${name} PROPERTIES LABELS cli TIMEOUT 30)
 endfunction()
@@ -76,3 +77,16 @@ hyp_cli_case(bench_duplicate 1 "bench_duplicate.csv:3: benchmark \"bm-1\" is lis
 hyp_cli_case(ties_unknown 1 "ties_unknown.csv:2: name \"BM-X\" is not a benchmark of --benchmarks" correct ${R} ${B} ${O} --benchmarks @DATA@/benchmarks.csv --ties @DATA@/bad/ties_unknown.csv)
 hyp_cli_case(ties_reversed 1 "ties_reversed.csv:2: end 2026-06-18T07:00:00Z is not after start" correct ${R} ${B} ${O} --ties @DATA@/bad/ties_reversed.csv)
 hyp_cli_case(bad_smooth 2 "--smooth \"-5\": expected a number from 0 to 3600" correct ${R} ${B} ${O} --smooth -5)
+
+# heights and positions
+hyp_cli_case(height_crs_ellipsoidal 0 "heights   in WGS84 ellipsoid \\(EPSG:4979\\).*crs       easting/northing in WGS 84 / UTM zone 32N" correct ${R} ${B} --table @OUT@/t.csv --height-crs ellipsoidal --crs utm)
+hyp_cli_case(bad_vref 2 "--gnss-heights \"msl\": expected geoid or ellipsoidal" correct ${R} ${B} ${O} --gnss-heights msl)
+hyp_cli_case(bad_crs 2 "--crs \"EPSG:4326\": not a projected CRS" correct ${R} ${B} ${O} --crs EPSG:4326)
+find_file(HYP_PROJ_DB proj.db PATHS /usr/share/proj /usr/local/share/proj NO_DEFAULT_PATH)
+if(HYP_PROJ_DB)
+  set(HYP_CASE_PROJ_DB_ONLY ${HYP_PROJ_DB})
+  hyp_cli_case(geoid_grid_missing 1 "grid us_nga_egm96_15.tif not found .*vertical conversions refused" correct ${R} ${B} ${O} --height-crs ellipsoidal)
+  # without a vertical conversion the same run needs no grid
+  hyp_cli_case(no_grid_needed 0 "wrote" correct ${R} ${B} ${O})
+  set(HYP_CASE_PROJ_DB_ONLY "")
+endif()

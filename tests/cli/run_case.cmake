@@ -3,6 +3,7 @@
 # changed and that a failing run leaves no output and no temporary file.
 #   cmake -DEXE=... -DWORK=dir -DEXPECT_RC=n -DEXPECT_ERR=regex
 #         -DARGS=a;b;c [-DINPUTS=f1;f2] [-DGOLDEN=expected.csv -DGOLDEN_OUT=file]
+#         [-DPROJ_DB_ONLY=/path/proj.db] (run with every PROJ grid missing)
 #         -P run_case.cmake
 # In ARGS, @DATA@ is tests/data and @OUT@ the case's scratch folder.
 cmake_minimum_required(VERSION 3.25)
@@ -20,7 +21,18 @@ foreach(f IN LISTS INPUTS)
   file(SHA256 "${f}" h)
   list(APPEND sums "${h}")
 endforeach()
-execute_process(COMMAND "${EXE}" ${args}
+set(envcmd "")
+if(ENV)
+  string(REPLACE "@OUT@" "${WORK}" ENV "${ENV}")
+  set(envcmd ${CMAKE_COMMAND} -E env ${ENV})
+endif()
+if(PROJ_DB_ONLY)
+  # a PROJ_DATA folder holding proj.db alone: every grid is missing
+  file(MAKE_DIRECTORY "${WORK}/projdata")
+  file(CREATE_LINK "${PROJ_DB_ONLY}" "${WORK}/projdata/proj.db" SYMBOLIC)
+  set(envcmd ${CMAKE_COMMAND} -E env PROJ_DATA=${WORK}/projdata)
+endif()
+execute_process(COMMAND ${envcmd} "${EXE}" ${args}
   RESULT_VARIABLE rc OUTPUT_VARIABLE out ERROR_VARIABLE err TIMEOUT 20)
 message("exit ${rc}\n--- stderr:\n${err}")
 if(NOT rc STREQUAL "${EXPECT_RC}")
@@ -39,6 +51,7 @@ foreach(f IN LISTS INPUTS)
   endif()
   math(EXPR i "${i} + 1")
 endforeach()
+file(REMOVE_RECURSE "${WORK}/projdata")
 file(GLOB left "${WORK}/*")
 if(NOT EXPECT_RC STREQUAL "0" AND left)
   message(FATAL_ERROR "a failing run left files behind: ${left}")

@@ -32,8 +32,9 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
             r.status[i] = d.pts.flag[i] ? HYP_PT_REFUSED : HYP_PT_OK;
         char out[64];
         snprintf(out, sizeof out, "/tmp/fuzz-gpx-out-%d.gpx", (int)getpid());
+        hyp_output_info info = {.vref = "test <ref> & more"};
         if (r.height_m && r.sigma_m && r.status &&
-            hyp_gpx_write_spliced(path, &d, &r, out, &err) == HYP_ERR_INTERNAL)
+            hyp_gpx_write_spliced(path, &d, &r, &info, out, &err) == HYP_ERR_INTERNAL)
             abort();   /* a layout that does not match the file is a reader bug */
         remove(out);
         hyp_correct_result_free(&r);

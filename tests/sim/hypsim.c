@@ -5,7 +5,8 @@
  * the library's formulas - and the truth is written beside the logs so tests
  * can score a correction against it.
  *
- *   hypsim SCENARIO OUTDIR [--seed N] [--lapse K_PER_KM]
+ *   hypsim SCENARIO OUTDIR [--seed N] [--lapse K_PER_KM] [--gnss-bias M]
+ *          [--gnss-heights geoid|ellipsoidal]
  *   scenarios: demo, calm, ties, front, faraway, clock, warm
  *
  * Writes OUTDIR/rover.gpx, OUTDIR/base.csv, OUTDIR/truth.csv and
@@ -18,6 +19,8 @@
 #include <stdlib.h>
 #include <string.h>
 #include <time.h>
+
+#include <proj.h>
 
 typedef struct stop { double frac, dur_s; const char *name; int waypoint; } stop;
 
@@ -318,6 +321,19 @@ static double quant(double v, double q)
     return q > 0 ? q * floor(v / q + 0.5) : v;
 }
 
+/* Options of a run. */
+static double opt_gnss_bias_m = 0.0;   /* a bias of the whole track's GNSS heights */
+static int opt_ellipsoidal = 0;        /* write GNSS heights above the ellipsoid */
+static PJ *to_ell;                     /* PROJ: EGM96 height -> ellipsoidal */
+
+static double gnss_ref_shift(double lat, double lon)
+{
+    if (!opt_ellipsoidal)
+        return 0.0;
+    PJ_COORD c = proj_trans(to_ell, PJ_FWD, proj_coord(lon, lat, 0.0, 0.0));
+    return c.xyz.z;   /* ellipsoidal height of a point on the geoid: N */
+}
+
 static FILE *open_out(const char *dir, const char *name)
 {
     char path[4096];
@@ -376,6 +392,7 @@ static int write_rover(const scenario *sc, const char *dir)
     fputs("  <trk>\n    <name>walk</name>\n    <trkseg>\n", g);
     fprintf(tr, "time,lat,lon,height_m,pressure_pa\n");
     double gnss_err = 0.0, a = exp(-sc->rover_dt / sc->gnss_tau_s);
+    double gnss_bias = opt_gnss_bias_m;
     double t_end = sc->t0 + total_s(sc);
     for (double t = sc->t0; t <= t_end; t += sc->rover_dt) {
         state st = where(sc, t);
@@ -392,7 +409,8 @@ static int write_rover(const scenario *sc, const char *dir)
         fprintf(g, "      <trkpt lat=\"%.7f\" lon=\"%.7f\"><ele>%.1f</ele><time>%s</time>"
                    "<extensions><lg:sensor><lg:pressure unit=\"hPa\">%.2f</lg:pressure>"
                    "<lg:temperature unit=\"degC\">%.1f</lg:temperature></lg:sensor></extensions></trkpt>\n",
-                mlat, mlon, st.z + gnss_err + 1.0 * nrand(), ts, pm / 100.0, tk - 273.15);
+                mlat, mlon, st.z + gnss_err + gnss_bias + gnss_ref_shift(lat, lon) + 1.0 * nrand(), ts, pm / 100.0,
+                tk - 273.15);
         fprintf(tr, "%s,%.7f,%.7f,%.3f,%.2f\n", ts, lat, lon, st.z, p);
     }
     fputs("    </trkseg>\n  </trk>\n</gpx>\n", g);
@@ -441,6 +459,10 @@ int main(int argc, char **argv)
             rng_state ^= strtoull(argv[k + 1], NULL, 10) * 0x9E3779B97F4A7C15ULL;
         else if (strcmp(argv[k], "--lapse") == 0)   /* K/km: another day's atmosphere */
             custom.lapse_k_km = strtod(argv[k + 1], NULL);
+        else if (strcmp(argv[k], "--gnss-bias") == 0)   /* m */
+            opt_gnss_bias_m = strtod(argv[k + 1], NULL);
+        else if (strcmp(argv[k], "--gnss-heights") == 0)   /* geoid or ellipsoidal */
+            opt_ellipsoidal = strcmp(argv[k + 1], "ellipsoidal") == 0;
         else {
             fprintf(stderr, "hypsim: unknown option %s\n", argv[k]);
             return 2;
@@ -448,6 +470,19 @@ int main(int argc, char **argv)
     }
     sc = &custom;
     micro_init(sc);
+    if (opt_ellipsoidal) {
+        /* PROJ directly (not the library): EGM96 heights to WGS84 ellipsoidal */
+        PJ_CONTEXT *ctx = proj_context_create();
+        proj_context_set_enable_network(ctx, 0);
+        const char *const o[] = {"ALLOW_BALLPARK=NO", NULL};
+        PJ *src = proj_create(ctx, "EPSG:4326+5773"), *dst = proj_create(ctx, "EPSG:4979");
+        PJ *op = src && dst ? proj_create_crs_to_crs_from_pj(ctx, src, dst, NULL, o) : NULL;
+        to_ell = op ? proj_normalize_for_visualization(ctx, op) : NULL;
+        if (!to_ell) {
+            fprintf(stderr, "hypsim: PROJ cannot convert EGM96 to ellipsoidal heights here\n");
+            return 1;
+        }
+    }
     if (write_base(sc, argv[2]) || write_rover(sc, argv[2]) || write_benchmarks(sc, argv[2]))
         return 1;
     FILE *f = open_out(argv[2], "scenario.txt");

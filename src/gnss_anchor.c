@@ -1,0 +1,157 @@
+/* gnss_anchor.c - the level of an uncalibrated track from its own GNSS
+ * heights: a robust (Huber) fit of GNSS - barometric height, constant or
+ * with a drift, whose uncertainty counts the GNSS errors' correlation in
+ * time (an effective number of independent samples, not the raw count). */
+#include "correct_int.h"
+#include "stats.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+/* Weighted least-squares line y = a + b x; cov of (a, b) for unit weights'
+ * scale 1. Returns 0 when singular. */
+static int wline(const double *x, const double *y, const double *w, size_t n, double *a, double *b, double cov[4])
+{
+    double sw = 0, sx = 0, sy = 0, sxx = 0, sxy = 0;
+    for (size_t i = 0; i < n; i++) {
+        sw += w[i], sx += w[i] * x[i], sy += w[i] * y[i];
+        sxx += w[i] * x[i] * x[i], sxy += w[i] * x[i] * y[i];
+    }
+    double det = sw * sxx - sx * sx;
+    if (!(det > 0))
+        return 0;
+    *b = (sw * sxy - sx * sy) / det;
+    *a = (sy - *b * sx) / sw;
+    cov[0] = sxx / det, cov[1] = cov[2] = -sx / det, cov[3] = sw / det;
+    return 1;
+}
+
+/* Huber's M-estimator by iteratively reweighted least squares, k = 1.345
+ * robust sigmas (Huber, Robust Statistics, 1981; 95 % efficiency at the
+ * normal). line = 0 fits a constant. Residuals left in r. */
+static double huber(const double *x, const double *y, size_t n, int line, double *a, double *b, double cov[4],
+                    double *r, double *w)
+{
+    double s = 0;
+    for (size_t i = 0; i < n; i++)
+        w[i] = 1.0;
+    *b = 0.0;
+    for (int it = 0; it < 20; it++) {
+        if (line) {
+            if (!wline(x, y, w, n, a, b, cov))
+                line = 0;
+        }
+        if (!line) {
+            double sw = 0, sy = 0;
+            for (size_t i = 0; i < n; i++)
+                sw += w[i], sy += w[i] * y[i];
+            *a = sy / sw, *b = 0.0;
+            cov[0] = 1.0 / sw, cov[1] = cov[2] = cov[3] = 0.0;
+        }
+        for (size_t i = 0; i < n; i++)
+            r[i] = y[i] - *a - *b * x[i];
+        double *tmp = malloc(n * sizeof *tmp);
+        if (!tmp)
+            break;
+        for (size_t i = 0; i < n; i++)
+            tmp[i] = fabs(r[i]);
+        s = 1.4826 * hyp__median_inplace(tmp, n);
+        free(tmp);
+        if (!(s > 0))
+            break;
+        for (size_t i = 0; i < n; i++)
+            w[i] = fabs(r[i]) <= 1.345 * s ? 1.0 : 1.345 * s / fabs(r[i]);
+    }
+    return s;
+}
+
+/* Effective sample count n / (1 + 2 sum rho_k), the sum over lags until the
+ * autocorrelation first falls below 0.05 (Bretherton et al., J. Climate 12,
+ * 1999, eq. 31 for the mean of a correlated series). */
+static double neff(const double *r, size_t n)
+{
+    double m = 0, v = 0;
+    for (size_t i = 0; i < n; i++)
+        m += r[i];
+    m /= (double)n;
+    for (size_t i = 0; i < n; i++)
+        v += (r[i] - m) * (r[i] - m);
+    if (!(v > 0))
+        return (double)n;
+    double sum = 0;
+    size_t maxlag = n / 4 < 5000 ? n / 4 : 5000;
+    for (size_t k = 1; k < maxlag; k++) {
+        double c = 0;
+        for (size_t i = k; i < n; i++)
+            c += (r[i] - m) * (r[i - k] - m);
+        double rho = c / v;
+        if (rho < 0.05)
+            break;
+        sum += rho;
+    }
+    double ne = (double)n / (1.0 + 2.0 * sum);
+    return ne < 1.0 ? 1.0 : ne;
+}
+
+hyp_status hyp__gnss_anchor(hyp__work *w)
+{
+    hyp_drift *d = &w->r->drift;
+    const double *g = w->o->gnss_height_m;
+    size_t n = 0;
+    double *x = malloc((w->n ? w->n : 1) * sizeof *x), *y = malloc((w->n ? w->n : 1) * sizeof *y);
+    double *r = malloc((w->n ? w->n : 1) * sizeof *r), *wt = malloc((w->n ? w->n : 1) * sizeof *wt);
+    hyp_status st = HYP_OK;
+    if (!x || !y || !r || !wt) {
+        st = HYP_ERR_NOMEM;
+        goto out;
+    }
+    double t0 = NAN;
+    for (size_t i = 0; i < w->n; i++)
+        if (w->r->status[i] == HYP_PT_OK && g[i] == g[i]) {
+            if (t0 != t0)
+                t0 = w->rv->time_s[i];
+            x[n] = w->rv->time_s[i] - t0;
+            y[n] = g[i] - w->raw[i];
+            n++;
+        }
+    if (n < 100)
+        goto out;   /* too few GNSS heights: stays uncalibrated */
+    /* A drift joins when the track is long enough for GNSS errors (minutes
+     * of correlation) to average out at both ends: two hours (common
+     * practice, no source). */
+    int line = x[n - 1] - x[0] >= 7200.0;
+    double a, b, cov[4];
+    double s = huber(x, y, n, line, &a, &b, cov, r, wt);
+    double ne = neff(r, n);
+    /* cov is for unit-variance independent samples: scale by s^2 and by
+     * n / neff for the correlation */
+    for (int k = 0; k < 4; k++)
+        cov[k] *= s * s * (double)n / ne;
+    memset(d, 0, sizeof *d);
+    d->kind = HYP_DRIFT_GNSS;
+    d->n_knots = 1;
+    d->p = 1;
+    d->inflation = 1.0;
+    d->gnss_a_m = a;
+    d->gnss_b_m_per_s = b;
+    d->gnss_t0_s = t0;
+    memcpy(d->gnss_cov, cov, sizeof cov);
+    d->gnss_floor_m = w->o->gnss_bias_sigma_m;
+    d->gnss_neff = ne;
+    d->gnss_n = n;
+    snprintf(d->note, sizeof d->note,
+             "GNSS-anchored (lower grade): %s fitted to GNSS - barometric heights, %+.2f m%s, robust scatter %.2f m, %zu samples worth %.0f independent",
+             line ? "offset and drift" : "offset", a, line ? "" : "", s, n, ne);
+    if (line) {
+        size_t l = strlen(d->note);
+        snprintf(d->note + l, sizeof d->note - l, ", drift %+.3f m/h", b * 3600.0);
+    }
+out:
+    free(x);
+    free(y);
+    free(r);
+    free(wt);
+    return st;
+}
