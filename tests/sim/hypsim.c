@@ -325,6 +325,7 @@ static double quant(double v, double q)
 static double opt_gnss_bias_m = 0.0;   /* a bias of the whole track's GNSS heights */
 static int opt_ellipsoidal = 0;        /* write GNSS heights above the ellipsoid */
 static PJ *to_ell;                     /* PROJ: EGM96 height -> ellipsoidal */
+static PJ_CONTEXT *proj_ctx;
 
 static double gnss_ref_shift(double lat, double lon)
 {
@@ -472,18 +473,25 @@ int main(int argc, char **argv)
     micro_init(sc);
     if (opt_ellipsoidal) {
         /* PROJ directly (not the library): EGM96 heights to WGS84 ellipsoidal */
-        PJ_CONTEXT *ctx = proj_context_create();
+        PJ_CONTEXT *ctx = proj_ctx = proj_context_create();
         proj_context_set_enable_network(ctx, 0);
         const char *const o[] = {"ALLOW_BALLPARK=NO", NULL};
         PJ *src = proj_create(ctx, "EPSG:4326+5773"), *dst = proj_create(ctx, "EPSG:4979");
         PJ *op = src && dst ? proj_create_crs_to_crs_from_pj(ctx, src, dst, NULL, o) : NULL;
         to_ell = op ? proj_normalize_for_visualization(ctx, op) : NULL;
+        proj_destroy(op);
+        proj_destroy(src);
+        proj_destroy(dst);
         if (!to_ell) {
             fprintf(stderr, "hypsim: PROJ cannot convert EGM96 to ellipsoidal heights here\n");
             return 1;
         }
     }
-    if (write_base(sc, argv[2]) || write_rover(sc, argv[2]) || write_benchmarks(sc, argv[2]))
+    int bad = write_base(sc, argv[2]) || write_rover(sc, argv[2]) || write_benchmarks(sc, argv[2]);
+    proj_destroy(to_ell);
+    if (proj_ctx)
+        proj_context_destroy(proj_ctx);
+    if (bad)
         return 1;
     FILE *f = open_out(argv[2], "scenario.txt");
     if (!f)
