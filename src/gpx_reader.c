@@ -20,6 +20,7 @@
 #define NS_GPX11 "http://www.topografix.com/GPX/1/1"
 #define TEXT_MAX 255
 #define CHUNK 65536
+#define MAX_DEPTH 256
 
 enum capture { CAP_NONE, CAP_ELE, CAP_TIME, CAP_PRES, CAP_TEMP, CAP_RH, CAP_NAME, CAP_GEOID };
 
@@ -272,6 +273,11 @@ static void on_start(void *ctx, const xmlChar *local, const xmlChar *prefix, con
     g->depth++;
     if (g->status)
         return;
+    /* Without a tree libxml2 sets no depth limit; GPX needs about six. */
+    if (g->depth > MAX_DEPTH) {
+        fail(g, HYP_ERR_FORMAT, "elements nested deeper than %d levels; not a GPX track", MAX_DEPTH);
+        return;
+    }
     if (!g->root_seen) {
         start_root(g, local, prefix, uri, nb_ns, ns, nb_attr, attrs);
         return;
@@ -521,7 +527,12 @@ static void on_error(void *ctx, xmlErrorPtr e)
     size_t n = strlen(msg);
     while (n && (msg[n - 1] == '\n' || msg[n - 1] == ' '))
         msg[--n] = '\0';
-    if (g->terminating && g->depth > 0)
+    for (char *p = msg; *p; p++)
+        if (*p == '\n')
+            *p = ' ';
+    /* "extra content" and "premature end" at the last chunk: cut off */
+    int cut = e->code == XML_ERR_DOCUMENT_END || e->code == XML_ERR_TAG_NOT_FINISHED;
+    if (g->terminating && g->depth > 0 && cut)
         hyp_error_set(g->err, HYP_ERR_FORMAT,
                       "%s:%d: the file ends with %d element(s) still open: cut off while being written? (parser: %s)",
                       g->path, e->line, g->depth, msg);
