@@ -369,11 +369,12 @@ static void corrected_heights(hyp__work *w)
 
 /* ---- noise, weather, summary ---- */
 
-static void estimate_noise(hyp__work *w)
+static hyp_status estimate_noise(hyp__work *w)
 {
     hyp_correct_result *r = w->r;
     const double floor_pa = 0.5;   /* below half a pascal the estimate is resolution-limited */
-    r->base_noise_pa = hyp__noise_second_diff(w->bv.t, w->bv.p, NULL, w->bv.n, 3.0 * w->o->max_gap_s);
+    if (hyp__noise_second_diff(w->bv.t, w->bv.p, NULL, w->bv.n, 3.0 * w->o->max_gap_s, &r->base_noise_pa))
+        return HYP_ERR_NOMEM;
     if (!(r->base_noise_pa >= floor_pa))
         r->base_noise_pa = floor_pa;
     double ss = 0, nn = 0;
@@ -386,23 +387,25 @@ static void estimate_noise(hyp__work *w)
     if (nn > 0) {
         double v = ss / nn - r->base_noise_pa * r->base_noise_pa;
         r->rover_noise_pa = sqrt(v > floor_pa * floor_pa ? v : floor_pa * floor_pa);
-        return;
+        return HYP_OK;
     }
     unsigned char *ok = malloc(w->n ? w->n : 1);
-    r->rover_noise_pa = NAN;
-    if (ok) {
-        for (size_t i = 0; i < w->n; i++)
-            ok[i] = w->rv->flag[i] == 0;
-        r->rover_noise_pa = hyp__noise_second_diff(w->rv->time_s, w->rv->pressure_pa, ok, w->n, 3.0 * w->o->max_gap_s);
-        free(ok);
-    }
+    if (!ok)
+        return HYP_ERR_NOMEM;
+    for (size_t i = 0; i < w->n; i++)
+        ok[i] = w->rv->flag[i] == 0;
+    int bad = hyp__noise_second_diff(w->rv->time_s, w->rv->pressure_pa, ok, w->n, 3.0 * w->o->max_gap_s, &r->rover_noise_pa);
+    free(ok);
+    if (bad)
+        return HYP_ERR_NOMEM;
     if (!(r->rover_noise_pa >= floor_pa))
         r->rover_noise_pa = floor_pa;
     hyp_msgs_add(w->msgs, HYP_NOTE, "rover noise %.2f Pa estimated from second differences along the track (no co-location to measure it)",
                  r->rover_noise_pa);
+    return HYP_OK;
 }
 
-static void rapid_periods(hyp__work *w)
+static hyp_status rapid_periods(hyp__work *w)
 {
     hyp_correct_result *r = w->r;
     const hyp__base_view *b = &w->bv;
@@ -421,10 +424,11 @@ static void rapid_periods(hyp__work *w)
         }
         hyp_period *p = realloc(r->rapid, (r->n_rapid + 1) * sizeof *p);
         if (!p)
-            return;
+            return HYP_ERR_NOMEM;
         r->rapid = p;
         r->rapid[r->n_rapid++] = (hyp_period){b->t[i], b->t[i], a};
     }
+    return HYP_OK;
 }
 
 static void summarise(hyp__work *w)
@@ -511,8 +515,10 @@ static hyp_status correct_once(const hyp_series *rover, const hyp_base *base,
             w.dz_ref_m += (res->calibs[k].known_m - base->height_m) / (double)res->n_calibs;
     }
     warn_uncalibrated(&w);
-    estimate_noise(&w);
-    rapid_periods(&w);
+    if (estimate_noise(&w) || rapid_periods(&w)) {
+        st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+        goto out;
+    }
     corrected_heights(&w);
     summarise(&w);
     if (res->n_ok == 0)
@@ -540,7 +546,10 @@ hyp_status hyp_correct_single_base(const hyp_series *rover, const hyp_base *base
         return st;
     double est = NAN, sig = NAN;
     hyp_error cerr;
-    int ok = hyp_estimate_base_clock(rover, base, res, opts->clock_max_lag_s, &est, &sig, &cerr) == HYP_OK;
+    hyp_status cst = hyp_estimate_base_clock(rover, base, res, opts->clock_max_lag_s, &est, &sig, &cerr);
+    if (cst == HYP_ERR_NOMEM)
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    int ok = cst == HYP_OK;
     double applied = base->clock_offset_s;
     if (opts->estimate_clock) {
         hyp_base b2 = *base;

@@ -49,17 +49,24 @@ int hyp_vref_parse(const char *t)
 
 hyp_status hyp_geo_open(hyp_geo **out, hyp_error *err)
 {
+    /* The PROJ context is made on first use: a run that needs no datum or
+     * projection never starts PROJ (distances need only geodesic.h). */
     hyp_geo *g = calloc(1, sizeof *g);
     if (!g)
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    *out = g;
+    return HYP_OK;
+}
+
+static hyp_status ensure_ctx(hyp_geo *g, hyp_error *err)
+{
+    if (g->ctx)
+        return HYP_OK;
     g->ctx = proj_context_create();
-    if (!g->ctx) {
-        free(g);
+    if (!g->ctx)
         return hyp_error_set(err, HYP_ERR_NOMEM, "PROJ: cannot create a context");
-    }
     proj_context_set_enable_network(g->ctx, 0);
     proj_log_level(g->ctx, PJ_LOG_NONE);
-    *out = g;
     return HYP_OK;
 }
 
@@ -69,7 +76,8 @@ void hyp_geo_close(hyp_geo *g)
         return;
     proj_destroy(g->geoid);
     proj_destroy(g->proj);
-    proj_context_destroy(g->ctx);
+    if (g->ctx)
+        proj_context_destroy(g->ctx);
     free(g);
 }
 
@@ -103,6 +111,8 @@ hyp_status hyp_geo_enable_geoid(hyp_geo *g, hyp_error *err)
 {
     if (g->geoid)
         return HYP_OK;
+    if (ensure_ctx(g, err))
+        return err ? err->status : HYP_ERR_NOMEM;
     PJ *src = proj_create(g->ctx, "EPSG:4979"), *dst = proj_create(g->ctx, "EPSG:4326+5773");
     hyp_status st = HYP_OK;
     if (!src || !dst) {
@@ -159,6 +169,8 @@ hyp_status hyp_geo_set_crs(hyp_geo *g, const char *crs, double lat_deg, double l
 {
     char buf[64];
     const char *def = crs;
+    if (ensure_ctx(g, err))
+        return err ? err->status : HYP_ERR_NOMEM;
     if (strcasecmp(crs, "utm") == 0) {
         if (!(fabs(lat_deg) <= 84.0 && fabs(lon_deg) <= 180.0))
             return hyp_error_set(err, HYP_ERR_USAGE, "--crs utm: the track's position %g, %g is outside UTM (80 S to 84 N)", lat_deg, lon_deg);

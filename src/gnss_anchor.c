@@ -32,7 +32,7 @@ static int wline(const double *x, const double *y, const double *w, size_t n, do
  * robust sigmas (Huber, Robust Statistics, 1981; 95 % efficiency at the
  * normal). line = 0 fits a constant. Residuals left in r. */
 static double huber(const double *x, const double *y, size_t n, int line, double *a, double *b, double cov[4],
-                    double *r, double *w)
+                    double *r, double *w, double *tmp)
 {
     double s = 0;
     for (size_t i = 0; i < n; i++)
@@ -52,13 +52,9 @@ static double huber(const double *x, const double *y, size_t n, int line, double
         }
         for (size_t i = 0; i < n; i++)
             r[i] = y[i] - *a - *b * x[i];
-        double *tmp = malloc(n * sizeof *tmp);
-        if (!tmp)
-            break;
         for (size_t i = 0; i < n; i++)
             tmp[i] = fabs(r[i]);
         s = 1.4826 * hyp__median_inplace(tmp, n);
-        free(tmp);
         if (!(s > 0))
             break;
         for (size_t i = 0; i < n; i++)
@@ -102,8 +98,9 @@ hyp_status hyp__gnss_anchor(hyp__work *w)
     size_t n = 0;
     double *x = malloc((w->n ? w->n : 1) * sizeof *x), *y = malloc((w->n ? w->n : 1) * sizeof *y);
     double *r = malloc((w->n ? w->n : 1) * sizeof *r), *wt = malloc((w->n ? w->n : 1) * sizeof *wt);
+    double *tmp = malloc((w->n ? w->n : 1) * sizeof *tmp);
     hyp_status st = HYP_OK;
-    if (!x || !y || !r || !wt) {
+    if (!x || !y || !r || !wt || !tmp) {
         st = HYP_ERR_NOMEM;
         goto out;
     }
@@ -123,7 +120,7 @@ hyp_status hyp__gnss_anchor(hyp__work *w)
      * practice, no source). */
     int line = x[n - 1] - x[0] >= 7200.0;
     double a, b, cov[4];
-    double s = huber(x, y, n, line, &a, &b, cov, r, wt);
+    double s = huber(x, y, n, line, &a, &b, cov, r, wt, tmp);
     double ne = neff(r, n);
     /* cov is for unit-variance independent samples: scale by s^2 and by
      * n / neff for the correlation */
@@ -153,5 +150,6 @@ out:
     free(y);
     free(r);
     free(wt);
+    free(tmp);
     return st;
 }

@@ -98,11 +98,38 @@ static void point_elements(char *buf, size_t n, const hyp_gpx_doc *doc, const hy
     }
 }
 
+/* What a failed src_advance means: -2 the output could not be written, -1
+ * the input ended early; otherwise the byte found was not the one the
+ * reader recorded. */
+static hyp_status advance_error(hyp_error *err, const char *in, int rc, int64_t off);
+
 static hyp_status layout_error(hyp_error *err, const char *in, int64_t off)
 {
     return hyp_error_set(err, HYP_ERR_INTERNAL,
                          "%s: byte %lld is not where the reader placed it (was the file changed while being read?); nothing written",
                          in, (long long)off);
+}
+
+static hyp_status advance_error(hyp_error *err, const char *in, int rc, int64_t off)
+{
+    if (rc == -2)
+        return hyp_error_set(err, HYP_ERR_IO, "write error: %s; nothing written", strerror(errno));
+    if (rc == -1)
+        return hyp_error_set(err, HYP_ERR_IO, "%s: read error or the file was cut short at byte %lld; nothing written", in,
+                             (long long)off);
+    return layout_error(err, in, off);
+}
+
+/* Copies (or skips) to `to`, then checks the byte just consumed (want_last)
+ * or the next one (want_next); 0 for no check. */
+static hyp_status step(src *s, FILE *out, int64_t to, int want_last, int want_next, const char *in, hyp_error *err)
+{
+    int rc = src_advance(s, to, out);
+    if (rc)
+        return advance_error(err, in, rc, to);
+    if ((want_last && s->last != want_last) || (want_next && src_peek(s) != want_next))
+        return layout_error(err, in, to);
+    return HYP_OK;
 }
 
 static hyp_status splice_point(src *s, FILE *out, const char *in, const hyp_gpx_doc *doc,
@@ -113,19 +140,20 @@ static hyp_status splice_point(src *s, FILE *out, const char *in, const hyp_gpx_
     if (L->open_end[i] < 0 || L->ext_ins[i] < 0)
         return HYP_OK;     /* <trkpt .../> without content: nothing to splice */
     int ok = res->status[i] == HYP_PT_OK;
+    hyp_status st;
     if (ok && L->ele_beg[i] >= 0) {
-        if (src_advance(s, L->ele_beg[i], out) || s->last != '>')
-            return layout_error(err, in, L->ele_beg[i]);
+        if ((st = step(s, out, L->ele_beg[i], '>', 0, in, err)))
+            return st;
         fprintf(out, "%.3f", res->height_m[i]);
-        if (src_advance(s, L->ele_end[i], NULL) || src_peek(s) != '<')
-            return layout_error(err, in, L->ele_end[i]);
+        if ((st = step(s, NULL, L->ele_end[i], 0, '<', in, err)))
+            return st;
     } else if (ok) {
-        if (src_advance(s, L->open_end[i], out) || s->last != '>')
-            return layout_error(err, in, L->open_end[i]);
+        if ((st = step(s, out, L->open_end[i], '>', 0, in, err)))
+            return st;
         fprintf(out, "<%s%sele>%.3f</%s%sele>", gp, colon, res->height_m[i], gp, colon);
     }
-    if (src_advance(s, L->ext_ins[i], out) || src_peek(s) != '<')
-        return layout_error(err, in, L->ext_ins[i]);
+    if ((st = step(s, out, L->ext_ins[i], 0, '<', in, err)))
+        return st;
     char el[512];
     point_elements(el, sizeof el, doc, res, i);
     if (L->ext_kind[i] == HYP_EXT_WRAP)
@@ -148,16 +176,18 @@ static hyp_status splice_vref(src *s, FILE *out, const char *in_path, const hyp_
     if (L->version == 10) {
         if (!at_end || L->root_close < 0)
             return HYP_OK;
-        if (src_advance(s, L->root_close, out) || src_peek(s) != '<')
-            return layout_error(err, in_path, L->root_close);
+        hyp_status st = step(s, out, L->root_close, 0, '<', in_path, err);
+        if (st)
+            return st;
         fputs(el, out);
         return HYP_OK;
     }
     if (at_end || L->meta_kind == 3 || L->root_open_end < 0)
         return HYP_OK;
     int64_t at = L->meta_kind ? L->meta_ins : L->root_open_end;
-    if (src_advance(s, at, out) || (L->meta_kind ? src_peek(s) != '<' : s->last != '>'))
-        return layout_error(err, in_path, at);
+    hyp_status st = step(s, out, at, L->meta_kind ? 0 : '>', L->meta_kind ? '<' : 0, in_path, err);
+    if (st)
+        return st;
     if (L->meta_kind == 1)
         fputs(el, out);
     else if (L->meta_kind == 2)
@@ -173,8 +203,10 @@ static hyp_status splice_all(src *s, FILE *out, const char *in_path, const hyp_g
 {
     const hyp_gpx_layout *L = &doc->layout;
     if (!L->has_hyp_ns) {
-        int c;
-        if (src_advance(s, L->root_attr_ins, out) || ((c = src_peek(s)) != '>' && c != '/'))
+        int c, rc = src_advance(s, L->root_attr_ins, out);
+        if (rc)
+            return advance_error(err, in_path, rc, L->root_attr_ins);
+        if ((c = src_peek(s)) != '>' && c != '/')
             return layout_error(err, in_path, L->root_attr_ins);
         fprintf(out, " xmlns:%s=\"%s\"", HYP_GPX_PREFIX, HYP_GPX_NS);
     }
@@ -188,8 +220,9 @@ static hyp_status splice_all(src *s, FILE *out, const char *in_path, const hyp_g
     }
     if (vref && (st = splice_vref(s, out, in_path, L, vref, 1, err)))
         return st;
-    if (src_advance(s, L->file_size, out))
-        return hyp_error_set(err, HYP_ERR_IO, "%s: write error or input cut short", in_path);
+    int rc = src_advance(s, L->file_size, out);
+    if (rc)
+        return advance_error(err, in_path, rc, L->file_size);
     if (src_fill(s))
         return hyp_error_set(err, HYP_ERR_IO, "%s: the file grew since it was read; nothing written", in_path);
     return HYP_OK;

@@ -18,14 +18,15 @@ double hyp__median_inplace(double *v, size_t n)
     return n % 2 ? v[n / 2] : 0.5 * (v[n / 2 - 1] + v[n / 2]);
 }
 
-double hyp__noise_second_diff(const double *t_s, const double *x, const unsigned char *ok,
-                              size_t n, double max_dt_s)
+int hyp__noise_second_diff(const double *t_s, const double *x, const unsigned char *ok,
+                           size_t n, double max_dt_s, double *sigma)
 {
+    *sigma = NAN;
     if (n < 3)
-        return NAN;
+        return 0;
     double *d = malloc((n - 2) * sizeof *d);
     if (!d)
-        return NAN;
+        return -1;
     size_t m = 0;
     for (size_t i = 1; i + 1 < n; i++) {
         if (ok && !(ok[i - 1] && ok[i] && ok[i + 1]))
@@ -44,7 +45,8 @@ double hyp__noise_second_diff(const double *t_s, const double *x, const unsigned
         s = 1.4826 * hyp__median_inplace(d, m) / sqrt(6.0);
     }
     free(d);
-    return s;
+    *sigma = s;
+    return 0;
 }
 
 void hyp__mean_sd_neff(const double *x, size_t n, double *mean, double *sd, double *neff)

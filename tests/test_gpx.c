@@ -215,6 +215,12 @@ static void test_splice_v10(void **state)
     splice_case("v10.gpx", "gpx-1.0.xsd", "http://www.topografix.com/GPX/1/0");
 }
 
+static void test_splice_v11_default_ns(void **state)
+{
+    (void)state;
+    splice_case("v11_default_ns.gpx", "gpx-1.1.xsd", "http://www.topografix.com/GPX/1/1");
+}
+
 static void test_splice_no_namespace(void **state)
 {
     (void)state;
@@ -291,6 +297,7 @@ int main(void)
         cmocka_unit_test(test_read_values),
         cmocka_unit_test(test_splice_v11_prefixed),
         cmocka_unit_test(test_splice_v10),
+        cmocka_unit_test(test_splice_v11_default_ns),
         cmocka_unit_test(test_splice_no_namespace),
         cmocka_unit_test(test_write_new),
     };

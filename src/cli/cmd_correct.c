@@ -13,6 +13,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
+#include <unistd.h>
 
 #define MAX_BASES 16
 #define MAX_WINDOWS 64
@@ -537,15 +538,19 @@ static void budget_row(const hyp_correct_result *r, size_t i, const char *label)
 
 static void print_budget(const hyp_series *s, const hyp_correct_result *r)
 {
-    size_t *idx = malloc((r->n_ok ? r->n_ok : 1) * sizeof *idx), n = 0;
-    if (!idx || !r->n_ok) {
-        free(idx);
+    if (!r->n_ok)
         return;
-    }
+    size_t *idx = malloc(r->n_ok * sizeof *idx), n = 0;
+    if (!idx)
+        return;
     for (size_t i = 0; i < r->count; i++)
         if (r->status[i] == HYP_PT_OK)
             idx[n++] = i;
-    /* the median and the worst point by sigma (selection, not a full sort) */
+    if (!n) {
+        free(idx);
+        return;
+    }
+    /* the median and the worst point by sigma */
     size_t worst = idx[0];
     for (size_t k = 0; k < n; k++)
         if (r->sigma_m[idx[k]] > r->sigma_m[worst])
@@ -686,21 +691,52 @@ static hyp_status write_outputs(const args *a, const char *rover_path, const log
     for (int k = 0; k < 2; k++)
         if (paths[k][0] && strcmp(paths[k], "-") != 0 && same_as_any_input(a, paths[k]))
             return hyp_error_set(err, HYP_ERR_USAGE, "%s: output would overwrite an input; choose another name", paths[k]);
+    for (int k = 0; k < 2; k++) {
+        if (!paths[k][0] || strcmp(paths[k], "-") == 0)
+            continue;
+        struct stat sb;
+        char dir[4096];
+        snprintf(dir, sizeof dir, "%s", paths[k]);
+        char *slash = strrchr(dir, '/');
+        if (slash)
+            *slash = '\0';
+        if (stat(paths[k], &sb) == 0 && S_ISDIR(sb.st_mode))
+            return hyp_error_set(err, HYP_ERR_IO, "%s: is a directory, expected an output file name", paths[k]);
+        if (stat(slash ? (dir[0] ? dir : "/") : ".", &sb) != 0 || !S_ISDIR(sb.st_mode))
+            return hyp_error_set(err, HYP_ERR_IO, "%s: cannot write: the directory does not exist", paths[k]);
+    }
+    /* All or nothing: each output goes to a staging name beside its target
+     * (itself written through a temporary file), and only when every one is
+     * complete are they renamed into place. */
+    char stage[2][4200] = {"", ""};
     hyp_status st = HYP_OK;
     wrote[0] = '\0';
+    for (int k = 0; k < 2; k++)
+        if (paths[k][0] && strcmp(paths[k], "-") != 0)
+            snprintf(stage[k], sizeof stage[k], "%s.new-%ld", paths[k], (long)getpid());
     if (gpx_path[0]) {
         char name[1024];
         stem_of(rover_path, name, sizeof name);
-        st = rv->is_gpx ? hyp_gpx_write_spliced(rover_path, &rv->doc, res, info, gpx_path, err)
-                        : hyp_gpx_write_new(&rv->csv, res, info, name, gpx_path, err);
-        if (st)
-            return st;
-        snprintf(wrote, wn, "%s", gpx_path);
+        st = rv->is_gpx ? hyp_gpx_write_spliced(rover_path, &rv->doc, res, info, stage[0], err)
+                        : hyp_gpx_write_new(&rv->csv, res, info, name, stage[0], err);
     }
+    if (!st && csv_path[0])
+        st = hyp_table_write(log_series(rv), res, info, stage[1][0] ? stage[1] : "-", err);
+    for (int k = 0; k < 2; k++) {
+        if (!stage[k][0])
+            continue;
+        if (st) {
+            unlink(stage[k]);
+        } else if (rename(stage[k], paths[k]) != 0) {
+            st = hyp_error_set(err, HYP_ERR_IO, "%s: cannot rename into place: %s", paths[k], strerror(errno));
+            unlink(stage[k]);
+        }
+    }
+    if (st)
+        return st;
+    if (gpx_path[0])
+        snprintf(wrote, wn, "%s", gpx_path);
     if (csv_path[0]) {
-        st = hyp_table_write(log_series(rv), res, info, csv_path, err);
-        if (st)
-            return st;
         size_t l = strlen(wrote);
         snprintf(wrote + l, wn - l, "%s%s", l ? ", " : "", strcmp(csv_path, "-") ? csv_path : "(table on standard output)");
     }

@@ -11,7 +11,7 @@ function(hyp_cli_case name rc regex)
             "-DARGS=${ARGN}" "-DINPUTS=${HYP_CASE_INPUTS}" "-DGOLDEN=${HYP_CASE_GOLDEN}" "-DGOLDEN_OUT=${HYP_CASE_GOLDEN_OUT}"
             "-DPROJ_DB_ONLY=${HYP_CASE_PROJ_DB_ONLY}"
             -P ${PROJECT_SOURCE_DIR}/tests/cli/run_case.cmake)
-  set_tests_properties(cli_${name} PROPERTIES LABELS cli TIMEOUT 30)
+  set_tests_properties(cli_${name} PROPERTIES LABELS cli TIMEOUT 150)
 endfunction()
 
 set(HYP_CASE_INPUTS @DATA@/rover.gpx @DATA@/base.csv)

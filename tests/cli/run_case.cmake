@@ -32,8 +32,14 @@ if(PROJ_DB_ONLY)
   file(CREATE_LINK "${PROJ_DB_ONLY}" "${WORK}/projdata/proj.db" SYMBOLIC)
   set(envcmd ${CMAKE_COMMAND} -E env PROJ_DATA=${WORK}/projdata)
 endif()
-execute_process(COMMAND ${envcmd} "${EXE}" ${args}
-  RESULT_VARIABLE rc OUTPUT_VARIABLE out ERROR_VARIABLE err TIMEOUT 20)
+# HYP_VALGRIND=1 in the environment runs the program under valgrind's
+# memcheck: any invalid access or definite leak is exit status 99.
+set(vg "")
+if(DEFINED ENV{HYP_VALGRIND} AND NOT "$ENV{HYP_VALGRIND}" STREQUAL "")
+  set(vg valgrind -q --error-exitcode=99 --leak-check=full --errors-for-leak-kinds=definite)
+endif()
+execute_process(COMMAND ${envcmd} ${vg} "${EXE}" ${args}
+  RESULT_VARIABLE rc OUTPUT_VARIABLE out ERROR_VARIABLE err TIMEOUT 120)
 message("exit ${rc}\n--- stderr:\n${err}")
 if(NOT rc STREQUAL "${EXPECT_RC}")
   message(FATAL_ERROR "exit status ${rc}, expected ${EXPECT_RC}")

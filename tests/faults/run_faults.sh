@@ -1,0 +1,78 @@
+#!/usr/bin/env bash
+# Failure paths on purpose, with an LD_PRELOAD shim (failshim.c):
+#  1. every ~300th allocation of a run fails in turn: exit status 0, 1 or 2
+#     (never a signal), a failed run leaves the previous output intact and no
+#     temporary file;
+#  2. writes that fail part-way and an fsync that fails: exit 1 with a
+#     message, previous output intact, no temporary file;
+#  3. SIGKILL at random moments while writing: the final name holds either
+#     the previous output or the complete new one, never a truncated file.
+# usage: run_faults.sh HYPSOLEV SHIM.so HYPSIM DATA_DIR WORK_DIR
+set -u
+exe=$1 shim=$2 sim=$3 data=$4 work=$5
+rm -rf "$work" && mkdir -p "$work"
+fails=0
+bad() { echo "FAIL: $*"; fails=$((fails + 1)); }
+args=(correct "$data/rover.gpx" --base "$data/base.csv" --base-height 812.4 --base-at 46.8,9.9
+      -o "$work/out.gpx" --table "$work/out.csv" -q)
+reset() { echo old > "$work/out.gpx"; echo old > "$work/out.csv"; }
+check_failed_run() {   # $1 label
+  [ "$(cat "$work/out.gpx")" = old ] || bad "$1: previous GPX output changed"
+  [ "$(cat "$work/out.csv")" = old ] || bad "$1: previous table changed"
+  ls "$work" | grep -q 'tmp-' && bad "$1: temporary file left: $(ls "$work")"
+}
+
+# 1. allocation failures
+reset
+total=$(HYP_FAIL_COUNT=1 LD_PRELOAD=$shim "$exe" "${args[@]}" 2>&1 >/dev/null | sed -n 's/^allocations: //p')
+[ -n "$total" ] && [ "$total" -gt 100 ] || bad "could not count allocations ($total)"
+step=$(( ${total:-300} / 300 + 1 ))
+n_fail=0
+for ((n = 1; n <= ${total:-0}; n += step)); do
+  reset
+  HYP_FAIL_MALLOC_AT=$n LD_PRELOAD=$shim "$exe" "${args[@]}" 2> "$work/err"
+  rc=$?
+  if [ $rc -gt 2 ]; then bad "allocation $n of $total: exit $rc: $(head -c 300 "$work/err")"; continue; fi
+  if [ $rc -ne 0 ]; then
+    n_fail=$((n_fail + 1))
+    grep -q . "$work/err" || bad "allocation $n: exit $rc without a message"
+    check_failed_run "allocation $n"
+  fi
+done
+echo "allocation failures: $total allocations, every ${step}th failed in turn, $n_fail runs refused cleanly"
+
+# 2. write failures
+for b in 0 100 8000; do
+  reset
+  HYP_FAIL_FWRITE_AFTER=$b LD_PRELOAD=$shim "$exe" "${args[@]}" 2> "$work/err"
+  rc=$?
+  [ $rc -eq 1 ] || bad "fwrite failing after $b bytes: exit $rc, expected 1"
+  grep -q "write error" "$work/err" || bad "fwrite failing after $b bytes: message: $(cat "$work/err")"
+  check_failed_run "fwrite after $b"
+done
+reset
+HYP_FAIL_FSYNC=1 LD_PRELOAD=$shim "$exe" "${args[@]}" 2> "$work/err"
+rc=$?
+[ $rc -eq 1 ] || bad "fsync failing: exit $rc, expected 1"
+grep -q "write failed: Input/output error; the previous file (if any) is unchanged" "$work/err" || bad "fsync message: $(cat "$work/err")"
+check_failed_run fsync
+echo "write failures: checked"
+
+# 3. SIGKILL while writing a larger track
+mkdir -p "$work/sim" && "$sim" demo "$work/sim" > /dev/null || bad "simulator failed"
+kargs=(correct "$work/sim/rover.gpx" --base "$work/sim/base.csv" --base-height 812.4 --base-at 46.8,9.9 -q)
+"$exe" "${kargs[@]}" -o "$work/ref.gpx" || bad "reference run failed"
+for i in $(seq 1 25); do
+  echo old > "$work/k.gpx"
+  "$exe" "${kargs[@]}" -o "$work/k.gpx" & pid=$!
+  sleep "0.0$(( RANDOM % 60 ))" 2>/dev/null || sleep 0.01
+  kill -9 $pid 2>/dev/null
+  wait $pid 2>/dev/null
+  if [ "$(head -c 3 "$work/k.gpx")" = old ]; then :;
+  elif cmp -s "$work/k.gpx" "$work/ref.gpx"; then :;
+  else bad "kill $i: truncated or foreign output under the final name"; fi
+  rm -f "$work"/k.gpx.tmp-*
+done
+echo "kill -9 while writing: 25 runs checked"
+echo "faults: $((fails == 0 ? 1 : 0)) passed, $((fails == 0 ? 0 : 1)) failed"
+[ $fails -eq 0 ]
