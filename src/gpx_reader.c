@@ -654,7 +654,10 @@ static hyp_status parse_file(gpx_ctx *g, FILE *f)
     g->ctxt = xmlCreatePushParserCtxt(&sax, g, (const char *)buf, (int)n, g->path);
     if (!g->ctxt)
         return hyp_error_set(g->err, HYP_ERR_NOMEM, "%s: out of memory", g->path);
-    xmlCtxtUseOptions(g->ctxt, XML_PARSE_NONET | XML_PARSE_NOWARNING);
+    /* The declared encoding was checked above to be UTF-8 or ASCII (a subset
+     * of UTF-8): ignoring it keeps libxml2 from installing a converter,
+     * under which byte offsets would no longer be the file's. */
+    xmlCtxtUseOptions(g->ctxt, XML_PARSE_NONET | XML_PARSE_NOWARNING | XML_PARSE_IGNORE_ENC);
     int64_t total = (int64_t)n;
     while (!g->status && (n = fread(buf, 1, sizeof buf, f)) > 0) {
         total += (int64_t)n;
