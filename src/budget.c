@@ -54,8 +54,10 @@ static double separation_m(const hyp__work *w, size_t i)
             if (d == d && d < best)
                 best = d;
         }
-    if (best == INFINITY && w->base->lat_deg == w->base->lat_deg)
-        best = hyp_geo_distance_m(la, lo, w->base->lat_deg, w->base->lon_deg);
+    if (best == INFINITY)
+        for (size_t k = 0; k < w->nb; k++)
+            if (w->bases[k].lat_deg == w->bases[k].lat_deg)
+                best = fmin(best, hyp_geo_distance_m(la, lo, w->bases[k].lat_deg, w->bases[k].lon_deg));
     return best == INFINITY ? 0.0 : best;
 }
 
@@ -71,6 +73,14 @@ static double rh_term(const hyp__work *w, size_t i, double dz, double tv)
     return fabs(dz) * fabs(t2 - t1) * (sig / (hi - rh > 0 ? hi - rh : sig)) / tv;
 }
 
+/* Column term outside a calibrated bracket: the single-base prior over the
+ * distance d beyond it. */
+static double prior_term(const hyp__work *w, double d, double tv)
+{
+    double st = hypot(w->tsig_k, w->o->lapse_sigma_k_per_m * 0.5 * d);
+    return fabs(d) * st / tv;
+}
+
 void hyp__budget(hyp__work *w, size_t i, double dz)
 {
     const hyp_correct_opts *o = w->o;
@@ -78,18 +88,41 @@ void hyp__budget(hyp__work *w, size_t i, double dz)
     double c = w->sens[i], tv = r->tcol_k[i], rate = fabs(w->rate[i]);
     double b[HYP_B_COUNT];
     double rn = r->rover_noise_pa, bn = r->base_noise_pa;
-    b[HYP_B_NOISE] = c * sqrt(rn * rn / w->navg[i] + bn * bn);
     b[HYP_B_FIT] = fit_term(w, i, dz, c);
-    /* A column temperature error dT shifts heights by dz dT / Tv; an offset
-     * calibrated at height difference dz_ref absorbs dz_ref dT / Tv of it,
-     * leaving (dz - dz_ref) dT / Tv. */
-    double st = hypot(w->tsig_k, o->lapse_sigma_k_per_m * 0.5 * dz);
-    b[HYP_B_TCOL] = w->tcol_scaled ? 0.0 : fabs(dz - w->dz_ref_m) * st / tv;
+    if (w->method == HYP_METHOD_TWO_BASE) {
+        /* h = hL + dh x: dh/dpL = c (1 - x), dh/dpU = c x (differentiating
+         * the proportion), so each base's noise and the upper base's offset
+         * relative to the lower enter weighted by the position x. */
+        double x = w->xfrac[i];
+        b[HYP_B_NOISE] = c * sqrt(rn * rn / w->navg[i] + (1 - x) * (1 - x) * bn * bn + x * x * bn * bn);
+        double so = r->base_offset_sigma_pa[w->upper];
+        b[HYP_B_FIT] = hypot(b[HYP_B_FIT], c * x * (so == so ? so : 0.0));
+        /* inside the bracket the bases measure the column; a sub-layer's mean
+         * temperature can still depart from the whole layer's (an inversion):
+         * dh x (1 - x) 2 sigma_c / Tv, largest mid-way; outside, the prior
+         * over the distance beyond the nearer base */
+        double dh = w->bases[w->upper].height_m - w->bases[w->ref].height_m;
+        if (x >= 0 && x <= 1)
+            b[HYP_B_TCOL] = dh * x * (1 - x) * 2.0 * o->curvature_sigma_k / tv;
+        else
+            b[HYP_B_TCOL] = prior_term(w, x < 0 ? x * dh : (x - 1) * dh, tv);
+    } else {
+        b[HYP_B_NOISE] = c * sqrt(rn * rn / w->navg[i] + bn * bn);
+        /* A column temperature error dT shifts heights by dz dT / Tv; an
+         * offset calibrated at height difference dz_ref absorbs dz_ref dT / Tv
+         * of it, leaving (dz - dz_ref) dT / Tv. */
+        b[HYP_B_TCOL] = w->tcol_scaled ? 0.0 : prior_term(w, dz - w->dz_ref_m, tv);
+        if (w->method == HYP_METHOD_SINGLE) {
+            double so = r->base_offset_sigma_pa[w->ref];
+            if (so == so && so > 0)
+                b[HYP_B_FIT] = hypot(b[HYP_B_FIT], c * so);
+        }
+    }
     b[HYP_B_RH] = rh_term(w, i, dz, tv);
     b[HYP_B_INTERP] = c * rate * w->dt_base[i] / sqrt(12.0);
     b[HYP_B_CLOCK] = c * rate * o->clock_sigma_s;
     double grad = hypot(o->gradient_sigma_pa_per_m, rate / o->front_speed_m_s);
-    b[HYP_B_HORIZ] = c * grad * separation_m(w, i);
+    b[HYP_B_HORIZ] = c * hypot(grad * separation_m(w, i), w->field_sigma_pa);
     double ss = 0;
     for (int k = 0; k < HYP_B_COUNT; k++) {
         r->budget_m[k][i] = b[k];

@@ -113,14 +113,16 @@ static hyp_status find_near(hyp__work *w, hyp_calib *proto, double lat, double l
     return HYP_OK;
 }
 
+/* bm >= 0: benchmark bm; bm < 0: base -1 - bm (so -1 is the first base). */
 static void proto_for(hyp__work *w, hyp_calib *c, long bm, hyp_calib_how how)
 {
     memset(c, 0, sizeof *c);
     c->how = how;
     if (bm < 0) {
+        const hyp_base *b = &w->bases[-1 - bm];
         c->kind = HYP_CAL_BASE;
-        snprintf(c->name, sizeof c->name, "base");
-        c->known_m = w->base->height_m;
+        snprintf(c->name, sizeof c->name, "%s", w->nb > 1 ? b->name : "base");
+        c->known_m = b->height_m;
         c->known_sigma_m = 0.0;
     } else {
         const hyp_benchmarks *b = w->o->benchmarks;
@@ -250,11 +252,17 @@ hyp_status hyp__find_calibrations(hyp__work *w, hyp_error *err)
     if (!buf)
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     hyp_status st = explicit_windows(w, buf, err);
-    int base_pos = w->base->lat_deg == w->base->lat_deg && w->rv->has_position;
-    if (!st && o->auto_colocate && o->n_colocate == 0 && base_pos) {
+    int base_pos = 0;
+    for (size_t k = 0; k < w->nb && !st; k++) {
+        const hyp_base *b = &w->bases[k];
+        if (!(b->lat_deg == b->lat_deg && w->rv->has_position))
+            continue;
+        base_pos = 1;
+        if (!(o->auto_colocate && o->n_colocate == 0))
+            continue;
         hyp_calib proto;
-        proto_for(w, &proto, -1, HYP_HOW_POSITION);
-        if (find_near(w, &proto, w->base->lat_deg, w->base->lon_deg, o->coloc_radius_m, o->coloc_min_s, buf))
+        proto_for(w, &proto, -1 - (long)k, HYP_HOW_POSITION);
+        if (find_near(w, &proto, b->lat_deg, b->lon_deg, o->coloc_radius_m, o->coloc_min_s, buf))
             st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     }
     if (!st && o->benchmarks && waypoint_ties(w, buf))

@@ -41,6 +41,34 @@ void hyp_correct_opts_init(hyp_correct_opts *o)
     o->clock_max_lag_s = 600.0;
     o->gnss_anchor = 1;
     o->gnss_bias_sigma_m = 1.0;
+    o->method = HYP_METHOD_AUTO;
+    o->base_colocate.start_s = o->base_colocate.end_s = NAN;
+    o->extrapolate_min_m = 100.0;
+    o->extrapolate_frac = 0.25;
+    o->curvature_sigma_k = 1.0;
+    o->qnh_sigma_pa = 50.0;
+}
+
+void hyp_base_init(hyp_base *b, const hyp_series *log, const char *name, double height_m)
+{
+    memset(b, 0, sizeof *b);
+    b->log = log;
+    b->name = name;
+    b->height_m = height_m;
+    b->lat_deg = b->lon_deg = NAN;
+    b->kind = HYP_BASE_STATION;
+    b->offset_pa = NAN;
+}
+
+const char *hyp_method_name(hyp_method m)
+{
+    switch (m) {
+    case HYP_METHOD_AUTO: return "automatic";
+    case HYP_METHOD_SINGLE: return "single base";
+    case HYP_METHOD_TWO_BASE: return "two-base";
+    case HYP_METHOD_FIELD: return "pressure field";
+    }
+    return "?";
 }
 
 void hyp_correct_result_init(hyp_correct_result *r)
@@ -60,6 +88,7 @@ void hyp_correct_result_free(hyp_correct_result *r)
         free(r->budget_m[k]);
     free(r->calibs);
     free(r->rapid);
+    free(r->extrapolated);
     hyp_correct_result_init(r);
 }
 
@@ -71,6 +100,7 @@ const char *hyp_point_status_text(hyp_point_status s)
     case HYP_PT_OUTSIDE_BASE: return "time outside the base log";
     case HYP_PT_BASE_GAP: return "gap in the base log";
     case HYP_PT_NO_CONVERGE: return "height could not be computed";
+    case HYP_PT_EXTRAPOLATION: return "too far outside the two bases' heights";
     case HYP_PT_STATUS_COUNT: break;
     }
     return "unknown";
@@ -83,14 +113,22 @@ static double *dalloc(size_t n)
     return malloc((n ? n : 1) * sizeof(double));
 }
 
-static void work_free(hyp__work *w)
+void hyp__base_view_free(hyp__base_view *b)
 {
-    hyp__base_view *b = &w->bv;
     free(b->t);
     free(b->p);
     free(b->temp);
     free(b->rh);
     free(b->rate);
+    memset(b, 0, sizeof *b);
+}
+
+static void work_free(hyp__work *w)
+{
+    for (size_t k = 0; k < HYP__MAX_BASES; k++)
+        hyp__base_view_free(&w->bvs[k]);
+    free(w->pU);
+    free(w->xfrac);
     free(w->pr);
     free(w->navg);
     free(w->rate);
@@ -105,10 +143,10 @@ static void work_free(hyp__work *w)
 
 static hyp_status work_alloc(hyp__work *w)
 {
-    size_t n = w->n, m = w->base->log->count;
-    hyp__base_view *b = &w->bv;
+    size_t n = w->n;
     hyp_correct_result *r = w->r;
-    b->t = dalloc(m), b->p = dalloc(m), b->temp = dalloc(m), b->rh = dalloc(m), b->rate = dalloc(m);
+    w->pU = dalloc(n), w->xfrac = dalloc(n);
+    r->extrapolated = calloc(n ? n : 1, 1);
     w->pr = dalloc(n), w->navg = dalloc(n), w->rate = dalloc(n), w->dt_base = dalloc(n);
     w->tb = dalloc(n), w->rhb = dalloc(n), w->rhr = dalloc(n);
     w->raw = dalloc(n), w->sens = dalloc(n), w->tv = dalloc(n);
@@ -116,7 +154,7 @@ static hyp_status work_alloc(hyp__work *w)
     r->height_m = dalloc(n), r->sigma_m = dalloc(n), r->base_p_pa = dalloc(n);
     r->offset_pa = dalloc(n), r->tcol_k = dalloc(n);
     r->status = malloc(n ? n : 1);
-    int bad = !b->t || !b->p || !b->temp || !b->rh || !b->rate || !w->pr || !w->navg || !w->rate ||
+    int bad = !w->pU || !w->xfrac || !r->extrapolated || !w->pr || !w->navg || !w->rate ||
               !w->dt_base || !w->tb || !w->rhb || !w->rhr || !w->raw || !w->sens || !w->tv ||
               !r->height_m || !r->sigma_m || !r->base_p_pa || !r->offset_pa || !r->tcol_k || !r->status;
     for (int k = 0; k < HYP_B_COUNT; k++)
@@ -157,21 +195,30 @@ static void base_rates(hyp__base_view *b)
     }
 }
 
-static hyp_status base_view_make(hyp__work *w, hyp_error *err)
+hyp_status hyp__base_view_make(const hyp_base *base, hyp__base_view *b, const hyp_correct_opts *o, hyp_error *err)
 {
-    const hyp_series *s = w->base->log;
-    hyp__base_view *b = &w->bv;
+    const hyp_series *s = base->log;
+    size_t m = s->count;
+    memset(b, 0, sizeof *b);
+    b->t = dalloc(m), b->p = dalloc(m), b->temp = dalloc(m), b->rh = dalloc(m), b->rate = dalloc(m);
+    if (!b->t || !b->p || !b->temp || !b->rh || !b->rate)
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    double off = base->offset_pa == base->offset_pa ? base->offset_pa : 0.0;
     for (size_t i = 0; i < s->count; i++) {
         if (s->flag[i])
             continue;
-        b->t[b->n] = s->time_s[i] - w->base->clock_offset_s;
-        b->p[b->n] = s->pressure_pa[i];
+        double p = s->pressure_pa[i];
+        if (base->kind == HYP_BASE_QNH)   /* ICAO standard-atmosphere reduction */
+            p = hyp_station_from_qnh_pa(p, base->height_m);
+        b->t[b->n] = s->time_s[i] - base->clock_offset_s;
+        b->p[b->n] = p - off;
         b->temp[b->n] = s->temp_k[i];
         b->rh[b->n] = s->rh_pct[i];
         b->n++;
     }
+    (void)o;
     if (b->n < 2)
-        return hyp_error_set(err, HYP_ERR_NODATA, "%s: fewer than two usable base samples", w->base->name);
+        return hyp_error_set(err, HYP_ERR_NODATA, "%s: fewer than two usable base samples", base->name);
     base_rates(b);
     return HYP_OK;
 }
@@ -184,6 +231,17 @@ static double lerp(const double *v, size_t k, double w)
     if (b != b)
         return a;
     return a + w * (b - a);
+}
+
+static hyp_point_status bracket(const hyp__base_view *b, double x, double max_gap_s, size_t *k, double *w);
+
+hyp_point_status hyp__base_at(const hyp__base_view *b, const double *v, double x, double max_gap_s, double *out)
+{
+    size_t k;
+    double f;
+    hyp_point_status st = bracket(b, x, max_gap_s, &k, &f);
+    *out = st ? NAN : lerp(v, k, f);
+    return st;
 }
 
 static hyp_point_status bracket(const hyp__base_view *b, double x, double max_gap_s, size_t *k, double *w)
@@ -286,6 +344,18 @@ double hyp__lat(const hyp__work *w, size_t i)
 double hyp__height_above_base(const hyp__work *w, size_t i, double pb, double pr, double *tv_out)
 {
     const hyp_correct_opts *o = w->o;
+    if (w->method == HYP_METHOD_TWO_BASE) {
+        /* h = hL + (hU - hL) ln(pL/p) / ln(pL/pU): the two-base proportion
+         * in log-pressure (the hypsometric equation with the column
+         * temperature the two bases imply). */
+        double pu = w->pU[i], dh = w->bases[w->upper].height_m - w->bases[w->ref].height_m;
+        double l = log(pb / pu);
+        if (!(pb > 0 && pu > 0 && pr > 0) || fabs(l) < 1e-9)
+            return NAN;
+        double g = hyp_gravity_at_height_m_s2(hyp__lat(w, i), w->base->height_m + 0.5 * dh);
+        *tv_out = g * dh / (HYP_RD_J_KG_K * l);
+        return dh * log(pb / pr) / l;
+    }
     double tb = w->tb[i], tr = w->rv->temp_k[i], lat = hyp__lat(w, i);
     double dz = 0.0, tv = NAN;
     if (tb != tb) {
@@ -375,6 +445,8 @@ static hyp_status estimate_noise(hyp__work *w)
     const double floor_pa = 0.5;   /* below half a pascal the estimate is resolution-limited */
     if (hyp__noise_second_diff(w->bv.t, w->bv.p, NULL, w->bv.n, 3.0 * w->o->max_gap_s, &r->base_noise_pa))
         return HYP_ERR_NOMEM;
+    if (w->base->kind == HYP_BASE_QNH)   /* a QNH series: resolution and reduction */
+        r->base_noise_pa = hypot(r->base_noise_pa == r->base_noise_pa ? r->base_noise_pa : 0.0, w->o->qnh_sigma_pa);
     if (!(r->base_noise_pa >= floor_pa))
         r->base_noise_pa = floor_pa;
     double ss = 0, nn = 0;
@@ -451,8 +523,13 @@ static void summarise(hyp__work *w)
     r->base_tendency_pa_s = sxx > 0 ? sxy / sxx : 0.0;
     static const char *tsrc[] = {"base thermometer and lapse rate", "base and rover thermometers",
                                  "mean of lapse-rate and rover estimates", "standard atmosphere"};
-    snprintf(r->method, sizeof r->method, "single base; column temperature from %s%s", tsrc[r->tcol_source],
-             r->drift.has_scale ? ", scaled by the ties" : "");
+    if (w->method == HYP_METHOD_TWO_BASE)
+        snprintf(r->method, sizeof r->method, "two-base (%s and %s); column temperature from the two bases%s",
+                 w->bases[w->ref].name, w->bases[w->upper].name, r->drift.has_scale ? ", scaled by the ties" : "");
+    else
+        snprintf(r->method, sizeof r->method, "%s; column temperature from %s%s",
+                 w->method == HYP_METHOD_FIELD ? "pressure field of the bases" : "single base", tsrc[r->tcol_source],
+                 r->drift.has_scale ? ", scaled by the ties" : "");
 }
 
 static void column_setup(hyp__work *w)
@@ -482,23 +559,34 @@ static void warn_uncalibrated(hyp__work *w)
                      w->base->name, w->o->uncal_offset_sigma_pa, w->o->uncal_offset_sigma_pa / 12.0);
 }
 
-static hyp_status correct_once(const hyp_series *rover, const hyp_base *base,
+static hyp_status correct_once(const hyp_series *rover, const hyp_base *bases, size_t nb,
                                const hyp_correct_opts *opts, hyp_correct_result *res,
                                hyp_msgs *msgs, hyp_error *err)
 {
     hyp_correct_result_free(res);
-    if (!(base->height_m == base->height_m && fabs(base->height_m) < 10000.0))
-        return hyp_error_set(err, HYP_ERR_USAGE, "%s: base height %g m is not a height between -10000 and 10000 m",
-                             base->name, base->height_m);
-    hyp__work w = {.rv = rover, .base = base, .o = opts, .r = res, .msgs = msgs, .n = rover->count};
+    if (nb == 0 || nb > HYP__MAX_BASES)
+        return hyp_error_set(err, HYP_ERR_USAGE, "between 1 and %d bases are needed, %zu given", HYP__MAX_BASES, nb);
+    for (size_t k = 0; k < nb; k++)
+        if (!(bases[k].height_m == bases[k].height_m && fabs(bases[k].height_m) < 10000.0))
+            return hyp_error_set(err, HYP_ERR_USAGE, "%s: base height %g m is not a height between -10000 and 10000 m",
+                                 bases[k].name, bases[k].height_m);
+    hyp__work w = {.rv = rover, .base = &bases[0], .bases = bases, .nb = nb, .o = opts, .r = res, .msgs = msgs,
+                   .n = rover->count, .method = HYP_METHOD_SINGLE};
     hyp_status st = work_alloc(&w);
     if (st) {
         st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
         goto out;
     }
-    if ((st = base_view_make(&w, err)))
+    for (size_t k = 0; k < nb; k++)
+        if ((st = hyp__base_view_make(&bases[k], &w.bvs[k], opts, err)))
+            goto out;
+    w.bv = w.bvs[0];
+    res->n_bases = nb;
+    if ((nb > 1 || opts->method > HYP_METHOD_SINGLE) && (st = hyp__multibase(&w, err)))
         goto out;
     align(&w);
+    if (w.method != HYP_METHOD_SINGLE && (st = hyp__multibase_fill(&w, err)))
+        goto out;
     smooth(&w);
     column_setup(&w);
     raw_heights(&w);
@@ -512,7 +600,7 @@ static hyp_status correct_once(const hyp_series *rover, const hyp_base *base,
     w.tcol_scaled = res->drift.has_scale;
     if (res->drift.kind >= HYP_DRIFT_CONSTANT) {
         for (size_t k = 0; k < res->n_calibs; k++)
-            w.dz_ref_m += (res->calibs[k].known_m - base->height_m) / (double)res->n_calibs;
+            w.dz_ref_m += (res->calibs[k].known_m - w.base->height_m) / (double)res->n_calibs;
     }
     warn_uncalibrated(&w);
     if (estimate_noise(&w) || rapid_periods(&w)) {
@@ -521,6 +609,7 @@ static hyp_status correct_once(const hyp_series *rover, const hyp_base *base,
     }
     corrected_heights(&w);
     summarise(&w);
+    res->method_used = w.method;
     if (res->n_ok == 0)
         st = hyp_error_set(err, HYP_ERR_NODATA,
                            "no rover sample could be corrected (%zu outside the base log's time span, %zu in base gaps, %zu refused by the reader)",
@@ -530,9 +619,9 @@ out:
     return st;
 }
 
-hyp_status hyp_correct_single_base(const hyp_series *rover, const hyp_base *base,
-                                   const hyp_correct_opts *opts, hyp_correct_result *res,
-                                   hyp_msgs *msgs, hyp_error *err)
+hyp_status hyp_correct(const hyp_series *rover, const hyp_base *bases, size_t n_bases,
+                       const hyp_correct_opts *opts, hyp_correct_result *res,
+                       hyp_msgs *msgs, hyp_error *err)
 {
     hyp_correct_opts dflt;
     if (!opts) {
@@ -541,9 +630,11 @@ hyp_status hyp_correct_single_base(const hyp_series *rover, const hyp_base *base
     }
     /* With an estimated clock the first pass only finds the co-locations;
      * its messages would repeat, so they are dropped. */
-    hyp_status st = correct_once(rover, base, opts, res, opts->estimate_clock ? NULL : msgs, err);
-    if (st)
+    int est_clock = opts->estimate_clock && n_bases == 1;
+    hyp_status st = correct_once(rover, bases, n_bases, opts, res, est_clock ? NULL : msgs, err);
+    if (st || n_bases != 1)
         return st;
+    const hyp_base *base = &bases[0];
     double est = NAN, sig = NAN;
     hyp_error cerr;
     hyp_status cst = hyp_estimate_base_clock(rover, base, res, opts->clock_max_lag_s, &est, &sig, &cerr);
@@ -551,17 +642,27 @@ hyp_status hyp_correct_single_base(const hyp_series *rover, const hyp_base *base
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     int ok = cst == HYP_OK;
     double applied = base->clock_offset_s;
-    if (opts->estimate_clock) {
+    if (est_clock) {
         hyp_base b2 = *base;
         if (ok)
             b2.clock_offset_s = applied = est;
         else
             hyp_msgs_add(msgs, HYP_WARNING, "%s: %s; clock offset left at %+.1f s", base->name, cerr.message, base->clock_offset_s);
-        st = correct_once(rover, &b2, opts, res, msgs, err);
+        st = correct_once(rover, &b2, 1, opts, res, msgs, err);
     }
     res->clock_est_ok = ok;
     res->clock_est_s = est;
     res->clock_est_sigma_s = sig;
     res->clock_applied_s = applied;
     return st;
+}
+
+hyp_status hyp_correct_single_base(const hyp_series *rover, const hyp_base *base,
+                                   const hyp_correct_opts *opts, hyp_correct_result *res,
+                                   hyp_msgs *msgs, hyp_error *err)
+{
+    hyp_base b = *base;
+    /* callers that filled the struct by hand before kind/offset existed get
+     * zeros there: a zero offset is no offset */
+    return hyp_correct(rover, &b, 1, opts, res, msgs, err);
 }

@@ -13,9 +13,21 @@ typedef struct hyp__base_view {
     double *rate;      /* hourly tendency at each sample, Pa/s */
 } hyp__base_view;
 
+#define HYP__MAX_BASES 16
+
 typedef struct hyp__work {
     const hyp_series *rv;
-    const hyp_base *base;
+    const hyp_base *base;      /* the reference base: the lower one for two-base,
+                                  a virtual one at h_ref for the field */
+    const hyp_base *bases;     /* all bases as given */
+    size_t nb;
+    hyp_method method;
+    hyp_base virt;             /* the field method's virtual base */
+    hyp__base_view bvs[HYP__MAX_BASES];  /* every base's view (bvs[ref] is bv) */
+    size_t ref, upper;         /* two-base: indices of the lower and upper base */
+    double *pU;                /* two-base: upper base pressure at rover times */
+    double *xfrac;             /* two-base: position in the bracket (0 lower, 1 upper) */
+    double field_sigma_pa;     /* field: scatter of the bases about the field */
     const hyp_correct_opts *o;
     hyp_correct_result *r;
     hyp_msgs *msgs;
@@ -33,6 +45,19 @@ typedef struct hyp__work {
     int tcol_scaled;   /* the column is calibrated by the fitted scale */
     double dz_ref_m;   /* mean height above the base of the calibrations */
 } hyp__work;
+
+/* Fills a base's view: valid samples on true time, QNH reduced to station
+ * pressure, the base's offset removed, hourly tendencies. */
+hyp_status hyp__base_view_make(const hyp_base *b, hyp__base_view *v, const hyp_correct_opts *o, hyp_error *err);
+void hyp__base_view_free(hyp__base_view *v);
+/* Base quantity v (of view b) at true time x; status of the bracket. */
+hyp_point_status hyp__base_at(const hyp__base_view *b, const double *v, double x, double max_gap_s, double *out);
+
+/* Several bases: chooses the method, compares the bases, and prepares the
+ * per-point inputs (two-base: pU, xfrac; field: base_p_pa, tb of a virtual
+ * base at the mean base height). Runs after align(). */
+hyp_status hyp__multibase(hyp__work *w, hyp_error *err);
+hyp_status hyp__multibase_fill(hyp__work *w, hyp_error *err);
 
 /* Height above the base (m) for base pressure pb and rover pressure pr (Pa),
  * with the column of sample i; *tv gets the mean virtual temperature. */

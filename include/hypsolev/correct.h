@@ -29,13 +29,37 @@ typedef enum hyp_tcol_mode {
 
 typedef struct hyp_window { double start_s, end_s; } hyp_window;
 
+typedef enum hyp_base_kind {
+    HYP_BASE_STATION = 0,    /* the log holds the station's own pressure */
+    HYP_BASE_QNH = 1         /* the log holds sea-level pressure (QNH) of a
+                                weather station at height_m */
+} hyp_base_kind;
+
 typedef struct hyp_base {
     const hyp_series *log;
     const char *name;        /* for messages (file name) */
     double height_m;         /* known height of the base sensor, m */
     double lat_deg, lon_deg; /* NaN when not given */
     double clock_offset_s;   /* s the base logger's clock is ahead of true time */
+    hyp_base_kind kind;
+    double offset_pa;        /* this base reads this much high, Pa; NaN: unknown */
+    double offset_sigma_pa;
 } hyp_base;
+
+/* Initialises a base description: no position, no clock offset, station
+ * pressure, offset unknown. */
+void hyp_base_init(hyp_base *b, const hyp_series *log, const char *name, double height_m);
+
+/* How heights are computed from the bases. */
+typedef enum hyp_method {
+    HYP_METHOD_AUTO = 0,     /* one base: single; two bracketing: two-base;
+                                three or more: field */
+    HYP_METHOD_SINGLE = 1,   /* hypsometric from one base (the first) */
+    HYP_METHOD_TWO_BASE = 2, /* log-pressure proportion between two bases */
+    HYP_METHOD_FIELD = 3     /* a pressure field from three or more bases */
+} hyp_method;
+
+const char *hyp_method_name(hyp_method m);
 
 typedef struct hyp_correct_opts {
     double offset_pa;          /* explicit rover-minus-base offset, NaN: none */
@@ -96,6 +120,13 @@ typedef struct hyp_correct_opts {
     const double *gnss_height_m;
     int gnss_anchor;           /* default 1 */
     double gnss_bias_sigma_m;  /* default 1 m (common practice, no source) */
+    /* Several bases. */
+    hyp_method method;         /* default HYP_METHOD_AUTO */
+    hyp_window base_colocate;  /* base loggers side by side (true time); start NaN: none */
+    double extrapolate_min_m;  /* two-base: extrapolate at most max(this, */
+    double extrapolate_frac;   /* frac x the bases' height difference); 100 m, 0.25 */
+    double curvature_sigma_k;  /* two-base: column departing from the bracket's mean, 1 K */
+    double qnh_sigma_pa;       /* a QNH series' own uncertainty, default 50 Pa */
 } hyp_correct_opts;
 
 void hyp_correct_opts_init(hyp_correct_opts *o);
@@ -106,6 +137,7 @@ typedef enum hyp_point_status {
     HYP_PT_OUTSIDE_BASE,   /* the time is outside the base log */
     HYP_PT_BASE_GAP,       /* the base log has a gap longer than max_gap_s */
     HYP_PT_NO_CONVERGE,    /* the height iteration failed */
+    HYP_PT_EXTRAPOLATION,  /* two-base: too far outside the bases' bracket */
     HYP_PT_STATUS_COUNT
 } hyp_point_status;
 
@@ -218,6 +250,17 @@ typedef struct hyp_correct_result {
      * up); clock_applied_s is the offset the heights used. */
     int clock_est_ok;
     double clock_est_s, clock_est_sigma_s, clock_applied_s;
+    /* Several bases: the method used and why; each base's offset applied
+     * (Pa, reads high) and its sigma; whether the bases were compared; the
+     * two-base column temperature the bases imply and the thermometers'. */
+    hyp_method method_used;
+    char method_why[200];
+    size_t n_bases;
+    double base_offset_pa[16], base_offset_sigma_pa[16];
+    int bases_compared;
+    double implied_tcol_k, thermo_tcol_k;
+    size_t n_extrapolated;     /* two-base points outside the bracket, within the limit */
+    uint8_t *extrapolated;     /* per point, 1 when outside the bracket */
     double base_noise_pa;      /* estimated white-noise level of the base */
     double diff_noise_pa;      /* scatter of rover - base in co-locations */
     double rover_noise_pa;     /* rover noise derived from the two above */
@@ -230,6 +273,12 @@ typedef struct hyp_correct_result {
 
 void hyp_correct_result_init(hyp_correct_result *r);
 void hyp_correct_result_free(hyp_correct_result *r);
+
+/* Correction of `rover` against n_bases bases (method by opts->method),
+ * with everything the single-base correction does on top. */
+hyp_status hyp_correct(const hyp_series *rover, const hyp_base *bases, size_t n_bases,
+                       const hyp_correct_opts *opts, hyp_correct_result *res,
+                       hyp_msgs *msgs, hyp_error *err);
 
 /* Single-base correction of `rover` against `base`. Fills `res` (one entry
  * per rover sample). Warnings go to msgs. HYP_ERR_NODATA when no rover

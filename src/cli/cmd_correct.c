@@ -20,8 +20,9 @@
 
 typedef struct base_arg {
     const char *path;
-    double height_m, lat_deg, lon_deg, clock_s;
+    double height_m, lat_deg, lon_deg, clock_s, offset_pa, offset_sigma_pa;
     const char *zone;
+    int qnh;
 } base_arg;
 
 typedef struct args {
@@ -30,7 +31,7 @@ typedef struct args {
     base_arg bases[MAX_BASES];
     int n_bases;
     const char *out, *out_dir, *table, *rover_zone;
-    const char *benchmarks_path, *ties_path, *crs;
+    const char *benchmarks_path, *ties_path, *crs, *bases_coloc_text;
     hyp_vref gnss_ref, known_ref, out_ref;
     int out_ref_set;
     hyp_geo *geo;
@@ -57,6 +58,14 @@ static void help(void)
 "  --base-clock-offset S    seconds the base logger's clock is ahead of true time;\n"
 "                           auto: estimated from co-locations (pressure changes)\n"
 "  --base-time-zone Z       zone of base times that carry none (+HH:MM, UTC, Area/City)\n"
+"  --base-offset PA         this base reads PA high (instrument offset), with\n"
+"  --base-offset-sigma PA   its 1-sigma\n"
+"  --base-qnh               the log holds sea-level pressure (QNH) of a weather\n"
+"                           station at --base-height\n"
+"\n"
+"several bases (repeat --base):\n"
+"  --method M               auto (default), single, two-base or field\n"
+"  --bases-colocated START/END  the base loggers stood side by side then\n"
 "\n"
 "rover-minus-base instrument offset:\n"
 "  --offset PA              offset in Pa (rover reads this much higher than base)\n"
@@ -154,7 +163,7 @@ enum {
     O_COLOC, O_NO_AUTO, O_COLOC_R, O_COLOC_MIN, O_TCOL, O_LAPSE, O_RH, O_GAP, O_PUNIT, O_TUNIT,
     O_PFIELD, O_TFIELD, O_HFIELD, O_TZ, O_OUTDIR, O_TABLE, O_HELP, O_BENCH, O_BENCH_SIG, O_TIES,
     O_TIE_R, O_TIE_MIN, O_SMOOTH, O_GRAD, O_CLOCK_SIG, O_TSIG, O_LSIG, O_GNSS_REF, O_KNOWN_REF,
-    O_OUT_REF, O_CRS, O_NO_ANCHOR
+    O_OUT_REF, O_CRS, O_NO_ANCHOR, O_BASE_OFF, O_BASE_OFF_SIG, O_BASE_QNH, O_BASES_COLOC, O_METHOD
 };
 
 static const struct option longopts[] = {
@@ -199,6 +208,11 @@ static const struct option longopts[] = {
     {"height-crs", required_argument, 0, O_OUT_REF},
     {"crs", required_argument, 0, O_CRS},
     {"no-gnss-anchor", no_argument, 0, O_NO_ANCHOR},
+    {"base-offset", required_argument, 0, O_BASE_OFF},
+    {"base-offset-sigma", required_argument, 0, O_BASE_OFF_SIG},
+    {"base-qnh", no_argument, 0, O_BASE_QNH},
+    {"bases-colocated", required_argument, 0, O_BASES_COLOC},
+    {"method", required_argument, 0, O_METHOD},
     {0, 0, 0, 0},
 };
 
@@ -231,15 +245,27 @@ static int parse_base_opt(args *a, int c, const char *arg)
         b->height_m = b->lat_deg = b->lon_deg = NAN;
         b->clock_s = 0.0;
         b->zone = NULL;
+        b->offset_pa = NAN;
+        b->offset_sigma_pa = 0.0;
+        b->qnh = 0;
         return 0;
     }
     const char *name = c == O_BASE_HEIGHT ? "--base-height" : c == O_BASE_AT ? "--base-at"
-                     : c == O_BASE_CLOCK ? "--base-clock-offset" : "--base-time-zone";
+                     : c == O_BASE_CLOCK ? "--base-clock-offset" : c == O_BASE_OFF ? "--base-offset"
+                     : c == O_BASE_OFF_SIG ? "--base-offset-sigma" : c == O_BASE_QNH ? "--base-qnh" : "--base-time-zone";
     base_arg *b = last_base(a, name);
     if (!b)
         return EXIT_USAGE;
     if (c == O_BASE_HEIGHT)
         return num_opt(name, arg, -500.0, 9000.0, &b->height_m) ? EXIT_USAGE : 0;
+    if (c == O_BASE_OFF)
+        return num_opt(name, arg, -5000.0, 5000.0, &b->offset_pa) ? EXIT_USAGE : 0;
+    if (c == O_BASE_OFF_SIG)
+        return num_opt(name, arg, 0.0, 5000.0, &b->offset_sigma_pa) ? EXIT_USAGE : 0;
+    if (c == O_BASE_QNH) {
+        b->qnh = 1;
+        return 0;
+    }
     if (c == O_BASE_CLOCK) {
         if (strcmp(arg, "auto") == 0) {
             a->copts.estimate_clock = 1;
@@ -279,7 +305,16 @@ static int parse_one(args *a, int c, const char *arg)
     hyp_correct_opts *o = &a->copts;
     switch (c) {
     case O_BASE: case O_BASE_HEIGHT: case O_BASE_AT: case O_BASE_CLOCK: case O_BASE_TZ:
+    case O_BASE_OFF: case O_BASE_OFF_SIG: case O_BASE_QNH:
         return parse_base_opt(a, c, arg);
+    case O_BASES_COLOC: a->bases_coloc_text = arg; return 0;
+    case O_METHOD:
+        if (strcmp(arg, "auto") == 0) o->method = HYP_METHOD_AUTO;
+        else if (strcmp(arg, "single") == 0) o->method = HYP_METHOD_SINGLE;
+        else if (strcmp(arg, "two-base") == 0) o->method = HYP_METHOD_TWO_BASE;
+        else if (strcmp(arg, "field") == 0) o->method = HYP_METHOD_FIELD;
+        else return usage_error("--method \"%s\": expected auto, single, two-base or field", arg);
+        return 0;
     case O_OFFSET: return num_opt("--offset", arg, -5000, 5000, &o->offset_pa) ? EXIT_USAGE : 0;
     case O_OFFSET_SIGMA: return num_opt("--offset-sigma", arg, 0, 5000, &o->offset_sigma_pa) ? EXIT_USAGE : 0;
     case O_COLOC:
@@ -359,11 +394,9 @@ static int check_args(args *a)
         return usage_error("no rover file given");
     if (a->n_bases == 0)
         return usage_error("no --base given: a base station's pressure log is needed");
-    if (a->n_bases > 1)
-        return usage_error("%s bases given: this version corrects against one base; the two-base and field methods are not available yet",
-                           a->n_bases == 2 ? "two" : "several");
-    if (a->bases[0].height_m != a->bases[0].height_m)
-        return usage_error("--base %s has no --base-height", a->bases[0].path);
+    for (int k = 0; k < a->n_bases; k++)
+        if (a->bases[k].height_m != a->bases[k].height_m)
+            return usage_error("--base %s has no --base-height", a->bases[k].path);
     if (!a->out && !a->out_dir && !a->table)
         return usage_error("no output: give -o FILE.gpx, --out-dir DIR or --table FILE");
     if (a->out && a->n_rovers > 1)
@@ -592,23 +625,42 @@ static void print_weather(const hyp_correct_result *r, double rapid_pa_s)
     }
 }
 
-static void print_summary(const char *rover_path, const log_in *rv, const base_arg *ba, const log_in *bl,
+static void print_summary(const char *rover_path, const log_in *rv, const args *a, const log_in *bls,
                           const hyp_correct_result *r, double rapid_pa_s)
 {
     char span[200];
     fprintf(stderr, "hypsolev correct: %s\n", rover_path);
     span_text(log_series(rv), span, sizeof span);
     fprintf(stderr, "  rover     %s; pressure in %s\n", span, hyp_unit_name(rv->punit));
-    span_text(log_series(bl), span, sizeof span);
-    fprintf(stderr, "  base      %s: %s; pressure in %s\n", ba->path, span, hyp_unit_name(bl->punit));
-    fprintf(stderr, "            height %.3f m", ba->height_m);
-    if (ba->lat_deg == ba->lat_deg)
-        fprintf(stderr, ", at %.6f, %.6f deg", ba->lat_deg, ba->lon_deg);
-    fprintf(stderr, ", clock offset %+.1f s applied\n", r->clock_applied_s);
+    for (int k = 0; k < a->n_bases; k++) {
+        const base_arg *ba = &a->bases[k];
+        const log_in *bl = &bls[k];
+        span_text(log_series(bl), span, sizeof span);
+        fprintf(stderr, "  base      %s: %s; %s in %s\n", ba->path, span, ba->qnh ? "QNH" : "pressure", hyp_unit_name(bl->punit));
+        fprintf(stderr, "            height %.3f m", ba->height_m);
+        if (ba->lat_deg == ba->lat_deg)
+            fprintf(stderr, ", at %.6f, %.6f deg", ba->lat_deg, ba->lon_deg);
+        fprintf(stderr, ", clock offset %+.1f s applied", a->n_bases == 1 ? r->clock_applied_s : ba->clock_s);
+        if (a->n_bases > 1)
+            fprintf(stderr, ", instrument offset %+.3f hPa +- %.3f hPa", r->base_offset_pa[k] / 100.0,
+                    r->base_offset_sigma_pa[k] / 100.0);
+        fputc('\n', stderr);
+    }
+    const base_arg *ba = &a->bases[0];
     if (r->clock_est_ok)
         fprintf(stderr, "            clock offset estimated from the co-locations: %+.1f s +- %.1f s%s\n", r->clock_est_s,
                 r->clock_est_sigma_s, ba->clock_s == r->clock_applied_s && !(r->clock_est_s == r->clock_applied_s) ? " (not applied; --base-clock-offset auto applies it)" : "");
     fprintf(stderr, "  method    %s\n", r->method);
+    if (r->method_why[0])
+        fprintf(stderr, "            chosen: %s%s\n", r->method_why,
+                a->n_bases > 1 && !r->bases_compared ? "; the bases were never compared" : "");
+    if (r->method_used == HYP_METHOD_TWO_BASE) {
+        fprintf(stderr, "            column mean virtual temperature the bases imply %.2f degC", r->implied_tcol_k - 273.15);
+        if (r->thermo_tcol_k == r->thermo_tcol_k)
+            fprintf(stderr, ", the thermometers %.2f degC (difference %+.2f K)", r->thermo_tcol_k - 273.15,
+                    r->implied_tcol_k - r->thermo_tcol_k);
+        fprintf(stderr, "\n            %zu points extrapolated outside the bases' heights (flagged in the table)\n", r->n_extrapolated);
+    }
     print_calibrations(r);
     print_drift(r);
     fprintf(stderr, "  noise     rover %.3f hPa, base %.3f hPa (1 sigma, estimated from the data)\n",
@@ -668,7 +720,10 @@ static int same_as_any_input(const args *a, const char *out)
     for (int i = 0; i < a->n_rovers; i++)
         if (hyp_same_file(a->rovers[i], out))
             return 1;
-    return hyp_same_file(a->bases[0].path, out);
+    for (int k = 0; k < a->n_bases; k++)
+        if (hyp_same_file(a->bases[k].path, out))
+            return 1;
+    return 0;
 }
 
 static hyp_status write_outputs(const args *a, const char *rover_path, const log_in *rv,
@@ -803,7 +858,7 @@ static void print_heights(const args *a, const hyp_correct_result *res, const ex
         fprintf(stderr, "  crs       easting/northing in %s\n", x->crs_name);
 }
 
-static int correct_one(args *a, const char *rover_path, const log_in *bl, const hyp_zone *rz)
+static int correct_one(args *a, const char *rover_path, const log_in *bls, const hyp_zone *rz)
 {
     hyp_msgs msgs;
     hyp_msgs_init(&msgs);
@@ -820,13 +875,21 @@ static int correct_one(args *a, const char *rover_path, const log_in *bl, const 
     if (!st)
         st = prepare_extras(a, &rv, &x, &err);
     if (!st) {
-        const base_arg *ba = &a->bases[0];
-        hyp_base base = {.log = log_series(bl), .name = ba->path, .height_m = ba->height_m,
-                         .lat_deg = ba->lat_deg, .lon_deg = ba->lon_deg, .clock_offset_s = ba->clock_s};
+        hyp_base bases[MAX_BASES];
+        for (int k = 0; k < a->n_bases; k++) {
+            const base_arg *ba = &a->bases[k];
+            hyp_base_init(&bases[k], log_series(&bls[k]), ba->path, ba->height_m);
+            bases[k].lat_deg = ba->lat_deg;
+            bases[k].lon_deg = ba->lon_deg;
+            bases[k].clock_offset_s = ba->clock_s;
+            bases[k].offset_pa = ba->offset_pa;
+            bases[k].offset_sigma_pa = ba->offset_sigma_pa;
+            bases[k].kind = ba->qnh ? HYP_BASE_QNH : HYP_BASE_STATION;
+        }
         hyp_correct_opts co = a->copts;
         co.waypoints = rv.is_gpx ? &rv.doc.wpts : NULL;
         co.gnss_height_m = x.gnss_known;
-        st = hyp_correct_single_base(log_series(&rv), &base, &co, &res, &msgs, &err);
+        st = hyp_correct(log_series(&rv), bases, (size_t)a->n_bases, &co, &res, &msgs, &err);
     }
     if (!st)
         st = hyp_heights_convert(a->geo, log_series(&rv), res.height_m, a->known_ref, a->out_ref, &err);
@@ -837,7 +900,7 @@ static int correct_one(args *a, const char *rover_path, const log_in *bl, const 
         st = write_outputs(a, rover_path, &rv, &res, &info, wrote, sizeof wrote, &err);
     print_msgs(&msgs, a->quiet);
     if (!st && !a->quiet) {
-        print_summary(rover_path, &rv, &a->bases[0], bl, &res, a->copts.rapid_pa_per_s);
+        print_summary(rover_path, &rv, a, bls, &res, a->copts.rapid_pa_per_s);
         print_heights(a, &res, &x);
         print_footer(wrote);
     }
@@ -875,9 +938,11 @@ static int run(args *a)
     hyp_error err;
     hyp_msgs msgs;
     hyp_msgs_init(&msgs);
-    log_in bl;
-    hyp_gpx_doc_init(&bl.doc);
-    hyp_series_init(&bl.csv);
+    log_in bls[MAX_BASES];
+    for (int k = 0; k < MAX_BASES; k++) {
+        hyp_gpx_doc_init(&bls[k].doc);
+        hyp_series_init(&bls[k].csv);
+    }
     if (!rc && parse_windows(a, &rz, w, &err)) {
         fprintf(stderr, "hypsolev correct: %s\n", err.message);
         rc = EXIT_USAGE;
@@ -906,26 +971,54 @@ static int run(args *a)
             a->copts.n_ties = n_ties;
         }
     }
-    if (!rc) {
+    if (!rc && a->bases_coloc_text) {
+        hyp_window bw[1];
+        const char *saved[1] = {a->colocate_text[0]};
+        int n = a->n_colocate;
+        a->colocate_text[0] = a->bases_coloc_text;
+        a->n_colocate = 1;
+        hyp_correct_opts keep = a->copts;
+        if (parse_windows(a, &rz, bw, &err)) {
+            fprintf(stderr, "hypsolev correct: --bases-colocated: %s\n", err.message);
+            rc = EXIT_USAGE;
+        }
+        a->copts = keep;
+        a->colocate_text[0] = saved[0];
+        a->n_colocate = n;
+        a->copts.base_colocate = bw[0];
+    }
+    for (int k = 0; !rc && k < a->n_bases; k++) {
+        hyp_zone kz;
+        hyp_zone_init(&kz);
+        if (make_zone(a->bases[k].zone, "--base-time-zone", &kz)) {
+            rc = EXIT_USAGE;
+            break;
+        }
         hyp_read_opts ro = a->ropts;
-        ro.zone = &bz;
+        ro.zone = &kz;
         ro.need_position = 0;
-        if (read_log(a->bases[0].path, &ro, &bl, &msgs, &err)) {
+        if (a->bases[k].qnh)
+            ro.pressure_unit = ro.pressure_unit ? ro.pressure_unit : HYP_UNIT_HPA;
+        if (read_log(a->bases[k].path, &ro, &bls[k], &msgs, &err)) {
             print_msgs(&msgs, a->quiet);
             fprintf(stderr, "hypsolev: error: %s\n", err.message);
             rc = EXIT_INPUT;
         } else
             print_msgs(&msgs, a->quiet);
+        hyp_msgs_free(&msgs);
+        hyp_msgs_init(&msgs);
+        hyp_zone_free(&kz);
     }
     /* One rover's failure is reported and the others still run; the exit
      * status is the worst of them. */
     int base_ok = rc == 0;
     for (int i = 0; base_ok && i < a->n_rovers; i++) {
-        int r = correct_one(a, a->rovers[i], &bl, &rz);
+        int r = correct_one(a, a->rovers[i], bls, &rz);
         if (r > rc)
             rc = r;
     }
-    log_free(&bl);
+    for (int k = 0; k < MAX_BASES; k++)
+        log_free(&bls[k]);
     hyp_geo_close(a->geo);
     a->geo = NULL;
     hyp_benchmarks_free(&bms);
