@@ -46,7 +46,7 @@ void hyp_correct_opts_init(hyp_correct_opts *o)
     o->extrapolate_min_m = 100.0;
     o->extrapolate_frac = 0.25;
     o->curvature_sigma_k = 1.0;
-    o->qnh_sigma_pa = 50.0;
+    o->qnh_sigma_pa = 100.0 / sqrt(12.0);   /* 1 hPa reporting resolution, uniform */
 }
 
 void hyp_base_init(hyp_base *b, const hyp_series *log, const char *name, double height_m)
@@ -416,6 +416,14 @@ static void corrected_heights(hyp__work *w)
             continue;
         }
         dz *= 1.0 + d->scale;
+        if (w->method == HYP_METHOD_TWO_BASE) {
+            /* the place in the bracket, from the corrected height; outside
+             * by more than a metre counts as extrapolated */
+            double dh = w->bases[w->upper].height_m - w->bases[w->ref].height_m;
+            w->xfrac[i] = dz / dh;
+            r->extrapolated[i] = dz < -1.0 || dz > dh + 1.0;
+            r->n_extrapolated += r->extrapolated[i];
+        }
         if (d->kind == HYP_DRIFT_GNSS)
             dz += d->gnss_a_m + d->gnss_b_m_per_s * (w->rv->time_s[i] - d->gnss_t0_s);
         r->height_m[i] = w->base->height_m + dz;
@@ -585,9 +593,9 @@ static hyp_status correct_once(const hyp_series *rover, const hyp_base *bases, s
     if ((nb > 1 || opts->method > HYP_METHOD_SINGLE) && (st = hyp__multibase(&w, err)))
         goto out;
     align(&w);
+    smooth(&w);
     if (w.method != HYP_METHOD_SINGLE && (st = hyp__multibase_fill(&w, err)))
         goto out;
-    smooth(&w);
     column_setup(&w);
     raw_heights(&w);
     if ((st = hyp__find_calibrations(&w, err)) || (st = hyp__fit_drift(&w, err)))
@@ -612,8 +620,9 @@ static hyp_status correct_once(const hyp_series *rover, const hyp_base *bases, s
     res->method_used = w.method;
     if (res->n_ok == 0)
         st = hyp_error_set(err, HYP_ERR_NODATA,
-                           "no rover sample could be corrected (%zu outside the base log's time span, %zu in base gaps, %zu refused by the reader)",
-                           res->n_status[HYP_PT_OUTSIDE_BASE], res->n_status[HYP_PT_BASE_GAP], res->n_status[HYP_PT_REFUSED]);
+                           "no rover sample could be corrected (%zu outside the base log's time span, %zu in base gaps, %zu refused by the reader, %zu too far outside the bases' heights, %zu not computable)",
+                           res->n_status[HYP_PT_OUTSIDE_BASE], res->n_status[HYP_PT_BASE_GAP], res->n_status[HYP_PT_REFUSED],
+                           res->n_status[HYP_PT_EXTRAPOLATION], res->n_status[HYP_PT_NO_CONVERGE]);
 out:
     work_free(&w);
     return st;

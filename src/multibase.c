@@ -280,8 +280,6 @@ static void fill_two_base(hyp__work *w)
             r->status[i] = HYP_PT_EXTRAPOLATION;
             continue;
         }
-        r->extrapolated[i] = x < 0.0 || x > 1.0;
-        r->n_extrapolated += r->extrapolated[i];
         /* the column the bases imply, and the thermometers' */
         double g = hyp_gravity_at_height_m_s2(hyp__lat(w, i), w->bases[w->ref].height_m + 0.5 * dh);
         tsum += g * dh / (HYP_RD_J_KG_K * log(pl / w->pU[i]));

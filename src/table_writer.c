@@ -57,7 +57,8 @@ hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res, c
             num(f, info->northing_m[i], 3);
         }
         const char *why = res->status[i] == HYP_PT_REFUSED ? hyp_sample_flag_text((hyp_sample_flag)s->flag[i])
-                                                            : hyp_point_status_text((hyp_point_status)res->status[i]);
+                          : res->extrapolated && res->extrapolated[i] ? "ok, extrapolated outside the bases' heights"
+                                                                      : hyp_point_status_text((hyp_point_status)res->status[i]);
         fprintf(f, ",%s\n", why);
     }
     return hyp__out_commit(&o, err);

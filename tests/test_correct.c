@@ -138,12 +138,55 @@ static void test_drift_gap_outside(void **state)
     hyp_msgs_free(&m);
 }
 
+/* The two-base proportion h = hL + (hU - hL) ln(pL/p) / ln(pL/pU), by hand
+ * for hL = 500 m at 95000 Pa, hU = 1500 m at 85000 Pa, p = 90000 Pa:
+ * ln(95/90) = 0.0540672, ln(95/85) = 0.1112256, ratio 0.4861040, so
+ * h = 500 + 486.104 = 986.104 m (hand calculation of the published
+ * two-base relation). */
+static void test_two_base_proportion(void **state)
+{
+    (void)state;
+    hyp_series lo, hi, rover;
+    hyp_series_init(&lo);
+    hyp_series_init(&hi);
+    hyp_series_init(&rover);
+    for (int i = 0; i < 20; i++) {
+        push(&lo, T0 - 300 + 60.0 * i, 95000.0, 288.0, 45.0, 7.0);
+        push(&hi, T0 - 300 + 60.0 * i, 85000.0, 282.0, 45.01, 7.0);
+    }
+    for (int i = 0; i < 5; i++)
+        push(&rover, T0 + 60.0 * i, 90000.0, NAN, 45.005, 7.0);
+    hyp_base b[2];
+    hyp_base_init(&b[0], &lo, "low", 500.0);
+    hyp_base_init(&b[1], &hi, "high", 1500.0);
+    b[0].offset_pa = b[1].offset_pa = 0.0;   /* compared beforehand */
+    hyp_correct_opts o;
+    hyp_correct_opts_init(&o);
+    o.offset_pa = 0.0;
+    hyp_correct_result r;
+    hyp_correct_result_init(&r);
+    hyp_error err;
+    assert_int_equal(hyp_correct(&rover, b, 2, &o, &r, NULL, &err), HYP_OK);
+    assert_int_equal(r.method_used, HYP_METHOD_TWO_BASE);
+    print_message("two-base: %.4f m (hand 986.1040)\n", r.height_m[2]);
+    assert_true(fabs(r.height_m[2] - 986.1040) < 1e-3);
+    assert_true(r.bases_compared);
+    /* the column the bases imply: g dh / (Rd ln(pL/pU)) with g at 1000 m */
+    double g = hyp_gravity_at_height_m_s2(45.005, 1000.0);
+    assert_true(fabs(r.implied_tcol_k - g * 1000.0 / (HYP_RD_J_KG_K * log(95000.0 / 85000.0))) < 1e-6);
+    hyp_correct_result_free(&r);
+    hyp_series_free(&lo);
+    hyp_series_free(&hi);
+    hyp_series_free(&rover);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_reproduces_ussa),
         cmocka_unit_test(test_base_clock_offset),
         cmocka_unit_test(test_drift_gap_outside),
+        cmocka_unit_test(test_two_base_proportion),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -126,7 +126,8 @@ typedef struct hyp_correct_opts {
     double extrapolate_min_m;  /* two-base: extrapolate at most max(this, */
     double extrapolate_frac;   /* frac x the bases' height difference); 100 m, 0.25 */
     double curvature_sigma_k;  /* two-base: column departing from the bracket's mean, 1 K */
-    double qnh_sigma_pa;       /* a QNH series' own uncertainty, default 50 Pa */
+    double qnh_sigma_pa;       /* a QNH series' own uncertainty, default 29 Pa: its 1 hPa
+                                  reporting resolution as a uniform error */
 } hyp_correct_opts;
 
 void hyp_correct_opts_init(hyp_correct_opts *o);
@@ -268,7 +269,7 @@ typedef struct hyp_correct_result {
     int tcol_source;           /* 0 base + lapse, 1 rover, 2 both, 3 standard
                                   atmosphere (no thermometer at all) */
     double base_tendency_pa_s; /* least-squares trend of base pressure */
-    char method[96];           /* what was done, one line */
+    char method[240];          /* what was done, one line */
 } hyp_correct_result;
 
 void hyp_correct_result_init(hyp_correct_result *r);

@@ -110,3 +110,9 @@ hyp_cli_case(hostile_not_a_directory 1 "base.csv/x: cannot open: Not a directory
 hyp_cli_case(hostile_table_is_input 2 "rover.gpx: output would overwrite an input" correct ${R} ${B} --table @DATA@/rover.gpx)
 hyp_cli_case(hostile_output_is_directory 1 "is a directory, expected an output file name" correct ${R} ${B} -o @DATA@)
 hyp_cli_case(hostile_empty_gpx_text 1 "empty file" correct @DATA@/bad/empty.csv ${B} ${O})
+
+# several bases
+hyp_cli_case(bad_method 2 "--method \"three\": expected auto, single, two-base or field" correct ${R} ${B} ${O} --method three)
+hyp_cli_case(two_base_forced_one 2 "the two-base method needs exactly two bases" correct ${R} ${B} ${O} --method two-base)
+hyp_cli_case(field_needs_positions 2 "the field method needs every base's position" correct ${R} ${B} --base @DATA@/base.csv --base-height 900 --base @DATA@/base.csv --base-height 950 ${O})
+hyp_cli_case(base_offset_option 0 "instrument offset \\+0.500 hPa" correct ${R} ${B} --base @DATA@/base.csv --base-height 900 --base-offset 50 ${O} --method single)

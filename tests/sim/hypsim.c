@@ -7,7 +7,8 @@
  *
  *   hypsim SCENARIO OUTDIR [--seed N] [--lapse K_PER_KM] [--gnss-bias M]
  *          [--gnss-heights geoid|ellipsoidal]
- *   scenarios: demo, calm, ties, front, faraway, clock, warm
+ *   scenarios: demo, calm, ties, front, faraway, clock, twobase, threebase,
+ *   qnh, warm
  *
  * Writes OUTDIR/rover.gpx, OUTDIR/base.csv, OUTDIR/truth.csv and
  * OUTDIR/scenario.txt (the parameters), and OUTDIR/benchmarks.csv where the
@@ -50,6 +51,15 @@ typedef struct scenario {
     double base_clock_s;            /* base logger clock ahead of true time */
     double front_pa, front_kmh, front_dir_deg, front_t_s, front_km; /* a moving pressure step */
     double micro_pa, micro_tau_s;   /* small pressure waves seen alike everywhere nearby */
+    /* more bases: position from the main base (km), height, instrument
+     * offset; coloc_first: the logger starts beside the main base (from 2 h
+     * to 1.5 h before the start) and is then carried to its site */
+    int n_extra;
+    struct xbase { double east_km, north_km, h, off_pa; int coloc_first; } extra[3];
+    double inv_dt_k, inv_depth_m, inv_end_s;   /* a morning inversion above the main base */
+    double grad_rot_deg_h;          /* the gradient turns this fast */
+    int no_rover_temp;              /* the rover logs no temperature */
+    double qnh_east_km, qnh_north_km, qnh_h, qnh_dt_s; /* a weather station's QNH series */
 } scenario;
 
 static const scenario scenarios[] = {
@@ -92,6 +102,31 @@ static const scenario scenarios[] = {
      101200, -1.5, 0.0, 0.0, 290.0, -6.5, 2.0, 70, -8,
      30.0, 3.0, 2.5, 1.0, 0.0, 1.2, 1.0, 2.5, 4.0, 400,
      .base_clock_s = 90.0, .micro_pa = 4.0, .micro_tau_s = 240.0},
+    /* a low and a high base bracketing the walk, a morning inversion (+4 K
+     * over the 250 m above the low base, mixed out by 10:00), a rover with
+     * no thermometer; the high logger starts beside the low one */
+    {"twobase", 46.80, 9.90, 812.4, 1750.0, 6.0, 1781766000.0,
+     900, 900, 1.0, 5, 30,
+     101500, -0.3, 0.0, 0.0, 288.0, -6.0, 2.0, 70, -8,
+     35.0, 3.0, 2.5, 1.0, 0.0, 1.2, 1.0, 2.5, 4.0, 400,
+     .n_extra = 1, .extra = {{4.7, 3.5, 1745.0, 60.0, 1}},
+     .inv_dt_k = 4.0, .inv_depth_m = 250.0, .inv_end_s = 3 * 3600.0, .no_rover_temp = 1},
+    /* three bases around the area, a 2 hPa/100 km gradient turning 20
+     * degrees an hour; the loggers start side by side */
+    {"threebase", 46.80, 9.90, 812.4, 1600.0, 6.0, 1781766000.0,
+     900, 900, 1.0, 5, 30,
+     101500, -0.4, 0.02, 0.0, 289.0, -6.3, 2.0, 70, -8,
+     35.0, 3.0, 2.5, 1.0, 0.0, 1.2, 1.0, 2.5, 4.0, 400,
+     .n_extra = 2, .extra = {{9.0, -3.0, 1020.0, -40.0, 1}, {2.0, 9.0, 640.0, 25.0, 1}},
+     .grad_rot_deg_h = 20.0},
+    /* no base logger: a weather station 20 km away reports QNH every half
+     * hour to 1 hPa; the rover starts and ends on the trailhead benchmark */
+    {"qnh", 46.80, 9.90, 812.4, 1700.0, 6.0, 1781766000.0,
+     900, 900, 1.0, 5, 30,
+     101400, -0.5, 0.01, 0.01, 289.0, -6.4, 2.0, 70, -8,
+     35.0, 3.0, 2.5, 1.0, 0.0, 1.2, 1.0, 2.5, 4.0, 400,
+     .th_h = 812.4, .th_is_benchmark = 1,
+     .qnh_east_km = -14.0, .qnh_north_km = -14.0, .qnh_h = 600.0, .qnh_dt_s = 1800.0},
     /* the rover's thermometer warmed 5 K by the body while walking; a warm
      * afternoon with a steep lapse rate (-7.6 K/km) */
     {"warm", 46.80, 9.90, 812.4, 1900.0, 7.0, 1781766000.0,
@@ -130,7 +165,16 @@ static double air_temp(const scenario *sc, double z, double t)
 {
     double hour = fmod((t / 3600.0), 24.0);
     double diurnal = sc->diurnal_k * sin(2.0 * M_PI * (hour - 9.0) / 24.0);
-    return sc->t_sl_k + diurnal + sc->lapse_k_km * z / 1000.0;
+    double inv = 0.0;
+    if (sc->inv_dt_k != 0.0) {
+        /* warmer air above the base: +dT reached at the inversion's top,
+         * fading out by inv_end_s after the start */
+        double f = 1.0 - (t - sc->t0) / sc->inv_end_s, dz = (z - sc->base_h) / sc->inv_depth_m;
+        f = f < 0 ? 0 : f > 1 ? 1 : f;
+        dz = dz < 0 ? 0 : dz > 1 ? 1 : dz;
+        inv = sc->inv_dt_k * f * dz;
+    }
+    return sc->t_sl_k + diurnal + sc->lapse_k_km * z / 1000.0 + inv;
 }
 
 static double air_rh(const scenario *sc, double z)
@@ -148,8 +192,14 @@ static double sim_es(double tk)
 
 static double sea_level_pressure(const scenario *sc, double east_km, double north_km, double t)
 {
+    double ge = sc->grad_pa_km_e, gn = sc->grad_pa_km_n;
+    if (sc->grad_rot_deg_h != 0.0) {
+        double a = sc->grad_rot_deg_h * (t - sc->t0) / 3600.0 * M_PI / 180.0;
+        double e2 = ge * cos(a) - gn * sin(a), n2 = ge * sin(a) + gn * cos(a);
+        ge = e2, gn = n2;
+    }
     double p = sc->slp_pa + sc->trend_pa_h * 100.0 * (t - sc->t0) / 3600.0 +
-               sc->grad_pa_km_e * 100.0 * east_km + sc->grad_pa_km_n * 100.0 * north_km;
+               ge * 100.0 * east_km + gn * 100.0 * north_km;
     if (sc->front_pa != 0.0) {
         /* a pressure step of width front_km moving towards front_dir_deg */
         double a = sc->front_dir_deg * M_PI / 180.0;
@@ -359,7 +409,10 @@ static int write_base(const scenario *sc, const char *dir)
     fprintf(f, "# base logger at the trailhead (simulated, scenario %s)\n", sc->name);
     fprintf(f, "time,pressure [hPa],temperature [degC],humidity [%%]\n");
     double t_end = sc->t0 + total_s(sc) + 1800;
-    for (double t = sc->t0 - 1800; t <= t_end; t += sc->base_dt) {
+    int early = 0;   /* the main base logs from when other loggers stand beside it */
+    for (int k = 0; k < sc->n_extra; k++)
+        early |= sc->extra[k].coloc_first;
+    for (double t = sc->t0 - (early ? 7200 : 1800); t <= t_end; t += sc->base_dt) {
         double p = true_pressure(sc, sc->lat0, 0, 0, sc->base_h, t);
         double pm = quant(p + sc->base_off_pa + sc->base_noise_pa * nrand(), sc->base_q_pa);
         double tk = air_temp(sc, sc->base_h, t) + 0.2 * nrand();
@@ -368,6 +421,60 @@ static int write_base(const scenario *sc, const char *dir)
         fprintf(f, "%s,%.2f,%.2f,%.1f\n", ts, pm / 100.0, tk - 273.15, air_rh(sc, sc->base_h));
     }
     return fclose(f) != 0;
+}
+
+/* Further base loggers; base2.csv, base3.csv, ... */
+static int write_extra_bases(const scenario *sc, const char *dir)
+{
+    for (int k = 0; k < sc->n_extra; k++) {
+        const struct xbase *x = &sc->extra[k];
+        char name[32];
+        snprintf(name, sizeof name, "base%d.csv", k + 2);
+        FILE *f = open_out(dir, name);
+        if (!f)
+            return 1;
+        double lat, lon;
+        latlon(sc, x->east_km, x->north_km, &lat, &lon);
+        fprintf(f, "# base logger %d at %.6f, %.6f, %.1f m (simulated, scenario %s)\n", k + 2, lat, lon, x->h, sc->name);
+        fprintf(f, "time,pressure [hPa],temperature [degC],humidity [%%]\n");
+        double t_end = sc->t0 + total_s(sc) + 1800;
+        double t = x->coloc_first ? sc->t0 - 7200 : sc->t0 - 1800;
+        for (; t <= t_end; t += sc->base_dt) {
+            int beside = x->coloc_first && t < sc->t0 - 5400;
+            if (x->coloc_first && !beside && t < sc->t0 - 1800)
+                continue;   /* being carried to its site */
+            double p = beside ? true_pressure(sc, sc->lat0, 0, 0, sc->base_h, t)
+                              : true_pressure(sc, lat, x->east_km, x->north_km, x->h, t);
+            double pm = quant(p + x->off_pa + sc->base_noise_pa * nrand(), sc->base_q_pa);
+            double tk = air_temp(sc, beside ? sc->base_h : x->h, t) + 0.2 * nrand();
+            char ts[40];
+            iso(t, ts, sizeof ts);
+            fprintf(f, "%s,%.2f,%.2f,%.1f\n", ts, pm / 100.0, tk - 273.15, air_rh(sc, x->h));
+        }
+        if (fclose(f) != 0)
+            return 1;
+    }
+    if (sc->qnh_dt_s > 0) {
+        FILE *f = open_out(dir, "qnh.csv");
+        if (!f)
+            return 1;
+        double lat, lon;
+        latlon(sc, sc->qnh_east_km, sc->qnh_north_km, &lat, &lon);
+        fprintf(f, "# QNH of a weather station at %.6f, %.6f, %.1f m (simulated)\n", lat, lon, sc->qnh_h);
+        fprintf(f, "time,pressure [hPa]\n");
+        for (double t = sc->t0 - 3600; t <= sc->t0 + total_s(sc) + 3600; t += sc->qnh_dt_s) {
+            double p = true_pressure(sc, lat, sc->qnh_east_km, sc->qnh_north_km, sc->qnh_h, t);
+            /* QNH by its definition: the ICAO standard atmosphere from the
+             * station down to sea level (ICAO Doc 7488), reported to 1 hPa */
+            double qnh = p / pow(1.0 - 0.0065 * sc->qnh_h / 288.15, 9.80665 / (287.0531 * 0.0065));
+            char ts[40];
+            iso(t, ts, sizeof ts);
+            fprintf(f, "%s,%.0f\n", ts, qnh / 100.0);
+        }
+        if (fclose(f) != 0)
+            return 1;
+    }
+    return 0;
 }
 
 static int write_rover(const scenario *sc, const char *dir)
@@ -407,6 +514,11 @@ static int write_rover(const scenario *sc, const char *dir)
         double mlat = lat + 2.0 / 111200.0 * nrand(), mlon = lon + 2.0 / 80000.0 * nrand();
         char ts[40];
         iso(t, ts, sizeof ts);
+        if (sc->no_rover_temp)
+            fprintf(g, "      <trkpt lat=\"%.7f\" lon=\"%.7f\"><ele>%.1f</ele><time>%s</time>"
+                       "<extensions><lg:sensor><lg:pressure unit=\"hPa\">%.2f</lg:pressure></lg:sensor></extensions></trkpt>\n",
+                    mlat, mlon, st.z + gnss_err + gnss_bias + gnss_ref_shift(lat, lon) + 1.0 * nrand(), ts, pm / 100.0);
+        else
         fprintf(g, "      <trkpt lat=\"%.7f\" lon=\"%.7f\"><ele>%.1f</ele><time>%s</time>"
                    "<extensions><lg:sensor><lg:pressure unit=\"hPa\">%.2f</lg:pressure>"
                    "<lg:temperature unit=\"degC\">%.1f</lg:temperature></lg:sensor></extensions></trkpt>\n",
@@ -487,7 +599,8 @@ int main(int argc, char **argv)
             return 1;
         }
     }
-    int bad = write_base(sc, argv[2]) || write_rover(sc, argv[2]) || write_benchmarks(sc, argv[2]);
+    int bad = write_base(sc, argv[2]) || write_rover(sc, argv[2]) || write_benchmarks(sc, argv[2]) ||
+              write_extra_bases(sc, argv[2]);
     proj_destroy(to_ell);
     if (proj_ctx)
         proj_context_destroy(proj_ctx);
