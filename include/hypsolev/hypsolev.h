@@ -14,5 +14,6 @@
 #include "hypsolev/correct.h"
 #include "hypsolev/writers.h"
 #include "hypsolev/vertical.h"
+#include "hypsolev/inspect.h"
 
 #endif

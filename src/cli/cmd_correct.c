@@ -913,6 +913,27 @@ static int correct_one(args *a, const char *rover_path, const log_in *bls, const
     return st == HYP_ERR_USAGE ? EXIT_USAGE : st ? EXIT_INPUT : 0;
 }
 
+/* The checks of "inspect" on a base log; its problems become warnings. */
+static void warn_base_quality(const char *path, const hyp_series *s)
+{
+    hyp_inspection r;
+    hyp_error err;
+    if (hyp_inspect(s, NULL, &r, &err))
+        return;
+    size_t shown = 0;
+    for (size_t i = 0; i < r.n_issues; i++) {
+        if (r.issues[i].kind == HYP_ISSUE_RAPID)
+            continue;   /* the summary's weather line reports those */
+        if (shown++ < 10) {
+            fprintf(stderr, "hypsolev: warning: %s: ", path);
+            cli_print_issue(stderr, "", &r.issues[i]);
+        }
+    }
+    if (shown > 10)
+        fprintf(stderr, "hypsolev: warning: %s: %zu problems in all (hypsolev inspect lists them)\n", path, shown);
+    hyp_inspection_free(&r);
+}
+
 static int make_zone(const char *text, const char *opt, hyp_zone *z)
 {
     hyp_zone_init(z);
@@ -1003,8 +1024,10 @@ static int run(args *a)
             print_msgs(&msgs, a->quiet);
             fprintf(stderr, "hypsolev: error: %s\n", err.message);
             rc = EXIT_INPUT;
-        } else
+        } else {
             print_msgs(&msgs, a->quiet);
+            warn_base_quality(a->bases[k].path, log_series(&bls[k]));
+        }
         hyp_msgs_free(&msgs);
         hyp_msgs_init(&msgs);
         hyp_zone_free(&kz);

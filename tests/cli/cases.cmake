@@ -9,7 +9,7 @@ function(hyp_cli_case name rc regex)
     COMMAND ${CMAKE_COMMAND} -DEXE=$<TARGET_FILE:hypsolev-cli> -DDATA=${PROJECT_SOURCE_DIR}/tests/data
             -DWORK=${CMAKE_CURRENT_BINARY_DIR}/cli/${name} -DEXPECT_RC=${rc} "-DEXPECT_ERR=${regex}"
             "-DARGS=${ARGN}" "-DINPUTS=${HYP_CASE_INPUTS}" "-DGOLDEN=${HYP_CASE_GOLDEN}" "-DGOLDEN_OUT=${HYP_CASE_GOLDEN_OUT}"
-            "-DPROJ_DB_ONLY=${HYP_CASE_PROJ_DB_ONLY}"
+            "-DPROJ_DB_ONLY=${HYP_CASE_PROJ_DB_ONLY}" "-DEXPECT_OUT=${HYP_CASE_OUT}"
             -P ${PROJECT_SOURCE_DIR}/tests/cli/run_case.cmake)
   set_tests_properties(cli_${name} PROPERTIES LABELS cli TIMEOUT 150)
 endfunction()
@@ -116,3 +116,13 @@ hyp_cli_case(bad_method 2 "--method \"three\": expected auto, single, two-base o
 hyp_cli_case(two_base_forced_one 2 "the two-base method needs exactly two bases" correct ${R} ${B} ${O} --method two-base)
 hyp_cli_case(field_needs_positions 2 "the field method needs every base's position" correct ${R} ${B} --base @DATA@/base.csv --base-height 900 --base @DATA@/base.csv --base-height 950 ${O})
 hyp_cli_case(base_offset_option 0 "instrument offset \\+0.500 hPa" correct ${R} ${B} --base @DATA@/base.csv --base-height 900 --base-offset 50 ${O} --method single)
+
+# inspect
+set(HYP_CASE_OUT "interval 60.0 s.*problems    none found")
+hyp_cli_case(inspect_clean 0 "" inspect @DATA@/base.csv)
+set(HYP_CASE_OUT "clock jump   2026-06-18T07:10:00Z: time went back 60 s, line 23")
+hyp_cli_case(inspect_clock_jump 0 "" inspect @DATA@/bad/unsorted_base.csv)
+set(HYP_CASE_OUT "")
+hyp_cli_case(inspect_bad_file 1 "empty.csv: empty file" inspect @DATA@/bad/empty.csv)
+hyp_cli_case(inspect_no_file 2 "no file given" inspect)
+hyp_cli_case(correct_warns_base_quality 0 "unsorted_base.csv: clock jump   2026-06-18T07:10:00Z: time went back 60 s, line 23" correct ${R} --base @DATA@/bad/unsorted_base.csv --base-height 812.4 --base-at 46.8,9.9 ${O})

@@ -1,0 +1,175 @@
+/* cmd_inspect.c - "hypsolev inspect": the quality of pressure logs. */
+#define _POSIX_C_SOURCE 200809L
+#include "cli.h"
+#include "hypsolev/hypsolev.h"
+
+#include <getopt.h>
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+static void help(void)
+{
+    fputs("usage: hypsolev inspect FILE [FILE...] [options]\n"
+          "\n"
+          "Prints, for each pressure log (CSV or GPX): time span, sampling interval,\n"
+          "value ranges and units, the pressure tendency, and problems: gaps, spikes,\n"
+          "steps (a logger moved, re-powered or swapped), flat lines (a frozen\n"
+          "sensor), clock jumps and periods of rapid change.\n"
+          "\n"
+          "  --pressure-unit U, --temperature-unit U, --pressure-field NAME,\n"
+          "  --time-zone Z             as for correct\n"
+          "\n"
+          "exit status: 0 every log was read, 1 a log could not be used, 2 usage error.\n\n", stdout);
+    cli_print_safety();
+}
+
+/* One line per problem, as the summary of correct prints them too. */
+void cli_print_issue(FILE *f, const char *indent, const hyp_issue *is)
+{
+    char a[40], b[40];
+    hyp_time_format(is->start_s, a, sizeof a);
+    hyp_time_format(is->end_s, b, sizeof b);
+    switch (is->kind) {
+    case HYP_ISSUE_GAP:
+        fprintf(f, "%sgap          %s to %s (%.1f min without samples), line %u\n", indent, a, b, is->size / 60.0, is->line);
+        break;
+    case HYP_ISSUE_SPIKE:
+        fprintf(f, "%sspike        %s: %+.2f hPa off its neighbours, line %u\n", indent, a, is->size / 100.0, is->line);
+        break;
+    case HYP_ISSUE_STEP:
+        fprintf(f, "%sstep         %s: %+.2f hPa lasting jump, line %u\n", indent, b, is->size / 100.0, is->line);
+        break;
+    case HYP_ISSUE_FLAT:
+        fprintf(f, "%sflat line    %s to %s at %.2f hPa (frozen sensor?), line %u\n", indent, a, b, is->size / 100.0, is->line);
+        break;
+    case HYP_ISSUE_CLOCK_JUMP:
+        fprintf(f, "%sclock jump   %s: time went back %.0f s, line %u\n", indent, a, -is->size, is->line);
+        break;
+    case HYP_ISSUE_RAPID:
+        fprintf(f, "%srapid change %s to %s, up to %.2f hPa/h\n", indent, a, b, is->size * 36.0);
+        break;
+    case HYP_ISSUE_KIND_COUNT:
+        break;
+    }
+}
+
+static int inspect_one(const char *path, const hyp_read_opts *ro)
+{
+    hyp_msgs m;
+    hyp_msgs_init(&m);
+    hyp_error err;
+    hyp_series s;
+    hyp_series_init(&s);
+    hyp_gpx_doc d;
+    hyp_gpx_doc_init(&d);
+    hyp_unit pu = HYP_UNIT_NONE;
+    hyp_status st;
+    const hyp_series *ser = &s;
+    if (hyp_file_is_xml(path) == 1) {
+        st = hyp_gpx_read(path, ro, &d, &m, &err);
+        ser = &d.pts;
+        pu = d.pressure_unit;
+    } else
+        st = hyp_csv_read(path, ro, &s, &pu, &m, &err);
+    for (size_t i = 0; i < m.count; i++)
+        fprintf(stderr, "hypsolev: %s: %s\n", m.items[i].level == HYP_WARNING ? "warning" : "note", m.items[i].text);
+    hyp_inspection r;
+    if (!st)
+        st = hyp_inspect(ser, NULL, &r, &err);
+    if (st) {
+        fprintf(stderr, "hypsolev: error: %s%s%s\n", strstr(err.message, path) ? "" : path, strstr(err.message, path) ? "" : ": ",
+                err.message);
+        hyp_series_free(&s);
+        hyp_gpx_doc_free(&d);
+        hyp_msgs_free(&m);
+        return EXIT_INPUT;
+    }
+    char a[40], b[40];
+    hyp_time_format(r.t0_s, a, sizeof a);
+    hyp_time_format(r.t1_s, b, sizeof b);
+    printf("hypsolev inspect: %s\n", path);
+    printf("  span        %s to %s (%.2f h), %zu samples (%zu usable), interval %.1f s\n", a, b,
+           (r.t1_s - r.t0_s) / 3600.0, r.count, r.usable, r.interval_s);
+    printf("  pressure    %.2f to %.2f hPa (file unit %s), white noise %.3f hPa\n", r.p_min_pa / 100.0, r.p_max_pa / 100.0,
+           hyp_unit_name(pu), r.noise_pa / 100.0);
+    if (r.t_min_k <= r.t_max_k)
+        printf("  temperature %.2f to %.2f degC\n", r.t_min_k - 273.15, r.t_max_k - 273.15);
+    if (r.rh_min <= r.rh_max)
+        printf("  humidity    %.0f to %.0f %%\n", r.rh_min, r.rh_max);
+    printf("  tendency    trend %+.3f hPa/h over the log", r.trend_pa_per_s * 36.0);
+    if (r.max_change_1h_at_s > 0) {
+        hyp_time_format(r.max_change_1h_at_s, a, sizeof a);
+        printf("; largest change %+.2f hPa in 1 h (from %s)", r.max_change_1h_pa / 100.0, a);
+    }
+    if (r.max_change_3h_at_s > 0) {
+        hyp_time_format(r.max_change_3h_at_s, b, sizeof b);
+        printf(", %+.2f hPa in 3 h (from %s)", r.max_change_3h_pa / 100.0, b);
+    }
+    putchar('\n');
+    printf("  problems    %s\n", r.n_issues ? "" : "none found");
+    for (size_t i = 0; i < r.n_issues; i++)
+        cli_print_issue(stdout, "    ", &r.issues[i]);
+    hyp_inspection_free(&r);
+    hyp_series_free(&s);
+    hyp_gpx_doc_free(&d);
+    hyp_msgs_free(&m);
+    return 0;
+}
+
+int cmd_inspect(int argc, char **argv)
+{
+    static const struct option lo[] = {
+        {"pressure-unit", required_argument, 0, 'p'}, {"temperature-unit", required_argument, 0, 't'},
+        {"pressure-field", required_argument, 0, 'f'}, {"time-zone", required_argument, 0, 'z'},
+        {"help", no_argument, 0, 'h'}, {0, 0, 0, 0}};
+    hyp_read_opts ro;
+    hyp_read_opts_init(&ro);
+    hyp_zone z;
+    hyp_zone_init(&z);
+    const char *files[256];
+    int nf = 0, c, rc = 0;
+    opterr = 0;
+    optind = 1;
+    while ((c = getopt_long(argc, argv, "-", lo, NULL)) != -1) {
+        hyp_error err;
+        switch (c) {
+        case 1:
+            if (nf < 256)
+                files[nf++] = optarg;
+            break;
+        case 'p':
+        case 't':
+            if (!(c == 'p' ? (ro.pressure_unit = hyp_unit_parse(HYP_Q_PRESSURE, optarg))
+                           : (ro.temperature_unit = hyp_unit_parse(HYP_Q_TEMPERATURE, optarg)))) {
+                fprintf(stderr, "hypsolev inspect: unit \"%s\" is unknown\n", optarg);
+                return EXIT_USAGE;
+            }
+            break;
+        case 'f': ro.pressure_field = optarg; break;
+        case 'z':
+            if (hyp_zone_parse(&z, optarg, NULL, &err)) {
+                fprintf(stderr, "hypsolev inspect: --time-zone: %s\n", err.message);
+                return EXIT_USAGE;
+            }
+            ro.zone = &z;
+            break;
+        case 'h': help(); return 0;
+        default:
+            fprintf(stderr, "hypsolev inspect: option \"%s\" is unknown or needs a value\n(hypsolev inspect --help lists the options)\n",
+                    argv[optind - 1]);
+            return EXIT_USAGE;
+        }
+    }
+    if (!nf) {
+        fprintf(stderr, "hypsolev inspect: no file given\n(hypsolev inspect --help lists the options)\n");
+        return EXIT_USAGE;
+    }
+    for (int i = 0; i < nf; i++) {
+        int r = inspect_one(files[i], &ro);
+        if (r > rc)
+            rc = r;
+    }
+    hyp_zone_free(&z);
+    return rc;
+}
