@@ -296,3 +296,62 @@ hyp_status hyp_ties_read(const char *path, const hyp_zone *zone, const hyp_bench
     }
     return st;
 }
+
+hyp_status hyp_base_index_read(const char *path, hyp_base_entry **out, size_t *count, hyp_error *err)
+{
+    *out = NULL;
+    *count = 0;
+    table t;
+    hyp_status st = table_open(&t, path, err);
+    if (st)
+        return st;
+    int r = table_next(&t, err, &st);
+    static const char *names[6] = {"file", "height", "lat", "lon", "clock_offset", "kind"};
+    int c[6];
+    if (r == 0)
+        st = hyp_error_set(err, HYP_ERR_NODATA, "%s: empty file: no header row", path);
+    for (int k = 0; r == 1 && k < 6 && !st; k++)
+        if ((c[k] = column(&t, names[k])) < 0 && k < 2)
+            st = hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: header: no \"%s\" column (expected file, height[, lat, lon, clock_offset, kind])",
+                               path, t.lr.lineno, names[k]);
+    size_t alloc = 0;
+    while (!st && (r = table_next(&t, err, &st)) == 1) {
+        if (*count == alloc) {
+            alloc = alloc ? 2 * alloc : 16;
+            hyp_base_entry *p = alloc > 100000 ? NULL : realloc(*out, alloc * sizeof *p);
+            if (!p) {
+                st = hyp_error_set(err, HYP_ERR_NOMEM, "%s: out of memory", path);
+                break;
+            }
+            *out = p;
+        }
+        hyp_base_entry *e = &(*out)[*count];
+        memset(e, 0, sizeof *e);
+        e->line = t.lr.lineno;
+        field_text(&t, c[0], e->file, sizeof e->file);
+        char kind[32];
+        field_text(&t, c[5], kind, sizeof kind);
+        if (!e->file[0] || strstr(e->file, "..") || e->file[0] == '/')
+            st = hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: file \"%s\" must name a log in the folder", path, t.lr.lineno, e->file);
+        if (!st) st = field_number(&t, c[1], "height", -500, 9000, 1, &e->height_m, err);
+        if (!st) st = field_number(&t, c[2], "lat", -90, 90, 0, &e->lat_deg, err);
+        if (!st) st = field_number(&t, c[3], "lon", -180, 180, 0, &e->lon_deg, err);
+        if (!st) st = field_number(&t, c[4], "clock_offset", -86400, 86400, 0, &e->clock_offset_s, err);
+        if (!st && e->clock_offset_s != e->clock_offset_s)
+            e->clock_offset_s = 0.0;
+        if (!st && kind[0] && strcasecmp(kind, "station") != 0 && strcasecmp(kind, "qnh") != 0)
+            st = hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: kind \"%s\": expected station or qnh", path, t.lr.lineno, kind);
+        e->qnh = strcasecmp(kind, "qnh") == 0;
+        if (!st)
+            (*count)++;
+    }
+    if (!st && *count == 0)
+        st = hyp_error_set(err, HYP_ERR_NODATA, "%s: no base rows", path);
+    table_close(&t);
+    if (st) {
+        free(*out);
+        *out = NULL;
+        *count = 0;
+    }
+    return st;
+}

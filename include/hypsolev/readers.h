@@ -124,6 +124,18 @@ typedef struct hyp_tie_spec {
 hyp_status hyp_ties_read(const char *path, const hyp_zone *zone, const hyp_benchmarks *benchmarks,
                          hyp_tie_spec **out, size_t *count, hyp_error *err);
 
+/* An index of base logs in a folder (--base-dir): a CSV named bases.csv
+ * with columns file (relative to the folder), height (m), optional lat,
+ * lon (degrees), clock_offset (s) and kind ("station" or "qnh"). */
+typedef struct hyp_base_entry {
+    char file[256];
+    double height_m, lat_deg, lon_deg, clock_offset_s;
+    int qnh;
+    unsigned line;
+} hyp_base_entry;
+
+hyp_status hyp_base_index_read(const char *path, hyp_base_entry **out, size_t *count, hyp_error *err);
+
 /* 1 when the file looks like XML (first non-blank byte after an optional
  * byte-order mark is '<'), 0 when not, -1 when it cannot be read. */
 int hyp_file_is_xml(const char *path);

@@ -1,10 +1,13 @@
 /* cmd_correct.c - "hypsolev correct": reads the logs, calls the library's
  * correction, writes the outputs, prints the run summary on stderr. */
 #define _POSIX_C_SOURCE 200809L
+#include "batch.h"
 #include "cli.h"
 #include "hypsolev/hypsolev.h"
 
+#include <dirent.h>
 #include <errno.h>
+#include <glob.h>
 #include <getopt.h>
 #include <libgen.h>
 #include <math.h>
@@ -12,8 +15,11 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <strings.h>
 #include <sys/stat.h>
 #include <unistd.h>
+
+#include <libxml/parser.h>
 
 #define MAX_BASES 16
 #define MAX_WINDOWS 64
@@ -32,6 +38,10 @@ typedef struct args {
     int n_bases;
     const char *out, *out_dir, *table, *rover_zone;
     const char *benchmarks_path, *ties_path, *crs, *bases_coloc_text;
+    const char *base_dir, *summary_path;
+    int jobs, progress, overwrite;
+    char **owned;          /* rover paths found in folders or by patterns */
+    int n_owned;
     hyp_vref gnss_ref, known_ref, out_ref;
     int out_ref_set;
     hyp_geo *geo;
@@ -116,6 +126,16 @@ static void help(void)
 "  --humidity-field NAME    (default humidity)\n"
 "  --time-zone Z            zone of rover times that carry none\n"
 "\n"
+"batch:\n"
+"  ROVER may be a folder (its .gpx and .csv files) or a quoted pattern\n"
+"  --base-dir DIR           base logs listed in DIR/bases.csv (file, height, lat,\n"
+"                           lon, clock_offset, kind); each rover gets the logs\n"
+"                           that cover its time span\n"
+"  -j, --jobs N             worker threads (default: the number of cores)\n"
+"  --summary FILE           one row per rover (.json for JSON, else CSV)\n"
+"  --progress               progress on stderr even when it is not a terminal\n"
+"  --overwrite              replace existing outputs (default: skip those rovers)\n"
+"\n"
 "outputs (at least one):\n"
 "  -o, --output FILE        corrected GPX (one rover only)\n"
 "  --out-dir DIR            DIR/NAME.gpx and DIR/NAME.csv for each rover NAME.*\n"
@@ -163,7 +183,8 @@ enum {
     O_COLOC, O_NO_AUTO, O_COLOC_R, O_COLOC_MIN, O_TCOL, O_LAPSE, O_RH, O_GAP, O_PUNIT, O_TUNIT,
     O_PFIELD, O_TFIELD, O_HFIELD, O_TZ, O_OUTDIR, O_TABLE, O_HELP, O_BENCH, O_BENCH_SIG, O_TIES,
     O_TIE_R, O_TIE_MIN, O_SMOOTH, O_GRAD, O_CLOCK_SIG, O_TSIG, O_LSIG, O_GNSS_REF, O_KNOWN_REF,
-    O_OUT_REF, O_CRS, O_NO_ANCHOR, O_BASE_OFF, O_BASE_OFF_SIG, O_BASE_QNH, O_BASES_COLOC, O_METHOD
+    O_OUT_REF, O_CRS, O_NO_ANCHOR, O_BASE_OFF, O_BASE_OFF_SIG, O_BASE_QNH, O_BASES_COLOC, O_METHOD,
+    O_BASE_DIR, O_SUMMARY, O_PROGRESS, O_OVERWRITE
 };
 
 static const struct option longopts[] = {
@@ -213,6 +234,11 @@ static const struct option longopts[] = {
     {"base-qnh", no_argument, 0, O_BASE_QNH},
     {"bases-colocated", required_argument, 0, O_BASES_COLOC},
     {"method", required_argument, 0, O_METHOD},
+    {"base-dir", required_argument, 0, O_BASE_DIR},
+    {"jobs", required_argument, 0, 'j'},
+    {"summary", required_argument, 0, O_SUMMARY},
+    {"progress", no_argument, 0, O_PROGRESS},
+    {"overwrite", no_argument, 0, O_OVERWRITE},
     {0, 0, 0, 0},
 };
 
@@ -308,6 +334,17 @@ static int parse_one(args *a, int c, const char *arg)
     case O_BASE_OFF: case O_BASE_OFF_SIG: case O_BASE_QNH:
         return parse_base_opt(a, c, arg);
     case O_BASES_COLOC: a->bases_coloc_text = arg; return 0;
+    case O_BASE_DIR: a->base_dir = arg; return 0;
+    case O_SUMMARY: a->summary_path = arg; return 0;
+    case O_PROGRESS: a->progress = 1; return 0;
+    case O_OVERWRITE: a->overwrite = 1; return 0;
+    case 'j': {
+        double j;
+        if (num_opt("--jobs", arg, 1, 256, &j))
+            return EXIT_USAGE;
+        a->jobs = (int)j;
+        return 0;
+    }
     case O_METHOD:
         if (strcmp(arg, "auto") == 0) o->method = HYP_METHOD_AUTO;
         else if (strcmp(arg, "single") == 0) o->method = HYP_METHOD_SINGLE;
@@ -392,8 +429,10 @@ static int check_args(args *a)
 {
     if (a->n_rovers == 0)
         return usage_error("no rover file given");
-    if (a->n_bases == 0)
-        return usage_error("no --base given: a base station's pressure log is needed");
+    if (a->n_bases == 0 && !a->base_dir)
+        return usage_error("no --base or --base-dir given: a base station's pressure log is needed");
+    if (a->n_bases && a->base_dir)
+        return usage_error("--base and --base-dir both given; choose one");
     for (int k = 0; k < a->n_bases; k++)
         if (a->bases[k].height_m != a->bases[k].height_m)
             return usage_error("--base %s has no --base-height", a->bases[k].path);
@@ -408,6 +447,73 @@ static int check_args(args *a)
     return 0;
 }
 
+static int cmp_str(const void *x, const void *y)
+{
+    return strcmp(*(char *const *)x, *(char *const *)y);
+}
+
+static int own(args *a, const char *path)
+{
+    char **p = realloc(a->owned, (size_t)(a->n_owned + 1) * sizeof *p);
+    if (p)
+        a->owned = p;
+    if (!p || !(a->owned[a->n_owned] = strdup(path))) {
+        fprintf(stderr, "hypsolev: error: out of memory\n");
+        return -1;
+    }
+    a->n_owned++;
+    return 0;
+}
+
+static int ends_with(const char *s, const char *e)
+{
+    size_t n = strlen(s), m = strlen(e);
+    return n >= m && strcasecmp(s + n - m, e) == 0;
+}
+
+/* Folders become their .gpx and .csv files, quoted patterns their matches
+ * (sorted, so that runs are repeatable); plain files stay as given. */
+static int expand_rovers(args *a)
+{
+    for (int i = 0; i < a->n_rovers; i++) {
+        const char *r = a->rovers[i];
+        struct stat st;
+        int start = a->n_owned;
+        if (stat(r, &st) == 0 && S_ISDIR(st.st_mode)) {
+            DIR *d = opendir(r);
+            struct dirent *e;
+            while (d && (e = readdir(d))) {
+                if (e->d_name[0] == '.' || !(ends_with(e->d_name, ".gpx") || ends_with(e->d_name, ".csv")))
+                    continue;
+                char p[4096];
+                snprintf(p, sizeof p, "%s/%s", r, e->d_name);
+                if (own(a, p))
+                    return EXIT_INPUT;
+            }
+            if (d)
+                closedir(d);
+            if (a->n_owned == start) {
+                fprintf(stderr, "hypsolev correct: %s: a folder with no .gpx or .csv file\n", r);
+                return EXIT_INPUT;
+            }
+        } else if (strpbrk(r, "*?[") && stat(r, &st) != 0) {
+            glob_t g;
+            if (glob(r, 0, NULL, &g) != 0 || g.gl_pathc == 0) {
+                fprintf(stderr, "hypsolev correct: %s: no file matches\n", r);
+                return EXIT_INPUT;
+            }
+            for (size_t k = 0; k < g.gl_pathc; k++)
+                if (own(a, g.gl_pathv[k]))
+                    return EXIT_INPUT;
+            globfree(&g);
+        } else if (own(a, r))
+            return EXIT_INPUT;
+        qsort(a->owned + start, (size_t)(a->n_owned - start), sizeof *a->owned, cmp_str);
+    }
+    a->n_rovers = a->n_owned;
+    return 0;
+}
+
 static int parse_args(args *a, int argc, char **argv)
 {
     memset(a, 0, sizeof *a);
@@ -415,14 +521,16 @@ static int parse_args(args *a, int argc, char **argv)
     hyp_correct_opts_init(&a->copts);
     a->benchmark_sigma_m = 0.01;
     a->rovers = calloc((size_t)argc, sizeof *a->rovers);
-    if (!a->rovers)
+    if (!a->rovers) {
+        fprintf(stderr, "hypsolev: error: out of memory\n");
         return EXIT_INPUT;
+    }
     opterr = 0;
     optind = 1;
     int c;
     /* "-" first: positional arguments are returned in order as 1, so the
      * per-base options keep their place after their --base. */
-    while ((c = getopt_long(argc, argv, "-o:q", longopts, NULL)) != -1) {
+    while ((c = getopt_long(argc, argv, "-o:qj:", longopts, NULL)) != -1) {
         if (c == 1) {
             a->rovers[a->n_rovers++] = optarg;
             continue;
@@ -445,7 +553,18 @@ static int parse_args(args *a, int argc, char **argv)
     }
     if (!a->out_ref_set)
         a->out_ref = a->known_ref;
-    return check_args(a);
+    int r = expand_rovers(a);
+    return r ? r : check_args(a);
+}
+
+/* Where a rover's messages and summary go: stderr, or a worker's buffer
+ * that is printed whole when its rover is done (so that parallel rovers
+ * do not interleave). */
+static _Thread_local FILE *tl_out;
+
+static FILE *cli_out(void)
+{
+    return tl_out ? tl_out : stderr;
 }
 
 static void print_msgs(const hyp_msgs *m, int quiet)
@@ -453,10 +572,10 @@ static void print_msgs(const hyp_msgs *m, int quiet)
     for (size_t i = 0; i < m->count; i++) {
         if (quiet && m->items[i].level == HYP_NOTE)
             continue;
-        fprintf(stderr, "hypsolev: %s: %s\n", m->items[i].level == HYP_WARNING ? "warning" : "note", m->items[i].text);
+        fprintf(cli_out(), "hypsolev: %s: %s\n", m->items[i].level == HYP_WARNING ? "warning" : "note", m->items[i].text);
     }
     if (m->dropped)
-        fprintf(stderr, "hypsolev: %zu more messages not shown\n", m->dropped);
+        fprintf(cli_out(), "hypsolev: %zu more messages not shown\n", m->dropped);
 }
 
 /* A log read by either reader, into a series. */
@@ -526,13 +645,13 @@ static void print_calibrations(const hyp_correct_result *r)
 {
     if (!r->n_calibs)
         return;
-    fprintf(stderr, "  ties      %zu calibration(s); misclosure = height before adjustment - known, residual = after\n", r->n_calibs);
+    fprintf(cli_out(), "  ties      %zu calibration(s); misclosure = height before adjustment - known, residual = after\n", r->n_calibs);
     for (size_t k = 0; k < r->n_calibs; k++) {
         const hyp_calib *c = &r->calibs[k];
         char a[40], b[40];
         hyp_time_format(c->start_s, a, sizeof a);
         hyp_time_format(c->end_s, b, sizeof b);
-        fprintf(stderr, "            %-10s %s to %s, %zu samples (%s): known %.3f m +- %.3f m, misclosure %+.3f m, residual %+.3f m, offset %+.3f hPa\n",
+        fprintf(cli_out(), "            %-10s %s to %s, %zu samples (%s): known %.3f m +- %.3f m, misclosure %+.3f m, residual %+.3f m, offset %+.3f hPa\n",
                 c->name, a, b + 11, c->n, how_text(c->how), c->known_m, c->known_sigma_m, c->misclosure_m,
                 c->residual_m, c->offset_pa / 100.0);
     }
@@ -541,32 +660,32 @@ static void print_calibrations(const hyp_correct_result *r)
 static void print_drift(const hyp_correct_result *r)
 {
     const hyp_drift *d = &r->drift;
-    fprintf(stderr, "  offset    %s\n", d->note);
+    fprintf(cli_out(), "  offset    %s\n", d->note);
     if (d->kind == HYP_DRIFT_NONE)
         return;
     for (size_t j = 0; j < d->n_knots; j++) {
         char t[40];
         hyp_time_format(d->knot_s[j], t, sizeof t);
-        fprintf(stderr, "            %s %+.3f hPa +- %.3f hPa\n", d->kind == HYP_DRIFT_EXPLICIT ? "(all times)" : t,
+        fprintf(cli_out(), "            %s %+.3f hPa +- %.3f hPa\n", d->kind == HYP_DRIFT_EXPLICIT ? "(all times)" : t,
                 d->knot_pa[j] / 100.0, sqrt(d->cov[j * d->p + j]) / 100.0);
     }
     if (d->n_knots >= 2)
-        fprintf(stderr, "            drift %+.3f hPa/h between the first and last knot\n",
+        fprintf(cli_out(), "            drift %+.3f hPa/h between the first and last knot\n",
                 (d->knot_pa[d->n_knots - 1] - d->knot_pa[0]) / 100.0 / ((d->knot_s[d->n_knots - 1] - d->knot_s[0]) / 3600.0));
     if (d->has_scale)
-        fprintf(stderr, "            column scale %+.3f %% +- %.3f %% (about %+.2f K on the column temperature)\n",
+        fprintf(cli_out(), "            column scale %+.3f %% +- %.3f %% (about %+.2f K on the column temperature)\n",
                 100.0 * d->scale, 100.0 * d->scale_sigma, 100.0 * d->scale * 2.85);
     if (d->kind >= HYP_DRIFT_CONSTANT)
-        fprintf(stderr, "            fit: chi-square %.2f on %zu degree(s) of freedom, condition %.1e%s\n", d->chi2, d->dof,
+        fprintf(cli_out(), "            fit: chi-square %.2f on %zu degree(s) of freedom, condition %.1e%s\n", d->chi2, d->dof,
                 d->condition, d->inflation > 1.0 ? ", covariance inflated to match the misfit" : "");
 }
 
 static void budget_row(const hyp_correct_result *r, size_t i, const char *label)
 {
-    fprintf(stderr, "            %-7s", label);
+    fprintf(cli_out(), "            %-7s", label);
     for (int k = 0; k < HYP_B_COUNT; k++)
-        fprintf(stderr, " %6.2f", r->budget_m[k][i]);
-    fprintf(stderr, "  %6.2f\n", r->sigma_m[i]);
+        fprintf(cli_out(), " %6.2f", r->budget_m[k][i]);
+    fprintf(cli_out(), "  %6.2f\n", r->sigma_m[i]);
 }
 
 static void print_budget(const hyp_series *s, const hyp_correct_result *r)
@@ -597,30 +716,30 @@ static void print_budget(const hyp_series *s, const hyp_correct_result *r)
         for (size_t k = 0; k < n; k++)
             if (r->sigma_m[idx[k]] == v[n / 2])
                 med = idx[k];
-        fprintf(stderr, "  sigma     median %.2f m, largest %.2f m (1 sigma)\n", v[n / 2], v[n - 1]);
+        fprintf(cli_out(), "  sigma     median %.2f m, largest %.2f m (1 sigma)\n", v[n / 2], v[n - 1]);
     }
-    fprintf(stderr, "  budget    1 sigma, m:");
+    fprintf(cli_out(), "  budget    1 sigma, m:");
     for (int k = 0; k < HYP_B_COUNT; k++)
-        fprintf(stderr, " %6s", hyp_budget_term_name((hyp_budget_term)k));
-    fprintf(stderr, "   total\n");
+        fprintf(cli_out(), " %6s", hyp_budget_term_name((hyp_budget_term)k));
+    fprintf(cli_out(), "   total\n");
     budget_row(r, med, "median");
     budget_row(r, worst, "worst");
     char t[40];
     hyp_time_format(s->time_s[worst], t, sizeof t);
-    fprintf(stderr, "            (worst point: line %u, %s)\n", s->line[worst], t);
+    fprintf(cli_out(), "            (worst point: line %u, %s)\n", s->line[worst], t);
     free(v);
     free(idx);
 }
 
 static void print_weather(const hyp_correct_result *r, double rapid_pa_s)
 {
-    fprintf(stderr, "  weather   base pressure trend %+.3f hPa/h over the log; largest hourly tendency %.2f hPa/h\n",
+    fprintf(cli_out(), "  weather   base pressure trend %+.3f hPa/h over the log; largest hourly tendency %.2f hPa/h\n",
             r->base_tendency_pa_s * 36.0, r->max_rate_pa_s * 36.0);
     for (size_t k = 0; k < r->n_rapid; k++) {
         char a[40], b[40];
         hyp_time_format(r->rapid[k].start_s, a, sizeof a);
         hyp_time_format(r->rapid[k].end_s, b, sizeof b);
-        fprintf(stderr, "            rapid change (over %.1f hPa/h): %s to %s, up to %.2f hPa/h\n", rapid_pa_s * 36.0, a, b,
+        fprintf(cli_out(), "            rapid change (over %.1f hPa/h): %s to %s, up to %.2f hPa/h\n", rapid_pa_s * 36.0, a, b,
                 r->rapid[k].max_rate_pa_s * 36.0);
     }
 }
@@ -629,60 +748,60 @@ static void print_summary(const char *rover_path, const log_in *rv, const args *
                           const hyp_correct_result *r, double rapid_pa_s)
 {
     char span[200];
-    fprintf(stderr, "hypsolev correct: %s\n", rover_path);
+    fprintf(cli_out(), "hypsolev correct: %s\n", rover_path);
     span_text(log_series(rv), span, sizeof span);
-    fprintf(stderr, "  rover     %s; pressure in %s\n", span, hyp_unit_name(rv->punit));
+    fprintf(cli_out(), "  rover     %s; pressure in %s\n", span, hyp_unit_name(rv->punit));
     for (int k = 0; k < a->n_bases; k++) {
         const base_arg *ba = &a->bases[k];
         const log_in *bl = &bls[k];
         span_text(log_series(bl), span, sizeof span);
-        fprintf(stderr, "  base      %s: %s; %s in %s\n", ba->path, span, ba->qnh ? "QNH" : "pressure", hyp_unit_name(bl->punit));
-        fprintf(stderr, "            height %.3f m", ba->height_m);
+        fprintf(cli_out(), "  base      %s: %s; %s in %s\n", ba->path, span, ba->qnh ? "QNH" : "pressure", hyp_unit_name(bl->punit));
+        fprintf(cli_out(), "            height %.3f m", ba->height_m);
         if (ba->lat_deg == ba->lat_deg)
-            fprintf(stderr, ", at %.6f, %.6f deg", ba->lat_deg, ba->lon_deg);
-        fprintf(stderr, ", clock offset %+.1f s applied", a->n_bases == 1 ? r->clock_applied_s : ba->clock_s);
+            fprintf(cli_out(), ", at %.6f, %.6f deg", ba->lat_deg, ba->lon_deg);
+        fprintf(cli_out(), ", clock offset %+.1f s applied", a->n_bases == 1 ? r->clock_applied_s : ba->clock_s);
         if (a->n_bases > 1)
-            fprintf(stderr, ", instrument offset %+.3f hPa +- %.3f hPa", r->base_offset_pa[k] / 100.0,
+            fprintf(cli_out(), ", instrument offset %+.3f hPa +- %.3f hPa", r->base_offset_pa[k] / 100.0,
                     r->base_offset_sigma_pa[k] / 100.0);
-        fputc('\n', stderr);
+        fputc('\n', cli_out());
     }
     const base_arg *ba = &a->bases[0];
     if (r->clock_est_ok)
-        fprintf(stderr, "            clock offset estimated from the co-locations: %+.1f s +- %.1f s%s\n", r->clock_est_s,
+        fprintf(cli_out(), "            clock offset estimated from the co-locations: %+.1f s +- %.1f s%s\n", r->clock_est_s,
                 r->clock_est_sigma_s, ba->clock_s == r->clock_applied_s && !(r->clock_est_s == r->clock_applied_s) ? " (not applied; --base-clock-offset auto applies it)" : "");
-    fprintf(stderr, "  method    %s\n", r->method);
+    fprintf(cli_out(), "  method    %s\n", r->method);
     if (r->method_why[0])
-        fprintf(stderr, "            chosen: %s%s\n", r->method_why,
+        fprintf(cli_out(), "            chosen: %s%s\n", r->method_why,
                 a->n_bases > 1 && !r->bases_compared ? "; the bases were never compared" : "");
     if (r->method_used == HYP_METHOD_TWO_BASE) {
-        fprintf(stderr, "            column mean virtual temperature the bases imply %.2f degC", r->implied_tcol_k - 273.15);
+        fprintf(cli_out(), "            column mean virtual temperature the bases imply %.2f degC", r->implied_tcol_k - 273.15);
         if (r->thermo_tcol_k == r->thermo_tcol_k)
-            fprintf(stderr, ", the thermometers %.2f degC (difference %+.2f K)", r->thermo_tcol_k - 273.15,
+            fprintf(cli_out(), ", the thermometers %.2f degC (difference %+.2f K)", r->thermo_tcol_k - 273.15,
                     r->implied_tcol_k - r->thermo_tcol_k);
-        fprintf(stderr, "\n            %zu points extrapolated outside the bases' heights (flagged in the table)\n", r->n_extrapolated);
+        fprintf(cli_out(), "\n            %zu points extrapolated outside the bases' heights (flagged in the table)\n", r->n_extrapolated);
     }
     print_calibrations(r);
     print_drift(r);
-    fprintf(stderr, "  noise     rover %.3f hPa, base %.3f hPa (1 sigma, estimated from the data)\n",
+    fprintf(cli_out(), "  noise     rover %.3f hPa, base %.3f hPa (1 sigma, estimated from the data)\n",
             r->rover_noise_pa / 100.0, r->base_noise_pa / 100.0);
     if (r->n_ok)
-        fprintf(stderr, "  column    mean virtual temperature %.2f to %.2f degC\n", r->tcol_min_k - 273.15, r->tcol_max_k - 273.15);
+        fprintf(cli_out(), "  column    mean virtual temperature %.2f to %.2f degC\n", r->tcol_min_k - 273.15, r->tcol_max_k - 273.15);
     print_weather(r, rapid_pa_s);
-    fprintf(stderr, "  heights   %zu of %zu corrected", r->n_ok, r->count);
+    fprintf(cli_out(), "  heights   %zu of %zu corrected", r->n_ok, r->count);
     for (int s = 1; s < HYP_PT_STATUS_COUNT; s++)
         if (r->n_status[s])
-            fprintf(stderr, "; %zu %s", r->n_status[s], hyp_point_status_text((hyp_point_status)s));
-    fputc('\n', stderr);
+            fprintf(cli_out(), "; %zu %s", r->n_status[s], hyp_point_status_text((hyp_point_status)s));
+    fputc('\n', cli_out());
     for (int f = 1; f < HYP_SAMPLE_FLAG_COUNT; f++)
         if (r->n_flag[f])
-            fprintf(stderr, "            %zu dropped by the reader: %s\n", r->n_flag[f], hyp_sample_flag_text((hyp_sample_flag)f));
+            fprintf(cli_out(), "            %zu dropped by the reader: %s\n", r->n_flag[f], hyp_sample_flag_text((hyp_sample_flag)f));
     print_budget(log_series(rv), r);
 }
 
 static void print_footer(const char *wrote)
 {
-    fprintf(stderr, "  wrote     %s\n", wrote);
-    fprintf(stderr, "  (not for aviation or navigation; survey deliverables defer to local codes and licensed surveyors)\n");
+    fprintf(cli_out(), "  wrote     %s\n", wrote);
+    fprintf(cli_out(), "  (not for aviation or navigation; survey deliverables defer to local codes and licensed surveyors)\n");
 }
 
 static hyp_status parse_windows(args *a, const hyp_zone *z, hyp_window *w, hyp_error *err)
@@ -718,7 +837,7 @@ static void stem_of(const char *path, char *out, size_t n)
 static int same_as_any_input(const args *a, const char *out)
 {
     for (int i = 0; i < a->n_rovers; i++)
-        if (hyp_same_file(a->rovers[i], out))
+        if (hyp_same_file(a->owned[i], out))
             return 1;
     for (int k = 0; k < a->n_bases; k++)
         if (hyp_same_file(a->bases[k].path, out))
@@ -760,6 +879,12 @@ static hyp_status write_outputs(const args *a, const char *rover_path, const log
         if (stat(slash ? (dir[0] ? dir : "/") : ".", &sb) != 0 || !S_ISDIR(sb.st_mode))
             return hyp_error_set(err, HYP_ERR_IO, "%s: cannot write: the directory does not exist", paths[k]);
     }
+    if (!a->overwrite && a->out_dir)
+        for (int k = 0; k < 2; k++) {
+            struct stat sb;
+            if (paths[k][0] && strcmp(paths[k], "-") != 0 && stat(paths[k], &sb) == 0)
+                return hyp_error_set(err, HYP_OK, "%s exists (--overwrite replaces it)", paths[k]);
+        }
     /* All or nothing: each output goes to a staging name beside its target
      * (itself written through a temporary file), and only when every one is
      * complete are they renamed into place. */
@@ -777,6 +902,8 @@ static hyp_status write_outputs(const args *a, const char *rover_path, const log
     }
     if (!st && csv_path[0])
         st = hyp_table_write(log_series(rv), res, info, stage[1][0] ? stage[1] : "-", err);
+    if (!st && cli_cancelled())
+        st = hyp_error_set(err, HYP_ERR_IO, "interrupted: nothing written");
     for (int k = 0; k < 2; k++) {
         if (!stage[k][0])
             continue;
@@ -847,19 +974,86 @@ static hyp_status prepare_extras(args *a, const log_in *rv, extras *x, hyp_error
 
 static void print_heights(const args *a, const hyp_correct_result *res, const extras *x)
 {
-    fprintf(stderr, "  heights   in %s; known heights in %s; the track's own heights taken as %s\n",
+    fprintf(cli_out(), "  heights   in %s; known heights in %s; the track's own heights taken as %s\n",
             hyp_vref_name(a->out_ref), hyp_vref_name(a->known_ref), hyp_vref_name(a->gnss_ref));
     double m, sd;
     size_t k;
     hyp_diff_stats(x->gnss_out, res->height_m, res->count, &m, &sd, &k);
     if (k)
-        fprintf(stderr, "  gnss      GNSS - corrected height: mean %+.2f m, standard deviation %.2f m over %zu points\n", m, sd, k);
+        fprintf(cli_out(), "  gnss      GNSS - corrected height: mean %+.2f m, standard deviation %.2f m over %zu points\n", m, sd, k);
     if (x->east)
-        fprintf(stderr, "  crs       easting/northing in %s\n", x->crs_name);
+        fprintf(cli_out(), "  crs       easting/northing in %s\n", x->crs_name);
 }
 
-static int correct_one(args *a, const char *rover_path, const log_in *bls, const hyp_zone *rz)
+/* The bases a rover uses: all given with --base, or from --base-dir those
+ * whose logs cover at least 95 % of the rover's time span. */
+static int select_bases(const args *a, const hyp_series *rv, const base_arg *pool, const log_in *logs, int n,
+                        int *sel, hyp_error *err)
 {
+    if (!a->base_dir) {
+        for (int k = 0; k < n; k++)
+            sel[k] = k;
+        return n;
+    }
+    double t0 = NAN, t1 = NAN;
+    for (size_t i = 0; i < rv->count; i++)
+        if (!rv->flag[i]) {
+            if (t0 != t0)
+                t0 = rv->time_s[i];
+            t1 = rv->time_s[i];
+        }
+    int m = 0;
+    for (int k = 0; k < n && m < MAX_BASES; k++) {
+        const hyp_series *b = log_series(&logs[k]);
+        double b0 = NAN, b1 = NAN;
+        for (size_t i = 0; i < b->count; i++)
+            if (!b->flag[i]) {
+                if (b0 != b0)
+                    b0 = b->time_s[i] - pool[k].clock_s;
+                b1 = b->time_s[i] - pool[k].clock_s;
+            }
+        double cover = fmin(t1, b1) - fmax(t0, b0);
+        if (t1 > t0 ? cover >= 0.95 * (t1 - t0) : (t0 >= b0 && t0 <= b1))
+            sel[m++] = k;
+    }
+    if (m == 0) {
+        char x[40], y[40];
+        hyp_time_format(t0, x, sizeof x);
+        hyp_time_format(t1, y, sizeof y);
+        hyp_error_set(err, HYP_ERR_NODATA, "no base log in %s covers the track's %s to %s", a->base_dir, x, y);
+    }
+    return m;
+}
+
+static void fill_result(cli_job_result *jr, const hyp_series *s, const hyp_correct_result *res)
+{
+    jr->points = s->count;
+    jr->corrected = res->n_ok;
+    jr->ties = res->n_calibs;
+    snprintf(jr->method, sizeof jr->method, "%s", hyp_method_name(res->method_used ? res->method_used : HYP_METHOD_SINGLE));
+    double *v = malloc((res->n_ok ? res->n_ok : 1) * sizeof *v);
+    size_t n = 0;
+    for (size_t i = 0; v && i < res->count; i++)
+        if (res->status[i] == HYP_PT_OK)
+            v[n++] = res->sigma_m[i];
+    if (v && n) {
+        qsort(v, n, sizeof *v, cmp_d);
+        jr->median_sigma_m = v[n / 2];
+    } else
+        jr->median_sigma_m = NAN;
+    free(v);
+}
+
+static int correct_one(const args *a0, const char *rover_path, const base_arg *pool, const log_in *pool_logs, int pool_n,
+                       const hyp_zone *rz, cli_job_result *jr)
+{
+    args *a = malloc(sizeof *a);   /* this rover's view of the options: its bases, its PROJ */
+    if (!a) {
+        snprintf(jr->status, sizeof jr->status, "out of memory");
+        fprintf(cli_out(), "hypsolev: error: %s: out of memory\n", rover_path);
+        return EXIT_INPUT;
+    }
+    *a = *a0;
     hyp_msgs msgs;
     hyp_msgs_init(&msgs);
     hyp_error err;
@@ -871,7 +1065,21 @@ static int correct_one(args *a, const char *rover_path, const log_in *bls, const
     hyp_read_opts ro = a->ropts;
     ro.zone = rz;
     ro.need_position = 1;
-    hyp_status st = read_log(rover_path, &ro, &rv, &msgs, &err);
+    log_in bls[MAX_BASES];
+    hyp_status st = hyp_geo_open(&a->geo, &err);
+    if (!st)
+        st = read_log(rover_path, &ro, &rv, &msgs, &err);
+    else
+        hyp_gpx_doc_init(&rv.doc), hyp_series_init(&rv.csv);
+    int sel[MAX_BASES];
+    if (!st) {
+        int m = select_bases(a, log_series(&rv), pool, pool_logs, pool_n, sel, &err);
+        if (m == 0)
+            st = HYP_ERR_NODATA;
+        a->n_bases = m;
+        for (int k = 0; k < m; k++)
+            a->bases[k] = pool[sel[k]], bls[k] = pool_logs[sel[k]];
+    }
     if (!st)
         st = prepare_extras(a, &rv, &x, &err);
     if (!st) {
@@ -896,8 +1104,16 @@ static int correct_one(args *a, const char *rover_path, const log_in *bls, const
     char wrote[8300] = "";
     hyp_output_info info = {.vref = hyp_vref_name(a->out_ref), .gnss_m = x.gnss_out, .easting_m = x.east,
                             .northing_m = x.north, .crs_name = x.crs_name};
-    if (!st)
+    err.status = HYP_ERR_IO;
+    if (!st) {
         st = write_outputs(a, rover_path, &rv, &res, &info, wrote, sizeof wrote, &err);
+        if (!st && err.status == HYP_OK && err.message[0]) {   /* skipped: the output exists */
+            snprintf(jr->status, sizeof jr->status, "skipped: %s", err.message);
+            fprintf(cli_out(), "hypsolev: %s: skipped: %s\n", rover_path, err.message);
+            fill_result(jr, log_series(&rv), &res);
+            goto done;
+        }
+    }
     print_msgs(&msgs, a->quiet);
     if (!st && !a->quiet) {
         print_summary(rover_path, &rv, a, bls, &res, a->copts.rapid_pa_per_s);
@@ -905,12 +1121,168 @@ static int correct_one(args *a, const char *rover_path, const log_in *bls, const
         print_footer(wrote);
     }
     if (st)
-        fprintf(stderr, "hypsolev: error: %s\n", err.message);
+        fprintf(cli_out(), "hypsolev: error: %s%s%s\n", strstr(err.message, rover_path) ? "" : rover_path,
+                strstr(err.message, rover_path) ? "" : ": ", err.message);
+    if (!st)
+        fill_result(jr, log_series(&rv), &res);
+    else
+        jr->points = rv.is_gpx ? rv.doc.pts.count : rv.csv.count;
+    snprintf(jr->status, sizeof jr->status, "%s", st ? err.message : "ok");
+done:
     hyp_correct_result_free(&res);
     extras_free(&x);
     log_free(&rv);
     hyp_msgs_free(&msgs);
+    hyp_geo_close(a->geo);
+    free(a);
     return st == HYP_ERR_USAGE ? EXIT_USAGE : st ? EXIT_INPUT : 0;
+}
+
+typedef struct batch_ctx {
+    const args *a;
+    const base_arg *pool;
+    const log_in *logs;
+    int n_pool;
+    const hyp_zone *rz;
+} batch_ctx;
+
+static void run_job(void *vctx, int i, cli_job_result *jr)
+{
+    const batch_ctx *c = vctx;
+    jr->median_sigma_m = NAN;
+    char *buf = NULL;
+    size_t len = 0;
+    tl_out = open_memstream(&buf, &len);
+    jr->rc = correct_one(c->a, c->a->owned[i], c->pool, c->logs, c->n_pool, c->rz, jr);
+    if (tl_out) {
+        fclose(tl_out);
+        tl_out = NULL;
+        cli_emit(buf, len);
+    }
+    free(buf);
+}
+
+static void csv_field(FILE *f, const char *s)
+{
+    fputc('"', f);
+    for (; *s; s++) {
+        if (*s == '"')
+            fputc('"', f);
+        fputc(*s, f);
+    }
+    fputc('"', f);
+}
+
+static void json_string(FILE *f, const char *s)
+{
+    fputc('"', f);
+    for (; *s; s++) {
+        if (*s == '"' || *s == '\\')
+            fputc('\\', f);
+        if ((unsigned char)*s < 0x20)
+            fprintf(f, "\\u%04x", *s);
+        else
+            fputc(*s, f);
+    }
+    fputc('"', f);
+}
+
+/* The run's table: on stderr, and as CSV or JSON in --summary (written to
+ * a temporary file and renamed). */
+static int write_summary(const args *a, const cli_job_result *r, int n)
+{
+    if (n > 1) {
+        fprintf(stderr, "hypsolev correct: %d files\n  %-40s %9s %9s  %-14s %4s %8s  %s\n", n, "file", "points",
+                "corrected", "method", "ties", "sigma", "status");
+        for (int i = 0; i < n; i++)
+            fprintf(stderr, "  %-40s %9zu %9zu  %-14s %4zu %6.2f m  %.80s\n", a->owned[i], r[i].points, r[i].corrected,
+                    r[i].method[0] ? r[i].method : "-", r[i].ties, r[i].median_sigma_m, r[i].status);
+    }
+    if (!a->summary_path)
+        return 0;
+    char tmp[4200];
+    snprintf(tmp, sizeof tmp, "%s.tmp-%ld", a->summary_path, (long)getpid());
+    FILE *f = fopen(tmp, "w");
+    if (!f) {
+        fprintf(stderr, "hypsolev: error: %s: cannot write: %s\n", a->summary_path, strerror(errno));
+        return EXIT_INPUT;
+    }
+    int json = ends_with(a->summary_path, ".json");
+    if (json)
+        fputs("[\n", f);
+    else
+        fputs("file,points,corrected,method,ties,median_sigma_m,exit_status,status\n", f);
+    for (int i = 0; i < n; i++) {
+        if (json) {
+            fputs("  {\"file\": ", f);
+            json_string(f, a->owned[i]);
+            fprintf(f, ", \"points\": %zu, \"corrected\": %zu, \"method\": ", r[i].points, r[i].corrected);
+            json_string(f, r[i].method);
+            fprintf(f, ", \"ties\": %zu, \"median_sigma_m\": ", r[i].ties);
+            if (r[i].median_sigma_m == r[i].median_sigma_m)
+                fprintf(f, "%.3f", r[i].median_sigma_m);
+            else
+                fputs("null", f);
+            fprintf(f, ", \"exit_status\": %d, \"status\": ", r[i].rc);
+            json_string(f, r[i].status);
+            fprintf(f, "}%s\n", i + 1 < n ? "," : "");
+        } else {
+            csv_field(f, a->owned[i]);
+            fprintf(f, ",%zu,%zu,%s,%zu,", r[i].points, r[i].corrected, r[i].method, r[i].ties);
+            if (r[i].median_sigma_m == r[i].median_sigma_m)
+                fprintf(f, "%.3f", r[i].median_sigma_m);
+            fprintf(f, ",%d,", r[i].rc);
+            csv_field(f, r[i].status);
+            fputc('\n', f);
+        }
+    }
+    if (json)
+        fputs("]\n", f);
+    if (fflush(f) || ferror(f) || fclose(f) || rename(tmp, a->summary_path)) {
+        unlink(tmp);
+        fprintf(stderr, "hypsolev: error: %s: write failed\n", a->summary_path);
+        return EXIT_INPUT;
+    }
+    return 0;
+}
+
+/* --base-dir: the folder's index and every log in it. */
+static int load_base_dir(args *a, base_arg **pool, int *n)
+{
+    char path[4096];
+    snprintf(path, sizeof path, "%s/bases.csv", a->base_dir);
+    hyp_base_entry *e = NULL;
+    size_t cnt = 0;
+    hyp_error err;
+    if (hyp_base_index_read(path, &e, &cnt, &err)) {
+        fprintf(stderr, "hypsolev: error: %s\n", err.message);
+        return EXIT_INPUT;
+    }
+    *pool = calloc(cnt, sizeof **pool);
+    if (!*pool) {
+        fprintf(stderr, "hypsolev: error: out of memory\n");
+        free(e);
+        return EXIT_INPUT;
+    }
+    for (size_t k = 0; k < cnt; k++) {
+        base_arg *b = &(*pool)[k];
+        snprintf(path, sizeof path, "%s/%s", a->base_dir, e[k].file);
+        if (own(a, path)) {
+            free(e);
+            return EXIT_INPUT;
+        }
+        b->path = a->owned[a->n_owned - 1];
+        a->n_owned--;   /* kept apart from the rovers: see cmd_correct */
+        b->height_m = e[k].height_m;
+        b->lat_deg = e[k].lat_deg;
+        b->lon_deg = e[k].lon_deg;
+        b->clock_s = e[k].clock_offset_s;
+        b->offset_pa = NAN;
+        b->qnh = e[k].qnh;
+    }
+    *n = (int)cnt;
+    free(e);
+    return 0;
 }
 
 /* The checks of "inspect" on a base log; its problems become warnings. */
@@ -925,12 +1297,12 @@ static void warn_base_quality(const char *path, const hyp_series *s)
         if (r.issues[i].kind == HYP_ISSUE_RAPID)
             continue;   /* the summary's weather line reports those */
         if (shown++ < 10) {
-            fprintf(stderr, "hypsolev: warning: %s: ", path);
-            cli_print_issue(stderr, "", &r.issues[i]);
+            fprintf(cli_out(), "hypsolev: warning: %s: ", path);
+            cli_print_issue(cli_out(), "", &r.issues[i]);
         }
     }
     if (shown > 10)
-        fprintf(stderr, "hypsolev: warning: %s: %zu problems in all (hypsolev inspect lists them)\n", path, shown);
+        fprintf(cli_out(), "hypsolev: warning: %s: %zu problems in all (hypsolev inspect lists them)\n", path, shown);
     hyp_inspection_free(&r);
 }
 
@@ -952,25 +1324,16 @@ static int run(args *a)
     hyp_zone rz, bz;
     int rc = make_zone(a->rover_zone, "--time-zone", &rz);
     if (!rc)
-        rc = make_zone(a->bases[0].zone, "--base-time-zone", &bz);
+        rc = make_zone(a->n_bases ? a->bases[0].zone : NULL, "--base-time-zone", &bz);
     else
         hyp_zone_init(&bz);
     hyp_window w[MAX_WINDOWS];
     hyp_error err;
     hyp_msgs msgs;
     hyp_msgs_init(&msgs);
-    log_in bls[MAX_BASES];
-    for (int k = 0; k < MAX_BASES; k++) {
-        hyp_gpx_doc_init(&bls[k].doc);
-        hyp_series_init(&bls[k].csv);
-    }
     if (!rc && parse_windows(a, &rz, w, &err)) {
         fprintf(stderr, "hypsolev correct: %s\n", err.message);
         rc = EXIT_USAGE;
-    }
-    if (!rc && hyp_geo_open(&a->geo, &err)) {
-        fprintf(stderr, "hypsolev: error: %s\n", err.message);
-        rc = EXIT_INPUT;
     }
     hyp_benchmarks bms;
     hyp_benchmarks_init(&bms);
@@ -1008,25 +1371,41 @@ static int run(args *a)
         a->n_colocate = n;
         a->copts.base_colocate = bw[0];
     }
-    for (int k = 0; !rc && k < a->n_bases; k++) {
+    base_arg *pool = a->bases;
+    int n_pool = a->n_bases;
+    base_arg *dir_pool = NULL;
+    if (!rc && a->base_dir) {
+        rc = load_base_dir(a, &dir_pool, &n_pool);
+        pool = dir_pool;
+    }
+    log_in *logs = calloc((size_t)(n_pool ? n_pool : 1), sizeof *logs);
+    if (!logs) {
+        fprintf(stderr, "hypsolev: error: out of memory\n");
+        rc = EXIT_INPUT;
+    }
+    for (int k = 0; logs && k < n_pool; k++) {
+        hyp_gpx_doc_init(&logs[k].doc);
+        hyp_series_init(&logs[k].csv);
+    }
+    for (int k = 0; !rc && k < n_pool; k++) {
         hyp_zone kz;
         hyp_zone_init(&kz);
-        if (make_zone(a->bases[k].zone, "--base-time-zone", &kz)) {
+        if (make_zone(pool[k].zone, "--base-time-zone", &kz)) {
             rc = EXIT_USAGE;
             break;
         }
         hyp_read_opts ro = a->ropts;
         ro.zone = &kz;
         ro.need_position = 0;
-        if (a->bases[k].qnh)
+        if (pool[k].qnh)
             ro.pressure_unit = ro.pressure_unit ? ro.pressure_unit : HYP_UNIT_HPA;
-        if (read_log(a->bases[k].path, &ro, &bls[k], &msgs, &err)) {
+        if (read_log(pool[k].path, &ro, &logs[k], &msgs, &err)) {
             print_msgs(&msgs, a->quiet);
             fprintf(stderr, "hypsolev: error: %s\n", err.message);
             rc = EXIT_INPUT;
         } else {
             print_msgs(&msgs, a->quiet);
-            warn_base_quality(a->bases[k].path, log_series(&bls[k]));
+            warn_base_quality(pool[k].path, log_series(&logs[k]));
         }
         hyp_msgs_free(&msgs);
         hyp_msgs_init(&msgs);
@@ -1034,16 +1413,37 @@ static int run(args *a)
     }
     /* One rover's failure is reported and the others still run; the exit
      * status is the worst of them. */
-    int base_ok = rc == 0;
-    for (int i = 0; base_ok && i < a->n_rovers; i++) {
-        int r = correct_one(a, a->rovers[i], bls, &rz);
-        if (r > rc)
-            rc = r;
+    if (!rc) {
+        cli_job_result *res = calloc((size_t)a->n_rovers, sizeof *res);
+        if (!res) {
+            fprintf(stderr, "hypsolev: error: out of memory\n");
+            rc = EXIT_INPUT;
+        }
+        else {
+            batch_ctx ctx = {a, pool, logs, n_pool, &rz};
+            long cores = sysconf(_SC_NPROCESSORS_ONLN);
+            int jobs = a->jobs ? a->jobs : (int)(cores > 0 ? cores : 1);
+            int progress = a->progress || (!a->quiet && a->n_rovers > 1 && isatty(2));
+            xmlInitParser();   /* libxml2 wants its one-time set-up before threads */
+            int sig = cli_run_jobs(a->n_rovers, jobs, progress, run_job, &ctx, res);
+            for (int i = 0; i < a->n_rovers; i++) {
+                if (!res[i].status[0])
+                    snprintf(res[i].status, sizeof res[i].status, "not started (interrupted)"), res[i].rc = EXIT_INPUT;
+                if (res[i].rc > rc)
+                    rc = res[i].rc;
+            }
+            int srr = write_summary(a, res, a->n_rovers);
+            if (srr > rc)
+                rc = srr;
+            if (sig)
+                rc = 128 + sig;
+            free(res);
+        }
     }
-    for (int k = 0; k < MAX_BASES; k++)
-        log_free(&bls[k]);
-    hyp_geo_close(a->geo);
-    a->geo = NULL;
+    for (int k = 0; logs && k < n_pool; k++)
+        log_free(&logs[k]);
+    free(logs);
+    free(dir_pool);
     hyp_benchmarks_free(&bms);
     free(ties);
     hyp_msgs_free(&msgs);
@@ -1061,5 +1461,8 @@ int cmd_correct(int argc, char **argv)
     else if (rc < 0)
         rc = 0;
     free(a.rovers);
+    for (int i = 0; i < a.n_owned; i++)
+        free(a.owned[i]);
+    free(a.owned);
     return rc;
 }

@@ -48,7 +48,7 @@ hyp_cli_case(csv_nul 1 "nul.csv:1: NUL byte; not a text file" correct ${R} --bas
 hyp_cli_case(csv_rover_no_lon 1 "rover_no_lon.csv:1: header: a rover log needs \"lat\" and \"lon\" columns" correct @DATA@/bad/rover_no_lon.csv ${B} ${O})
 hyp_cli_case(base_one_row 1 "one_row.csv: fewer than two usable base samples" correct ${R} --base @DATA@/bad/one_row.csv --base-height 800 ${O})
 hyp_cli_case(no_time_overlap 1 "no rover sample could be corrected \\(61 outside the base log's time span" correct ${R} --base @DATA@/bad/early_base.csv --base-height 800 ${O})
-hyp_cli_case(directory_input 1 "bad: is a directory" correct @DATA@/bad ${B} ${O})
+hyp_cli_case(directory_input 1 "bad: is a directory, expected a log file" correct ${R} --base @DATA@/bad --base-height 800 ${O})
 hyp_cli_case(missing_file 1 "nothere.gpx: cannot open: No such file" correct @DATA@/nothere.gpx ${B} ${O})
 hyp_cli_case(missing_out_dir 1 "out.gpx: cannot write: the directory does not exist" correct ${R} ${B} -o @OUT@/no/such/dir/out.gpx)
 # copes and warns: exit 0

@@ -6,7 +6,7 @@
  * can score a correction against it.
  *
  *   hypsim SCENARIO OUTDIR [--seed N] [--lapse K_PER_KM] [--gnss-bias M]
- *          [--gnss-heights geoid|ellipsoidal]
+ *          [--gnss-heights geoid|ellipsoidal] [--t0 UNIX_SECONDS]
  *   scenarios: demo, calm, ties, front, faraway, clock, twobase, threebase,
  *   qnh, warm
  *
@@ -572,6 +572,8 @@ int main(int argc, char **argv)
             rng_state ^= strtoull(argv[k + 1], NULL, 10) * 0x9E3779B97F4A7C15ULL;
         else if (strcmp(argv[k], "--lapse") == 0)   /* K/km: another day's atmosphere */
             custom.lapse_k_km = strtod(argv[k + 1], NULL);
+        else if (strcmp(argv[k], "--t0") == 0)   /* another day: Unix seconds of the start */
+            custom.t0 = strtod(argv[k + 1], NULL);
         else if (strcmp(argv[k], "--gnss-bias") == 0)   /* m */
             opt_gnss_bias_m = strtod(argv[k + 1], NULL);
         else if (strcmp(argv[k], "--gnss-heights") == 0)   /* geoid or ellipsoidal */

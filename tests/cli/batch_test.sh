@@ -1,0 +1,72 @@
+#!/usr/bin/env bash
+# Batch runs: several tracks on different days against a folder of base
+# logs (each matched by time), one broken track and one no base covers;
+# then a run interrupted by SIGINT. Checks exit status, outputs, the
+# summary, and that an interrupted run leaves no partial or temporary file
+# and the previous outputs intact.
+# usage: batch_test.sh HYPSOLEV HYPSIM WORK_DIR
+set -u
+exe=$1 sim=$2 work=$3
+rm -rf "$work" && mkdir -p "$work"/{rovers,bases,out,sim}
+fails=0
+bad() { echo "FAIL: $*"; fails=$((fails + 1)); }
+day=86400
+t0=1781766000
+for d in 0 1 2; do
+  "$sim" demo "$work/sim/d$d" --t0 $((t0 + d * day)) --seed $d > /dev/null 2>&1 || { mkdir -p "$work/sim/d$d"; "$sim" demo "$work/sim/d$d" --t0 $((t0 + d * day)) --seed $d; }
+  cp "$work/sim/d$d/rover.gpx" "$work/rovers/walk-day$d.gpx"
+done
+# bases for days 0 and 1 only: day 2 is covered by none
+cp "$work/sim/d0/base.csv" "$work/bases/hut-0618.csv"
+cp "$work/sim/d1/base.csv" "$work/bases/hut-0619.csv"
+printf 'file,height,lat,lon\nhut-0618.csv,812.4,46.80,9.90\nhut-0619.csv,812.4,46.80,9.90\n' > "$work/bases/bases.csv"
+head -c 5000 "$work/rovers/walk-day0.gpx" > "$work/rovers/broken.gpx"
+
+"$exe" correct "$work/rovers" --base-dir "$work/bases" --out-dir "$work/out" -j 2 --summary "$work/out/summary.csv" \
+    > "$work/stdout" 2> "$work/stderr"
+rc=$?
+[ $rc -eq 1 ] || bad "batch exit status $rc, expected 1 (one broken, one uncovered)"
+for d in 0 1; do
+  [ -s "$work/out/walk-day$d.gpx" ] && [ -s "$work/out/walk-day$d.csv" ] || bad "day $d outputs missing"
+done
+[ -e "$work/out/walk-day2.gpx" ] && bad "day 2 has an output though no base covers it"
+[ -e "$work/out/broken.gpx" ] && bad "the broken track has an output"
+grep -q "broken.gpx:[0-9]*: the file ends with" "$work/stderr" || bad "broken track not reported: $(grep broken "$work/stderr" | head -2)"
+grep -q "walk-day2.gpx: no base log in .* covers the track's" "$work/stderr" || bad "uncovered track not reported"
+s="$work/out/summary.csv"
+[ "$(wc -l < "$s")" -eq 5 ] || bad "summary has $(wc -l < "$s") lines, expected 5"
+grep -q '^".*walk-day0.gpx",3458,3458,single base,2,[0-9.]*,0,"ok"$' "$s" || bad "summary row for day 0: $(grep day0 "$s")"
+grep -q '^".*walk-day2.gpx",3458,0,.*,1,"no base log in' "$s" || bad "summary row for day 2: $(grep day2 "$s")"
+grep -q '^".*broken.gpx",.*,1,".*the file ends with' "$s" || bad "summary row for the broken track: $(grep broken "$s")"
+grep -q "hypsolev correct: 4 files" "$work/stderr" || bad "no summary table on stderr"
+
+# a second run skips what exists, --overwrite replaces it
+"$exe" correct "$work/rovers/walk-day0.gpx" --base-dir "$work/bases" --out-dir "$work/out" -q 2> "$work/stderr2"
+[ $? -eq 0 ] || bad "re-run exit status"
+grep -q "skipped: .*walk-day0.gpx exists (--overwrite replaces it)" "$work/stderr2" || bad "re-run did not skip: $(cat "$work/stderr2")"
+
+# JSON summary
+"$exe" correct "$work/rovers/walk-day1.gpx" --base-dir "$work/bases" --out-dir "$work/out" --overwrite -q \
+    --summary "$work/out/s.json" 2> /dev/null || bad "JSON run failed"
+grep -q '"status": "ok"' "$work/out/s.json" || bad "JSON summary: $(cat "$work/out/s.json")"
+
+# interrupted: many copies, SIGINT part-way; every output is complete or absent
+mkdir -p "$work/many" "$work/out2"
+for i in $(seq 1 60); do cp "$work/rovers/walk-day0.gpx" "$work/many/w$i.gpx"; done
+"$exe" correct "$work/many/w1.gpx" --base-dir "$work/bases" -o "$work/ref.gpx" -q || bad "reference run"
+echo old > "$work/out2/w1.gpx"
+"$exe" correct "$work/many" --base-dir "$work/bases" --out-dir "$work/out2" --overwrite -j 2 -q 2> "$work/stderr3" &
+pid=$!
+sleep 0.3
+kill -INT $pid
+wait $pid
+rc=$?
+[ $rc -eq 130 ] || [ $rc -eq 0 ] || bad "interrupted run: exit $rc, expected 130 (or 0 if it had finished)"
+ls "$work/out2" | grep -qE '\.tmp-|\.new-' && bad "temporary files left: $(ls "$work/out2")"
+for f in "$work"/out2/*.gpx; do
+  if [ "$(head -c 3 "$f")" = old ]; then continue; fi
+  cmp -s "$f" "$work/ref.gpx" || bad "$(basename "$f") is neither complete nor the previous output"
+done
+echo "batch: $(ls "$work/out2" | wc -l) outputs after the interruption (exit $rc)"
+echo "batch: $((fails == 0 ? 1 : 0)) passed, $((fails == 0 ? 0 : 1)) failed"
+[ $fails -eq 0 ]
