@@ -1,0 +1,39 @@
+#!/usr/bin/env bash
+# Benchmark (not a test): hypsolev correct against xmllint --stream on one
+# large track, peak memory per point, and the batch speed-up of -j 2 over
+# -j 1. Prints the figures with the targets; all ratios come from one run
+# on one machine, as noisy machines allow nothing finer.
+#   bench/run.sh [POINTS] [BUILD_DIR]     (default 1000000, build)
+set -euo pipefail
+n=${1:-1000000}
+top=$(cd "$(dirname "$0")/.." && pwd)
+build=${2:-$top/build}
+exe=$build/hypsolev
+work=$(mktemp -d)
+trap 'rm -rf "$work"' EXIT
+cc -O2 -o "$work/gentrack" "$top/bench/gentrack.c" -lm
+cc -O2 -o "$work/peakrss" "$top/bench/peakrss.c"
+command -v xmllint > /dev/null || { echo "xmllint missing: apt-get install libxml2-utils"; exit 1; }
+"$work/gentrack" "$n" "$work/track.gpx" "$work/base.csv"
+measure() {   # prints "rss_kib wall_s"
+  "$work/peakrss" "$@" 2>&1 >/dev/null | sed -n 's/^peak_rss_kib \([0-9]*\) wall_s \([0-9.]*\)$/\1 \2/p'
+}
+run=(correct "$work/track.gpx" --base "$work/base.csv" --base-height 800 --offset 0 -o "$work/out.gpx" -q --no-gnss-anchor)
+measure xmllint --stream --noout "$work/track.gpx" > /dev/null   # warm the page cache
+read -r x_rss x_s < <(measure xmllint --stream --noout "$work/track.gpx")
+read -r h_rss h_s < <(measure "$exe" "${run[@]}")
+size=$(stat -c %s "$work/track.gpx")
+echo "track: $n points, $((size / 1048576)) MiB"
+awk -v hs="$h_s" -v xs="$x_s" -v n="$n" -v hr="$h_rss" 'BEGIN {
+  printf "hypsolev correct: %.2f s, xmllint --stream: %.2f s, ratio %.2f (target <= 1.3)\n", hs, xs, hs / xs
+  printf "points per second: %.0f\n", n / hs
+  printf "peak RSS: %.1f MiB, %.0f bytes per point (target <= 80)\n", hr / 1024, hr * 1024 / n }'
+# batch: 8 tracks of a tenth of the size each
+m=$((n / 10))
+mkdir -p "$work/many" "$work/o1" "$work/o2"
+"$work/gentrack" "$m" "$work/many/t0.gpx" "$work/base2.csv"
+for i in 1 2 3 4 5 6 7; do cp "$work/many/t0.gpx" "$work/many/t$i.gpx"; done
+batch=(correct "$work/many" --base "$work/base2.csv" --base-height 800 --offset 0 -q --no-gnss-anchor)
+read -r _ j1 < <(measure "$exe" "${batch[@]}" --out-dir "$work/o1" -j 1)
+read -r _ j2 < <(measure "$exe" "${batch[@]}" --out-dir "$work/o2" -j 2)
+awk -v a="$j1" -v b="$j2" 'BEGIN { printf "batch of 8: -j 1 %.2f s, -j 2 %.2f s, speed-up %.2f (target >= 1.6)\n", a, b, a / b }'
