@@ -120,16 +120,20 @@ double hyp_gravity_normal_m_s2(double lat_deg)
     return WGS84_GE * (1.0 + WGS84_K * s2) / sqrt(1.0 - WGS84_E2 * s2);
 }
 
+/* TR8350.2 eq. 4-3 for gravity g on the ellipsoid and sin^2(lat) s2. */
+static double height_term(double g, double s2, double h_m)
+{
+    return g * (1.0 - 2.0 / WGS84_A * (1.0 + WGS84_F + WGS84_M - 2.0 * WGS84_F * s2) * h_m
+                + 3.0 / (WGS84_A * WGS84_A) * h_m * h_m);
+}
+
 double hyp_gravity_at_height_m_s2(double lat_deg, double h_m)
 {
     double g = hyp_gravity_normal_m_s2(lat_deg);
     if (g != g || h_m != h_m)
         return NAN;
     double s = sin(lat_deg * PI / 180.0);
-    double s2 = s * s;
-    /* TR8350.2 eq. 4-3 */
-    return g * (1.0 - 2.0 / WGS84_A * (1.0 + WGS84_F + WGS84_M - 2.0 * WGS84_F * s2) * h_m
-                + 3.0 / (WGS84_A * WGS84_A) * h_m * h_m);
+    return height_term(g, s * s, h_m);
 }
 
 double hyp_svp_water_pa(double temp_k)
@@ -181,13 +185,14 @@ double hyp_hypsometric_dphi_j_kg(double p1_pa, double p2_pa, double tv_mean_k)
 
 double hyp_height_difference_m(double dphi_j_kg, double h1_m, double lat_deg)
 {
-    double g = hyp_gravity_at_height_m_s2(lat_deg, h1_m);
-    if (g != g || dphi_j_kg != dphi_j_kg)
+    double g0 = hyp_gravity_normal_m_s2(lat_deg);
+    if (g0 != g0 || dphi_j_kg != dphi_j_kg || h1_m != h1_m)
         return NAN;
+    double s = sin(lat_deg * PI / 180.0), s2 = s * s;
     /* Normal gravity is linear in h to 1e-7 over a few km, so the mean over
      * the layer is its value at mid-layer: two fixed-point steps. */
-    double dz = dphi_j_kg / g;
+    double dz = dphi_j_kg / height_term(g0, s2, h1_m);
     for (int i = 0; i < 2; i++)
-        dz = dphi_j_kg / hyp_gravity_at_height_m_s2(lat_deg, h1_m + 0.5 * dz);
+        dz = dphi_j_kg / height_term(g0, s2, h1_m + 0.5 * dz);
     return dz;
 }

@@ -255,6 +255,7 @@ hyp_status hyp_csv_read(const char *path, const hyp_read_opts *opts, hyp_series 
     if (pressure_unit_found)
         *pressure_unit_found = pu;
     hyp__check_series(path, out, msgs);
+    hyp_series_shrink(out);
     if (hyp_series_count_flag(out, HYP_SAMPLE_OK) == 0)
         st = hyp_error_set(err, HYP_ERR_NODATA, "%s: no usable sample (every row lacks a time or a valid pressure)", path);
 out:

@@ -290,7 +290,10 @@ static void on_start(void *ctx, const xmlChar *local, const xmlChar *prefix, con
     int gpx = is_gpx_ns(g, uri);
     if (gpx && g->depth == 2 && xmlStrEqual(local, BAD_CAST "metadata")) {
         g->meta_depth = 2;
-        if (g->ctxt->input->cur[0] == '/')
+        /* metadata belongs first; one after points (invalid GPX) or a
+         * second one is no place for what is added at the document level,
+         * which is spliced in before the points */
+        if (g->ctxt->input->cur[0] == '/' || g->doc->pts.count || g->doc->wpts.count || g->doc->layout.meta_kind)
             g->doc->layout.meta_kind = 3;
     } else if (gpx && g->meta_depth && g->depth == 3 && xmlStrEqual(local, BAD_CAST "extensions"))
         g->meta_ext_depth = 3;
@@ -502,8 +505,10 @@ static void on_end(void *ctx, const xmlChar *local, const xmlChar *prefix, const
         } else if ((g->in_pt || g->in_wpt) && g->depth == g->pt_depth)
             end_point(g);
         else if (g->meta_ext_depth && g->depth == g->meta_ext_depth) {
-            g->doc->layout.meta_ins = end_tag_start(g);
-            g->doc->layout.meta_kind = 1;
+            if (g->doc->layout.meta_kind == 0) {
+                g->doc->layout.meta_ins = end_tag_start(g);
+                g->doc->layout.meta_kind = 1;
+            }
             g->meta_ext_depth = 0;
         } else if (g->meta_depth && g->depth == g->meta_depth) {
             if (g->doc->layout.meta_kind == 0) {
@@ -729,6 +734,24 @@ hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts, hyp_gpx_doc
     free(g.p_raw);
     free(g.t_raw);
     xmlFree(g.gpx_uri);
+    if (!st) {
+        /* give back the doubling slack: at a million points it is most of
+         * the reader's memory */
+        hyp_series_shrink(&doc->pts);
+        hyp_gpx_layout *L = &doc->layout;
+        size_t n = doc->pts.count ? doc->pts.count : 1;
+        void *q;
+        if ((q = realloc(L->open_end, n * sizeof(int64_t)))) L->open_end = q;
+        if ((q = realloc(L->ele_beg, n * sizeof(int64_t)))) L->ele_beg = q;
+        if ((q = realloc(L->ele_end, n * sizeof(int64_t)))) L->ele_end = q;
+        if ((q = realloc(L->ext_ins, n * sizeof(int64_t)))) L->ext_ins = q;
+        if ((q = realloc(L->ext_kind, n))) L->ext_kind = q;
+        if (!doc->has_geoidheight) {
+            free(doc->geoidheight_m);
+            doc->geoidheight_m = NULL;
+        } else if ((q = realloc(doc->geoidheight_m, n * sizeof(double))))
+            doc->geoidheight_m = q;
+    }
     if (st)
         hyp_gpx_doc_free(doc);
     return st;

@@ -7,6 +7,7 @@
 
 #include <errno.h>
 #include <math.h>
+#include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -63,6 +64,32 @@ static int src_peek(src *s)
     return src_fill(s) ? s->buf[s->pos] : -1;
 }
 
+/* v with three decimals, as "%.3f" would print it but without printf (the
+ * writer's hot path): rounding half away from zero on the thousandths. */
+static int fmt3(char *buf, double v)
+{
+    if (!(fabs(v) < 1e12))
+        return snprintf(buf, 32, "%.3f", v);
+    long long t = llround(v * 1000.0);
+    int neg = t < 0;
+    unsigned long long u = (unsigned long long)(neg ? -t : t);
+    char tmp[32];
+    int n = 0;
+    do {
+        tmp[n++] = (char)('0' + u % 10);
+        u /= 10;
+        if (n == 3)
+            tmp[n++] = '.';
+    } while (u || n < 5);
+    int k = 0;
+    if (neg)
+        buf[k++] = '-';
+    while (n)
+        buf[k++] = tmp[--n];
+    buf[k] = '\0';
+    return k;
+}
+
 static void escape_into(char *dst, size_t n, const char *s)
 {
     size_t k = 0;
@@ -84,10 +111,14 @@ static void point_elements(char *buf, size_t n, const hyp_gpx_doc *doc, const hy
     const char *P = HYP_GPX_PREFIX;
     if (res->status[i] == HYP_PT_OK) {
         double e = doc->pts.ele_m[i];
-        char ein[96] = "";
-        if (e == e)
-            snprintf(ein, sizeof ein, "<%s:ele_in>%.3f</%s:ele_in>", P, e, P);
-        snprintf(buf, n, "%s<%s:sigma>%.3f</%s:sigma>", ein, P, res->sigma_m[i], P);
+        char a[32], b[32];
+        fmt3(b, res->sigma_m[i]);
+        if (e == e) {
+            fmt3(a, e);
+            snprintf(buf, n, "<" HYP_GPX_PREFIX ":ele_in>%s</" HYP_GPX_PREFIX ":ele_in><" HYP_GPX_PREFIX ":sigma>%s</" HYP_GPX_PREFIX ":sigma>", a, b);
+        } else
+            snprintf(buf, n, "<" HYP_GPX_PREFIX ":sigma>%s</" HYP_GPX_PREFIX ":sigma>", b);
+        (void)P;
     } else {
         char why[200];
         const char *reason = res->status[i] == HYP_PT_REFUSED
@@ -144,7 +175,8 @@ static hyp_status splice_point(src *s, FILE *out, const char *in, const hyp_gpx_
     if (ok && L->ele_beg[i] >= 0) {
         if ((st = step(s, out, L->ele_beg[i], '>', 0, in, err)))
             return st;
-        fprintf(out, "%.3f", res->height_m[i]);
+        char h[32];
+        fwrite(h, 1, (size_t)fmt3(h, res->height_m[i]), out);
         if ((st = step(s, NULL, L->ele_end[i], 0, '<', in, err)))
             return st;
     } else if (ok) {

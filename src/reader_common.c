@@ -4,6 +4,7 @@
 
 #include <errno.h>
 #include <math.h>
+#include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -37,6 +38,35 @@ int hyp__parse_number(const char *s, size_t len, int decimal_comma, double *v)
     buf[len] = '\0';
     if (!seen_digit)
         return 0;
+    /* Fast path for plain decimals of up to 15 digits (what logs hold): the
+     * digits as an exact integer divided by an exact power of ten is
+     * correctly rounded, as strtod is (IEEE 754 division). */
+    {
+        const char *q = buf;
+        int neg = *q == '-';
+        if (*q == '-' || *q == '+')
+            q++;
+        uint64_t m = 0;
+        int nd = 0, frac = -1, ok = *q != '\0';
+        for (; *q && ok; q++) {
+            if (*q >= '0' && *q <= '9') {
+                m = m * 10 + (uint64_t)(*q - '0');
+                if (++nd > 15)
+                    ok = 0;
+                if (frac >= 0)
+                    frac++;
+            } else if (*q == '.' && frac < 0)
+                frac = 0;
+            else
+                ok = 0;
+        }
+        if (ok && nd > 0) {
+            static const double p10[16] = {1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
+            double x = (double)m / p10[frac > 0 ? frac : 0];
+            *v = neg ? -x : x;
+            return 1;
+        }
+    }
     char *end;
     errno = 0;
     double x = strtod(buf, &end);

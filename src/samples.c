@@ -110,3 +110,26 @@ const char *hyp_sample_flag_text(hyp_sample_flag f)
     }
     return "unknown";
 }
+
+static void shrink(void **p, size_t n, size_t size)
+{
+    void *q = realloc(*p, (n ? n : 1) * size);
+    if (q)
+        *p = q;   /* on failure the larger block stays: still valid */
+}
+
+void hyp_series_shrink(hyp_series *s)
+{
+    if (s->alloc == s->count || !s->time_s)
+        return;
+    shrink((void **)&s->time_s, s->count, sizeof(double));
+    shrink((void **)&s->pressure_pa, s->count, sizeof(double));
+    shrink((void **)&s->temp_k, s->count, sizeof(double));
+    shrink((void **)&s->rh_pct, s->count, sizeof(double));
+    shrink((void **)&s->lat_deg, s->count, sizeof(double));
+    shrink((void **)&s->lon_deg, s->count, sizeof(double));
+    shrink((void **)&s->ele_m, s->count, sizeof(double));
+    shrink((void **)&s->line, s->count, sizeof(uint32_t));
+    shrink((void **)&s->flag, s->count, sizeof(uint8_t));
+    s->alloc = s->count;
+}

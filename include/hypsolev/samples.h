@@ -55,6 +55,8 @@ void hyp_series_free(hyp_series *s);
 hyp_status hyp_series_push(hyp_series *s, double time_s, double pressure_pa,
                            double temp_k, double rh_pct, double lat_deg,
                            double lon_deg, double ele_m, uint32_t line, hyp_sample_flag flag);
+/* Gives back the growth slack of the arrays (count becomes the capacity). */
+void hyp_series_shrink(hyp_series *s);
 /* Number of samples with flag f. */
 size_t hyp_series_count_flag(const hyp_series *s, hyp_sample_flag f);
 

@@ -1267,12 +1267,14 @@ static int load_base_dir(args *a, base_arg **pool, int *n)
     for (size_t k = 0; k < cnt; k++) {
         base_arg *b = &(*pool)[k];
         snprintf(path, sizeof path, "%s/%s", a->base_dir, e[k].file);
-        if (own(a, path)) {
+        char *copy = strdup(path);   /* freed with the pool in run() */
+        if (!copy) {
+            fprintf(stderr, "hypsolev: error: out of memory\n");
+            *n = (int)k;
             free(e);
             return EXIT_INPUT;
         }
-        b->path = a->owned[a->n_owned - 1];
-        a->n_owned--;   /* kept apart from the rovers: see cmd_correct */
+        b->path = copy;
         b->height_m = e[k].height_m;
         b->lat_deg = e[k].lat_deg;
         b->lon_deg = e[k].lon_deg;
@@ -1443,6 +1445,8 @@ static int run(args *a)
     for (int k = 0; logs && k < n_pool; k++)
         log_free(&logs[k]);
     free(logs);
+    for (int k = 0; dir_pool && k < n_pool; k++)
+        free((char *)dir_pool[k].path);
     free(dir_pool);
     hyp_benchmarks_free(&bms);
     free(ties);
