@@ -365,13 +365,13 @@ double hyp__height_above_base(const hyp__work *w, size_t i, double pb, double pr
         tb = tr == tr ? tr - o->lapse_k_per_m * dz0
                       : hyp_isa_temperature_k(hyp_geopotential_from_geometric_m(w->base->height_m));
     }
+    double tvb = hyp_virtual_temperature_k(tb, w->rhb[i], pb);
     for (int it = 0; it < 4; it++) {
         double t_top = tb + o->lapse_k_per_m * dz;
         if (o->tcol == HYP_TCOL_ROVER && tr == tr)
             t_top = tr;
         else if (o->tcol == HYP_TCOL_BOTH && tr == tr)
             t_top = 0.5 * (t_top + tr);
-        double tvb = hyp_virtual_temperature_k(tb, w->rhb[i], pb);
         double tvr = hyp_virtual_temperature_k(t_top, w->rhr[i], pr);
         tv = hyp_layer_mean_temperature_k(tvb, tvr);
         dz = hyp_height_difference_m(hyp_hypsometric_dphi_j_kg(pb, pr, tv), w->base->height_m, lat);

@@ -113,11 +113,14 @@ static void point_elements(char *buf, size_t n, const hyp_gpx_doc *doc, const hy
         double e = doc->pts.ele_m[i];
         char a[32], b[32];
         fmt3(b, res->sigma_m[i]);
+        const char *fl = res->extrapolated && res->extrapolated[i]
+                             ? "<" HYP_GPX_PREFIX ":status>extrapolated outside the bases' heights</" HYP_GPX_PREFIX ":status>"
+                             : "";
         if (e == e) {
             fmt3(a, e);
-            snprintf(buf, n, "<" HYP_GPX_PREFIX ":ele_in>%s</" HYP_GPX_PREFIX ":ele_in><" HYP_GPX_PREFIX ":sigma>%s</" HYP_GPX_PREFIX ":sigma>", a, b);
+            snprintf(buf, n, "<" HYP_GPX_PREFIX ":ele_in>%s</" HYP_GPX_PREFIX ":ele_in><" HYP_GPX_PREFIX ":sigma>%s</" HYP_GPX_PREFIX ":sigma>%s", a, b, fl);
         } else
-            snprintf(buf, n, "<" HYP_GPX_PREFIX ":sigma>%s</" HYP_GPX_PREFIX ":sigma>", b);
+            snprintf(buf, n, "<" HYP_GPX_PREFIX ":sigma>%s</" HYP_GPX_PREFIX ":sigma>%s", b, fl);
         (void)P;
     } else {
         char why[200];
