@@ -116,11 +116,21 @@ static void point_elements(char *buf, size_t n, const hyp_gpx_doc *doc, const hy
         const char *fl = res->extrapolated && res->extrapolated[i]
                              ? "<" HYP_GPX_PREFIX ":status>extrapolated outside the bases' heights</" HYP_GPX_PREFIX ":status>"
                              : "";
+        /* built by hand: this runs once per point */
+        char *w = buf, *end = buf + n - 1;
+#define PUT(str) do { for (const char *q_ = (str); *q_ && w < end; ) *w++ = *q_++; } while (0)
         if (e == e) {
             fmt3(a, e);
-            snprintf(buf, n, "<" HYP_GPX_PREFIX ":ele_in>%s</" HYP_GPX_PREFIX ":ele_in><" HYP_GPX_PREFIX ":sigma>%s</" HYP_GPX_PREFIX ":sigma>%s", a, b, fl);
-        } else
-            snprintf(buf, n, "<" HYP_GPX_PREFIX ":sigma>%s</" HYP_GPX_PREFIX ":sigma>%s", b, fl);
+            PUT("<" HYP_GPX_PREFIX ":ele_in>");
+            PUT(a);
+            PUT("</" HYP_GPX_PREFIX ":ele_in>");
+        }
+        PUT("<" HYP_GPX_PREFIX ":sigma>");
+        PUT(b);
+        PUT("</" HYP_GPX_PREFIX ":sigma>");
+        PUT(fl);
+#undef PUT
+        *w = '\0';
         (void)P;
     } else {
         char why[200];
