@@ -31,6 +31,18 @@ double hyp_geo_distance_m(double lat1_deg, double lon1_deg,
     return s12;
 }
 
+int hyp_geo_inverse(double lat1_deg, double lon1_deg, double lat2_deg, double lon2_deg,
+                    double *dist_m, double *azimuth_deg)
+{
+    if (!(fabs(lat1_deg) <= 90.0 && fabs(lat2_deg) <= 90.0 && fabs(lon1_deg) <= 540.0 && fabs(lon2_deg) <= 540.0))
+        return -1;
+    struct geod_geodesic g;
+    geod_init(&g, 6378137.0, 1.0 / 298.257223563);
+    double az2;
+    geod_inverse(&g, lat1_deg, lon1_deg, lat2_deg, lon2_deg, dist_m, azimuth_deg, &az2);
+    return 0;
+}
+
 const char *hyp_vref_name(hyp_vref v)
 {
     return v == HYP_VREF_ELLIPSOID ? "WGS84 ellipsoid (EPSG:4979)" : "EGM96 geoid (EPSG:5773)";

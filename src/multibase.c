@@ -167,13 +167,19 @@ hyp_status hyp__multibase(hyp__work *w, hyp_error *err)
     return HYP_OK;
 }
 
-/* Local east/north (km) from the field's centre: an equirectangular
- * approximation, within 0.1 % over 100 km, ample for a gradient. */
+/* Local east/north (km) from the field's centre: the azimuthal
+ * equidistant projection, computed with the geodesic from the centre
+ * (distance and azimuth; Karney 2013 through PROJ's geodesic.h). */
 static void local_xy(const hyp__work *w, double lat, double lon, double *x, double *y)
 {
-    double c = cos(w->virt.lat_deg * 3.14159265358979323846 / 180.0);
-    *x = (lon - w->virt.lon_deg) * 111.32 * c;
-    *y = (lat - w->virt.lat_deg) * 110.57;
+    double s, az;
+    if (hyp_geo_inverse(w->virt.lat_deg, w->virt.lon_deg, lat, lon, &s, &az)) {
+        *x = *y = NAN;
+        return;
+    }
+    double a = az * 3.14159265358979323846 / 180.0;
+    *x = s * sin(a) / 1000.0;
+    *y = s * cos(a) / 1000.0;
 }
 
 /* Base k's pressure reduced to the reference height with its own column

@@ -18,6 +18,12 @@ extern "C" {
 double hyp_geo_distance_m(double lat1_deg, double lon1_deg,
                           double lat2_deg, double lon2_deg);
 
+/* Distance (m) and azimuth (degrees clockwise from north, at point 1) of
+ * the geodesic from point 1 to point 2 (WGS84); returns 0, or -1 for
+ * coordinates out of range. */
+int hyp_geo_inverse(double lat1_deg, double lon1_deg, double lat2_deg, double lon2_deg,
+                    double *dist_m, double *azimuth_deg);
+
 /* Vertical references of heights. */
 typedef enum hyp_vref {
     HYP_VREF_GEOID = 0,       /* orthometric, EGM96 geoid (EPSG:5773) */
