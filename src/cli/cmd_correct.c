@@ -1,6 +1,6 @@
 /* cmd_correct.c - "hypsolev correct": reads the logs, calls the library's
  * correction, writes the outputs, prints the run summary on stderr. */
-#define _POSIX_C_SOURCE 200809L
+#define _GNU_SOURCE
 #include "batch.h"
 #include "cli.h"
 #include "hypsolev/hypsolev.h"
@@ -38,7 +38,7 @@ typedef struct args {
     int n_bases;
     const char *out, *out_dir, *table, *rover_zone;
     const char *benchmarks_path, *ties_path, *crs, *bases_coloc_text;
-    const char *base_dir, *summary_path;
+    const char *base_dir, *summary_path, *report_path;
     int jobs, progress, overwrite;
     char **owned;          /* rover paths found in folders or by patterns */
     int n_owned;
@@ -140,6 +140,8 @@ static void help(void)
 "  -o, --output FILE        corrected GPX (one rover only)\n"
 "  --out-dir DIR            DIR/NAME.gpx and DIR/NAME.csv for each rover NAME.*\n"
 "  --table FILE             per-sample table (CSV); - is standard output\n"
+"  --report FILE            the run's report (messages and summary) as a text\n"
+"                           file; with --out-dir always DIR/NAME.report.txt\n"
 "  -q, --quiet              no run summary, warnings only\n"
 "\n"
 "examples:\n"
@@ -184,7 +186,7 @@ enum {
     O_PFIELD, O_TFIELD, O_HFIELD, O_TZ, O_OUTDIR, O_TABLE, O_HELP, O_BENCH, O_BENCH_SIG, O_TIES,
     O_TIE_R, O_TIE_MIN, O_SMOOTH, O_GRAD, O_CLOCK_SIG, O_TSIG, O_LSIG, O_GNSS_REF, O_KNOWN_REF,
     O_OUT_REF, O_CRS, O_NO_ANCHOR, O_BASE_OFF, O_BASE_OFF_SIG, O_BASE_QNH, O_BASES_COLOC, O_METHOD,
-    O_BASE_DIR, O_SUMMARY, O_PROGRESS, O_OVERWRITE
+    O_BASE_DIR, O_SUMMARY, O_PROGRESS, O_OVERWRITE, O_REPORT
 };
 
 static const struct option longopts[] = {
@@ -239,6 +241,7 @@ static const struct option longopts[] = {
     {"summary", required_argument, 0, O_SUMMARY},
     {"progress", no_argument, 0, O_PROGRESS},
     {"overwrite", no_argument, 0, O_OVERWRITE},
+    {"report", required_argument, 0, O_REPORT},
     {0, 0, 0, 0},
 };
 
@@ -338,6 +341,7 @@ static int parse_one(args *a, int c, const char *arg)
     case O_SUMMARY: a->summary_path = arg; return 0;
     case O_PROGRESS: a->progress = 1; return 0;
     case O_OVERWRITE: a->overwrite = 1; return 0;
+    case O_REPORT: a->report_path = arg; return 0;
     case 'j': {
         double j;
         if (num_opt("--jobs", arg, 1, 256, &j))
@@ -442,6 +446,8 @@ static int check_args(args *a)
         return usage_error("-o names one output but %s rovers are given; use --out-dir", "several");
     if (a->out && a->out_dir)
         return usage_error("-o and --out-dir both given; choose one");
+    if (a->report_path && a->n_rovers > 1)
+        return usage_error("--report names one file but several rovers are given; --out-dir writes one report per rover");
     if (a->table && a->n_rovers > 1 && strcmp(a->table, "-") != 0)
         return usage_error("--table names one file but several rovers are given; use --out-dir (it writes one table per rover)");
     return 0;
@@ -1146,19 +1152,79 @@ typedef struct batch_ctx {
     const hyp_zone *rz;
 } batch_ctx;
 
+/* The run's report of one rover (its messages and summary, as printed),
+ * kept beside its outputs for auditing: --report FILE, or DIR/NAME.report.txt
+ * with --out-dir. Written through a temporary file and renamed; not after an
+ * interruption, and not for a rover that was skipped. */
+static void write_report(const args *a, const char *rover, const char *text, size_t len, const cli_job_result *jr)
+{
+    char path[4200];
+    if (a->report_path)
+        snprintf(path, sizeof path, "%s", a->report_path);
+    else if (a->out_dir) {
+        char stem[1024];
+        stem_of(rover, stem, sizeof stem);
+        snprintf(path, sizeof path, "%s/%s.report.txt", a->out_dir, stem);
+    } else
+        return;
+    if (cli_cancelled() || !strncmp(jr->status, "skipped", 7))
+        return;
+    char tmp[4300];
+    snprintf(tmp, sizeof tmp, "%s.tmp-%ld", path, (long)getpid());
+    FILE *f = fopen(tmp, "w");
+    if (!f) {
+        fprintf(stderr, "hypsolev: warning: %s: cannot write the report: %s\n", path, strerror(errno));
+        return;
+    }
+    int bad = fwrite(text, 1, len, f) != len;
+    bad |= fclose(f) != 0;
+    if (bad || rename(tmp, path) != 0) {
+        unlink(tmp);
+        fprintf(stderr, "hypsolev: warning: %s: the report could not be written\n", path);
+    }
+}
+
+/* In quiet mode stderr gets only the warnings and errors of a rover's
+ * text (the report keeps all of it). */
+static void emit_quiet(const char *buf, size_t len)
+{
+    const char *p = buf, *end = buf + len;
+    while (p < end) {
+        const char *nl = memchr(p, '\n', (size_t)(end - p));
+        size_t l = nl ? (size_t)(nl - p + 1) : (size_t)(end - p);
+        if (!strncmp(p, "hypsolev: warning", 17) || !strncmp(p, "hypsolev: error", 15) || memmem(p, l, ": skipped: ", 11))
+            cli_emit(p, l);
+        p += l;
+    }
+}
+
 static void run_job(void *vctx, int i, cli_job_result *jr)
 {
     const batch_ctx *c = vctx;
     jr->median_sigma_m = NAN;
     char *buf = NULL;
     size_t len = 0;
+    int report = c->a->report_path || c->a->out_dir;
+    args *full = NULL;
+    const args *a = c->a;
+    if (report && c->a->quiet && (full = malloc(sizeof *full))) {
+        *full = *c->a;     /* the report holds the whole summary even with -q */
+        full->quiet = 0;
+        a = full;
+    }
     tl_out = open_memstream(&buf, &len);
-    jr->rc = correct_one(c->a, c->a->owned[i], c->pool, c->logs, c->n_pool, c->rz, jr);
+    jr->rc = correct_one(a, c->a->owned[i], c->pool, c->logs, c->n_pool, c->rz, jr);
     if (tl_out) {
         fclose(tl_out);
         tl_out = NULL;
-        cli_emit(buf, len);
+        if (c->a->quiet)
+            emit_quiet(buf, len);
+        else
+            cli_emit(buf, len);
+        if (report)
+            write_report(c->a, c->a->owned[i], buf, len, jr);
     }
+    free(full);
     free(buf);
 }
 

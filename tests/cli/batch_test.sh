@@ -30,6 +30,8 @@ for d in 0 1; do
   [ -s "$work/out/walk-day$d.gpx" ] && [ -s "$work/out/walk-day$d.csv" ] || bad "day $d outputs missing"
 done
 [ -e "$work/out/walk-day2.gpx" ] && bad "day 2 has an output though no base covers it"
+grep -q "not for aviation or navigation" "$work/out/walk-day0.report.txt" 2>/dev/null || bad "day 0 report missing or without its footer"
+grep -q "method    single base" "$work/out/walk-day0.report.txt" 2>/dev/null || bad "day 0 report without the summary"
 [ -e "$work/out/broken.gpx" ] && bad "the broken track has an output"
 grep -q "broken.gpx:[0-9]*: the file ends with" "$work/stderr" || bad "broken track not reported: $(grep broken "$work/stderr" | head -2)"
 grep -q "walk-day2.gpx: no base log in .* covers the track's" "$work/stderr" || bad "uncovered track not reported"
