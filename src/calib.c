@@ -25,21 +25,19 @@ static hyp_status push(hyp_correct_result *r, const hyp_calib *c)
 static int window_stats(hyp__work *w, hyp_calib *c, double *buf)
 {
     size_t n = 0;
-    double sens = 0, lat = 0, lon = 0, dp_buf_sum = 0;
+    double sens = 0, lat = 0, lon = 0;
     size_t npos = 0;
     for (size_t i = 0; i < w->n; i++) {
         if (w->r->status[i] != HYP_PT_OK || w->rv->time_s[i] < c->start_s || w->rv->time_s[i] > c->end_s)
             continue;
         buf[n++] = w->raw[i];
         sens += w->sens[i];
-        dp_buf_sum += w->pr[i] - w->r->base_p_pa[i];
         if (w->rv->lat_deg[i] == w->rv->lat_deg[i]) {
             lat += w->rv->lat_deg[i];
             lon += w->rv->lon_deg[i];
             npos++;
         }
     }
-    (void)dp_buf_sum;
     if (n < 2)
         return 0;
     double mean, sd, neff;

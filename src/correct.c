@@ -195,7 +195,7 @@ static void base_rates(hyp__base_view *b)
     }
 }
 
-hyp_status hyp__base_view_make(const hyp_base *base, hyp__base_view *b, const hyp_correct_opts *o, hyp_error *err)
+hyp_status hyp__base_view_make(const hyp_base *base, hyp__base_view *b, hyp_error *err)
 {
     const hyp_series *s = base->log;
     size_t m = s->count;
@@ -216,7 +216,6 @@ hyp_status hyp__base_view_make(const hyp_base *base, hyp__base_view *b, const hy
         b->rh[b->n] = s->rh_pct[i];
         b->n++;
     }
-    (void)o;
     if (b->n < 2)
         return hyp_error_set(err, HYP_ERR_NODATA, "%s: fewer than two usable base samples", base->name);
     base_rates(b);
@@ -586,7 +585,7 @@ static hyp_status correct_once(const hyp_series *rover, const hyp_base *bases, s
         goto out;
     }
     for (size_t k = 0; k < nb; k++)
-        if ((st = hyp__base_view_make(&bases[k], &w.bvs[k], opts, err)))
+        if ((st = hyp__base_view_make(&bases[k], &w.bvs[k], err)))
             goto out;
     w.bv = w.bvs[0];
     res->n_bases = nb;

@@ -48,7 +48,7 @@ typedef struct hyp__work {
 
 /* Fills a base's view: valid samples on true time, QNH reduced to station
  * pressure, the base's offset removed, hourly tendencies. */
-hyp_status hyp__base_view_make(const hyp_base *b, hyp__base_view *v, const hyp_correct_opts *o, hyp_error *err);
+hyp_status hyp__base_view_make(const hyp_base *b, hyp__base_view *v, hyp_error *err);
 void hyp__base_view_free(hyp__base_view *v);
 /* Base quantity v (of view b) at true time x; status of the bracket. */
 hyp_point_status hyp__base_at(const hyp__base_view *b, const double *v, double x, double max_gap_s, double *out);

@@ -131,7 +131,6 @@ static void point_elements(char *buf, size_t n, const hyp_gpx_doc *doc, const hy
         PUT(fl);
 #undef PUT
         *w = '\0';
-        (void)P;
     } else {
         char why[200];
         const char *reason = res->status[i] == HYP_PT_REFUSED
