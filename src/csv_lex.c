@@ -20,6 +20,13 @@ int hyp__csv_read_line(hyp__csv_lines *r)
             r->ended_with_newline = 1;
             break;
         }
+        if (c == '\r') {   /* CR LF, or a lone CR (old line ends) */
+            int d = getc(r->f);
+            if (d != '\n' && d != EOF)
+                ungetc(d, r->f);
+            r->ended_with_newline = 1;
+            break;
+        }
         if (c == '\0')
             return -2;
         if (r->len + 2 > r->alloc) {

@@ -127,3 +127,6 @@ hyp_cli_case(inspect_bad_file 1 "empty.csv: empty file" inspect @DATA@/bad/empty
 hyp_cli_case(inspect_no_file 2 "no file given" inspect)
 hyp_cli_case(correct_warns_base_quality 0 "unsorted_base.csv: clock jump   2026-06-18T07:10:00Z: time went back 60 s, line 23" correct ${R} --base @DATA@/bad/unsorted_base.csv --base-height 812.4 --base-at 46.8,9.9 ${O})
 hyp_cli_case(report_quiet 0 "^$" correct ${R} ${B} ${O} --report @OUT@/r.txt -q)
+set(HYP_CASE_OUT "3 samples \\(3 usable\\), interval 60.0 s")
+hyp_cli_case(csv_cr_line_ends 0 "" inspect @DATA@/cr_only.csv)
+set(HYP_CASE_OUT "")
