@@ -429,6 +429,8 @@ static int parse_one(args *a, int c, const char *arg)
     return EXIT_USAGE;
 }
 
+static int same_as_any_input(const args *a, const char *out);
+
 static int check_args(args *a)
 {
     if (a->n_rovers == 0)
@@ -446,6 +448,11 @@ static int check_args(args *a)
         return usage_error("-o names one output but %s rovers are given; use --out-dir", "several");
     if (a->out && a->out_dir)
         return usage_error("-o and --out-dir both given; choose one");
+    const char *named[4] = {a->summary_path, a->report_path, a->out, a->table};
+    for (int k = 0; k < 4; k++)
+        if (named[k] && strcmp(named[k], "-") != 0 && same_as_any_input(a, named[k]))
+            return usage_error("%s: %s would overwrite an input; choose another name", named[k],
+                               k == 0 ? "--summary" : k == 1 ? "--report" : k == 2 ? "-o" : "--table");
     if (a->report_path && a->n_rovers > 1)
         return usage_error("--report names one file but several rovers are given; --out-dir writes one report per rover");
     if (a->table && a->n_rovers > 1 && strcmp(a->table, "-") != 0)
@@ -1169,6 +1176,10 @@ static void write_report(const args *a, const char *rover, const char *text, siz
         return;
     if (cli_cancelled() || !strncmp(jr->status, "skipped", 7))
         return;
+    if (same_as_any_input(a, path)) {
+        fprintf(stderr, "hypsolev: error: %s: the report would overwrite an input; not written\n", path);
+        return;
+    }
     char tmp[4300];
     snprintf(tmp, sizeof tmp, "%s.tmp-%ld", path, (long)getpid());
     FILE *f = fopen(tmp, "w");
@@ -1266,6 +1277,10 @@ static int write_summary(const args *a, const cli_job_result *r, int n)
     }
     if (!a->summary_path)
         return 0;
+    if (same_as_any_input(a, a->summary_path)) {
+        fprintf(stderr, "hypsolev: error: %s: --summary would overwrite an input; choose another name\n", a->summary_path);
+        return EXIT_USAGE;
+    }
     char tmp[4200];
     snprintf(tmp, sizeof tmp, "%s.tmp-%ld", a->summary_path, (long)getpid());
     FILE *f = fopen(tmp, "w");
