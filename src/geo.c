@@ -199,6 +199,14 @@ hyp_status hyp_geo_set_crs(hyp_geo *g, const char *crs, double lat_deg, double l
         def = buf;
     }
     PJ *dst = proj_create(g->ctx, def);
+    char plus[1100];
+    if (dst && def[0] == '+' && proj_get_type(dst) != PJ_TYPE_PROJECTED_CRS && !strstr(def, "type=crs") &&
+        strlen(def) < 1000) {
+        /* a PROJ string names an operation unless it says +type=crs */
+        proj_destroy(dst);
+        snprintf(plus, sizeof plus, "%s +type=crs", def);
+        dst = proj_create(g->ctx, plus);
+    }
     if (!dst)
         return hyp_error_set(err, HYP_ERR_USAGE, "--crs \"%s\": PROJ does not know it (expected EPSG:n, a PROJ string, WKT or utm)", crs);
     PJ_TYPE t = proj_get_type(dst);

@@ -77,6 +77,11 @@ static void test_utm(void **state)
     assert_int_equal(hyp_geo_project(g, 60.1, 5.3, &e, &n), 0);
     assert_near(e, 294317.676, 0.001);
     assert_near(n, 6668308.278, 0.001);
+    /* a PROJ string (without +type=crs) and WKT name the same CRS */
+    assert_int_equal(hyp_geo_set_crs(g, "+proj=utm +zone=32 +datum=WGS84", 0, 0, name, sizeof name, &err), HYP_OK);
+    assert_int_equal(hyp_geo_project(g, 45, 9, &e, &n), 0);
+    assert_near(e, 500000.000, 0.001);
+    assert_near(n, 4982950.400, 0.001);
     /* refusals */
     assert_int_equal(hyp_geo_set_crs(g, "EPSG:4326", 45, 9, name, sizeof name, &err), HYP_ERR_USAGE);
     assert_non_null(strstr(err.message, "not a projected CRS"));
