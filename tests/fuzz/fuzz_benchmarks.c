@@ -1,4 +1,5 @@
-/* fuzz_benchmarks.c - libFuzzer harness for benchmark and tie lists. */
+/* fuzz_benchmarks.c - libFuzzer harness for benchmark and tie lists and the
+ * base folder's index. */
 #include "fuzz_common.h"
 #include "hypsolev/hypsolev.h"
 
@@ -20,6 +21,10 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
     hyp_zone_init(&z);
     hyp_ties_read(path, &z, b.count ? &b : NULL, &t, &n, &err);
     free(t);
+    hyp_base_entry *e = NULL;   /* the base folder's index (a sidecar) */
+    size_t ne = 0;
+    hyp_base_index_read(path, &e, &ne, &err);
+    free(e);
     hyp_benchmarks_free(&b);
     close(fd);
     return 0;

@@ -1,6 +1,6 @@
 /* fuzz_csv.c - libFuzzer harness for the CSV log reader, then a correction
- * against itself as base (exercises the core on whatever the reader lets
- * through). */
+ * against itself as base and the log checks (exercises the core and inspect
+ * on whatever the reader lets through). */
 #include "fuzz_common.h"
 #include "hypsolev/hypsolev.h"
 
@@ -26,6 +26,9 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
         hyp_correct_result_init(&r);
         hyp_correct_single_base(&s, &b, NULL, &r, &m, &err);
         hyp_correct_result_free(&r);
+        hyp_inspection in;
+        if (hyp_inspect(&s, NULL, &in, &err) == HYP_OK)
+            hyp_inspection_free(&in);
     }
     hyp_series_free(&s);
     hyp_msgs_free(&m);
