@@ -95,6 +95,8 @@ static hyp_status table_open(table *t, const char *path, hyp_error *err)
         return hyp_error_set(err, HYP_ERR_IO, "%s: cannot open: %s", path, strerror(errno));
     if (S_ISDIR(st.st_mode))
         return hyp_error_set(err, HYP_ERR_IO, "%s: is a directory, expected a CSV file", path);
+    if (!S_ISREG(st.st_mode))   /* a pipe or device could block forever */
+        return hyp_error_set(err, HYP_ERR_IO, "%s: not a regular file (a pipe or a device?), expected a CSV file", path);
     t->lr.f = fopen(path, "rb");
     if (!t->lr.f)
         return hyp_error_set(err, HYP_ERR_IO, "%s: cannot open: %s", path, strerror(errno));

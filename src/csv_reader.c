@@ -172,6 +172,8 @@ static hyp_status open_checked(const char *path, FILE **f, hyp_error *err)
         return hyp_error_set(err, HYP_ERR_IO, "%s: cannot open: %s", path, strerror(errno));
     if (S_ISDIR(st.st_mode))
         return hyp_error_set(err, HYP_ERR_IO, "%s: is a directory, expected a log file", path);
+    if (!S_ISREG(st.st_mode))   /* a pipe or device could block forever */
+        return hyp_error_set(err, HYP_ERR_IO, "%s: not a regular file (a pipe or a device?), expected a log file", path);
     *f = fopen(path, "rb");
     if (!*f)
         return hyp_error_set(err, HYP_ERR_IO, "%s: cannot open: %s", path, strerror(errno));

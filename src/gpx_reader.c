@@ -702,6 +702,8 @@ hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts, hyp_gpx_doc
         return hyp_error_set(err, HYP_ERR_IO, "%s: cannot open: %s", path, strerror(errno));
     if (S_ISDIR(sb.st_mode))
         return hyp_error_set(err, HYP_ERR_IO, "%s: is a directory, expected a GPX file", path);
+    if (!S_ISREG(sb.st_mode))   /* a pipe or device could block forever */
+        return hyp_error_set(err, HYP_ERR_IO, "%s: not a regular file (a pipe or a device?), expected a GPX file", path);
     FILE *f = fopen(path, "rb");
     if (!f)
         return hyp_error_set(err, HYP_ERR_IO, "%s: cannot open: %s", path, strerror(errno));
@@ -784,6 +786,9 @@ void hyp_gpx_doc_free(hyp_gpx_doc *d)
 
 int hyp_file_is_xml(const char *path)
 {
+    struct stat st;
+    if (stat(path, &st) != 0 || !S_ISREG(st.st_mode))
+        return -1;   /* never open a pipe here: it could block */
     FILE *f = fopen(path, "rb");
     if (!f)
         return -1;

@@ -21,6 +21,16 @@ hyp_status hyp__out_open(hyp__outfile *o, const char *path, hyp_error *err)
     struct stat st;
     if (stat(path, &st) == 0 && S_ISDIR(st.st_mode))
         return hyp_error_set(err, HYP_ERR_IO, "%s: is a directory, expected an output file name", path);
+    if (stat(path, &st) == 0 && !S_ISREG(st.st_mode)) {
+        /* a device or a pipe (/dev/null, /dev/stdout): write to it as it
+         * is; renaming a file over it would replace the device */
+        o->f = fopen(path, "wb");
+        if (!o->f)
+            return hyp_error_set(err, HYP_ERR_IO, "%s: cannot write: %s", path, strerror(errno));
+        o->to_stdout = 2;
+        snprintf(o->final, sizeof o->final, "%s", path);
+        return HYP_OK;
+    }
     if (strlen(path) + 16 >= sizeof o->tmp)
         return hyp_error_set(err, HYP_ERR_IO, "%s: path too long", path);
     snprintf(o->final, sizeof o->final, "%s", path);
@@ -48,6 +58,14 @@ hyp_status hyp__out_open(hyp__outfile *o, const char *path, hyp_error *err)
 
 hyp_status hyp__out_commit(hyp__outfile *o, hyp_error *err)
 {
+    if (o->to_stdout == 2) {
+        int bad = fflush(o->f) != 0 || ferror(o->f);
+        bad |= fclose(o->f) != 0;
+        o->f = NULL;
+        if (bad)
+            return hyp_error_set(err, HYP_ERR_IO, "%s: write error: %s", o->final, strerror(errno));
+        return HYP_OK;
+    }
     if (o->to_stdout) {
         if (fflush(stdout) != 0 || ferror(stdout))
             return hyp_error_set(err, HYP_ERR_IO, "standard output: write error: %s", strerror(errno));
@@ -77,6 +95,11 @@ hyp_status hyp__out_commit(hyp__outfile *o, hyp_error *err)
 
 void hyp__out_abort(hyp__outfile *o)
 {
+    if (o->to_stdout == 2 && o->f) {
+        fclose(o->f);
+        o->f = NULL;
+        return;
+    }
     if (o->to_stdout || !o->f)
         return;
     fclose(o->f);

@@ -7,7 +7,7 @@
 
 typedef struct hyp__outfile {
     FILE *f;
-    int to_stdout;
+    int to_stdout;   /* 1 stdout, 2 a device or pipe written directly */
     char tmp[4096];
     char final[4096];
 } hyp__outfile;

@@ -431,6 +431,14 @@ static int parse_one(args *a, int c, const char *arg)
 
 static int same_as_any_input(const args *a, const char *out);
 
+/* An existing target that is not a regular file (/dev/null, a pipe): it is
+ * written as it is, never replaced by a renamed file. */
+static int is_special(const char *path)
+{
+    struct stat st;
+    return stat(path, &st) == 0 && !S_ISREG(st.st_mode) && !S_ISDIR(st.st_mode);
+}
+
 static int check_args(args *a)
 {
     if (a->n_rovers == 0)
@@ -907,16 +915,17 @@ static hyp_status write_outputs(const args *a, const char *rover_path, const log
     hyp_status st = HYP_OK;
     wrote[0] = '\0';
     for (int k = 0; k < 2; k++)
-        if (paths[k][0] && strcmp(paths[k], "-") != 0)
+        if (paths[k][0] && strcmp(paths[k], "-") != 0 && !is_special(paths[k]))
             snprintf(stage[k], sizeof stage[k], "%s.new-%ld", paths[k], (long)getpid());
     if (gpx_path[0]) {
         char name[1024];
         stem_of(rover_path, name, sizeof name);
-        st = rv->is_gpx ? hyp_gpx_write_spliced(rover_path, &rv->doc, res, info, stage[0], err)
-                        : hyp_gpx_write_new(&rv->csv, res, info, name, stage[0], err);
+        const char *to = stage[0][0] ? stage[0] : gpx_path;
+        st = rv->is_gpx ? hyp_gpx_write_spliced(rover_path, &rv->doc, res, info, to, err)
+                        : hyp_gpx_write_new(&rv->csv, res, info, name, to, err);
     }
     if (!st && csv_path[0])
-        st = hyp_table_write(log_series(rv), res, info, stage[1][0] ? stage[1] : "-", err);
+        st = hyp_table_write(log_series(rv), res, info, stage[1][0] ? stage[1] : csv_path, err);
     if (!st && cli_cancelled())
         st = hyp_error_set(err, HYP_ERR_IO, "interrupted: nothing written");
     for (int k = 0; k < 2; k++) {
@@ -1183,15 +1192,16 @@ static void write_report(const args *a, const char *rover, const char *text, siz
         return;
     }
     char tmp[4300];
+    int direct = is_special(path);
     snprintf(tmp, sizeof tmp, "%s.tmp-%ld", path, (long)getpid());
-    FILE *f = fopen(tmp, "w");
+    FILE *f = fopen(direct ? path : tmp, "w");
     if (!f) {
         fprintf(stderr, "hypsolev: warning: %s: cannot write the report: %s\n", path, strerror(errno));
         return;
     }
     int bad = fwrite(text, 1, len, f) != len;
     bad |= fclose(f) != 0;
-    if (bad || rename(tmp, path) != 0) {
+    if (!direct && (bad || rename(tmp, path) != 0)) {
         unlink(tmp);
         fprintf(stderr, "hypsolev: warning: %s: the report could not be written\n", path);
     }
@@ -1284,8 +1294,9 @@ static int write_summary(const args *a, const cli_job_result *r, int n)
         return EXIT_USAGE;
     }
     char tmp[4200];
+    int direct = is_special(a->summary_path);
     snprintf(tmp, sizeof tmp, "%s.tmp-%ld", a->summary_path, (long)getpid());
-    FILE *f = fopen(tmp, "w");
+    FILE *f = fopen(direct ? a->summary_path : tmp, "w");
     if (!f) {
         fprintf(stderr, "hypsolev: error: %s: cannot write: %s\n", a->summary_path, strerror(errno));
         return EXIT_INPUT;
@@ -1321,7 +1332,7 @@ static int write_summary(const args *a, const cli_job_result *r, int n)
     }
     if (json)
         fputs("]\n", f);
-    if (fflush(f) || ferror(f) || fclose(f) || rename(tmp, a->summary_path)) {
+    if (fflush(f) || ferror(f) || fclose(f) || (!direct && rename(tmp, a->summary_path))) {
         unlink(tmp);
         fprintf(stderr, "hypsolev: error: %s: write failed\n", a->summary_path);
         return EXIT_INPUT;

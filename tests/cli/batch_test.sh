@@ -52,6 +52,19 @@ grep -q "skipped: .*walk-day0.gpx exists (--overwrite replaces it)" "$work/stder
     --summary "$work/out/s.json" 2> /dev/null || bad "JSON run failed"
 grep -q '"status": "ok"' "$work/out/s.json" || bad "JSON summary: $(cat "$work/out/s.json")"
 
+# devices and pipes: /dev/null as every output is written to, never replaced
+# (a rename over it would turn the device into a file); a pipe as an input is
+# refused at once instead of blocking
+"$exe" correct "$work/rovers/walk-day0.gpx" --base-dir "$work/bases" -o /dev/null --table /dev/null \
+    --summary /dev/null --report /dev/null -q || bad "outputs to /dev/null failed"
+[ -c /dev/null ] || bad "/dev/null is no longer a device"
+mkfifo "$work/pipe.csv"
+timeout 10 "$exe" correct "$work/rovers/walk-day0.gpx" --base "$work/pipe.csv" --base-height 800 -o "$work/p.gpx" \
+    2> "$work/stderr4"
+rc=$?
+[ $rc -eq 1 ] || bad "a pipe as base: exit $rc, expected 1 (124 is a hang)"
+grep -q "pipe.csv: not a regular file" "$work/stderr4" || bad "pipe message: $(cat "$work/stderr4")"
+
 # interrupted: many copies, SIGINT part-way; every output is complete or absent
 mkdir -p "$work/many" "$work/out2"
 for i in $(seq 1 60); do cp "$work/rovers/walk-day0.gpx" "$work/many/w$i.gpx"; done
