@@ -61,11 +61,11 @@ static double separation_m(const hyp__work *w, size_t i)
     return best == INFINITY ? 0.0 : best;
 }
 
-static double rh_term(const hyp__work *w, size_t i, double dz, double tv)
+static double rh_term(const hyp__work *w, size_t i, const hyp__in *in, double dz, double tv)
 {
-    int measured = w->rv->rh_pct[i] == w->rv->rh_pct[i] || w->rhb[i] == w->rhb[i];
+    int measured = w->rv->rh_pct[i] == w->rv->rh_pct[i] || in->rhb == in->rhb;
     double sig = measured ? w->o->rh_sigma_pct : w->o->default_rh_sigma_pct;
-    double rh = w->rhr[i], p = w->r->base_p_pa[i], t = w->tb[i];
+    double rh = in->rhr, p = in->pb, t = in->tb;
     double hi = rh + sig > 100.0 ? 100.0 : rh + sig;
     double t1 = hyp_virtual_temperature_k(t, rh, p), t2 = hyp_virtual_temperature_k(t, hi, p);
     if (t1 != t1 || t2 != t2)
@@ -81,20 +81,20 @@ static double prior_term(const hyp__work *w, double d, double tv)
     return fabs(d) * st / tv;
 }
 
-void hyp__budget(hyp__work *w, size_t i, double dz)
+double hyp__budget(const hyp__work *w, size_t i, const hyp__in *in, double dz, double c, double tv,
+                   double b[HYP_B_COUNT])
 {
     const hyp_correct_opts *o = w->o;
-    hyp_correct_result *r = w->r;
-    double c = w->sens[i], tv = r->tcol_k[i], rate = fabs(w->rate[i]);
-    double b[HYP_B_COUNT];
+    const hyp_correct_result *r = w->r;
+    double rate = fabs(in->rate);
     double rn = r->rover_noise_pa, bn = r->base_noise_pa;
     b[HYP_B_FIT] = fit_term(w, i, dz, c);
     if (w->method == HYP_METHOD_TWO_BASE) {
         /* h = hL + dh x: dh/dpL = c (1 - x), dh/dpU = c x (differentiating
          * the proportion), so each base's noise and the upper base's offset
          * relative to the lower enter weighted by the position x. */
-        double x = w->xfrac[i];
-        b[HYP_B_NOISE] = c * sqrt(rn * rn / w->navg[i] + (1 - x) * (1 - x) * bn * bn + x * x * bn * bn);
+        double x = in->xfrac;
+        b[HYP_B_NOISE] = c * sqrt(rn * rn / in->navg + (1 - x) * (1 - x) * bn * bn + x * x * bn * bn);
         double so = r->base_offset_sigma_pa[w->upper];
         b[HYP_B_FIT] = hypot(b[HYP_B_FIT], c * x * (so == so ? so : 0.0));
         /* inside the bracket the bases measure the column; a sub-layer's mean
@@ -107,7 +107,7 @@ void hyp__budget(hyp__work *w, size_t i, double dz)
         else
             b[HYP_B_TCOL] = prior_term(w, x < 0 ? x * dh : (x - 1) * dh, tv);
     } else {
-        b[HYP_B_NOISE] = c * sqrt(rn * rn / w->navg[i] + bn * bn);
+        b[HYP_B_NOISE] = c * sqrt(rn * rn / in->navg + bn * bn);
         /* A column temperature error dT shifts heights by dz dT / Tv; an
          * offset calibrated at height difference dz_ref absorbs dz_ref dT / Tv
          * of it, leaving (dz - dz_ref) dT / Tv. */
@@ -118,15 +118,13 @@ void hyp__budget(hyp__work *w, size_t i, double dz)
                 b[HYP_B_FIT] = hypot(b[HYP_B_FIT], c * so);
         }
     }
-    b[HYP_B_RH] = rh_term(w, i, dz, tv);
-    b[HYP_B_INTERP] = c * rate * w->dt_base[i] / sqrt(12.0);
+    b[HYP_B_RH] = rh_term(w, i, in, dz, tv);
+    b[HYP_B_INTERP] = c * rate * in->dt_base / sqrt(12.0);
     b[HYP_B_CLOCK] = c * rate * o->clock_sigma_s;
     double grad = hypot(o->gradient_sigma_pa_per_m, rate / o->front_speed_m_s);
     b[HYP_B_HORIZ] = c * hypot(grad * separation_m(w, i), w->field_sigma_pa);
     double ss = 0;
-    for (int k = 0; k < HYP_B_COUNT; k++) {
-        r->budget_m[k][i] = b[k];
+    for (int k = 0; k < HYP_B_COUNT; k++)
         ss += b[k] * b[k];
-    }
-    r->sigma_m[i] = sqrt(ss);
+    return sqrt(ss);
 }

@@ -21,27 +21,43 @@ static hyp_status push(hyp_correct_result *r, const hyp_calib *c)
     return HYP_OK;
 }
 
-/* Statistics of the raw heights over [t0, t1]. 0 when fewer than 2 samples. */
-static int window_stats(hyp__work *w, hyp_calib *c, double *buf)
+/* Statistics of the raw heights over [t0, t1], computed here (no raw
+ * height is kept per sample). 0 when fewer than 2 samples. */
+static int window_stats(hyp__work *w, hyp_calib *c)
 {
-    size_t n = 0;
-    double sens = 0, lat = 0, lon = 0;
+    size_t n = 0, cap = 0;
+    double sens = 0, lat = 0, lon = 0, *buf = NULL;
     size_t npos = 0;
     for (size_t i = 0; i < w->n; i++) {
         if (w->r->status[i] != HYP_PT_OK || w->rv->time_s[i] < c->start_s || w->rv->time_s[i] > c->end_s)
             continue;
-        buf[n++] = w->raw[i];
-        sens += w->sens[i];
+        hyp__in in;
+        double si, tv, raw = hyp__inputs(w, i, &in) ? NAN : hyp__raw_height(w, i, &in, &si, &tv);
+        if (raw != raw)
+            continue;
+        if (n == cap) {
+            double *p = realloc(buf, (cap = cap ? 2 * cap : 256) * sizeof *buf);
+            if (!p) {
+                free(buf);
+                return -1;
+            }
+            buf = p;
+        }
+        buf[n++] = raw;
+        sens += si;
         if (w->rv->lat_deg[i] == w->rv->lat_deg[i]) {
             lat += w->rv->lat_deg[i];
             lon += w->rv->lon_deg[i];
             npos++;
         }
     }
-    if (n < 2)
+    if (n < 2) {
+        free(buf);
         return 0;
+    }
     double mean, sd, neff;
     hyp__mean_sd_neff(buf, n, &mean, &sd, &neff);
+    free(buf);
     c->n = n;
     c->raw_m = mean;
     c->se_m = sd / sqrt(neff);
@@ -85,7 +101,7 @@ static void stationary_part(const hyp__work *w, size_t *i, size_t *j, double lat
 /* Runs of samples within radius of (lat, lon), standing still there for at
  * least min_s. */
 static hyp_status find_near(hyp__work *w, hyp_calib *proto, double lat, double lon, double radius,
-                            double min_s, double *buf)
+                            double min_s)
 {
     const hyp_series *rv = w->rv;
     size_t i = 0;
@@ -103,7 +119,8 @@ static hyp_status find_near(hyp__work *w, hyp_calib *proto, double lat, double l
             hyp_calib c = *proto;
             c.start_s = rv->time_s[a];
             c.end_s = rv->time_s[b];
-            if (window_stats(w, &c, buf) && push(w->r, &c))
+            int ok = window_stats(w, &c);
+            if (ok < 0 || (ok && push(w->r, &c)))
                 return HYP_ERR_NOMEM;
         }
         i = next;
@@ -131,7 +148,7 @@ static void proto_for(hyp__work *w, hyp_calib *c, long bm, hyp_calib_how how)
     }
 }
 
-static hyp_status explicit_windows(hyp__work *w, double *buf, hyp_error *err)
+static hyp_status explicit_windows(hyp__work *w, hyp_error *err)
 {
     const hyp_correct_opts *o = w->o;
     for (size_t k = 0; k < o->n_colocate + o->n_ties; k++) {
@@ -152,7 +169,10 @@ static hyp_status explicit_windows(hyp__work *w, double *buf, hyp_error *err)
         proto_for(w, &c, bm, HYP_HOW_EXPLICIT);
         c.start_s = t0;
         c.end_s = t1;
-        if (!window_stats(w, &c, buf)) {
+        int ok = window_stats(w, &c);
+        if (ok < 0)
+            return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+        if (!ok) {
             char a[40], b[40];
             hyp_time_format(t0, a, sizeof a);
             hyp_time_format(t1, b, sizeof b);
@@ -181,7 +201,7 @@ static long nearest_sample(const hyp__work *w, double t, double max_dt_s)
 /* A waypoint named like a benchmark: the stationary run of samples around
  * its time (within stationary_m of the sample nearest to it, at most 10
  * minutes either side). */
-static hyp_status waypoint_ties(hyp__work *w, double *buf)
+static hyp_status waypoint_ties(hyp__work *w)
 {
     const hyp_waypoints *wp = w->o->waypoints;
     for (size_t k = 0; wp && k < wp->count; k++) {
@@ -211,7 +231,8 @@ static hyp_status waypoint_ties(hyp__work *w, double *buf)
         proto_for(w, &c, bm, HYP_HOW_WAYPOINT);
         c.start_s = w->rv->time_s[i];
         c.end_s = w->rv->time_s[j];
-        if (j - i >= 2 && window_stats(w, &c, buf) && push(w->r, &c))
+        int ok = j - i >= 2 ? window_stats(w, &c) : 0;
+        if (ok < 0 || (ok && push(w->r, &c)))
             return HYP_ERR_NOMEM;
     }
     return HYP_OK;
@@ -246,10 +267,7 @@ static int by_time(const void *a, const void *b)
 hyp_status hyp__find_calibrations(hyp__work *w, hyp_error *err)
 {
     const hyp_correct_opts *o = w->o;
-    double *buf = malloc((w->n ? w->n : 1) * sizeof *buf);
-    if (!buf)
-        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
-    hyp_status st = explicit_windows(w, buf, err);
+    hyp_status st = explicit_windows(w, err);
     int base_pos = 0;
     for (size_t k = 0; k < w->nb && !st; k++) {
         const hyp_base *b = &w->bases[k];
@@ -260,22 +278,21 @@ hyp_status hyp__find_calibrations(hyp__work *w, hyp_error *err)
             continue;
         hyp_calib proto;
         proto_for(w, &proto, -1 - (long)k, HYP_HOW_POSITION);
-        if (find_near(w, &proto, b->lat_deg, b->lon_deg, o->coloc_radius_m, o->coloc_min_s, buf))
+        if (find_near(w, &proto, b->lat_deg, b->lon_deg, o->coloc_radius_m, o->coloc_min_s))
             st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     }
-    if (!st && o->benchmarks && waypoint_ties(w, buf))
+    if (!st && o->benchmarks && waypoint_ties(w))
         st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     for (size_t b = 0; !st && o->benchmarks && w->rv->has_position && b < o->benchmarks->count; b++) {
         hyp_calib proto;
         proto_for(w, &proto, (long)b, HYP_HOW_POSITION);
         if (find_near(w, &proto, o->benchmarks->lat_deg[b], o->benchmarks->lon_deg[b], o->tie_radius_m,
-                      o->tie_min_s, buf))
+                      o->tie_min_s))
             st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     }
     if (!st && o->auto_colocate && o->n_colocate == 0 && !base_pos && o->offset_pa != o->offset_pa)
         hyp_msgs_add(w->msgs, HYP_WARNING, "%s: no base position (--base-at) or no rover positions: co-location cannot be found automatically",
                      w->base->name);
-    free(buf);
     if (!st && w->r->n_calibs) {
         dedup(w->r);
         qsort(w->r->calibs, w->r->n_calibs, sizeof *w->r->calibs, by_time);

@@ -46,9 +46,18 @@ static double scatter(const pts *q, const hyp_series *b, double off, double *res
 
 static hyp_status collect(const hyp_series *rv, const hyp_correct_result *res, pts *q)
 {
-    q->t = malloc((rv->count ? rv->count : 1) * sizeof(double));
-    q->p = malloc((rv->count ? rv->count : 1) * sizeof(double));
-    q->win = malloc((rv->count ? rv->count : 1) * sizeof(int));
+    size_t m = 0;   /* the co-located samples only */
+    for (size_t k = 0, nw = 0; k < res->n_calibs && nw < 64; k++) {
+        const hyp_calib *c = &res->calibs[k];
+        if (c->kind != HYP_CAL_BASE)
+            continue;
+        for (size_t i = 0; i < rv->count; i++)
+            m += res->status[i] == HYP_PT_OK && rv->time_s[i] >= c->start_s && rv->time_s[i] <= c->end_s;
+        nw++;
+    }
+    q->t = malloc((m ? m : 1) * sizeof(double));
+    q->p = malloc((m ? m : 1) * sizeof(double));
+    q->win = malloc((m ? m : 1) * sizeof(int));
     if (!q->t || !q->p || !q->win)
         return HYP_ERR_NOMEM;
     for (size_t k = 0; k < res->n_calibs && q->nwin < 64; k++) {

@@ -74,21 +74,24 @@ const char *hyp_method_name(hyp_method m)
 void hyp_correct_result_init(hyp_correct_result *r)
 {
     memset(r, 0, sizeof *r);
+    r->median_index = r->worst_index = SIZE_MAX;
+    r->median_sigma_m = NAN;
 }
+
+static void work_free(hyp__work *w);
 
 void hyp_correct_result_free(hyp_correct_result *r)
 {
     free(r->height_m);
     free(r->sigma_m);
-    free(r->base_p_pa);
-    free(r->offset_pa);
-    free(r->tcol_k);
     free(r->status);
-    for (int k = 0; k < HYP_B_COUNT; k++)
-        free(r->budget_m[k]);
     free(r->calibs);
     free(r->rapid);
     free(r->extrapolated);
+    if (r->priv) {
+        work_free(r->priv);
+        free(r->priv);
+    }
     hyp_correct_result_init(r);
 }
 
@@ -127,46 +130,6 @@ static void work_free(hyp__work *w)
 {
     for (size_t k = 0; k < HYP__MAX_BASES; k++)
         hyp__base_view_free(&w->bvs[k]);
-    free(w->pU);
-    free(w->xfrac);
-    free(w->pr);
-    free(w->navg);
-    free(w->rate);
-    free(w->dt_base);
-    free(w->tb);
-    free(w->rhb);
-    free(w->rhr);
-    free(w->raw);
-    free(w->sens);
-    free(w->tv);
-}
-
-static hyp_status work_alloc(hyp__work *w)
-{
-    size_t n = w->n;
-    hyp_correct_result *r = w->r;
-    w->pU = dalloc(n), w->xfrac = dalloc(n);
-    r->extrapolated = calloc(n ? n : 1, 1);
-    w->pr = dalloc(n), w->navg = dalloc(n), w->rate = dalloc(n), w->dt_base = dalloc(n);
-    w->tb = dalloc(n), w->rhb = dalloc(n), w->rhr = dalloc(n);
-    w->raw = dalloc(n), w->sens = dalloc(n), w->tv = dalloc(n);
-    r->count = n;
-    r->height_m = dalloc(n), r->sigma_m = dalloc(n), r->base_p_pa = dalloc(n);
-    r->offset_pa = dalloc(n), r->tcol_k = dalloc(n);
-    r->status = malloc(n ? n : 1);
-    int bad = !w->pU || !w->xfrac || !r->extrapolated || !w->pr || !w->navg || !w->rate ||
-              !w->dt_base || !w->tb || !w->rhb || !w->rhr || !w->raw || !w->sens || !w->tv ||
-              !r->height_m || !r->sigma_m || !r->base_p_pa || !r->offset_pa || !r->tcol_k || !r->status;
-    for (int k = 0; k < HYP_B_COUNT; k++)
-        bad |= !(r->budget_m[k] = dalloc(n));
-    if (bad)
-        return HYP_ERR_NOMEM;
-    for (size_t i = 0; i < n; i++) {
-        r->height_m[i] = r->sigma_m[i] = r->base_p_pa[i] = r->offset_pa[i] = r->tcol_k[i] = NAN;
-        for (int k = 0; k < HYP_B_COUNT; k++)
-            r->budget_m[k][i] = NAN;
-    }
-    return HYP_OK;
 }
 
 /* ---- the base log ---- */
@@ -268,66 +231,77 @@ static double pick(double a, double b, double c)
     return a == a ? a : b == b ? b : c;
 }
 
-static void align(hyp__work *w)
+/* Centred moving average of the rover pressure over smooth_s around sample
+ * i: the valid samples within smooth_s / 2 either side, both ends
+ * inclusive (white noise falls as 1/sqrt(samples averaged); a height
+ * change faster than the window is smoothed with it). */
+static double rover_pressure(const hyp__work *w, size_t i, double *navg)
 {
     const hyp_series *rv = w->rv;
-    hyp_correct_result *r = w->r;
-    for (size_t i = 0; i < w->n; i++) {
-        r->status[i] = HYP_PT_OK;
-        if (rv->flag[i]) {
-            r->status[i] = HYP_PT_REFUSED;
-            r->n_flag[rv->flag[i]]++;
+    double half = 0.5 * w->o->smooth_s, p = rv->pressure_pa[i];
+    *navg = 1.0;
+    if (half <= 0)
+        return p;
+    double t = rv->time_s[i], sum = p;
+    size_t cnt = 1;
+    for (size_t j = i; j-- > 0;) {
+        if (rv->flag[j])
             continue;
-        }
-        size_t k;
-        double f;
-        hyp_point_status st = bracket(&w->bv, rv->time_s[i], w->o->max_gap_s, &k, &f);
-        if (st) {
-            r->status[i] = (uint8_t)st;
-            continue;
-        }
-        const hyp__base_view *b = &w->bv;
-        r->base_p_pa[i] = b->p[k] + f * (b->p[k + 1] - b->p[k]);
-        w->rate[i] = b->rate[k] + f * (b->rate[k + 1] - b->rate[k]);
-        w->dt_base[i] = b->t[k + 1] - b->t[k];
-        double rhb = lerp(b->rh, k, f);
-        w->tb[i] = lerp(b->temp, k, f);
-        w->rhr[i] = pick(rv->rh_pct[i], rhb, w->o->default_rh_pct);
-        w->rhb[i] = pick(rhb, rv->rh_pct[i], w->o->default_rh_pct);
+        if (rv->time_s[j] < t - half)
+            break;
+        sum += rv->pressure_pa[j], cnt++;
     }
+    for (size_t j = i + 1; j < w->n; j++) {
+        if (rv->flag[j])
+            continue;
+        if (rv->time_s[j] > t + half)
+            break;
+        sum += rv->pressure_pa[j], cnt++;
+    }
+    *navg = (double)cnt;
+    return sum / (double)cnt;
 }
 
-/* Centred moving average of the rover pressure over smooth_s (white noise
- * falls as 1/sqrt(samples averaged); a height change faster than the window
- * is smoothed with it). */
-static void smooth(hyp__work *w)
+static hyp_point_status inputs(const hyp__work *w, size_t i, hyp__in *in, double *chi2)
 {
     const hyp_series *rv = w->rv;
-    double half = 0.5 * w->o->smooth_s;
-    size_t lo = 0, hi = 0;
-    double sum = 0;
-    size_t cnt = 0;
-    for (size_t i = 0; i < w->n; i++) {
-        w->pr[i] = rv->pressure_pa[i];
-        w->navg[i] = 1.0;
-        if (half <= 0 || rv->flag[i])
-            continue;
-        double t = rv->time_s[i];
-        while (hi < w->n && (rv->flag[hi] || rv->time_s[hi] <= t + half)) {
-            if (!rv->flag[hi])
-                sum += rv->pressure_pa[hi], cnt++;
-            hi++;
-        }
-        while (lo < hi && (rv->flag[lo] || rv->time_s[lo] < t - half)) {
-            if (!rv->flag[lo])
-                sum -= rv->pressure_pa[lo], cnt--;
-            lo++;
-        }
-        if (cnt) {
-            w->pr[i] = sum / (double)cnt;
-            w->navg[i] = (double)cnt;
-        }
+    if (rv->flag[i])
+        return HYP_PT_REFUSED;
+    size_t k;
+    double f;
+    const hyp__base_view *b = &w->bv;
+    hyp_point_status st = bracket(b, rv->time_s[i], w->o->max_gap_s, &k, &f);
+    if (st)
+        return st;
+    in->pb = b->p[k] + f * (b->p[k + 1] - b->p[k]);
+    in->rate = b->rate[k] + f * (b->rate[k + 1] - b->rate[k]);
+    in->dt_base = b->t[k + 1] - b->t[k];
+    double rhb = lerp(b->rh, k, f);
+    in->tb = lerp(b->temp, k, f);
+    in->rhr = pick(rv->rh_pct[i], rhb, w->o->default_rh_pct);
+    in->rhb = pick(rhb, rv->rh_pct[i], w->o->default_rh_pct);
+    in->pr = rover_pressure(w, i, &in->navg);
+    in->pu = in->xfrac = NAN;
+    if (w->method == HYP_METHOD_FIELD)
+        return hyp__field_inputs(w, i, in, chi2);
+    if (w->method == HYP_METHOD_TWO_BASE) {
+        /* the upper base's pressure, the rover's place in the bracket, and
+         * the extrapolation limit */
+        const hyp__base_view *u = &w->bvs[w->upper];
+        if ((st = hyp__base_at(u, u->p, rv->time_s[i], w->o->max_gap_s, &in->pu)))
+            return st;
+        double dh = w->bases[w->upper].height_m - w->bases[w->ref].height_m;
+        double lim = fmax(w->o->extrapolate_min_m, w->o->extrapolate_frac * dh) / dh;
+        in->xfrac = log(in->pb / in->pr) / log(in->pb / in->pu);
+        if (in->xfrac < -lim || in->xfrac > 1.0 + lim)
+            return HYP_PT_EXTRAPOLATION;
     }
+    return HYP_PT_OK;
+}
+
+hyp_point_status hyp__inputs(const hyp__work *w, size_t i, hyp__in *in)
+{
+    return inputs(w, i, in, NULL);
 }
 
 /* ---- heights ---- */
@@ -340,14 +314,15 @@ double hyp__lat(const hyp__work *w, size_t i)
 /* The rover-end temperature depends on the height (base + lapse), so
  * fixed-point steps; each changes dz by about lapse * dz / T (< 3 %), so four
  * converge to well under 1 mm. */
-double hyp__height_above_base(const hyp__work *w, size_t i, double pb, double pr, double *tv_out)
+double hyp__height_above_base(const hyp__work *w, size_t i, const hyp__in *in, double pr, double *tv_out)
 {
     const hyp_correct_opts *o = w->o;
+    double pb = in->pb;
     if (w->method == HYP_METHOD_TWO_BASE) {
         /* h = hL + (hU - hL) ln(pL/p) / ln(pL/pU): the two-base proportion
          * in log-pressure (the hypsometric equation with the column
          * temperature the two bases imply). */
-        double pu = w->pU[i], dh = w->bases[w->upper].height_m - w->bases[w->ref].height_m;
+        double pu = in->pu, dh = w->bases[w->upper].height_m - w->bases[w->ref].height_m;
         double l = log(pb / pu);
         if (!(pb > 0 && pu > 0 && pr > 0) || fabs(l) < 1e-9)
             return NAN;
@@ -355,7 +330,7 @@ double hyp__height_above_base(const hyp__work *w, size_t i, double pb, double pr
         *tv_out = g * dh / (HYP_RD_J_KG_K * l);
         return dh * log(pb / pr) / l;
     }
-    double tb = w->tb[i], tr = w->rv->temp_k[i], lat = hyp__lat(w, i);
+    double tb = in->tb, tr = w->rv->temp_k[i], lat = hyp__lat(w, i);
     double dz = 0.0, tv = NAN;
     if (tb != tb) {
         /* No base thermometer: the rover's carried down with the lapse
@@ -364,14 +339,14 @@ double hyp__height_above_base(const hyp__work *w, size_t i, double pb, double pr
         tb = tr == tr ? tr - o->lapse_k_per_m * dz0
                       : hyp_isa_temperature_k(hyp_geopotential_from_geometric_m(w->base->height_m));
     }
-    double tvb = hyp_virtual_temperature_k(tb, w->rhb[i], pb);
+    double tvb = hyp_virtual_temperature_k(tb, in->rhb, pb);
     for (int it = 0; it < 4; it++) {
         double t_top = tb + o->lapse_k_per_m * dz;
         if (o->tcol == HYP_TCOL_ROVER && tr == tr)
             t_top = tr;
         else if (o->tcol == HYP_TCOL_BOTH && tr == tr)
             t_top = 0.5 * (t_top + tr);
-        double tvr = hyp_virtual_temperature_k(t_top, w->rhr[i], pr);
+        double tvr = hyp_virtual_temperature_k(t_top, in->rhr, pr);
         tv = hyp_layer_mean_temperature_k(tvb, tvr);
         dz = hyp_height_difference_m(hyp_hypsometric_dphi_j_kg(pb, pr, tv), w->base->height_m, lat);
         if (dz != dz)
@@ -381,67 +356,170 @@ double hyp__height_above_base(const hyp__work *w, size_t i, double pb, double pr
     return dz;
 }
 
-static void raw_heights(hyp__work *w)
+/* dh/dp = Rd Tv / (g p) (differentiating the hypsometric equation), with
+ * g at the middle of the column of height difference dz. */
+static double sensitivity(const hyp__work *w, size_t i, double pr, double dz, double tv)
 {
-    for (size_t i = 0; i < w->n; i++) {
-        if (w->r->status[i] != HYP_PT_OK)
+    return HYP_RD_J_KG_K * tv / (hyp_gravity_at_height_m_s2(hyp__lat(w, i), w->base->height_m + 0.5 * dz) * pr);
+}
+
+double hyp__raw_height(const hyp__work *w, size_t i, const hyp__in *in, double *sens, double *tv)
+{
+    double dz = hyp__height_above_base(w, i, in, in->pr, tv);
+    if (dz != dz)
+        return NAN;
+    *sens = sensitivity(w, i, in->pr, dz, *tv);
+    return w->base->height_m + dz;
+}
+
+/* The corrected point i into d; dz_out gets the height above the base
+ * before GNSS levelling. The sensitivity for the budget is that of the
+ * corrected column at the rover pressure used. HYP_PT_NO_CONVERGE when the
+ * iteration fails. */
+static hyp_point_status corrected_point(const hyp__work *w, size_t i, const hyp__in *in, double *dz_out,
+                                        hyp_point_detail *d)
+{
+    const hyp_drift *dr = &w->r->drift;
+    double off = hyp__drift_offset(dr, w->rv->time_s[i], NULL), tv;
+    double dz = hyp__height_above_base(w, i, in, in->pr - off, &tv);
+    if (dz != dz)
+        return HYP_PT_NO_CONVERGE;
+    double c = sensitivity(w, i, in->pr, dz, tv);
+    dz *= 1.0 + dr->scale;
+    *dz_out = dz;
+    if (dr->kind == HYP_DRIFT_GNSS)
+        dz += dr->gnss_a_m + dr->gnss_b_m_per_s * (w->rv->time_s[i] - dr->gnss_t0_s);
+    d->height_m = w->base->height_m + dz;
+    d->base_p_pa = in->pb;
+    d->offset_pa = off;
+    d->tcol_k = tv * (1.0 + dr->scale);
+    hyp__in bin = *in;
+    if (w->method == HYP_METHOD_TWO_BASE)   /* the place in the bracket from the corrected height */
+        bin.xfrac = *dz_out / (w->bases[w->upper].height_m - w->bases[w->ref].height_m);
+    d->sigma_m = hyp__budget(w, i, &bin, dz, c, d->tcol_k, d->budget_m);
+    return HYP_PT_OK;
+}
+
+/* One pass of the median search: a histogram of 16 bits of the sigmas'
+ * bit patterns (positive floats order like their patterns), among those
+ * whose top 16 bits are `top` (all when top is -1). */
+static void sigma_hist(const hyp_correct_result *r, long top, size_t *hist)
+{
+    memset(hist, 0, 65536 * sizeof *hist);
+    for (size_t i = 0; i < r->count; i++) {
+        if (r->status[i] != HYP_PT_OK)
             continue;
-        double tv, pb = w->r->base_p_pa[i];
-        double dz = hyp__height_above_base(w, i, pb, w->pr[i], &tv);
-        if (dz != dz) {
-            w->r->status[i] = HYP_PT_NO_CONVERGE;
-            continue;
-        }
-        w->raw[i] = w->base->height_m + dz;
-        w->tv[i] = tv;
-        /* dh/dp = Rd Tv / (g p) (differentiating the hypsometric equation) */
-        w->sens[i] = HYP_RD_J_KG_K * tv / (hyp_gravity_at_height_m_s2(hyp__lat(w, i), w->base->height_m + 0.5 * dz) * w->pr[i]);
+        uint32_t u;
+        memcpy(&u, &r->sigma_m[i], sizeof u);
+        if (top < 0)
+            hist[u >> 16]++;
+        else if ((long)(u >> 16) == top)
+            hist[u & 0xffffu]++;
     }
 }
 
-static void corrected_heights(hyp__work *w)
+static size_t bin_of(const size_t *hist, size_t *rank)
+{
+    size_t b = 0;
+    while (*rank >= hist[b])
+        *rank -= hist[b++];
+    return b;
+}
+
+/* The median (upper middle) and the largest sigma, exactly and without a
+ * copy of the sigmas: radix selection in two 16-bit passes. */
+static hyp_status sigma_median(hyp_correct_result *r)
+{
+    size_t *hist = malloc(65536 * sizeof *hist), n = 0;
+    if (!hist)
+        return HYP_ERR_NOMEM;
+    for (size_t i = 0; i < r->count; i++)
+        if (r->status[i] == HYP_PT_OK) {
+            n++;
+            if (r->worst_index == SIZE_MAX || r->sigma_m[i] > r->sigma_m[r->worst_index])
+                r->worst_index = i;
+        }
+    if (n) {
+        size_t rank = n / 2;
+        sigma_hist(r, -1, hist);
+        uint32_t hi = (uint32_t)bin_of(hist, &rank);
+        sigma_hist(r, (long)hi, hist);
+        uint32_t pat = hi << 16 | (uint32_t)bin_of(hist, &rank);
+        for (size_t i = 0; i < r->count && r->median_index == SIZE_MAX; i++) {
+            uint32_t u;
+            memcpy(&u, &r->sigma_m[i], sizeof u);
+            if (r->status[i] == HYP_PT_OK && u == pat)
+                r->median_index = i;
+        }
+        r->median_sigma_m = r->sigma_m[r->median_index];
+    }
+    free(hist);
+    return HYP_OK;
+}
+
+static hyp_status corrected_heights(hyp__work *w)
 {
     hyp_correct_result *r = w->r;
-    const hyp_drift *d = &r->drift;
+    size_t n = w->n ? w->n : 1;
+    r->height_m = malloc(n * sizeof *r->height_m);
+    r->sigma_m = malloc(n * sizeof *r->sigma_m);
+    if (!r->height_m || !r->sigma_m)
+        return HYP_ERR_NOMEM;
+    if (w->method == HYP_METHOD_TWO_BASE && !(r->extrapolated = calloc(n, 1)))
+        return HYP_ERR_NOMEM;
     r->tcol_min_k = INFINITY;
     r->tcol_max_k = -INFINITY;
+    double dh = w->method == HYP_METHOD_TWO_BASE ? w->bases[w->upper].height_m - w->bases[w->ref].height_m : 0.0;
     for (size_t i = 0; i < w->n; i++) {
+        r->height_m[i] = NAN;
+        r->sigma_m[i] = NAN;
         if (r->status[i] != HYP_PT_OK)
             continue;
-        double off = hyp__drift_offset(d, w->rv->time_s[i], NULL), tv;
-        double dz = hyp__height_above_base(w, i, r->base_p_pa[i], w->pr[i] - off, &tv);
-        if (dz != dz) {
+        hyp__in in;
+        hyp_point_detail d;
+        double dz;
+        if (hyp__inputs(w, i, &in) || corrected_point(w, i, &in, &dz, &d)) {
             r->status[i] = HYP_PT_NO_CONVERGE;
             continue;
         }
-        dz *= 1.0 + d->scale;
         if (w->method == HYP_METHOD_TWO_BASE) {
-            /* the place in the bracket, from the corrected height; outside
-             * by more than a metre counts as extrapolated */
-            double dh = w->bases[w->upper].height_m - w->bases[w->ref].height_m;
-            w->xfrac[i] = dz / dh;
+            /* outside the bracket by more than a metre counts as extrapolated */
             r->extrapolated[i] = dz < -1.0 || dz > dh + 1.0;
             r->n_extrapolated += r->extrapolated[i];
         }
-        if (d->kind == HYP_DRIFT_GNSS)
-            dz += d->gnss_a_m + d->gnss_b_m_per_s * (w->rv->time_s[i] - d->gnss_t0_s);
-        r->height_m[i] = w->base->height_m + dz;
-        r->offset_pa[i] = off;
-        r->tcol_k[i] = tv * (1.0 + d->scale);
-        r->tcol_min_k = fmin(r->tcol_min_k, r->tcol_k[i]);
-        r->tcol_max_k = fmax(r->tcol_max_k, r->tcol_k[i]);
-        hyp__budget(w, i, dz);
+        r->height_m[i] = d.height_m;
+        r->sigma_m[i] = (float)d.sigma_m;
+        r->tcol_min_k = fmin(r->tcol_min_k, d.tcol_k);
+        r->tcol_max_k = fmax(r->tcol_max_k, d.tcol_k);
     }
     /* residuals of the calibrations after the fit */
     for (size_t k = 0; k < r->n_calibs; k++) {
         hyp_calib *c = &r->calibs[k];
         double s = 0;
-        size_t n = 0;
+        size_t m = 0;
         for (size_t i = 0; i < w->n; i++)
             if (r->status[i] == HYP_PT_OK && w->rv->time_s[i] >= c->start_s && w->rv->time_s[i] <= c->end_s)
-                s += r->height_m[i], n++;
-        c->residual_m = n ? s / (double)n - c->known_m : NAN;
+                s += r->height_m[i], m++;
+        c->residual_m = m ? s / (double)m - c->known_m : NAN;
     }
+    return sigma_median(r);
+}
+
+hyp_status hyp_correct_point(const hyp_correct_result *res, size_t i, hyp_point_detail *d)
+{
+    if (!res->priv || i >= res->count)
+        return res->priv ? HYP_ERR_USAGE : HYP_ERR_NODATA;
+    if (res->status[i] != HYP_PT_OK)
+        return HYP_ERR_NODATA;
+    /* the kept state with the caller's result (it may have moved); only read */
+    hyp__work w = *res->priv;
+    w.r = (hyp_correct_result *)res;
+    w.o = &w.opts;
+    hyp__in in;
+    double dz;
+    if (hyp__inputs(&w, i, &in) || corrected_point(&w, i, &in, &dz, d))
+        return HYP_ERR_NODATA;
+    return HYP_OK;
 }
 
 /* ---- noise, weather, summary ---- */
@@ -468,14 +546,8 @@ static hyp_status estimate_noise(hyp__work *w)
         r->rover_noise_pa = sqrt(v > floor_pa * floor_pa ? v : floor_pa * floor_pa);
         return HYP_OK;
     }
-    unsigned char *ok = malloc(w->n ? w->n : 1);
-    if (!ok)
-        return HYP_ERR_NOMEM;
-    for (size_t i = 0; i < w->n; i++)
-        ok[i] = w->rv->flag[i] == 0;
-    int bad = hyp__noise_second_diff(w->rv->time_s, w->rv->pressure_pa, ok, w->n, 3.0 * w->o->max_gap_s, &r->rover_noise_pa);
-    free(ok);
-    if (bad)
+    if (hyp__noise_second_diff(w->rv->time_s, w->rv->pressure_pa, w->rv->flag, w->n, 3.0 * w->o->max_gap_s,
+                               &r->rover_noise_pa))
         return HYP_ERR_NOMEM;
     if (!(r->rover_noise_pa >= floor_pa))
         r->rover_noise_pa = floor_pa;
@@ -566,6 +638,32 @@ static void warn_uncalibrated(hyp__work *w)
                      w->base->name, w->o->uncal_offset_sigma_pa, w->o->uncal_offset_sigma_pa / 12.0);
 }
 
+/* Every point's status (refused, outside the base log, gaps, two-base
+ * extrapolation; the field's reduction), and for the field method the
+ * scatter of the bases about the plane. */
+static hyp_status status_pass(hyp__work *w)
+{
+    hyp_correct_result *r = w->r;
+    if (!(r->status = malloc(w->n ? w->n : 1)))
+        return HYP_ERR_NOMEM;
+    double chi_ss = 0;
+    size_t chi_n = 0;
+    for (size_t i = 0; i < w->n; i++) {
+        hyp__in in;
+        double chi2 = NAN;
+        hyp_point_status st = inputs(w, i, &in, &chi2);
+        if (st == HYP_PT_OK && chi2 == chi2)
+            chi_ss += chi2, chi_n++;
+        r->status[i] = (uint8_t)st;
+        if (st == HYP_PT_REFUSED)
+            r->n_flag[w->rv->flag[i]]++;
+    }
+    w->field_sigma_pa = chi_n ? sqrt(chi_ss / (double)chi_n) : 0.0;
+    if (w->method == HYP_METHOD_TWO_BASE)
+        hyp__two_base_columns(w, &r->implied_tcol_k, &r->thermo_tcol_k);
+    return HYP_OK;
+}
+
 static hyp_status correct_once(const hyp_series *rover, const hyp_base *bases, size_t nb,
                                const hyp_correct_opts *opts, hyp_correct_result *res,
                                hyp_msgs *msgs, hyp_error *err)
@@ -577,53 +675,61 @@ static hyp_status correct_once(const hyp_series *rover, const hyp_base *bases, s
         if (!(bases[k].height_m == bases[k].height_m && fabs(bases[k].height_m) < 10000.0))
             return hyp_error_set(err, HYP_ERR_USAGE, "%s: base height %g m is not a height between -10000 and 10000 m",
                                  bases[k].name, bases[k].height_m);
-    hyp__work w = {.rv = rover, .base = &bases[0], .bases = bases, .nb = nb, .o = opts, .r = res, .msgs = msgs,
-                   .n = rover->count, .method = HYP_METHOD_SINGLE};
-    hyp_status st = work_alloc(&w);
-    if (st) {
+    hyp__work *wp = calloc(1, sizeof *wp);
+    if (!wp)
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    res->priv = wp;
+    hyp__work *w = wp;
+    memcpy(w->base_copy, bases, nb * sizeof *bases);
+    w->opts = *opts;
+    w->rv = rover, w->bases = w->base_copy, w->base = &w->base_copy[0], w->nb = nb, w->o = &w->opts;
+    w->r = res, w->msgs = msgs, w->n = rover->count, w->method = HYP_METHOD_SINGLE;
+    res->count = w->n;
+    hyp_status st = HYP_OK;
+    for (size_t k = 0; k < nb; k++)
+        if ((st = hyp__base_view_make(&w->bases[k], &w->bvs[k], err)))
+            goto out;
+    w->bv = w->bvs[0];
+    res->n_bases = nb;
+    if ((nb > 1 || opts->method > HYP_METHOD_SINGLE) && (st = hyp__multibase(w, err)))
+        goto out;
+    if (status_pass(w)) {
         st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
         goto out;
     }
-    for (size_t k = 0; k < nb; k++)
-        if ((st = hyp__base_view_make(&bases[k], &w.bvs[k], err)))
-            goto out;
-    w.bv = w.bvs[0];
-    res->n_bases = nb;
-    if ((nb > 1 || opts->method > HYP_METHOD_SINGLE) && (st = hyp__multibase(&w, err)))
-        goto out;
-    align(&w);
-    smooth(&w);
-    if (w.method != HYP_METHOD_SINGLE && (st = hyp__multibase_fill(&w, err)))
-        goto out;
-    column_setup(&w);
-    raw_heights(&w);
-    if ((st = hyp__find_calibrations(&w, err)) || (st = hyp__fit_drift(&w, err)))
+    column_setup(w);
+    if ((st = hyp__find_calibrations(w, err)) || (st = hyp__fit_drift(w, err)))
         goto out;
     if (res->drift.kind == HYP_DRIFT_NONE && opts->gnss_height_m && opts->gnss_anchor &&
-        hyp__gnss_anchor(&w)) {
+        hyp__gnss_anchor(w)) {
         st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
         goto out;
     }
-    w.tcol_scaled = res->drift.has_scale;
+    w->tcol_scaled = res->drift.has_scale;
     if (res->drift.kind >= HYP_DRIFT_CONSTANT) {
         for (size_t k = 0; k < res->n_calibs; k++)
-            w.dz_ref_m += (res->calibs[k].known_m - w.base->height_m) / (double)res->n_calibs;
+            w->dz_ref_m += (res->calibs[k].known_m - w->base->height_m) / (double)res->n_calibs;
     }
-    warn_uncalibrated(&w);
-    if (estimate_noise(&w) || rapid_periods(&w)) {
+    warn_uncalibrated(w);
+    if (estimate_noise(w) || rapid_periods(w) || corrected_heights(w)) {
         st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
         goto out;
     }
-    corrected_heights(&w);
-    summarise(&w);
-    res->method_used = w.method;
+    summarise(w);
+    res->method_used = w->method;
     if (res->n_ok == 0)
         st = hyp_error_set(err, HYP_ERR_NODATA,
                            "no rover sample could be corrected (%zu outside the base log's time span, %zu in base gaps, %zu refused by the reader, %zu too far outside the bases' heights, %zu not computable)",
                            res->n_status[HYP_PT_OUTSIDE_BASE], res->n_status[HYP_PT_BASE_GAP], res->n_status[HYP_PT_REFUSED],
                            res->n_status[HYP_PT_EXTRAPOLATION], res->n_status[HYP_PT_NO_CONVERGE]);
 out:
-    work_free(&w);
+    w->msgs = NULL;
+    if (st) {
+        /* nothing per point survives a failure: the counts stay for the message */
+        work_free(w);
+        free(w);
+        res->priv = NULL;
+    }
     return st;
 }
 

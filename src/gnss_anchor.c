@@ -94,25 +94,38 @@ static double neff(const double *r, size_t n)
 hyp_status hyp__gnss_anchor(hyp__work *w)
 {
     hyp_drift *d = &w->r->drift;
-    const double *g = w->o->gnss_height_m;
-    size_t n = 0;
-    double *x = malloc((w->n ? w->n : 1) * sizeof *x), *y = malloc((w->n ? w->n : 1) * sizeof *y);
-    double *r = malloc((w->n ? w->n : 1) * sizeof *r), *wt = malloc((w->n ? w->n : 1) * sizeof *wt);
-    double *tmp = malloc((w->n ? w->n : 1) * sizeof *tmp);
+    const float *g = w->o->gnss_height_m;
+    /* At most GNSS_MAX samples enter the fit, evenly spaced: GNSS errors are
+     * correlated for minutes, so a long track's thinned samples carry the
+     * same information, and the memory stays bounded. */
+    enum { GNSS_MAX = 200000 };
+    size_t avail = 0;
+    for (size_t i = 0; i < w->n; i++)
+        avail += w->r->status[i] == HYP_PT_OK && g[i] == g[i];
+    size_t stride = avail > GNSS_MAX ? (avail + GNSS_MAX - 1) / GNSS_MAX : 1, m = avail / stride + 1;
+    size_t n = 0, seen = 0;
+    double *x = malloc(m * sizeof *x), *y = malloc(m * sizeof *y);
+    double *r = malloc(m * sizeof *r), *wt = malloc(m * sizeof *wt);
+    double *tmp = malloc(m * sizeof *tmp);
     hyp_status st = HYP_OK;
     if (!x || !y || !r || !wt || !tmp) {
         st = HYP_ERR_NOMEM;
         goto out;
     }
     double t0 = NAN;
-    for (size_t i = 0; i < w->n; i++)
-        if (w->r->status[i] == HYP_PT_OK && g[i] == g[i]) {
-            if (t0 != t0)
-                t0 = w->rv->time_s[i];
-            x[n] = w->rv->time_s[i] - t0;
-            y[n] = g[i] - w->raw[i];
-            n++;
-        }
+    for (size_t i = 0; i < w->n && n < m; i++) {
+        if (!(w->r->status[i] == HYP_PT_OK && g[i] == g[i]) || seen++ % stride)
+            continue;
+        hyp__in in;
+        double sens, tv, raw = hyp__inputs(w, i, &in) ? NAN : hyp__raw_height(w, i, &in, &sens, &tv);
+        if (raw != raw)
+            continue;
+        if (t0 != t0)
+            t0 = w->rv->time_s[i];
+        x[n] = w->rv->time_s[i] - t0;
+        y[n] = g[i] - raw;
+        n++;
+    }
     if (n < 100)
         goto out;   /* too few GNSS heights: stays uncalibrated */
     /* A drift joins when the track is long enough for GNSS errors (minutes

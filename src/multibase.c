@@ -213,102 +213,70 @@ static double pick_lon(const hyp__work *w, size_t i)
     return v == v ? v : w->virt.lon_deg;
 }
 
-static void fill_field(hyp__work *w)
+hyp_point_status hyp__field_inputs(const hyp__work *w, size_t i, hyp__in *in, double *chi2)
 {
-    hyp_correct_result *r = w->r;
     double bx[HYP__MAX_BASES], by[HYP__MAX_BASES];
     for (size_t k = 0; k < w->nb; k++)
         local_xy(w, w->bases[k].lat_deg, w->bases[k].lon_deg, &bx[k], &by[k]);
-    double res_ss = 0;
-    size_t res_n = 0;
-    for (size_t i = 0; i < w->n; i++) {
-        if (r->status[i] != HYP_PT_OK)
-            continue;
-        double pk[HYP__MAX_BASES], tsum = 0, a[HYP__MAX_BASES * 3], b[HYP__MAX_BASES];
-        hyp_point_status st = HYP_PT_OK;
-        for (size_t k = 0; k < w->nb && !st; k++) {
-            double tr;
-            pk[k] = reduce(w, k, w->rv->time_s[i], &tr, &st);
-            tsum += tr;
-            a[3 * k] = 1.0, a[3 * k + 1] = bx[k], a[3 * k + 2] = by[k];
-            b[k] = pk[k];
-        }
-        if (st) {
-            r->status[i] = (uint8_t)st;
-            continue;
-        }
-        double x, y;
-        local_xy(w, pick_lat(w, i), pick_lon(w, i), &x, &y);
-        hyp__lsq f;
-        double pf;
-        if (w->nb >= 3 && hyp__lsq_solve(a, b, w->nb, 3, &f) == HYP_OK && f.cond < 1e3) {
-            pf = f.x[0] + f.x[1] * x + f.x[2] * y;   /* a plane: p = a + b x + c y */
-            if (w->nb > 3)
-                res_ss += f.chi2 / (double)(w->nb - 3), res_n++;
-        } else {
-            /* poor geometry (bases in a line, or two): inverse-distance
-             * weighting with power 2 (Shepard 1968) */
-            double sw = 0, sp = 0;
-            for (size_t k = 0; k < w->nb; k++) {
-                double d2 = (x - bx[k]) * (x - bx[k]) + (y - by[k]) * (y - by[k]) + 1e-6;
-                sw += 1.0 / d2, sp += pk[k] / d2;
-            }
-            pf = sp / sw;
-        }
-        r->base_p_pa[i] = pf;
-        w->tb[i] = tsum / (double)w->nb;
+    if (chi2)
+        *chi2 = NAN;
+    double pk[HYP__MAX_BASES], tsum = 0, a[HYP__MAX_BASES * 3], b[HYP__MAX_BASES];
+    hyp_point_status st = HYP_PT_OK;
+    for (size_t k = 0; k < w->nb && !st; k++) {
+        double tr;
+        pk[k] = reduce(w, k, w->rv->time_s[i], &tr, &st);
+        tsum += tr;
+        a[3 * k] = 1.0, a[3 * k + 1] = bx[k], a[3 * k + 2] = by[k];
+        b[k] = pk[k];
     }
-    w->field_sigma_pa = res_n ? sqrt(res_ss / (double)res_n) : 0.0;
+    if (st)
+        return st;
+    double x, y;
+    local_xy(w, pick_lat(w, i), pick_lon(w, i), &x, &y);
+    hyp__lsq f;
+    double pf;
+    if (w->nb >= 3 && hyp__lsq_solve(a, b, w->nb, 3, &f) == HYP_OK && f.cond < 1e3) {
+        pf = f.x[0] + f.x[1] * x + f.x[2] * y;   /* a plane: p = a + b x + c y */
+        if (w->nb > 3 && chi2)
+            *chi2 = f.chi2 / (double)(w->nb - 3);
+    } else {
+        /* poor geometry (bases in a line, or two): inverse-distance
+         * weighting with power 2 (Shepard 1968) */
+        double sw = 0, sp = 0;
+        for (size_t k = 0; k < w->nb; k++) {
+            double d2 = (x - bx[k]) * (x - bx[k]) + (y - by[k]) * (y - by[k]) + 1e-6;
+            sw += 1.0 / d2, sp += pk[k] / d2;
+        }
+        pf = sp / sw;
+    }
+    in->pb = pf;
+    in->tb = tsum / (double)w->nb;
+    return HYP_PT_OK;
 }
 
-/* Two-base: the upper base's pressure at each rover time, the rover's place
- * in the bracket, and the extrapolation limit. */
-static void fill_two_base(hyp__work *w)
+void hyp__two_base_columns(const hyp__work *w, double *implied_k, double *thermo_k)
 {
-    hyp_correct_result *r = w->r;
     const hyp__base_view *u = &w->bvs[w->upper];
     double dh = w->bases[w->upper].height_m - w->bases[w->ref].height_m;
-    double lim = fmax(w->o->extrapolate_min_m, w->o->extrapolate_frac * dh) / dh;
     double tsum = 0, thermo = 0;
     size_t tn = 0, thn = 0;
     for (size_t i = 0; i < w->n; i++) {
-        if (r->status[i] != HYP_PT_OK)
+        hyp__in in;
+        if (w->r->status[i] != HYP_PT_OK || hyp__inputs(w, i, &in))
             continue;
-        hyp_point_status st = hyp__base_at(u, u->p, w->rv->time_s[i], w->o->max_gap_s, &w->pU[i]);
-        if (st) {
-            r->status[i] = (uint8_t)st;
-            continue;
-        }
-        double pl = r->base_p_pa[i];
-        double x = log(pl / w->pr[i]) / log(pl / w->pU[i]);
-        w->xfrac[i] = x;
-        if (x < -lim || x > 1.0 + lim) {
-            r->status[i] = HYP_PT_EXTRAPOLATION;
-            continue;
-        }
-        /* the column the bases imply, and the thermometers' */
+        double pl = in.pb;
         double g = hyp_gravity_at_height_m_s2(hyp__lat(w, i), w->bases[w->ref].height_m + 0.5 * dh);
-        tsum += g * dh / (HYP_RD_J_KG_K * log(pl / w->pU[i]));
+        tsum += g * dh / (HYP_RD_J_KG_K * log(pl / in.pu));
         tn++;
         double tu;
         hyp__base_at(u, u->temp, w->rv->time_s[i], w->o->max_gap_s, &tu);
-        if (w->tb[i] == w->tb[i] && tu == tu) {
-            double tvl = hyp_virtual_temperature_k(w->tb[i], w->rhb[i], pl);
-            double tvu = hyp_virtual_temperature_k(tu, w->rhb[i], w->pU[i]);
+        if (in.tb == in.tb && tu == tu) {
+            double tvl = hyp_virtual_temperature_k(in.tb, in.rhb, pl);
+            double tvu = hyp_virtual_temperature_k(tu, in.rhb, in.pu);
             thermo += hyp_layer_mean_temperature_k(tvl, tvu);
             thn++;
         }
     }
-    r->implied_tcol_k = tn ? tsum / (double)tn : NAN;
-    r->thermo_tcol_k = thn ? thermo / (double)thn : NAN;
-}
-
-hyp_status hyp__multibase_fill(hyp__work *w, hyp_error *err)
-{
-    (void)err;
-    if (w->method == HYP_METHOD_TWO_BASE)
-        fill_two_base(w);
-    else if (w->method == HYP_METHOD_FIELD)
-        fill_field(w);
-    return HYP_OK;
+    *implied_k = tn ? tsum / (double)tn : NAN;
+    *thermo_k = thn ? thermo / (double)thn : NAN;
 }

@@ -52,7 +52,7 @@ double hyp__median_inplace(double *v, size_t n)
     return 0.5 * (lo + hi);
 }
 
-int hyp__noise_second_diff(const double *t_s, const double *x, const unsigned char *ok,
+int hyp__noise_second_diff(const double *t_s, const double *x, const unsigned char *bad,
                            size_t n, double max_dt_s, double *sigma)
 {
     *sigma = NAN;
@@ -63,7 +63,7 @@ int hyp__noise_second_diff(const double *t_s, const double *x, const unsigned ch
         return -1;
     size_t m = 0;
     for (size_t i = 1; i + 1 < n; i++) {
-        if (ok && !(ok[i - 1] && ok[i] && ok[i + 1]))
+        if (bad && (bad[i - 1] || bad[i] || bad[i + 1]))
             continue;
         if (t_s[i + 1] - t_s[i - 1] > max_dt_s)
             continue;

@@ -5,6 +5,7 @@
 #include "hypsolev/writers.h"
 #include "outfile.h"
 
+#include <math.h>
 #include <stdio.h>
 
 static void num(FILE *f, double v, int prec)
@@ -45,11 +46,18 @@ hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res, c
         num(f, res->height_m[i], 3);
         num(f, res->sigma_m[i], 3);
         num(f, s->pressure_pa[i] / 100.0, 3);
-        num(f, res->base_p_pa[i] / 100.0, 3);
-        num(f, res->offset_pa[i] / 100.0, 3);
-        num(f, res->tcol_k[i] - 273.15, 2);
+        /* the rest of a corrected point is recomputed, not stored */
+        hyp_point_detail d;
+        if (hyp_correct_point(res, i, &d) != HYP_OK) {
+            d.base_p_pa = d.offset_pa = d.tcol_k = NAN;
+            for (int k = 0; k < HYP_B_COUNT; k++)
+                d.budget_m[k] = NAN;
+        }
+        num(f, d.base_p_pa / 100.0, 3);
+        num(f, d.offset_pa / 100.0, 3);
+        num(f, d.tcol_k - 273.15, 2);
         for (int k = 0; k < HYP_B_COUNT; k++)
-            num(f, res->budget_m[k][i], 3);
+            num(f, d.budget_m[k], 3);
         if (info->gnss_m)
             num(f, info->gnss_m[i] - res->height_m[i], 3);
         if (info->easting_m) {

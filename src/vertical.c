@@ -13,7 +13,7 @@ static hyp_status need_geoid(hyp_geo *g, hyp_error *err)
 }
 
 hyp_status hyp_track_heights(hyp_geo *g, const hyp_series *s, const double *geoidheight_m,
-                             hyp_vref from, hyp_vref to, double *out, hyp_error *err)
+                             hyp_vref from, hyp_vref to, float *out, hyp_error *err)
 {
     hyp_status st = from == to ? HYP_OK : need_geoid(g, err);
     if (st)
@@ -21,13 +21,13 @@ hyp_status hyp_track_heights(hyp_geo *g, const hyp_series *s, const double *geoi
     for (size_t i = 0; i < s->count; i++) {
         double h = s->ele_m[i];
         if (from == to || h != h) {
-            out[i] = h;
+            out[i] = (float)h;
             continue;
         }
         double n = geoidheight_m && geoidheight_m[i] == geoidheight_m[i]
                        ? geoidheight_m[i]
                        : hyp_geo_undulation_m(g, s->lat_deg[i], s->lon_deg[i]);
-        out[i] = to == HYP_VREF_ELLIPSOID ? h + n : h - n;
+        out[i] = (float)(to == HYP_VREF_ELLIPSOID ? h + n : h - n);
     }
     return HYP_OK;
 }
@@ -49,7 +49,7 @@ hyp_status hyp_heights_convert(hyp_geo *g, const hyp_series *s, double *h, hyp_v
     return HYP_OK;
 }
 
-void hyp_diff_stats(const double *a, const double *b, size_t n, double *mean, double *sd, size_t *count)
+void hyp_diff_stats(const float *a, const double *b, size_t n, double *mean, double *sd, size_t *count)
 {
     double s = 0, ss = 0;
     size_t k = 0;

@@ -110,7 +110,7 @@ static void run_survey_opts(const char *dir, const survey_opts *so, score *sc)
         o.benchmarks = &bm;
         o.waypoints = &d.wpts;
     }
-    double *gnss = NULL;
+    float *gnss = NULL;
     hyp_geo *geo = NULL;
     if (so->gnss_anchor) {
         o.auto_colocate = 0;
@@ -151,14 +151,19 @@ static void run_survey_opts(const char *dir, const survey_opts *so, score *sc)
     sc->coverage = inside / (double)n;
     sc->n_inside = (size_t)inside;
     sc->median_sigma = sig[n / 2];
+    /* the library's own median (radix selection, no sort) is the same value */
+    assert_true(r.median_sigma_m == sig[n / 2]);
+    assert_true(r.sigma_m[r.median_index] == sig[n / 2] && r.sigma_m[r.worst_index] == sig[n - 1]);
     /* The floor: the simulator's white sensor noise and quantisation alone
      * (its scenario.txt), propagated through dz/dp = Rd Tv / (g p) at the
      * survey's mean pressure: no method beats it on single samples. */
     double p = 0, tv = 0;
     for (size_t i = 0; i < d.pts.count; i++)
         if (r.status[i] == HYP_PT_OK) {
+            hyp_point_detail pd;
+            assert_int_equal(hyp_correct_point(&r, i, &pd), HYP_OK);
             p += d.pts.pressure_pa[i];
-            tv += r.tcol_k[i];
+            tv += pd.tcol_k;
         }
     p /= (double)n;
     tv /= (double)n;

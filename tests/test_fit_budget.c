@@ -248,17 +248,21 @@ static void test_budget_terms(void **state)
     double c = HYP_RD_J_KG_K * 285.0 / (hyp_gravity_at_height_m_s2(45.0, 0.0) * p);
     print_message("c = %.6f m/Pa, distance %.3f m\n", c, d);
     assert_near(c, 0.092696, 2e-5);
-    assert_near(r.budget_m[HYP_B_INTERP][i], c * rate * 30.0 / sqrt(12.0), 1e-4);
-    assert_near(r.budget_m[HYP_B_INTERP][i], 0.022299, 2e-4);
-    assert_near(r.budget_m[HYP_B_CLOCK][i], 0.0051498, 1e-4);
-    assert_near(r.budget_m[HYP_B_HORIZ][i], c * hypot(0.001, rate / (30.0 / 3.6)) * d, 1e-3);
-    assert_near(r.budget_m[HYP_B_HORIZ][i], 0.32258, 3e-3);
-    assert_near(r.budget_m[HYP_B_FIT][i], 0.92696, 1e-3);
-    assert_near(r.budget_m[HYP_B_TCOL][i], 0.0, 1e-3);
+    hyp_point_detail pd;
+    assert_int_equal(hyp_correct_point(&r, i, &pd), HYP_OK);
+    assert_near(pd.budget_m[HYP_B_INTERP], c * rate * 30.0 / sqrt(12.0), 1e-4);
+    assert_near(pd.budget_m[HYP_B_INTERP], 0.022299, 2e-4);
+    assert_near(pd.budget_m[HYP_B_CLOCK], 0.0051498, 1e-4);
+    assert_near(pd.budget_m[HYP_B_HORIZ], c * hypot(0.001, rate / (30.0 / 3.6)) * d, 1e-3);
+    assert_near(pd.budget_m[HYP_B_HORIZ], 0.32258, 3e-3);
+    assert_near(pd.budget_m[HYP_B_FIT], 0.92696, 1e-3);
+    assert_near(pd.budget_m[HYP_B_TCOL], 0.0, 1e-3);
     double ss = 0;
     for (int k = 0; k < HYP_B_COUNT; k++)
-        ss += r.budget_m[k][i] * r.budget_m[k][i];
-    assert_near(r.sigma_m[i], sqrt(ss), 1e-12);
+        ss += pd.budget_m[k] * pd.budget_m[k];
+    assert_near(pd.sigma_m, sqrt(ss), 1e-12);
+    assert_near(r.sigma_m[i], sqrt(ss), 1e-6 * sqrt(ss));   /* stored as float */
+    assert_near(pd.height_m, r.height_m[i], 1e-12);
     hyp_correct_result_free(&r);
     hyp_series_free(&base);
     hyp_series_free(&rover);
@@ -288,8 +292,10 @@ static void test_budget_tcol(void **state)
     hyp_error err;
     assert_int_equal(hyp_correct_single_base(&rover, &b, &o, &r, NULL, &err), HYP_OK);
     assert_near(r.height_m[5], 1000.0, 0.3);   /* g differs slightly from 9.8062 with height */
-    assert_near(r.budget_m[HYP_B_TCOL][5], r.height_m[5] * sqrt(0.25 + 0.25) / r.tcol_k[5], 1e-3);
-    assert_near(r.budget_m[HYP_B_TCOL][5], 2.48, 0.01);
+    hyp_point_detail pd;
+    assert_int_equal(hyp_correct_point(&r, 5, &pd), HYP_OK);
+    assert_near(pd.budget_m[HYP_B_TCOL], r.height_m[5] * sqrt(0.25 + 0.25) / pd.tcol_k, 1e-3);
+    assert_near(pd.budget_m[HYP_B_TCOL], 2.48, 0.01);
     hyp_correct_result_free(&r);
     hyp_series_free(&base);
     hyp_series_free(&rover);
@@ -323,10 +329,13 @@ static void test_budget_smoothing(void **state)
     o.smooth_s = 60.0;
     assert_int_equal(hyp_correct_single_base(&rover, &b, &o, &r1, NULL, &err), HYP_OK);
     size_t i = 100;
-    double c = r0.budget_m[HYP_B_NOISE][i] / hypot(r0.rover_noise_pa, r0.base_noise_pa);
+    hyp_point_detail d0, d1;
+    assert_int_equal(hyp_correct_point(&r0, i, &d0), HYP_OK);
+    assert_int_equal(hyp_correct_point(&r1, i, &d1), HYP_OK);
+    double c = d0.budget_m[HYP_B_NOISE] / hypot(r0.rover_noise_pa, r0.base_noise_pa);
     double want = c * sqrt(r0.rover_noise_pa * r0.rover_noise_pa / 7.0 + r0.base_noise_pa * r0.base_noise_pa);
-    assert_near(r1.budget_m[HYP_B_NOISE][i], want, 1e-6);
-    assert_true(r1.budget_m[HYP_B_NOISE][i] < r0.budget_m[HYP_B_NOISE][i]);
+    assert_near(d1.budget_m[HYP_B_NOISE], want, 1e-6);
+    assert_true(d1.budget_m[HYP_B_NOISE] < d0.budget_m[HYP_B_NOISE]);
     hyp_correct_result_free(&r0);
     hyp_correct_result_free(&r1);
     hyp_series_free(&base);

@@ -47,15 +47,12 @@ static void fake_result(const hyp_gpx_doc *d, hyp_correct_result *r)
     size_t n = d->pts.count;
     r->count = n;
     r->height_m = calloc(n, sizeof(double));
-    r->sigma_m = calloc(n, sizeof(double));
-    r->base_p_pa = calloc(n, sizeof(double));
-    r->offset_pa = calloc(n, sizeof(double));
-    r->tcol_k = calloc(n, sizeof(double));
+    r->sigma_m = calloc(n, sizeof(float));
     r->status = calloc(n, 1);
     for (size_t i = 0; i < n; i++) {
         r->status[i] = d->pts.flag[i] ? HYP_PT_REFUSED : HYP_PT_OK;
         r->height_m[i] = r->status[i] ? NAN : 1000.0 + 0.125 * (double)i;
-        r->sigma_m[i] = r->status[i] ? NAN : 0.5 + 0.001 * (double)i;
+        r->sigma_m[i] = r->status[i] ? NAN : 0.5f + 0.001f * (float)i;
     }
 }
 
@@ -277,7 +274,8 @@ static void test_write_new(void **state)
     hyp_correct_result r;
     hyp_correct_result_init(&r);
     r.count = 4;
-    double h[4] = {812.1, 812.2, 812.3, NAN}, sg[4] = {0.4, 0.4, 0.4, NAN};
+    double h[4] = {812.1, 812.2, 812.3, NAN};
+    float sg[4] = {0.4f, 0.4f, 0.4f, NAN};
     uint8_t stt[4] = {0, 0, 0, HYP_PT_REFUSED};
     r.height_m = h;
     r.sigma_m = sg;

@@ -117,7 +117,7 @@ typedef struct hyp_correct_opts {
     /* GNSS anchoring: the track's own GNSS heights in the reference of the
      * known heights (one per rover sample, NaN where none; NULL: none),
      * used for the level when there is no calibration and no --offset. */
-    const double *gnss_height_m;
+    const float *gnss_height_m;
     int gnss_anchor;           /* default 1 */
     double gnss_bias_sigma_m;  /* default 1 m (common practice, no source) */
     /* Several bases. */
@@ -226,19 +226,26 @@ const char *hyp_budget_term_name(hyp_budget_term t);
 
 typedef struct hyp_period { double start_s, end_s, max_rate_pa_s; } hyp_period;
 
+struct hyp__work;
+
+/* Per point the result stores only what every output needs (height, its
+ * 1-sigma and a status); the rest of a point (base pressure, offset,
+ * column temperature, the budget's components) is recomputed on demand by
+ * hyp_correct_point(), which keeps the memory to a few bytes a point. */
 typedef struct hyp_correct_result {
     size_t count;              /* = rover sample count */
     double *height_m;          /* NaN where status != OK */
-    double *sigma_m;           /* 1-sigma, m */
-    double *base_p_pa;         /* base pressure at the rover time */
-    double *offset_pa;         /* offset applied */
-    double *tcol_k;            /* column mean virtual temperature used */
+    float *sigma_m;            /* 1-sigma, m; NaN where status != OK */
     uint8_t *status;           /* hyp_point_status */
     size_t n_ok;
     size_t n_status[HYP_PT_STATUS_COUNT];
     size_t n_flag[HYP_SAMPLE_FLAG_COUNT]; /* rover samples refused, by flag */
     size_t base_refused;       /* base samples the reader refused */
-    double *budget_m[HYP_B_COUNT]; /* per point, per term */
+    /* The corrected points with the median and the largest sigma (SIZE_MAX
+     * when none), and the median sigma (m; the upper middle for an even
+     * count). */
+    size_t median_index, worst_index;
+    double median_sigma_m;
     hyp_calib *calibs;
     size_t n_calibs;
     hyp_drift drift;
@@ -261,7 +268,8 @@ typedef struct hyp_correct_result {
     int bases_compared;
     double implied_tcol_k, thermo_tcol_k;
     size_t n_extrapolated;     /* two-base points outside the bracket, within the limit */
-    uint8_t *extrapolated;     /* per point, 1 when outside the bracket */
+    uint8_t *extrapolated;     /* two-base only (else NULL): per point, 1 when
+                                  outside the bracket */
     double base_noise_pa;      /* estimated white-noise level of the base */
     double diff_noise_pa;      /* scatter of rover - base in co-locations */
     double rover_noise_pa;     /* rover noise derived from the two above */
@@ -270,7 +278,27 @@ typedef struct hyp_correct_result {
                                   atmosphere (no thermometer at all) */
     double base_tendency_pa_s; /* least-squares trend of base pressure */
     char method[240];          /* what was done, one line */
+    struct hyp__work *priv;    /* what hyp_correct_point() needs; private */
 } hyp_correct_result;
+
+/* One corrected point in full. */
+typedef struct hyp_point_detail {
+    double height_m;           /* as the correction computed it (in the known
+                                  heights' reference) */
+    double sigma_m;
+    double base_p_pa;          /* base pressure at the rover time (the field's
+                                  for the field method), Pa */
+    double offset_pa;          /* rover offset applied, Pa */
+    double tcol_k;             /* column mean virtual temperature used, K */
+    double budget_m[HYP_B_COUNT];
+} hyp_point_detail;
+
+/* The details of point i of a result, recomputed from the inputs: the
+ * rover and base series given to hyp_correct must still exist, unchanged.
+ * HYP_ERR_NODATA when point i was not corrected (or res holds no
+ * correction), HYP_ERR_USAGE when i is out of range. Only reads res, so
+ * several threads may call it at once. */
+hyp_status hyp_correct_point(const hyp_correct_result *res, size_t i, hyp_point_detail *d);
 
 void hyp_correct_result_init(hyp_correct_result *r);
 void hyp_correct_result_free(hyp_correct_result *r);

@@ -17,7 +17,7 @@ extern "C" {
  * device's own geoid separation for a point (GPX <geoidheight>), that is
  * used instead of EGM96. g may be NULL when from == to. NaN where no ele. */
 hyp_status hyp_track_heights(hyp_geo *g, const hyp_series *s, const double *geoidheight_m,
-                             hyp_vref from, hyp_vref to, double *out, hyp_error *err);
+                             hyp_vref from, hyp_vref to, float *out, hyp_error *err);
 
 /* Converts heights h[s->count] at the series' positions from `from` to
  * `to` in place (EGM96: ellipsoidal = orthometric + N). NaN stays NaN. */
@@ -25,7 +25,7 @@ hyp_status hyp_heights_convert(hyp_geo *g, const hyp_series *s, double *h, hyp_v
                                hyp_vref to, hyp_error *err);
 
 /* Mean and sample standard deviation of a[i] - b[i] where both are finite. */
-void hyp_diff_stats(const double *a, const double *b, size_t n, double *mean, double *sd,
+void hyp_diff_stats(const float *a, const double *b, size_t n, double *mean, double *sd,
                     size_t *count);
 
 #ifdef __cplusplus

@@ -20,7 +20,7 @@ extern "C" {
 /* What the writers add beside the heights; any field may be NULL. */
 typedef struct hyp_output_info {
     const char *vref;          /* vertical reference of the heights written */
-    const double *gnss_m;      /* the track's GNSS height per sample, same reference */
+    const float *gnss_m;       /* the track's GNSS height per sample, same reference */
     const double *easting_m, *northing_m;  /* projected position per sample */
     const char *crs_name;      /* of easting/northing */
 } hyp_output_info;

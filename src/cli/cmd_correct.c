@@ -650,13 +650,6 @@ static void span_text(const hyp_series *s, char *buf, size_t n)
     snprintf(buf, n, "%zu samples (%zu usable), %s to %s (%.2f h)", s->count, used, a, b, (t1 - t0) / 3600.0);
 }
 
-static int cmp_d(const void *x, const void *y)
-{
-    double a = *(const double *)x, b = *(const double *)y;
-    return (a > b) - (a < b);
-}
-
-
 static const char *how_text(hyp_calib_how h)
 {
     return h == HYP_HOW_POSITION ? "found from positions" : h == HYP_HOW_WAYPOINT ? "waypoint" : "given";
@@ -703,42 +696,22 @@ static void print_drift(const hyp_correct_result *r)
 
 static void budget_row(const hyp_correct_result *r, size_t i, const char *label)
 {
+    hyp_point_detail d;
+    if (hyp_correct_point(r, i, &d) != HYP_OK)
+        return;
     fprintf(cli_out(), "            %-7s", label);
     for (int k = 0; k < HYP_B_COUNT; k++)
-        fprintf(cli_out(), " %6.2f", r->budget_m[k][i]);
-    fprintf(cli_out(), "  %6.2f\n", r->sigma_m[i]);
+        fprintf(cli_out(), " %6.2f", d.budget_m[k]);
+    fprintf(cli_out(), "  %6.2f\n", d.sigma_m);
 }
 
 static void print_budget(const hyp_series *s, const hyp_correct_result *r)
 {
-    if (!r->n_ok)
+    if (!r->n_ok || r->median_index == SIZE_MAX)
         return;
-    size_t *idx = malloc(r->n_ok * sizeof *idx), n = 0;
-    if (!idx)
-        return;
-    for (size_t i = 0; i < r->count; i++)
-        if (r->status[i] == HYP_PT_OK)
-            idx[n++] = i;
-    if (!n) {
-        free(idx);
-        return;
-    }
-    /* the median and the worst point by sigma */
-    size_t worst = idx[0];
-    for (size_t k = 0; k < n; k++)
-        if (r->sigma_m[idx[k]] > r->sigma_m[worst])
-            worst = idx[k];
-    size_t med = idx[0];
-    double *v = malloc(n * sizeof *v);
-    if (v) {
-        for (size_t k = 0; k < n; k++)
-            v[k] = r->sigma_m[idx[k]];
-        qsort(v, n, sizeof *v, cmp_d);
-        for (size_t k = 0; k < n; k++)
-            if (r->sigma_m[idx[k]] == v[n / 2])
-                med = idx[k];
-        fprintf(cli_out(), "  sigma     median %.2f m, largest %.2f m (1 sigma)\n", v[n / 2], v[n - 1]);
-    }
+    /* the points with the median and the largest sigma */
+    size_t med = r->median_index, worst = r->worst_index;
+    fprintf(cli_out(), "  sigma     median %.2f m, largest %.2f m (1 sigma)\n", r->median_sigma_m, (double)r->sigma_m[worst]);
     fprintf(cli_out(), "  budget    1 sigma, m:");
     for (int k = 0; k < HYP_B_COUNT; k++)
         fprintf(cli_out(), " %6s", hyp_budget_term_name((hyp_budget_term)k));
@@ -750,8 +723,6 @@ static void print_budget(const hyp_series *s, const hyp_correct_result *r)
     fprintf(cli_out(), "            (worst point: line %u, %s)\n", s->line[worst], t);
     fprintf(cli_out(), "            noise: sensors; fit: offset, drift and scale model; tcol: column temperature;\n"
                        "            rh: humidity; interp: base interpolation; clock: base clock; horiz: pressure gradient\n");
-    free(v);
-    free(idx);
 }
 
 static void print_weather(const hyp_correct_result *r, double rapid_pa_s)
@@ -952,7 +923,8 @@ static hyp_status write_outputs(const args *a, const char *rover_path, const log
 /* Per-rover arrays beside the result: GNSS heights in the known and the
  * output reference, and projected positions. */
 typedef struct extras {
-    double *gnss_known, *gnss_out, *east, *north;
+    float *gnss_known, *gnss_out;   /* heights to about 1 mm (float) */
+    double *east, *north;
     char crs_name[256];
 } extras;
 
@@ -969,8 +941,8 @@ static hyp_status prepare_extras(args *a, const log_in *rv, extras *x, hyp_error
     const hyp_series *s = log_series(rv);
     size_t n = s->count ? s->count : 1;
     memset(x, 0, sizeof *x);
-    x->gnss_known = malloc(n * sizeof(double));
-    x->gnss_out = malloc(n * sizeof(double));
+    x->gnss_known = malloc(n * sizeof(float));
+    x->gnss_out = malloc(n * sizeof(float));
     if (!x->gnss_known || !x->gnss_out)
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     const double *gh = rv->is_gpx && rv->doc.has_geoidheight ? rv->doc.geoidheight_m : NULL;
@@ -1055,17 +1027,7 @@ static void fill_result(cli_job_result *jr, const hyp_series *s, const hyp_corre
     jr->corrected = res->n_ok;
     jr->ties = res->n_calibs;
     snprintf(jr->method, sizeof jr->method, "%s", hyp_method_name(res->method_used ? res->method_used : HYP_METHOD_SINGLE));
-    double *v = malloc((res->n_ok ? res->n_ok : 1) * sizeof *v);
-    size_t n = 0;
-    for (size_t i = 0; v && i < res->count; i++)
-        if (res->status[i] == HYP_PT_OK)
-            v[n++] = res->sigma_m[i];
-    if (v && n) {
-        qsort(v, n, sizeof *v, cmp_d);
-        jr->median_sigma_m = v[n / 2];
-    } else
-        jr->median_sigma_m = NAN;
-    free(v);
+    jr->median_sigma_m = res->median_sigma_m;
 }
 
 static int correct_one(const args *a0, const char *rover_path, const base_arg *pool, const log_in *pool_logs, int pool_n,
