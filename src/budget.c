@@ -43,7 +43,7 @@ static double fit_term(const hyp__work *w, size_t i, double dz, double c)
  * from the base; 0 when positions are unknown. */
 static double separation_m(const hyp__work *w, size_t i)
 {
-    double la = w->rv->lat_deg[i], lo = w->rv->lon_deg[i];
+    double la = hyp_series_lat(w->rv, i), lo = hyp_series_lon(w->rv, i);
     if (la != la)
         return 0.0;
     double best = INFINITY;

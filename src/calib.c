@@ -45,9 +45,9 @@ static int window_stats(hyp__work *w, hyp_calib *c)
         }
         buf[n++] = raw;
         sens += si;
-        if (w->rv->lat_deg[i] == w->rv->lat_deg[i]) {
-            lat += w->rv->lat_deg[i];
-            lon += w->rv->lon_deg[i];
+        if (hyp_series_lat(w->rv, i) == hyp_series_lat(w->rv, i)) {
+            lat += hyp_series_lat(w->rv, i);
+            lon += hyp_series_lon(w->rv, i);
             npos++;
         }
     }
@@ -73,7 +73,7 @@ static int window_stats(hyp__work *w, hyp_calib *c)
 
 static double dist_to(const hyp__work *w, size_t i, double lat, double lon)
 {
-    return hyp_geo_distance_m(w->rv->lat_deg[i], w->rv->lon_deg[i], lat, lon);
+    return hyp_geo_distance_m(hyp_series_lat(w->rv, i), hyp_series_lon(w->rv, i), lat, lon);
 }
 
 /* Within the run i..j near a point, the stretch where the rover stood
@@ -88,7 +88,7 @@ static void stationary_part(const hyp__work *w, size_t *i, size_t *j, double lat
         if (d < best)
             best = d, a = k;
     }
-    double la = w->rv->lat_deg[a], lo = w->rv->lon_deg[a], r = w->o->stationary_m;
+    double la = hyp_series_lat(w->rv, a), lo = hyp_series_lon(w->rv, a), r = w->o->stationary_m;
     size_t lo_i = a, hi_i = a;
     while (lo_i > *i && dist_to(w, lo_i - 1, la, lo) <= r)
         lo_i--;
@@ -214,7 +214,7 @@ static hyp_status waypoint_ties(hyp__work *w)
                          wp->name[k]);
             continue;
         }
-        double la = w->rv->lat_deg[a], lo = w->rv->lon_deg[a];
+        double la = hyp_series_lat(w->rv, a), lo = hyp_series_lon(w->rv, a);
         double d = hyp_geo_distance_m(la, lo, w->o->benchmarks->lat_deg[bm], w->o->benchmarks->lon_deg[bm]);
         if (d > w->o->tie_radius_m)
             hyp_msgs_add(w->msgs, HYP_WARNING, "waypoint %s is %.0f m from the benchmark's listed position; tied as the waypoint says",

@@ -308,7 +308,7 @@ hyp_point_status hyp__inputs(const hyp__work *w, size_t i, hyp__in *in)
 
 double hyp__lat(const hyp__work *w, size_t i)
 {
-    return pick(w->rv->lat_deg[i], w->base->lat_deg, 45.0);
+    return pick(hyp_series_lat(w->rv, i), w->base->lat_deg, 45.0);
 }
 
 /* The rover-end temperature depends on the height (base + lapse), so
@@ -528,7 +528,7 @@ static hyp_status estimate_noise(hyp__work *w)
 {
     hyp_correct_result *r = w->r;
     const double floor_pa = 0.5;   /* below half a pascal the estimate is resolution-limited */
-    if (hyp__noise_second_diff(w->bv.t, w->bv.p, NULL, w->bv.n, 3.0 * w->o->max_gap_s, &r->base_noise_pa))
+    if (hyp__noise_second_diff(w->bv.t, w->bv.p, NULL, NULL, w->bv.n, 3.0 * w->o->max_gap_s, &r->base_noise_pa))
         return HYP_ERR_NOMEM;
     if (w->base->kind == HYP_BASE_QNH)   /* a QNH series: resolution and reduction */
         r->base_noise_pa = hypot(r->base_noise_pa == r->base_noise_pa ? r->base_noise_pa : 0.0, w->o->qnh_sigma_pa);
@@ -546,7 +546,7 @@ static hyp_status estimate_noise(hyp__work *w)
         r->rover_noise_pa = sqrt(v > floor_pa * floor_pa ? v : floor_pa * floor_pa);
         return HYP_OK;
     }
-    if (hyp__noise_second_diff(w->rv->time_s, w->rv->pressure_pa, w->rv->flag, w->n, 3.0 * w->o->max_gap_s,
+    if (hyp__noise_second_diff(w->rv->time_s, NULL, w->rv->pressure_pa, w->rv->flag, w->n, 3.0 * w->o->max_gap_s,
                                &r->rover_noise_pa))
         return HYP_ERR_NOMEM;
     if (!(r->rover_noise_pa >= floor_pa))

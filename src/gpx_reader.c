@@ -600,7 +600,7 @@ static hyp_status resolve_units(gpx_ctx *g)
     hyp_series *s = &g->doc->pts;
     /* Values without a unit attribute take the option's unit, else the unit
      * the file names elsewhere, else one inferred from their magnitude. */
-    struct { uint8_t *raw; double *v; hyp_quantity q; hyp_unit opt, attr; hyp_unit *out; const char *name; } q[2] = {
+    struct { uint8_t *raw; float *v; hyp_quantity q; hyp_unit opt, attr; hyp_unit *out; const char *name; } q[2] = {
         {g->p_raw, s->pressure_pa, HYP_Q_PRESSURE, g->opts->pressure_unit, g->p_attr_unit, &g->doc->pressure_unit,
          field_name(g->opts->pressure_field, "pressure")},
         {g->t_raw, s->temp_k, HYP_Q_TEMPERATURE, g->opts->temperature_unit, g->t_attr_unit, &g->doc->temperature_unit,
@@ -613,7 +613,7 @@ static hyp_status resolve_units(gpx_ctx *g)
         *q[k].out = q[k].attr;
         if (!nraw)
             continue;
-        double *tmp = malloc(nraw * sizeof *tmp);
+        float *tmp = malloc(nraw * sizeof *tmp);
         if (!tmp)
             return hyp_error_set(g->err, HYP_ERR_NOMEM, "%s: out of memory", g->path);
         size_t j = 0;

@@ -332,11 +332,11 @@ hyp_status hyp_gpx_write_new(const hyp_series *s, const hyp_correct_result *res,
     }
     fprintf(f, "  <trk>\n    <name>%s</name>\n    <trkseg>\n", name);
     for (size_t i = 0; i < s->count; i++) {
-        if (s->lat_deg[i] != s->lat_deg[i] || s->lon_deg[i] != s->lon_deg[i])
+        if (hyp_series_lat(s, i) != hyp_series_lat(s, i) || hyp_series_lon(s, i) != hyp_series_lon(s, i))
             continue;   /* GPX needs a position */
         int ok = res->status[i] == HYP_PT_OK;
         double ele = ok ? res->height_m[i] : s->ele_m[i];
-        fprintf(f, "      <trkpt lat=\"%.8f\" lon=\"%.8f\">", s->lat_deg[i], s->lon_deg[i]);
+        fprintf(f, "      <trkpt lat=\"%.8f\" lon=\"%.8f\">", hyp_series_lat(s, i), hyp_series_lon(s, i));
         if (ele == ele)
             fprintf(f, "<ele>%.3f</ele>", ele);
         if (s->time_s[i] == s->time_s[i]) {

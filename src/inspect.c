@@ -257,7 +257,7 @@ hyp_status hyp_inspect(const hyp_series *s, const hyp_inspect_opts *opts, hyp_in
     r->interval_s = hyp__median_inplace(dt, v.n - 1);
     ranges(s, r);
     double sigma;
-    if (hyp__noise_second_diff(v.t, v.p, NULL, v.n, 1e12, &sigma)) {
+    if (hyp__noise_second_diff(v.t, v.p, NULL, NULL, v.n, 1e12, &sigma)) {
         st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
         goto out;
     }

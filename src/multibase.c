@@ -203,13 +203,13 @@ static double reduce(const hyp__work *w, size_t k, double t, double *tk_ref, hyp
 
 static double pick_lat(const hyp__work *w, size_t i)
 {
-    double v = w->rv->lat_deg[i];
+    double v = hyp_series_lat(w->rv, i);
     return v == v ? v : w->virt.lat_deg;
 }
 
 static double pick_lon(const hyp__work *w, size_t i)
 {
-    double v = w->rv->lon_deg[i];
+    double v = hyp_series_lon(w->rv, i);
     return v == v ? v : w->virt.lon_deg;
 }
 

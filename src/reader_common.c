@@ -77,7 +77,7 @@ int hyp__parse_number(const char *s, size_t len, int decimal_comma, double *v)
 }
 
 hyp_status hyp__resolve_unit(const char *path, const char *field, hyp_quantity q,
-                             hyp_unit from_file, hyp_unit from_opt, double *vals,
+                             hyp_unit from_file, hyp_unit from_opt, float *vals,
                              size_t n, hyp_unit *used, hyp_msgs *msgs, hyp_error *err)
 {
     double vmin = INFINITY, vmax = -INFINITY;
@@ -109,7 +109,7 @@ hyp_status hyp__resolve_unit(const char *path, const char *field, hyp_quantity q
     }
     for (size_t i = 0; i < n; i++)
         if (vals[i] == vals[i])
-            vals[i] = hyp_unit_to_si(u, vals[i]);
+            vals[i] = (float)hyp_unit_to_si(u, vals[i]);
     *used = u;
     return HYP_OK;
 }
@@ -147,10 +147,14 @@ void hyp__check_series(const char *path, hyp_series *s, hyp_msgs *msgs)
                 hyp_msgs_add(msgs, HYP_WARNING, "%s:%u: humidity %.1f %% is outside 0-100 %%; humidity ignored",
                              path, line, rh);
         }
-        double la = s->lat_deg[i], lo = s->lon_deg[i];
-        if ((la == la || lo == lo) && !(fabs(la) <= 90.0 && fabs(lo) <= 180.0)) {
-            s->lat_deg[i] = s->lon_deg[i] = NAN;
-            if (nbad_pos++ < WARN_CAP)
+        double la = hyp_series_lat(s, i), lo = hyp_series_lon(s, i);
+        int beyond = s->lat_e7[i] == HYP_BAD_POSITION || s->lon_e7[i] == HYP_BAD_POSITION;
+        if (beyond || ((la == la || lo == lo) && !(fabs(la) <= 90.0 && fabs(lo) <= 180.0))) {
+            s->lat_e7[i] = s->lon_e7[i] = HYP_NO_POSITION;
+            if (nbad_pos++ < WARN_CAP && beyond)
+                hyp_msgs_add(msgs, HYP_WARNING, "%s:%u: position beyond +-214 degrees is not a latitude in -90..90 and longitude in -180..180 degrees; position ignored",
+                             path, line);
+            else if (nbad_pos <= WARN_CAP)
                 hyp_msgs_add(msgs, HYP_WARNING, "%s:%u: position %g, %g is not a latitude in -90..90 and longitude in -180..180 degrees; position ignored",
                              path, line, la, lo);
         }
@@ -179,7 +183,7 @@ void hyp__check_series(const char *path, hyp_series *s, hyp_msgs *msgs)
             continue;
         s->has_temp |= s->temp_k[i] == s->temp_k[i];
         s->has_rh |= s->rh_pct[i] == s->rh_pct[i];
-        s->has_position |= s->lat_deg[i] == s->lat_deg[i];
+        s->has_position |= hyp_series_lat(s, i) == hyp_series_lat(s, i);
     }
 }
 

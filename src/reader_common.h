@@ -15,7 +15,7 @@ int hyp__parse_number(const char *s, size_t len, int decimal_comma, double *v);
  * the option, else inference (a note), else an error naming the file and
  * the field. Converts vals to SI in place. */
 hyp_status hyp__resolve_unit(const char *path, const char *field, hyp_quantity q,
-                             hyp_unit from_file, hyp_unit from_opt, double *vals,
+                             hyp_unit from_file, hyp_unit from_opt, float *vals,
                              size_t n, hyp_unit *used, hyp_msgs *msgs, hyp_error *err);
 
 /* Range and order checks on a series in SI units: flags pressures outside

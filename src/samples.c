@@ -1,6 +1,7 @@
 /* samples.c - the growable struct-of-arrays sample series. */
 #include "hypsolev/samples.h"
 
+#include <math.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -20,8 +21,8 @@ void hyp_series_free(hyp_series *s)
     free(s->pressure_pa);
     free(s->temp_k);
     free(s->rh_pct);
-    free(s->lat_deg);
-    free(s->lon_deg);
+    free(s->lat_e7);
+    free(s->lon_e7);
     free(s->ele_m);
     free(s->line);
     free(s->flag);
@@ -49,12 +50,12 @@ static hyp_status series_reserve(hyp_series *s, size_t n)
     if (a > SERIES_MAX_COUNT)
         a = SERIES_MAX_COUNT;
     if (grow((void **)&s->time_s, a, sizeof(double)) ||
-        grow((void **)&s->pressure_pa, a, sizeof(double)) ||
-        grow((void **)&s->temp_k, a, sizeof(double)) ||
-        grow((void **)&s->rh_pct, a, sizeof(double)) ||
-        grow((void **)&s->lat_deg, a, sizeof(double)) ||
-        grow((void **)&s->lon_deg, a, sizeof(double)) ||
-        grow((void **)&s->ele_m, a, sizeof(double)) ||
+        grow((void **)&s->pressure_pa, a, sizeof(float)) ||
+        grow((void **)&s->temp_k, a, sizeof(float)) ||
+        grow((void **)&s->rh_pct, a, sizeof(float)) ||
+        grow((void **)&s->lat_e7, a, sizeof(int32_t)) ||
+        grow((void **)&s->lon_e7, a, sizeof(int32_t)) ||
+        grow((void **)&s->ele_m, a, sizeof(float)) ||
         grow((void **)&s->line, a, sizeof(uint32_t)) ||
         grow((void **)&s->flag, a, sizeof(uint8_t)))
         return HYP_ERR_NOMEM;
@@ -72,21 +73,30 @@ hyp_status hyp_series_push(hyp_series *s, double time_s, double pressure_pa,
         return st;
     size_t i = s->count++;
     s->time_s[i] = time_s;
-    s->pressure_pa[i] = pressure_pa;
-    s->temp_k[i] = temp_k;
-    s->rh_pct[i] = rh_pct;
-    s->lat_deg[i] = lat_deg;
-    s->lon_deg[i] = lon_deg;
-    s->ele_m[i] = ele_m;
+    s->pressure_pa[i] = (float)pressure_pa;
+    s->temp_k[i] = (float)temp_k;
+    s->rh_pct[i] = (float)rh_pct;
+    s->lat_e7[i] = hyp_deg_e7(lat_deg);
+    s->lon_e7[i] = hyp_deg_e7(lon_deg);
+    s->ele_m[i] = (float)ele_m;
     s->line[i] = line;
     s->flag[i] = (uint8_t)flag;
     if (temp_k == temp_k)
         s->has_temp = 1;
     if (rh_pct == rh_pct)
         s->has_rh = 1;
-    if (lat_deg == lat_deg && lon_deg == lon_deg)
+    if (s->lat_e7[i] > HYP_BAD_POSITION && s->lon_e7[i] > HYP_BAD_POSITION)
         s->has_position = 1;
     return HYP_OK;
+}
+
+int32_t hyp_deg_e7(double deg)
+{
+    if (deg != deg)
+        return HYP_NO_POSITION;
+    if (!(fabs(deg) <= 214.0))
+        return HYP_BAD_POSITION;
+    return (int32_t)lround(deg * 1e7);
 }
 
 size_t hyp_series_count_flag(const hyp_series *s, hyp_sample_flag f)
@@ -123,12 +133,12 @@ void hyp_series_shrink(hyp_series *s)
     if (s->alloc == s->count || !s->time_s)
         return;
     shrink((void **)&s->time_s, s->count, sizeof(double));
-    shrink((void **)&s->pressure_pa, s->count, sizeof(double));
-    shrink((void **)&s->temp_k, s->count, sizeof(double));
-    shrink((void **)&s->rh_pct, s->count, sizeof(double));
-    shrink((void **)&s->lat_deg, s->count, sizeof(double));
-    shrink((void **)&s->lon_deg, s->count, sizeof(double));
-    shrink((void **)&s->ele_m, s->count, sizeof(double));
+    shrink((void **)&s->pressure_pa, s->count, sizeof(float));
+    shrink((void **)&s->temp_k, s->count, sizeof(float));
+    shrink((void **)&s->rh_pct, s->count, sizeof(float));
+    shrink((void **)&s->lat_e7, s->count, sizeof(int32_t));
+    shrink((void **)&s->lon_e7, s->count, sizeof(int32_t));
+    shrink((void **)&s->ele_m, s->count, sizeof(float));
     shrink((void **)&s->line, s->count, sizeof(uint32_t));
     shrink((void **)&s->flag, s->count, sizeof(uint8_t));
     s->alloc = s->count;

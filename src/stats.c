@@ -52,7 +52,7 @@ double hyp__median_inplace(double *v, size_t n)
     return 0.5 * (lo + hi);
 }
 
-int hyp__noise_second_diff(const double *t_s, const double *x, const unsigned char *bad,
+int hyp__noise_second_diff(const double *t_s, const double *x, const float *xf, const unsigned char *bad,
                            size_t n, double max_dt_s, double *sigma)
 {
     *sigma = NAN;
@@ -67,7 +67,8 @@ int hyp__noise_second_diff(const double *t_s, const double *x, const unsigned ch
             continue;
         if (t_s[i + 1] - t_s[i - 1] > max_dt_s)
             continue;
-        double v = x[i - 1] - 2.0 * x[i] + x[i + 1];
+        double v = x ? x[i - 1] - 2.0 * x[i] + x[i + 1]
+                     : (double)xf[i - 1] - 2.0 * (double)xf[i] + (double)xf[i + 1];
         if (v == v)
             d[m++] = v;
     }

@@ -12,9 +12,9 @@ double hyp__median_inplace(double *v, size_t n);
  * standard deviation s sqrt(6); the spread is taken robustly as 1.4826 times
  * the median absolute deviation (Huber, Robust Statistics, 1981). Triplets
  * spanning more than max_dt_s are skipped; samples with bad[i] != 0 too
- * (bad may be NULL). *sigma is NaN when fewer than 10 triplets. Returns -1
+ * (bad may be NULL). The series is x, or xf when x is NULL. *sigma is NaN when fewer than 10 triplets. Returns -1
  * when out of memory, else 0. */
-int hyp__noise_second_diff(const double *t_s, const double *x, const unsigned char *bad,
+int hyp__noise_second_diff(const double *t_s, const double *x, const float *xf, const unsigned char *bad,
                            size_t n, double max_dt_s, double *sigma);
 
 /* Mean, sample standard deviation and the effective number of independent

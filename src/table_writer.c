@@ -40,8 +40,8 @@ hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res, c
         if (s->time_s[i] == s->time_s[i])
             hyp_time_format(s->time_s[i], t, sizeof t);
         fputs(t, f);
-        num(f, s->lat_deg[i], 8);
-        num(f, s->lon_deg[i], 8);
+        num(f, hyp_series_lat(s, i), 8);
+        num(f, hyp_series_lon(s, i), 8);
         num(f, s->ele_m[i], 3);
         num(f, res->height_m[i], 3);
         num(f, res->sigma_m[i], 3);

@@ -26,7 +26,7 @@ hyp_status hyp_track_heights(hyp_geo *g, const hyp_series *s, const double *geoi
         }
         double n = geoidheight_m && geoidheight_m[i] == geoidheight_m[i]
                        ? geoidheight_m[i]
-                       : hyp_geo_undulation_m(g, s->lat_deg[i], s->lon_deg[i]);
+                       : hyp_geo_undulation_m(g, hyp_series_lat(s, i), hyp_series_lon(s, i));
         out[i] = (float)(to == HYP_VREF_ELLIPSOID ? h + n : h - n);
     }
     return HYP_OK;
@@ -43,7 +43,7 @@ hyp_status hyp_heights_convert(hyp_geo *g, const hyp_series *s, double *h, hyp_v
     for (size_t i = 0; i < s->count; i++) {
         if (h[i] != h[i])
             continue;
-        double n = hyp_geo_undulation_m(g, s->lat_deg[i], s->lon_deg[i]);
+        double n = hyp_geo_undulation_m(g, hyp_series_lat(s, i), hyp_series_lon(s, i));
         h[i] = to == HYP_VREF_ELLIPSOID ? h[i] + n : h[i] - n;
     }
     return HYP_OK;

@@ -4,6 +4,7 @@
 #define HYPSOLEV_SAMPLES_H
 
 #include <stddef.h>
+#include <math.h>
 #include <stdint.h>
 #include "hypsolev/error.h"
 
@@ -11,21 +12,28 @@
 extern "C" {
 #endif
 
-/* One array per quantity, all of length `count`. A missing value is NaN.
+/* One array per quantity, all of length `count`, stored compactly (a
+ * large track is millions of samples; see docs/performance.md). A missing
+ * value is NaN, a missing position HYP_NO_POSITION.
  * time_s: seconds since 1970-01-01T00:00:00Z (UTC, leap seconds ignored as
- * POSIX does); pressure_pa: Pa; temp_k: K; rh_pct: relative humidity, %;
- * lat_deg, lon_deg: degrees (WGS84); ele_m: the file's own height, m.
- * `line` is the file line the sample came from (1-based), for messages. */
+ * POSIX does); pressure_pa: Pa (float: 0.008 Pa steps at 1000 hPa); temp_k:
+ * K; rh_pct: relative humidity, %; lat_e7, lon_e7: degrees (WGS84) times
+ * 10^7, rounded (1.1 cm steps; read them with hyp_series_lat/lon); ele_m:
+ * the file's own height, m (float: 1 mm steps below 8 km). `line` is the
+ * file line the sample came from (1-based), for messages. */
+#define HYP_NO_POSITION INT32_MIN
+#define HYP_BAD_POSITION (INT32_MIN + 1)   /* given, but beyond +-214 degrees */
+
 typedef struct hyp_series {
     size_t count;
     size_t alloc;
     double *time_s;
-    double *pressure_pa;
-    double *temp_k;
-    double *rh_pct;
-    double *lat_deg;
-    double *lon_deg;
-    double *ele_m;
+    float *pressure_pa;
+    float *temp_k;
+    float *rh_pct;
+    int32_t *lat_e7;
+    int32_t *lon_e7;
+    float *ele_m;
     uint32_t *line;
     uint8_t *flag;     /* hyp_sample_flag: why a reader refused the sample */
     /* flags for the whole series */
@@ -46,12 +54,27 @@ typedef enum hyp_sample_flag {
     HYP_SAMPLE_FLAG_COUNT
 } hyp_sample_flag;
 
+/* Latitude and longitude of sample i in degrees, NaN when it has none. */
+static inline double hyp_series_lat(const hyp_series *s, size_t i)
+{
+    return s->lat_e7[i] <= HYP_BAD_POSITION ? (double)NAN : (double)s->lat_e7[i] * 1e-7;
+}
+static inline double hyp_series_lon(const hyp_series *s, size_t i)
+{
+    return s->lon_e7[i] <= HYP_BAD_POSITION ? (double)NAN : (double)s->lon_e7[i] * 1e-7;
+}
+/* Degrees as stored: HYP_NO_POSITION for NaN, HYP_BAD_POSITION beyond
+ * +-214 degrees (the range of the storage; readers refuse anything beyond
+ * +-90 / +-180 anyway, with a message). */
+int32_t hyp_deg_e7(double deg);
+
 /* Short English reason for a flag ("pressure outside 300-1100 hPa"). */
 const char *hyp_sample_flag_text(hyp_sample_flag f);
 
 void hyp_series_init(hyp_series *s);
 void hyp_series_free(hyp_series *s);
-/* Appends one sample (NaN for what is missing). HYP_ERR_NOMEM on failure. */
+/* Appends one sample (NaN for what is missing), rounded to the storage
+ * above. HYP_ERR_NOMEM on failure. */
 hyp_status hyp_series_push(hyp_series *s, double time_s, double pressure_pa,
                            double temp_k, double rh_pct, double lat_deg,
                            double lon_deg, double ele_m, uint32_t line, hyp_sample_flag flag);

@@ -953,8 +953,8 @@ static hyp_status prepare_extras(args *a, const log_in *rv, extras *x, hyp_error
         return st;
     double la = NAN, lo = NAN;
     for (size_t i = 0; i < s->count && la != la; i++)
-        if (s->lat_deg[i] == s->lat_deg[i])
-            la = s->lat_deg[i], lo = s->lon_deg[i];
+        if (hyp_series_lat(s, i) == hyp_series_lat(s, i))
+            la = hyp_series_lat(s, i), lo = hyp_series_lon(s, i);
     st = hyp_geo_set_crs(a->geo, a->crs, la, lo, x->crs_name, sizeof x->crs_name, err);
     if (st)
         return st;
@@ -963,7 +963,7 @@ static hyp_status prepare_extras(args *a, const log_in *rv, extras *x, hyp_error
     if (!x->east || !x->north)
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     for (size_t i = 0; i < s->count; i++)
-        if (hyp_geo_project(a->geo, s->lat_deg[i], s->lon_deg[i], &x->east[i], &x->north[i]))
+        if (hyp_geo_project(a->geo, hyp_series_lat(s, i), hyp_series_lon(s, i), &x->east[i], &x->north[i]))
             x->east[i] = x->north[i] = NAN;
     return HYP_OK;
 }
