@@ -46,7 +46,7 @@ typedef struct gpx_ctx {
     double lat, lon, ele, time_s, pres, temp, rh, geoid;
     int meta_depth, meta_ext_depth;
     int pres_raw, temp_raw, got_pres, got_temp, got_rh, got_time;
-    int64_t open_end, ele_beg, ele_end, ext_ins;
+    int64_t open_end, ele_beg, ele_end, ext_ins, anchor, prev_anchor;
     char name[TEXT_MAX + 1];
     /* text being captured */
     int cap, cap_depth;
@@ -184,15 +184,16 @@ static hyp_status grow_points(gpx_ctx *g)
             return HYP_ERR_NOMEM; \
         L->field = p; \
     } while (0)
-    GROW(open_end, int64_t);
-    GROW(ele_beg, int64_t);
-    GROW(ele_end, int64_t);
-    GROW(ext_ins, int64_t);
-    GROW(ext_kind, uint8_t);
+    GROW(pt_step, uint32_t);
+    GROW(pt_ele_beg, uint32_t);
+    GROW(pt_ele_end, uint32_t);
+    GROW(pt_ext, uint32_t);
 #undef GROW
-    if (!(p = realloc(g->doc->geoidheight_m, a * sizeof(double))))
-        return HYP_ERR_NOMEM;
-    g->doc->geoidheight_m = p;
+    if (g->doc->geoidheight_m) {   /* only once a point has one */
+        if (!(p = realloc(g->doc->geoidheight_m, a * sizeof(double))))
+            return HYP_ERR_NOMEM;
+        g->doc->geoidheight_m = p;
+    }
     if (!(p = realloc(g->p_raw, a))) return HYP_ERR_NOMEM;
     g->p_raw = p;
     if (!(p = realloc(g->t_raw, a))) return HYP_ERR_NOMEM;
@@ -238,7 +239,8 @@ static void start_point(gpx_ctx *g, const xmlChar *local, int nb_attr, const xml
     g->ele_beg = g->ele_end = g->ext_ins = -1;
     g->name[0] = '\0';
     g->pt_selfclosed = g->ctxt->input->cur[0] == '/';
-    g->open_end = g->pt_selfclosed ? -1 : offset_now(g) + 1;
+    g->anchor = offset_now(g) + (g->pt_selfclosed ? 0 : 1);
+    g->open_end = g->pt_selfclosed ? -1 : g->anchor;
 }
 
 static void start_capture(gpx_ctx *g, int what, int nb_attr, const xmlChar **attrs)
@@ -470,17 +472,29 @@ static void end_point(gpx_ctx *g)
     }
     size_t i = d->pts.count;
     hyp_gpx_layout *L = &d->layout;
-    L->open_end[i] = g->open_end;
-    L->ele_beg[i] = g->ele_end >= 0 ? g->ele_beg : -1;
-    L->ele_end[i] = g->ele_end;
-    if (g->ext_ins >= 0) {
-        L->ext_ins[i] = g->ext_ins;
-        L->ext_kind[i] = HYP_EXT_INSIDE;
-    } else {
-        L->ext_ins[i] = g->pt_selfclosed ? -1 : end_tag_start(g);
-        L->ext_kind[i] = L->version == 10 ? HYP_EXT_BARE : HYP_EXT_WRAP;
+    int64_t ext = g->ext_ins >= 0 ? g->ext_ins : g->pt_selfclosed ? -1 : end_tag_start(g);
+    hyp_ext_kind kind = g->ext_ins >= 0 ? HYP_EXT_INSIDE : L->version == 10 ? HYP_EXT_BARE : HYP_EXT_WRAP;
+    int64_t step = g->anchor - g->prev_anchor, lim = (int64_t)1 << 30;
+    if (step < 0 || step >= (int64_t)HYP_GPX_NONE || (ext >= 0 && ext - g->anchor >= lim) ||
+        (g->ele_end >= 0 && g->ele_end - g->anchor >= lim)) {
+        fail(g, HYP_ERR_FORMAT, "a point more than 4 GiB after the previous one, or longer than 1 GiB, is not supported");
+        return;
     }
-    d->geoidheight_m[i] = g->geoid;
+    L->pt_step[i] = (uint32_t)step;
+    g->prev_anchor = g->anchor;
+    L->pt_ele_beg[i] = g->ele_end >= 0 ? (uint32_t)(g->ele_beg - g->anchor) : HYP_GPX_NONE;
+    L->pt_ele_end[i] = g->ele_end >= 0 ? (uint32_t)(g->ele_end - g->anchor) : HYP_GPX_NONE;
+    L->pt_ext[i] = ext < 0 ? HYP_GPX_NONE : (uint32_t)(ext - g->anchor) | (uint32_t)kind << 30;
+    if (g->geoid == g->geoid && !d->geoidheight_m) {   /* the first: NaN before it */
+        if (!(d->geoidheight_m = malloc(g->lay_alloc * sizeof(double)))) {
+            fail(g, HYP_ERR_NOMEM, "out of memory");
+            return;
+        }
+        for (size_t k = 0; k < i; k++)
+            d->geoidheight_m[k] = NAN;
+    }
+    if (d->geoidheight_m)
+        d->geoidheight_m[i] = g->geoid;
     d->has_geoidheight |= g->geoid == g->geoid;
     g->p_raw[i] = (uint8_t)(g->got_pres && g->pres_raw);
     g->t_raw[i] = (uint8_t)(g->got_temp && g->temp_raw);
@@ -743,20 +757,28 @@ hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts, hyp_gpx_doc
         hyp_gpx_layout *L = &doc->layout;
         size_t n = doc->pts.count ? doc->pts.count : 1;
         void *q;
-        if ((q = realloc(L->open_end, n * sizeof(int64_t)))) L->open_end = q;
-        if ((q = realloc(L->ele_beg, n * sizeof(int64_t)))) L->ele_beg = q;
-        if ((q = realloc(L->ele_end, n * sizeof(int64_t)))) L->ele_end = q;
-        if ((q = realloc(L->ext_ins, n * sizeof(int64_t)))) L->ext_ins = q;
-        if ((q = realloc(L->ext_kind, n))) L->ext_kind = q;
-        if (!doc->has_geoidheight) {
-            free(doc->geoidheight_m);
-            doc->geoidheight_m = NULL;
-        } else if ((q = realloc(doc->geoidheight_m, n * sizeof(double))))
+        if ((q = realloc(L->pt_step, n * sizeof(uint32_t)))) L->pt_step = q;
+        if ((q = realloc(L->pt_ele_beg, n * sizeof(uint32_t)))) L->pt_ele_beg = q;
+        if ((q = realloc(L->pt_ele_end, n * sizeof(uint32_t)))) L->pt_ele_end = q;
+        if ((q = realloc(L->pt_ext, n * sizeof(uint32_t)))) L->pt_ext = q;
+        if (doc->geoidheight_m && (q = realloc(doc->geoidheight_m, n * sizeof(double))))
             doc->geoidheight_m = q;
     }
     if (st)
         hyp_gpx_doc_free(doc);
     return st;
+}
+
+void hyp_gpx_point_next(const hyp_gpx_layout *L, size_t i, int64_t *anchor, hyp_gpx_point *p)
+{
+    int64_t a = *anchor + L->pt_step[i];
+    *anchor = a;
+    uint32_t x = L->pt_ext[i];
+    p->ext_ins = x == HYP_GPX_NONE ? -1 : a + (int64_t)(x & 0x3fffffffu);
+    p->ext_kind = x == HYP_GPX_NONE ? HYP_EXT_INSIDE : (hyp_ext_kind)(x >> 30);
+    p->open_end = x == HYP_GPX_NONE ? -1 : a;
+    p->ele_beg = L->pt_ele_beg[i] == HYP_GPX_NONE ? -1 : a + L->pt_ele_beg[i];
+    p->ele_end = L->pt_ele_end[i] == HYP_GPX_NONE ? -1 : a + L->pt_ele_end[i];
 }
 
 void hyp_gpx_doc_init(hyp_gpx_doc *d)
@@ -769,11 +791,10 @@ void hyp_gpx_doc_free(hyp_gpx_doc *d)
 {
     hyp_series_free(&d->pts);
     hyp_gpx_layout *L = &d->layout;
-    free(L->open_end);
-    free(L->ele_beg);
-    free(L->ele_end);
-    free(L->ext_ins);
-    free(L->ext_kind);
+    free(L->pt_step);
+    free(L->pt_ele_beg);
+    free(L->pt_ele_end);
+    free(L->pt_ext);
     free(d->geoidheight_m);
     for (size_t i = 0; i < d->wpts.count; i++)
         free(d->wpts.name[i]);

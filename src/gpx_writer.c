@@ -176,31 +176,31 @@ static hyp_status step(src *s, FILE *out, int64_t to, int want_last, int want_ne
 }
 
 static hyp_status splice_point(src *s, FILE *out, const char *in, const hyp_gpx_doc *doc,
-                               const hyp_correct_result *res, size_t i, hyp_error *err)
+                               const hyp_correct_result *res, size_t i, const hyp_gpx_point *P, hyp_error *err)
 {
     const hyp_gpx_layout *L = &doc->layout;
     const char *gp = L->prefix, *colon = L->prefix[0] ? ":" : "";
-    if (L->open_end[i] < 0 || L->ext_ins[i] < 0)
+    if (P->open_end < 0 || P->ext_ins < 0)
         return HYP_OK;     /* <trkpt .../> without content: nothing to splice */
     int ok = res->status[i] == HYP_PT_OK;
     hyp_status st;
-    if (ok && L->ele_beg[i] >= 0) {
-        if ((st = step(s, out, L->ele_beg[i], '>', 0, in, err)))
+    if (ok && P->ele_beg >= 0) {
+        if ((st = step(s, out, P->ele_beg, '>', 0, in, err)))
             return st;
         char h[32];
         fwrite(h, 1, (size_t)fmt3(h, res->height_m[i]), out);
-        if ((st = step(s, NULL, L->ele_end[i], 0, '<', in, err)))
+        if ((st = step(s, NULL, P->ele_end, 0, '<', in, err)))
             return st;
     } else if (ok) {
-        if ((st = step(s, out, L->open_end[i], '>', 0, in, err)))
+        if ((st = step(s, out, P->open_end, '>', 0, in, err)))
             return st;
         fprintf(out, "<%s%sele>%.3f</%s%sele>", gp, colon, res->height_m[i], gp, colon);
     }
-    if ((st = step(s, out, L->ext_ins[i], 0, '<', in, err)))
+    if ((st = step(s, out, P->ext_ins, 0, '<', in, err)))
         return st;
     char el[512];
     point_elements(el, sizeof el, doc, res, i);
-    if (L->ext_kind[i] == HYP_EXT_WRAP)
+    if (P->ext_kind == HYP_EXT_WRAP)
         fprintf(out, "<%s%sextensions>%s</%s%sextensions>", gp, colon, el, gp, colon);
     else
         fputs(el, out);
@@ -257,8 +257,11 @@ static hyp_status splice_all(src *s, FILE *out, const char *in_path, const hyp_g
     hyp_status st;
     if (vref && (st = splice_vref(s, out, in_path, L, vref, 0, err)))
         return st;
+    int64_t anchor = 0;
     for (size_t i = 0; i < doc->pts.count; i++) {
-        st = splice_point(s, out, in_path, doc, res, i, err);
+        hyp_gpx_point P;
+        hyp_gpx_point_next(L, i, &anchor, &P);
+        st = splice_point(s, out, in_path, doc, res, i, &P, err);
         if (st)
             return st;
     }

@@ -52,13 +52,31 @@ typedef struct hyp_gpx_layout {
     int meta_kind;          /* 0 no <metadata>, 1 inside its <extensions>,
                                2 before </metadata> (needs <extensions>),
                                3 <metadata/> (nowhere to add) */
-    int64_t *open_end;      /* just after the '>' of each point's start tag */
-    int64_t *ele_beg;       /* start of <ele>'s text, -1 without <ele> */
-    int64_t *ele_end;       /* end of <ele>'s text (start of </ele>) */
-    int64_t *ext_ins;       /* where the added elements go */
-    uint8_t *ext_kind;      /* hyp_ext_kind */
+    /* Per point in 16 bytes, read through hyp_gpx_point_next(). A point's
+     * anchor is its open_end, or for <trkpt .../> the '/' of its tag. */
+    uint32_t *pt_step;      /* anchor minus the previous point's (the first's: minus 0) */
+    uint32_t *pt_ele_beg;   /* ele_beg - anchor, HYP_GPX_NONE without <ele> */
+    uint32_t *pt_ele_end;   /* ele_end - anchor */
+    uint32_t *pt_ext;       /* ext_ins - anchor in the low 30 bits, the
+                               hyp_ext_kind in the top 2; HYP_GPX_NONE for <trkpt/> */
     int64_t file_size;
 } hyp_gpx_layout;
+
+#define HYP_GPX_NONE UINT32_MAX
+
+/* One point's byte positions in the input file, -1 where there is none. */
+typedef struct hyp_gpx_point {
+    int64_t open_end;       /* just after the '>' of the start tag; -1 for <trkpt/> */
+    int64_t ele_beg;        /* start of <ele>'s text, -1 without <ele> */
+    int64_t ele_end;        /* end of <ele>'s text (start of </ele>) */
+    int64_t ext_ins;        /* where the added elements go; -1 for <trkpt/> */
+    hyp_ext_kind ext_kind;
+} hyp_gpx_point;
+
+/* Point i's positions. Points are stored relative to the one before, so
+ * they are read in order: *anchor is 0 before point 0, and each call
+ * leaves it ready for point i + 1. */
+void hyp_gpx_point_next(const hyp_gpx_layout *L, size_t i, int64_t *anchor, hyp_gpx_point *p);
 
 typedef struct hyp_waypoints {
     size_t count, alloc;
@@ -71,7 +89,8 @@ typedef struct hyp_gpx_doc {
     hyp_gpx_layout layout;
     hyp_waypoints wpts;
     hyp_unit pressure_unit, temperature_unit;  /* as found or inferred */
-    double *geoidheight_m;  /* per point: <geoidheight> (m), NaN where absent */
+    double *geoidheight_m;  /* per point: <geoidheight> (m), NaN where absent;
+                               NULL when no point has one */
     int has_geoidheight;
 } hyp_gpx_doc;
 

@@ -923,17 +923,35 @@ static hyp_status write_outputs(const args *a, const char *rover_path, const log
 /* Per-rover arrays beside the result: GNSS heights in the known and the
  * output reference, and projected positions. */
 typedef struct extras {
-    float *gnss_known, *gnss_out;   /* heights to about 1 mm (float) */
+    const float *gnss_known, *gnss_out;   /* the track's own heights when no
+                                             conversion is needed, else own_* */
+    float *own_known, *own_out;           /* heights to about 1 mm (float) */
     double *east, *north;
     char crs_name[256];
 } extras;
 
 static void extras_free(extras *x)
 {
-    free(x->gnss_known);
-    free(x->gnss_out);
+    free(x->own_known);
+    free(x->own_out);
     free(x->east);
     free(x->north);
+}
+
+/* The track's heights in reference `to`: the series' own array when they
+ * are in it already (no copy), else a converted copy in *own. */
+static hyp_status track_heights(args *a, const log_in *rv, hyp_vref to, const float **out, float **own, hyp_error *err)
+{
+    const hyp_series *s = log_series(rv);
+    if (to == a->gnss_ref) {
+        *out = s->ele_m;
+        return HYP_OK;
+    }
+    if (!(*own = malloc((s->count ? s->count : 1) * sizeof(float))))
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    *out = *own;
+    const double *gh = rv->is_gpx && rv->doc.has_geoidheight ? rv->doc.geoidheight_m : NULL;
+    return hyp_track_heights(a->geo, s, gh, a->gnss_ref, to, *own, err);
 }
 
 static hyp_status prepare_extras(args *a, const log_in *rv, extras *x, hyp_error *err)
@@ -941,14 +959,9 @@ static hyp_status prepare_extras(args *a, const log_in *rv, extras *x, hyp_error
     const hyp_series *s = log_series(rv);
     size_t n = s->count ? s->count : 1;
     memset(x, 0, sizeof *x);
-    x->gnss_known = malloc(n * sizeof(float));
-    x->gnss_out = malloc(n * sizeof(float));
-    if (!x->gnss_known || !x->gnss_out)
-        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
-    const double *gh = rv->is_gpx && rv->doc.has_geoidheight ? rv->doc.geoidheight_m : NULL;
-    hyp_status st = hyp_track_heights(a->geo, s, gh, a->gnss_ref, a->known_ref, x->gnss_known, err);
+    hyp_status st = track_heights(a, rv, a->known_ref, &x->gnss_known, &x->own_known, err);
     if (!st)
-        st = hyp_track_heights(a->geo, s, gh, a->gnss_ref, a->out_ref, x->gnss_out, err);
+        st = track_heights(a, rv, a->out_ref, &x->gnss_out, &x->own_out, err);
     if (st || !a->crs)
         return st;
     double la = NAN, lo = NAN;
