@@ -127,13 +127,29 @@ static double height_term(double g, double s2, double h_m)
                 + 3.0 / (WGS84_A * WGS84_A) * h_m * h_m);
 }
 
+hyp_gravity hyp_gravity_at_lat(double lat_deg)
+{
+    hyp_gravity g = {NAN, NAN};
+    if (!(lat_deg >= -90.0 && lat_deg <= 90.0))
+        return g;
+    double s = sin(lat_deg * PI / 180.0);
+    g.s2 = s * s;
+    /* TR8350.2 eq. 4-1 */
+    g.g0 = WGS84_GE * (1.0 + WGS84_K * g.s2) / sqrt(1.0 - WGS84_E2 * g.s2);
+    return g;
+}
+
+double hyp_gravity_h_m_s2(const hyp_gravity *g, double h_m)
+{
+    if (g->g0 != g->g0 || h_m != h_m)
+        return NAN;
+    return height_term(g->g0, g->s2, h_m);
+}
+
 double hyp_gravity_at_height_m_s2(double lat_deg, double h_m)
 {
-    double g = hyp_gravity_normal_m_s2(lat_deg);
-    if (g != g || h_m != h_m)
-        return NAN;
-    double s = sin(lat_deg * PI / 180.0);
-    return height_term(g, s * s, h_m);
+    hyp_gravity g = hyp_gravity_at_lat(lat_deg);
+    return hyp_gravity_h_m_s2(&g, h_m);
 }
 
 double hyp_svp_water_pa(double temp_k)
@@ -183,16 +199,20 @@ double hyp_hypsometric_dphi_j_kg(double p1_pa, double p2_pa, double tv_mean_k)
     return HYP_RD_J_KG_K * tv_mean_k * log(p1_pa / p2_pa);
 }
 
-double hyp_height_difference_m(double dphi_j_kg, double h1_m, double lat_deg)
+double hyp_height_difference_g_m(double dphi_j_kg, double h1_m, const hyp_gravity *g)
 {
-    double g0 = hyp_gravity_normal_m_s2(lat_deg);
-    if (g0 != g0 || dphi_j_kg != dphi_j_kg || h1_m != h1_m)
+    if (g->g0 != g->g0 || dphi_j_kg != dphi_j_kg || h1_m != h1_m)
         return NAN;
-    double s = sin(lat_deg * PI / 180.0), s2 = s * s;
     /* Normal gravity is linear in h to 1e-7 over a few km, so the mean over
      * the layer is its value at mid-layer: two fixed-point steps. */
-    double dz = dphi_j_kg / height_term(g0, s2, h1_m);
+    double dz = dphi_j_kg / height_term(g->g0, g->s2, h1_m);
     for (int i = 0; i < 2; i++)
-        dz = dphi_j_kg / height_term(g0, s2, h1_m + 0.5 * dz);
+        dz = dphi_j_kg / height_term(g->g0, g->s2, h1_m + 0.5 * dz);
     return dz;
+}
+
+double hyp_height_difference_m(double dphi_j_kg, double h1_m, double lat_deg)
+{
+    hyp_gravity g = hyp_gravity_at_lat(lat_deg);
+    return hyp_height_difference_g_m(dphi_j_kg, h1_m, &g);
 }

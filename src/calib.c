@@ -28,10 +28,10 @@ static int window_stats(hyp__work *w, hyp_calib *c)
     size_t n = 0, cap = 0;
     double sens = 0, lat = 0, lon = 0, *buf = NULL;
     size_t npos = 0;
+    hyp__in in = {0};   /* kept across samples: its hint */
     for (size_t i = 0; i < w->n; i++) {
         if (w->r->status[i] != HYP_PT_OK || w->rv->time_s[i] < c->start_s || w->rv->time_s[i] > c->end_s)
             continue;
-        hyp__in in;
         double si, tv, raw = hyp__inputs(w, i, &in) ? NAN : hyp__raw_height(w, i, &in, &si, &tv);
         if (raw != raw)
             continue;

@@ -199,7 +199,7 @@ static hyp_point_status bracket(const hyp__base_view *b, double x, double max_ga
 
 hyp_point_status hyp__base_at(const hyp__base_view *b, const double *v, double x, double max_gap_s, double *out)
 {
-    size_t k;
+    size_t k = 0;
     double f;
     hyp_point_status st = bracket(b, x, max_gap_s, &k, &f);
     *out = st ? NAN : lerp(v, k, f);
@@ -210,7 +210,12 @@ static hyp_point_status bracket(const hyp__base_view *b, double x, double max_ga
 {
     if (!(x >= b->t[0] && x <= b->t[b->n - 1]))
         return HYP_PT_OUTSIDE_BASE;
-    size_t lo = 0, hi = b->n - 1;
+    size_t lo = 0, hi = b->n - 1, h = *k;
+    /* the interval of the last call or the next one: a walk in time order */
+    if (h + 1 < b->n && b->t[h] <= x && x <= b->t[h + 1])
+        lo = h, hi = h + 1;
+    else if (h + 2 < b->n && b->t[h + 1] <= x && x <= b->t[h + 2])
+        lo = h + 1, hi = h + 2;
     while (hi - lo > 1) {
         size_t mid = lo + (hi - lo) / 2;
         if (b->t[mid] <= x)
@@ -267,12 +272,13 @@ static hyp_point_status inputs(const hyp__work *w, size_t i, hyp__in *in, double
     const hyp_series *rv = w->rv;
     if (rv->flag[i])
         return HYP_PT_REFUSED;
-    size_t k;
+    size_t k = in->hint;
     double f;
     const hyp__base_view *b = &w->bv;
     hyp_point_status st = bracket(b, rv->time_s[i], w->o->max_gap_s, &k, &f);
     if (st)
         return st;
+    in->hint = k;
     in->pb = b->p[k] + f * (b->p[k + 1] - b->p[k]);
     in->rate = b->rate[k] + f * (b->rate[k + 1] - b->rate[k]);
     in->dt_base = b->t[k + 1] - b->t[k];
@@ -312,8 +318,10 @@ double hyp__lat(const hyp__work *w, size_t i)
 }
 
 /* The rover-end temperature depends on the height (base + lapse), so
- * fixed-point steps; each changes dz by about lapse * dz / T (< 3 %), so four
- * converge to well under 1 mm. */
+ * fixed-point steps; each changes dz by about lapse * dz / T (< 3 %), and
+ * they stop when a step moves dz by less than 10 micrometres (at most 12;
+ * typically three to five). The pressure ratio's logarithm and the
+ * latitude's gravity are the same in every step, so evaluated once. */
 double hyp__height_above_base(const hyp__work *w, size_t i, const hyp__in *in, double pr, double *tv_out)
 {
     const hyp_correct_opts *o = w->o;
@@ -330,7 +338,11 @@ double hyp__height_above_base(const hyp__work *w, size_t i, const hyp__in *in, d
         *tv_out = g * dh / (HYP_RD_J_KG_K * l);
         return dh * log(pb / pr) / l;
     }
-    double tb = in->tb, tr = w->rv->temp_k[i], lat = hyp__lat(w, i);
+    double tb = in->tb, tr = w->rv->temp_k[i];
+    hyp_gravity gr = hyp_gravity_at_lat(hyp__lat(w, i));
+    if (!(pb > 0 && pr > 0))
+        return NAN;
+    double lnp = log(pb / pr);   /* hyp_hypsometric_dphi_j_kg: Rd Tv ln(p1/p2) */
     double dz = 0.0, tv = NAN;
     if (tb != tb) {
         /* No base thermometer: the rover's carried down with the lapse
@@ -340,7 +352,7 @@ double hyp__height_above_base(const hyp__work *w, size_t i, const hyp__in *in, d
                       : hyp_isa_temperature_k(hyp_geopotential_from_geometric_m(w->base->height_m));
     }
     double tvb = hyp_virtual_temperature_k(tb, in->rhb, pb);
-    for (int it = 0; it < 4; it++) {
+    for (int it = 0; it < 12; it++) {
         double t_top = tb + o->lapse_k_per_m * dz;
         if (o->tcol == HYP_TCOL_ROVER && tr == tr)
             t_top = tr;
@@ -348,8 +360,14 @@ double hyp__height_above_base(const hyp__work *w, size_t i, const hyp__in *in, d
             t_top = 0.5 * (t_top + tr);
         double tvr = hyp_virtual_temperature_k(t_top, in->rhr, pr);
         tv = hyp_layer_mean_temperature_k(tvb, tvr);
-        dz = hyp_height_difference_m(hyp_hypsometric_dphi_j_kg(pb, pr, tv), w->base->height_m, lat);
-        if (dz != dz)
+        double next = tv > 0 ? hyp_height_difference_g_m(HYP_RD_J_KG_K * tv * lnp, w->base->height_m, &gr) : NAN;
+        if (next != next) {
+            dz = NAN;
+            break;
+        }
+        int done = it > 0 && fabs(next - dz) < 1e-5;
+        dz = next;
+        if (done)
             break;
     }
     *tv_out = tv;
@@ -470,12 +488,12 @@ static hyp_status corrected_heights(hyp__work *w)
     r->tcol_min_k = INFINITY;
     r->tcol_max_k = -INFINITY;
     double dh = w->method == HYP_METHOD_TWO_BASE ? w->bases[w->upper].height_m - w->bases[w->ref].height_m : 0.0;
+    hyp__in in = {0};   /* kept across samples: its hint */
     for (size_t i = 0; i < w->n; i++) {
         r->height_m[i] = NAN;
         r->sigma_m[i] = NAN;
         if (r->status[i] != HYP_PT_OK)
             continue;
-        hyp__in in;
         hyp_point_detail d;
         double dz;
         if (hyp__inputs(w, i, &in) || corrected_point(w, i, &in, &dz, &d)) {
@@ -515,7 +533,7 @@ hyp_status hyp_correct_point(const hyp_correct_result *res, size_t i, hyp_point_
     hyp__work w = *res->priv;
     w.r = (hyp_correct_result *)res;
     w.o = &w.opts;
-    hyp__in in;
+    hyp__in in = {0};
     double dz;
     if (hyp__inputs(&w, i, &in) || corrected_point(&w, i, &in, &dz, d))
         return HYP_ERR_NODATA;
@@ -648,8 +666,8 @@ static hyp_status status_pass(hyp__work *w)
         return HYP_ERR_NOMEM;
     double chi_ss = 0;
     size_t chi_n = 0;
+    hyp__in in = {0};   /* kept across samples: its hint */
     for (size_t i = 0; i < w->n; i++) {
-        hyp__in in;
         double chi2 = NAN;
         hyp_point_status st = inputs(w, i, &in, &chi2);
         if (st == HYP_PT_OK && chi2 == chi2)

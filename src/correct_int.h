@@ -29,6 +29,9 @@ typedef struct hyp__in {
     double dt_base;    /* base sampling interval there, s */
     double tb, rhb, rhr;  /* column inputs: base temperature (K), humidity at
                              the base and rover ends (%) */
+    size_t hint;       /* the base interval found last: callers walking the
+                          samples in order keep it (0 to start), which
+                          spares the search */
 } hyp__in;
 
 /* The working state of one correction. It outlives hyp_correct (the

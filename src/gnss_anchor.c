@@ -113,10 +113,10 @@ hyp_status hyp__gnss_anchor(hyp__work *w)
         goto out;
     }
     double t0 = NAN;
+    hyp__in in = {0};   /* kept across samples: its hint */
     for (size_t i = 0; i < w->n && n < m; i++) {
         if (!(w->r->status[i] == HYP_PT_OK && g[i] == g[i]) || seen++ % stride)
             continue;
-        hyp__in in;
         double sens, tv, raw = hyp__inputs(w, i, &in) ? NAN : hyp__raw_height(w, i, &in, &sens, &tv);
         if (raw != raw)
             continue;

@@ -24,6 +24,12 @@
 
 enum capture { CAP_NONE, CAP_ELE, CAP_TIME, CAP_PRES, CAP_TEMP, CAP_RH, CAP_NAME, CAP_GEOID };
 
+/* The element names the reader looks for, looked up once in the parser's
+ * dictionary: libxml2 hands element names (and namespace names) over from
+ * that dictionary, so a name matches when the pointer does. */
+enum name { N_METADATA, N_EXTENSIONS, N_TRKPT, N_RTEPT, N_WPT, N_ELE, N_TIME, N_NAME, N_GEOID,
+            N_PRES, N_TEMP, N_RH, N_HYP_NS, N_COUNT };
+
 typedef struct gpx_ctx {
     const char *path;
     const hyp_read_opts *opts;
@@ -36,10 +42,16 @@ typedef struct gpx_ctx {
     uint8_t *p_raw, *t_raw;    /* 1: value still in the file's unit */
     size_t raw_alloc;
     hyp_unit p_attr_unit, t_attr_unit; /* units seen in unit attributes */
+    char unit_text[2][32];     /* the last unit attribute of pressure, temperature */
+    hyp_unit unit_parsed[2];
+    int unit_seen[2];
     int depth;
     int terminating;           /* the last, closing call of the parser */
     int root_seen;
     xmlChar *gpx_uri;          /* the root's namespace, NULL for none */
+    const xmlChar *names[N_COUNT];
+    int interned;              /* names come from the dictionary: compare pointers */
+    const xmlChar *gpx_uri_d;  /* gpx_uri as the dictionary holds it */
     /* the point or waypoint being read */
     int in_pt, in_wpt, pt_depth, ext_depth, pt_selfclosed;
     unsigned pt_line;
@@ -107,7 +119,34 @@ static int is_gpx_ns(gpx_ctx *g, const xmlChar *uri)
 {
     if (!g->gpx_uri || !uri)
         return !g->gpx_uri && !uri;
+    if (g->interned)
+        return uri == g->gpx_uri_d;
     return xmlStrEqual(uri, g->gpx_uri);
+}
+
+static int is_name(const gpx_ctx *g, const xmlChar *s, enum name k)
+{
+    if (g->interned)
+        return s == g->names[k];
+    return xmlStrEqual(s, g->names[k]);
+}
+
+/* Looks up the names; the pointer comparison is used only when the
+ * parser's own names (root element and namespace) are in the dictionary. */
+static hyp_status intern_names(gpx_ctx *g)
+{
+    static const char *fixed[N_COUNT] = {"metadata", "extensions", "trkpt", "rtept", "wpt", "ele", "time",
+                                         "name", "geoidheight", NULL, NULL, NULL, HYP_GPX_NS};
+    xmlDictPtr d = g->ctxt->dict;
+    for (int k = 0; k < N_COUNT; k++) {
+        const char *n = fixed[k] ? fixed[k]
+                        : k == N_PRES ? field_name(g->opts->pressure_field, "pressure")
+                        : k == N_TEMP ? field_name(g->opts->temperature_field, "temperature")
+                                      : field_name(g->opts->humidity_field, "humidity");
+        if (!d || !(g->names[k] = xmlDictLookup(d, BAD_CAST n, -1)))
+            return HYP_ERR_NOMEM;
+    }
+    return HYP_OK;
 }
 
 static const char *attr_value(const xmlChar **attrs, int n, const char *name, char *buf, size_t bn)
@@ -153,6 +192,9 @@ static void start_root(gpx_ctx *g, const xmlChar *local, const xmlChar *prefix, 
         fail(g, HYP_ERR_NOMEM, "out of memory");
         return;
     }
+    xmlDictPtr dict = g->ctxt->dict;
+    g->interned = dict && xmlDictOwns(dict, local) == 1 && (!uri || xmlDictOwns(dict, uri) == 1);
+    g->gpx_uri_d = uri;
     snprintf(L->prefix, sizeof L->prefix, "%s", prefix ? (const char *)prefix : "");
     for (int i = 0; i < nb_ns; i++) {
         const xmlChar *p = ns[2 * i], *u = ns[2 * i + 1];
@@ -257,7 +299,16 @@ static void start_capture(gpx_ctx *g, int what, int nb_attr, const xmlChar **att
             u = attr_value(attrs, nb_attr, "units", buf, sizeof buf);
         if (u) {
             hyp_quantity q = what == CAP_PRES ? HYP_Q_PRESSURE : HYP_Q_TEMPERATURE;
-            g->cap_unit = hyp_unit_parse(q, u);
+            /* every point repeats the same unit: parse it once */
+            int c = what == CAP_PRES ? 0 : 1;
+            if (g->unit_seen[c] && strcmp(u, g->unit_text[c]) == 0)
+                g->cap_unit = g->unit_parsed[c];
+            else {
+                g->cap_unit = hyp_unit_parse(q, u);
+                snprintf(g->unit_text[c], sizeof g->unit_text[c], "%s", u);
+                g->unit_parsed[c] = g->cap_unit;
+                g->unit_seen[c] = 1;
+            }
             if (!g->cap_unit)
                 fail(g, HYP_ERR_UNIT, "unit=\"%s\" on <%s> is unknown; expected one of %s", u,
                      what == CAP_PRES ? field_name(g->opts->pressure_field, "pressure")
@@ -284,25 +335,25 @@ static void on_start(void *ctx, const xmlChar *local, const xmlChar *prefix, con
         start_root(g, local, prefix, uri, nb_ns, ns, nb_attr, attrs);
         return;
     }
-    if (uri && xmlStrEqual(uri, BAD_CAST HYP_GPX_NS)) {
+    if (uri && is_name(g, uri, N_HYP_NS)) {
         fail(g, HYP_ERR_FORMAT, "<%s:%s> is this tool's own output; correct the original file instead",
              prefix ? (const char *)prefix : "", (const char *)local);
         return;
     }
     int gpx = is_gpx_ns(g, uri);
-    if (gpx && g->depth == 2 && xmlStrEqual(local, BAD_CAST "metadata")) {
+    if (gpx && g->depth == 2 && is_name(g, local, N_METADATA)) {
         g->meta_depth = 2;
         /* metadata belongs first; one after points (invalid GPX) or a
          * second one is no place for what is added at the document level,
          * which is spliced in before the points */
         if (g->ctxt->input->cur[0] == '/' || g->doc->pts.count || g->doc->wpts.count || g->doc->layout.meta_kind)
             g->doc->layout.meta_kind = 3;
-    } else if (gpx && g->meta_depth && g->depth == 3 && xmlStrEqual(local, BAD_CAST "extensions"))
+    } else if (gpx && g->meta_depth && g->depth == 3 && is_name(g, local, N_EXTENSIONS))
         g->meta_ext_depth = 3;
     if (!g->in_pt && !g->in_wpt) {
-        if (gpx && g->depth >= 2 && (xmlStrEqual(local, BAD_CAST "trkpt") || xmlStrEqual(local, BAD_CAST "rtept")))
+        if (gpx && g->depth >= 2 && (is_name(g, local, N_TRKPT) || is_name(g, local, N_RTEPT)))
             start_point(g, local, nb_attr, attrs, 0);
-        else if (gpx && g->depth == 2 && xmlStrEqual(local, BAD_CAST "wpt"))
+        else if (gpx && g->depth == 2 && is_name(g, local, N_WPT))
             start_point(g, local, nb_attr, attrs, 1);
         return;
     }
@@ -310,34 +361,31 @@ static void on_start(void *ctx, const xmlChar *local, const xmlChar *prefix, con
         return;   /* markup inside a captured value: its text is ignored */
     int child = g->depth == g->pt_depth + 1;
     if (gpx && child) {
-        if (xmlStrEqual(local, BAD_CAST "ele")) {
+        if (is_name(g, local, N_ELE)) {
             if (g->ctxt->input->cur[0] == '/') {
                 fail(g, HYP_ERR_VALUE, "<ele/> is empty; expected a number (m)");
                 return;
             }
             g->ele_beg = offset_now(g) + 1;
             start_capture(g, CAP_ELE, nb_attr, attrs);
-        } else if (xmlStrEqual(local, BAD_CAST "time"))
+        } else if (is_name(g, local, N_TIME))
             start_capture(g, CAP_TIME, nb_attr, attrs);
-        else if (g->in_wpt && xmlStrEqual(local, BAD_CAST "name"))
+        else if (g->in_wpt && is_name(g, local, N_NAME))
             start_capture(g, CAP_NAME, nb_attr, attrs);
-        else if (!g->in_wpt && xmlStrEqual(local, BAD_CAST "geoidheight"))
+        else if (!g->in_wpt && is_name(g, local, N_GEOID))
             start_capture(g, CAP_GEOID, nb_attr, attrs);
-        else if (xmlStrEqual(local, BAD_CAST "extensions"))
+        else if (is_name(g, local, N_EXTENSIONS))
             g->ext_depth = g->depth;
         return;
     }
     int in_ext = g->ext_depth ? g->depth > g->ext_depth : !gpx;
     if (!in_ext || g->in_wpt)
         return;
-    const char *pf = field_name(g->opts->pressure_field, "pressure");
-    const char *tf = field_name(g->opts->temperature_field, "temperature");
-    const char *hf = field_name(g->opts->humidity_field, "humidity");
-    if (!g->got_pres && strcmp((const char *)local, pf) == 0)
+    if (!g->got_pres && is_name(g, local, N_PRES))
         start_capture(g, CAP_PRES, nb_attr, attrs);
-    else if (!g->got_temp && strcmp((const char *)local, tf) == 0)
+    else if (!g->got_temp && is_name(g, local, N_TEMP))
         start_capture(g, CAP_TEMP, nb_attr, attrs);
-    else if (!g->got_rh && strcmp((const char *)local, hf) == 0)
+    else if (!g->got_rh && is_name(g, local, N_RH))
         start_capture(g, CAP_RH, nb_attr, attrs);
 }
 
@@ -671,8 +719,12 @@ static hyp_status parse_file(gpx_ctx *g, FILE *f)
     sax.serror = on_error;
     sax.internalSubset = on_dtd;
     g->ctxt = xmlCreatePushParserCtxt(&sax, g, (const char *)buf, (int)n, g->path);
-    if (!g->ctxt)
+    if (!g->ctxt || intern_names(g)) {
+        if (g->ctxt)
+            xmlFreeParserCtxt(g->ctxt);
+        g->ctxt = NULL;
         return hyp_error_set(g->err, HYP_ERR_NOMEM, "%s: out of memory", g->path);
+    }
     /* The declared encoding was checked above to be UTF-8 or ASCII (a subset
      * of UTF-8): ignoring it keeps libxml2 from installing a converter,
      * under which byte offsets would no longer be the file's. */

@@ -260,8 +260,8 @@ void hyp__two_base_columns(const hyp__work *w, double *implied_k, double *thermo
     double dh = w->bases[w->upper].height_m - w->bases[w->ref].height_m;
     double tsum = 0, thermo = 0;
     size_t tn = 0, thn = 0;
+    hyp__in in = {0};   /* kept across samples: its hint */
     for (size_t i = 0; i < w->n; i++) {
-        hyp__in in;
         if (w->r->status[i] != HYP_PT_OK || hyp__inputs(w, i, &in))
             continue;
         double pl = in.pb;

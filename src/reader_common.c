@@ -21,6 +21,36 @@ int hyp__parse_number(const char *s, size_t len, int decimal_comma, double *v)
         *v = NAN;
         return 2;
     }
+    /* Fast path, without a copy: [+-]digits[.digits] of up to 15 digits in
+     * all (what logs hold), the digits as an exact integer divided by an
+     * exact power of ten: correctly rounded, as strtod is (IEEE 754
+     * division). Anything else takes the general path below. */
+    {
+        static const double p10[16] = {1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
+        size_t i = 0;
+        int neg = s[0] == '-';
+        if (s[0] == '-' || s[0] == '+')
+            i++;
+        uint64_t m = 0;
+        int nd = 0, frac = -1;
+        for (; i < len; i++) {
+            char c = s[i];
+            if (c >= '0' && c <= '9') {
+                m = m * 10 + (uint64_t)(c - '0');
+                nd++;
+                if (frac >= 0)
+                    frac++;
+            } else if (c == '.' && frac < 0)
+                frac = 0;
+            else
+                break;
+        }
+        if (i == len && nd > 0 && nd <= 15) {
+            double x = (double)m / p10[frac > 0 ? frac : 0];
+            *v = neg ? -x : x;
+            return 1;
+        }
+    }
     char buf[64];
     if (len >= sizeof buf)
         return 0;

@@ -50,6 +50,13 @@ double hyp_qnh_from_station_pa(double station_pa, double h_m);
 double hyp_gravity_normal_m_s2(double lat_deg);
 double hyp_gravity_at_height_m_s2(double lat_deg, double h_m);
 
+/* The same, evaluated once per latitude for many heights (the sine is the
+ * costly part): g0 is the normal gravity there (NaN outside -90..90), s2
+ * the squared sine of the latitude. */
+typedef struct hyp_gravity { double g0, s2; } hyp_gravity;
+hyp_gravity hyp_gravity_at_lat(double lat_deg);
+double hyp_gravity_h_m_s2(const hyp_gravity *g, double h_m);
+
 /* Saturation vapour pressure over water (Pa) at temp_k, WMO-No. 8 (2018),
  * Annex 4.B: e_w(t) = 6.112 exp(17.62 t / (243.12 + t)) hPa, t in degC,
  * stated for -45 degC <= t <= 60 degC; NaN outside. */
@@ -83,6 +90,8 @@ double hyp_hypsometric_dphi_j_kg(double p1_pa, double p2_pa, double tv_mean_k);
  * dphi = integral of g(lat, h) dh with the normal gravity above (two fixed
  * point iterations on the mid-layer gravity, exact to < 0.1 mm per km). */
 double hyp_height_difference_m(double dphi_j_kg, double h1_m, double lat_deg);
+/* The same with the latitude's gravity already evaluated. */
+double hyp_height_difference_g_m(double dphi_j_kg, double h1_m, const hyp_gravity *g);
 
 #ifdef __cplusplus
 }
