@@ -5,6 +5,7 @@
 #include "correct_int.h"
 #include "hypsolev/atmosphere.h"
 #include "hypsolev/timeparse.h"
+#include "par.h"
 #include "stats.h"
 
 #include <math.h>
@@ -47,6 +48,7 @@ void hyp_correct_opts_init(hyp_correct_opts *o)
     o->extrapolate_frac = 0.25;
     o->curvature_sigma_k = 1.0;
     o->qnh_sigma_pa = 100.0 / sqrt(12.0);   /* 1 hPa reporting resolution, uniform */
+    o->threads = 1;
 }
 
 void hyp_base_init(hyp_base *b, const hyp_series *log, const char *name, double height_m)
@@ -475,21 +477,35 @@ static hyp_status sigma_median(hyp_correct_result *r)
     return HYP_OK;
 }
 
-static hyp_status corrected_heights(hyp__work *w)
+/* What each part of a parallel pass adds up. */
+typedef struct part_sums {
+    size_t n_extrapolated, n_flag[HYP_SAMPLE_FLAG_COUNT], chi_n;
+    double tcol_min_k, tcol_max_k, chi_ss;
+} part_sums;
+
+typedef struct pass {
+    hyp__work *w;
+    part_sums sum[HYP__MAX_PARTS];
+} pass;
+
+/* The parts of a pass: 1 for the field method, whose plane fit calls
+ * LAPACK (not promised to be reentrant). */
+static int pass_parts(const hyp__work *w)
 {
+    return w->method == HYP_METHOD_FIELD || w->o->threads < 2 ? 1 : w->o->threads;
+}
+
+static void corrected_range(void *ctx, size_t lo, size_t hi, int part)
+{
+    pass *ps = ctx;
+    hyp__work *w = ps->w;
     hyp_correct_result *r = w->r;
-    size_t n = w->n ? w->n : 1;
-    r->height_m = malloc(n * sizeof *r->height_m);
-    r->sigma_m = malloc(n * sizeof *r->sigma_m);
-    if (!r->height_m || !r->sigma_m)
-        return HYP_ERR_NOMEM;
-    if (w->method == HYP_METHOD_TWO_BASE && !(r->extrapolated = calloc(n, 1)))
-        return HYP_ERR_NOMEM;
-    r->tcol_min_k = INFINITY;
-    r->tcol_max_k = -INFINITY;
+    part_sums *sm = &ps->sum[part];
+    sm->tcol_min_k = INFINITY;
+    sm->tcol_max_k = -INFINITY;
     double dh = w->method == HYP_METHOD_TWO_BASE ? w->bases[w->upper].height_m - w->bases[w->ref].height_m : 0.0;
     hyp__in in = {0};   /* kept across samples: its hint */
-    for (size_t i = 0; i < w->n; i++) {
+    for (size_t i = lo; i < hi; i++) {
         r->height_m[i] = NAN;
         r->sigma_m[i] = NAN;
         if (r->status[i] != HYP_PT_OK)
@@ -503,12 +519,33 @@ static hyp_status corrected_heights(hyp__work *w)
         if (w->method == HYP_METHOD_TWO_BASE) {
             /* outside the bracket by more than a metre counts as extrapolated */
             r->extrapolated[i] = dz < -1.0 || dz > dh + 1.0;
-            r->n_extrapolated += r->extrapolated[i];
+            sm->n_extrapolated += r->extrapolated[i];
         }
         r->height_m[i] = d.height_m;
         r->sigma_m[i] = (float)d.sigma_m;
-        r->tcol_min_k = fmin(r->tcol_min_k, d.tcol_k);
-        r->tcol_max_k = fmax(r->tcol_max_k, d.tcol_k);
+        sm->tcol_min_k = fmin(sm->tcol_min_k, d.tcol_k);
+        sm->tcol_max_k = fmax(sm->tcol_max_k, d.tcol_k);
+    }
+}
+
+static hyp_status corrected_heights(hyp__work *w)
+{
+    hyp_correct_result *r = w->r;
+    size_t n = w->n ? w->n : 1;
+    r->height_m = malloc(n * sizeof *r->height_m);
+    r->sigma_m = malloc(n * sizeof *r->sigma_m);
+    if (!r->height_m || !r->sigma_m)
+        return HYP_ERR_NOMEM;
+    if (w->method == HYP_METHOD_TWO_BASE && !(r->extrapolated = calloc(n, 1)))
+        return HYP_ERR_NOMEM;
+    pass ps = {.w = w};
+    int parts = hyp__parallel(w->n, pass_parts(w), corrected_range, &ps);
+    r->tcol_min_k = INFINITY;
+    r->tcol_max_k = -INFINITY;
+    for (int k = 0; k < parts; k++) {
+        r->n_extrapolated += ps.sum[k].n_extrapolated;
+        r->tcol_min_k = fmin(r->tcol_min_k, ps.sum[k].tcol_min_k);
+        r->tcol_max_k = fmax(r->tcol_max_k, ps.sum[k].tcol_max_k);
     }
     /* residuals of the calibrations after the fit */
     for (size_t k = 0; k < r->n_calibs; k++) {
@@ -659,22 +696,36 @@ static void warn_uncalibrated(hyp__work *w)
 /* Every point's status (refused, outside the base log, gaps, two-base
  * extrapolation; the field's reduction), and for the field method the
  * scatter of the bases about the plane. */
+static void status_range(void *ctx, size_t lo, size_t hi, int part)
+{
+    pass *ps = ctx;
+    hyp__work *w = ps->w;
+    part_sums *sm = &ps->sum[part];
+    hyp__in in = {0};   /* kept across samples: its hint */
+    for (size_t i = lo; i < hi; i++) {
+        double chi2 = NAN;
+        hyp_point_status st = inputs(w, i, &in, &chi2);
+        if (st == HYP_PT_OK && chi2 == chi2)
+            sm->chi_ss += chi2, sm->chi_n++;
+        w->r->status[i] = (uint8_t)st;
+        if (st == HYP_PT_REFUSED)
+            sm->n_flag[w->rv->flag[i]]++;
+    }
+}
+
 static hyp_status status_pass(hyp__work *w)
 {
     hyp_correct_result *r = w->r;
     if (!(r->status = malloc(w->n ? w->n : 1)))
         return HYP_ERR_NOMEM;
+    pass ps = {.w = w};
+    int parts = hyp__parallel(w->n, pass_parts(w), status_range, &ps);
     double chi_ss = 0;
     size_t chi_n = 0;
-    hyp__in in = {0};   /* kept across samples: its hint */
-    for (size_t i = 0; i < w->n; i++) {
-        double chi2 = NAN;
-        hyp_point_status st = inputs(w, i, &in, &chi2);
-        if (st == HYP_PT_OK && chi2 == chi2)
-            chi_ss += chi2, chi_n++;
-        r->status[i] = (uint8_t)st;
-        if (st == HYP_PT_REFUSED)
-            r->n_flag[w->rv->flag[i]]++;
+    for (int k = 0; k < parts; k++) {
+        chi_ss += ps.sum[k].chi_ss, chi_n += ps.sum[k].chi_n;
+        for (int f = 0; f < HYP_SAMPLE_FLAG_COUNT; f++)
+            r->n_flag[f] += ps.sum[k].n_flag[f];
     }
     w->field_sigma_pa = chi_n ? sqrt(chi_ss / (double)chi_n) : 0.0;
     if (w->method == HYP_METHOD_TWO_BASE)

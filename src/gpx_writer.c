@@ -1,7 +1,7 @@
 /* gpx_writer.c - the corrected GPX: the input's bytes copied unchanged,
  * with the new <ele> values and this project's elements spliced in at the
  * offsets the reader recorded; and a new GPX 1.1 for rovers read from CSV. */
-#define _POSIX_C_SOURCE 200809L
+#define _GNU_SOURCE   /* copy_file_range */
 #include "hypsolev/writers.h"
 #include "outfile.h"
 
@@ -12,6 +12,8 @@
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
+#include <pthread.h>
+#include <unistd.h>
 
 int hyp_same_file(const char *a, const char *b)
 {
@@ -242,28 +244,37 @@ static hyp_status splice_vref(src *s, FILE *out, const char *in_path, const hyp_
     return HYP_OK;
 }
 
-static hyp_status splice_all(src *s, FILE *out, const char *in_path, const hyp_gpx_doc *doc,
-                             const hyp_correct_result *res, const char *vref, hyp_error *err)
+/* Points [lo, hi) of the splice, from the anchor before point lo; the
+ * document-level parts only where the range starts at the beginning
+ * (lo == 0) or runs to the end (hi == count). */
+static hyp_status splice_range(src *s, FILE *out, const char *in_path, const hyp_gpx_doc *doc,
+                               const hyp_correct_result *res, const char *vref, size_t lo, size_t hi,
+                               int64_t anchor, int64_t stop, hyp_error *err)
 {
     const hyp_gpx_layout *L = &doc->layout;
-    if (!L->has_hyp_ns) {
-        int c, rc = src_advance(s, L->root_attr_ins, out);
-        if (rc)
-            return advance_error(err, in_path, rc, L->root_attr_ins);
-        if ((c = src_peek(s)) != '>' && c != '/')
-            return layout_error(err, in_path, L->root_attr_ins);
-        fprintf(out, " xmlns:%s=\"%s\"", HYP_GPX_PREFIX, HYP_GPX_NS);
-    }
     hyp_status st;
-    if (vref && (st = splice_vref(s, out, in_path, L, vref, 0, err)))
-        return st;
-    int64_t anchor = 0;
-    for (size_t i = 0; i < doc->pts.count; i++) {
+    if (lo == 0) {
+        if (!L->has_hyp_ns) {
+            int c, rc = src_advance(s, L->root_attr_ins, out);
+            if (rc)
+                return advance_error(err, in_path, rc, L->root_attr_ins);
+            if ((c = src_peek(s)) != '>' && c != '/')
+                return layout_error(err, in_path, L->root_attr_ins);
+            fprintf(out, " xmlns:%s=\"%s\"", HYP_GPX_PREFIX, HYP_GPX_NS);
+        }
+        if (vref && (st = splice_vref(s, out, in_path, L, vref, 0, err)))
+            return st;
+    }
+    for (size_t i = lo; i < hi; i++) {
         hyp_gpx_point P;
         hyp_gpx_point_next(L, i, &anchor, &P);
         st = splice_point(s, out, in_path, doc, res, i, &P, err);
         if (st)
             return st;
+    }
+    if (hi < doc->pts.count) {   /* the rest is another part's */
+        int rc = src_advance(s, stop, out);
+        return rc ? advance_error(err, in_path, rc, stop) : HYP_OK;
     }
     if (vref && (st = splice_vref(s, out, in_path, L, vref, 1, err)))
         return st;
@@ -274,6 +285,102 @@ static hyp_status splice_all(src *s, FILE *out, const char *in_path, const hyp_g
         return hyp_error_set(err, HYP_ERR_IO, "%s: the file grew since it was read; nothing written", in_path);
     return HYP_OK;
 }
+
+static hyp_status open_src(src *s, const char *in_path, const hyp_gpx_doc *doc, hyp_error *err)
+{
+    s->last = -1;
+    s->f = fopen(in_path, "rb");
+    if (!s->f)
+        return hyp_error_set(err, HYP_ERR_IO, "%s: cannot open: %s", in_path, strerror(errno));
+    struct stat sb;
+    if (fstat(fileno(s->f), &sb) != 0 || (int64_t)sb.st_size != doc->layout.file_size) {
+        fclose(s->f);
+        s->f = NULL;
+        return hyp_error_set(err, HYP_ERR_IO, "%s: the file changed since it was read; nothing written", in_path);
+    }
+    return HYP_OK;
+}
+
+/* The second half of a two-part splice, in a thread of its own: the input
+ * from the anchor of point lo on, into its own temporary file. */
+typedef struct half {
+    const char *in_path;
+    const hyp_gpx_doc *doc;
+    const hyp_correct_result *res;
+    const char *vref;
+    size_t lo;
+    int64_t anchor_before, start;
+    FILE *out;
+    hyp_error err;
+    hyp_status st;
+} half;
+
+static void *second_half(void *arg)
+{
+    half *h = arg;
+    src *s = calloc(1, sizeof *s);
+    if (!s) {
+        h->st = hyp_error_set(&h->err, HYP_ERR_NOMEM, "out of memory");
+        return NULL;
+    }
+    h->st = open_src(s, h->in_path, h->doc, &h->err);
+    if (!h->st) {
+        /* start one byte early so that the check of the byte before the
+         * first splice sees it; that byte is the first half's */
+        if (fseeko(s->f, (off_t)(h->start - 1), SEEK_SET) != 0) {
+            h->st = hyp_error_set(&h->err, HYP_ERR_IO, "%s: cannot seek: %s", h->in_path, strerror(errno));
+        } else {
+            s->off = h->start - 1;
+            int rc = src_advance(s, h->start, NULL);
+            h->st = rc ? advance_error(&h->err, h->in_path, rc, h->start)
+                       : splice_range(s, h->out, h->in_path, h->doc, h->res, h->vref, h->lo, h->doc->pts.count,
+                                      h->anchor_before, 0, &h->err);
+        }
+        fclose(s->f);
+    }
+    free(s);
+    return NULL;
+}
+
+/* Appends the whole of file `from` to `to` (both flushed), in the kernel
+ * where it can (copy_file_range), else by reading and writing. */
+static int append_file(FILE *to, FILE *from)
+{
+    if (fflush(to) != 0 || fflush(from) != 0)
+        return -1;
+    int fi = fileno(from), fo = fileno(to);
+    off_t in_off = 0;
+    struct stat sb;
+    if (fstat(fi, &sb) != 0 || lseek(fo, 0, SEEK_END) < 0)
+        return -1;
+    off_t left = sb.st_size;
+    while (left > 0) {
+        ssize_t k = copy_file_range(fi, &in_off, fo, NULL, (size_t)left, 0);
+        if (k <= 0)
+            break;
+        left -= k;
+    }
+    if (left == 0)
+        return 0;
+    char buf[1 << 16];   /* copy_file_range refused (another file system, old kernel) */
+    while (left > 0) {
+        ssize_t k = pread(fi, buf, sizeof buf, in_off);
+        if (k <= 0)
+            return -1;
+        for (ssize_t done = 0; done < k;) {
+            ssize_t wr = write(fo, buf + done, (size_t)(k - done));
+            if (wr <= 0)
+                return -1;
+            done += wr;
+        }
+        in_off += k;
+        left -= k;
+    }
+    return 0;
+}
+
+/* Below this many points one thread writes: a thread is not worth it. */
+#define SPLIT_MIN_POINTS 20000
 
 hyp_status hyp_gpx_write_spliced(const char *in_path, const hyp_gpx_doc *doc,
                                  const hyp_correct_result *res, const hyp_output_info *info,
@@ -286,24 +393,44 @@ hyp_status hyp_gpx_write_spliced(const char *in_path, const hyp_gpx_doc *doc,
     src *s = calloc(1, sizeof *s);
     if (!s)
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
-    s->last = -1;
-    hyp__outfile o;
-    hyp_status st = HYP_OK;
-    s->f = fopen(in_path, "rb");
-    if (!s->f) {
-        st = hyp_error_set(err, HYP_ERR_IO, "%s: cannot open: %s", in_path, strerror(errno));
+    hyp__outfile o, o2;
+    const char *vref = info ? info->vref : NULL;
+    hyp_status st = open_src(s, in_path, doc, err);
+    if (st) {
         free(s);
         return st;
-    }
-    struct stat sb;
-    if (fstat(fileno(s->f), &sb) != 0 || (int64_t)sb.st_size != doc->layout.file_size) {
-        st = hyp_error_set(err, HYP_ERR_IO, "%s: the file changed since it was read; nothing written", in_path);
-        goto close_in;
     }
     st = hyp__out_open(&o, out_path, err);
     if (st)
         goto close_in;
-    st = splice_all(s, o.f, in_path, doc, res, info ? info->vref : NULL, err);
+    size_t n = doc->pts.count, m = n / 2;
+    int split = info && info->threads >= 2 && n >= SPLIT_MIN_POINTS && !o.to_stdout;
+    half h = {in_path, doc, res, vref, m, 0, 0, NULL, {0}, HYP_OK};
+    pthread_t tid;
+    if (split) {
+        /* the anchor before point m, and point m's own: where the halves meet */
+        for (size_t i = 0; i < m; i++)
+            h.anchor_before += doc->layout.pt_step[i];
+        h.start = h.anchor_before + doc->layout.pt_step[m];
+        split = h.start > 0 && hyp__out_open(&o2, out_path, &h.err) == HYP_OK;
+    }
+    if (split) {
+        h.out = o2.f;
+        if (pthread_create(&tid, NULL, second_half, &h) != 0) {
+            hyp__out_abort(&o2);
+            split = 0;
+        }
+    }
+    if (split) {
+        st = splice_range(s, o.f, in_path, doc, res, vref, 0, m, 0, h.start, err);
+        pthread_join(tid, NULL);
+        if (!st && h.st)
+            st = hyp_error_set(err, h.st, "%s", h.err.message);
+        if (!st && append_file(o.f, o2.f) != 0)
+            st = hyp_error_set(err, HYP_ERR_IO, "%s: write error: %s; nothing written", out_path, strerror(errno));
+        hyp__out_abort(&o2);   /* the second half's temporary file goes */
+    } else
+        st = splice_range(s, o.f, in_path, doc, res, vref, 0, n, 0, 0, err);
     if (!st)
         st = hyp__out_commit(&o, err);
     else

@@ -124,6 +124,29 @@ static void run_survey_opts(const char *dir, const survey_opts *so, score *sc)
     assert_int_equal(hyp_correct_single_base(&d.pts, &hb, &o, &r, &msgs, &err), HYP_OK);
     if (so->gnss_anchor)
         assert_int_equal(r.drift.kind, HYP_DRIFT_GNSS);
+    /* Two threads give the same result to the bit, and each point's
+     * recomputed details match what was stored. */
+    {
+        hyp_correct_opts o2 = o;
+        o2.threads = 2;
+        hyp_correct_result r2;
+        hyp_correct_result_init(&r2);
+        assert_int_equal(hyp_correct_single_base(&d.pts, &hb, &o2, &r2, NULL, &err), HYP_OK);
+        assert_int_equal(r2.n_ok, r.n_ok);
+        assert_memory_equal(r2.status, r.status, r.count);
+        assert_memory_equal(r2.sigma_m, r.sigma_m, r.count * sizeof *r.sigma_m);
+        assert_memory_equal(r2.height_m, r.height_m, r.count * sizeof *r.height_m);
+        assert_true(r2.median_index == r.median_index && r2.worst_index == r.worst_index);
+        assert_true(r2.tcol_min_k == r.tcol_min_k && r2.tcol_max_k == r.tcol_max_k);
+        hyp_correct_result_free(&r2);
+        for (size_t i = 0; i < r.count; i++) {
+            hyp_point_detail pd;
+            hyp_status pst = hyp_correct_point(&r, i, &pd);
+            assert_int_equal(pst, r.status[i] == HYP_PT_OK ? HYP_OK : HYP_ERR_NODATA);
+            if (pst == HYP_OK)
+                assert_true(pd.height_m == r.height_m[i] && (float)pd.sigma_m == r.sigma_m[i]);
+        }
+    }
     free(gnss);
     hyp_geo_close(geo);
     sc->n_calibs = r.n_calibs;

@@ -128,6 +128,8 @@ typedef struct hyp_correct_opts {
     double curvature_sigma_k;  /* two-base: column departing from the bracket's mean, 1 K */
     double qnh_sigma_pa;       /* a QNH series' own uncertainty, default 29 Pa: its 1 hPa
                                   reporting resolution as a uniform error */
+    int threads;               /* threads for the per-point passes, default 1 (the
+                                  results do not depend on it) */
 } hyp_correct_opts;
 
 void hyp_correct_opts_init(hyp_correct_opts *o);

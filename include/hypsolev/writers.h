@@ -23,6 +23,8 @@ typedef struct hyp_output_info {
     const float *gnss_m;       /* the track's GNSS height per sample, same reference */
     const double *easting_m, *northing_m;  /* projected position per sample */
     const char *crs_name;      /* of easting/northing */
+    int threads;               /* spliced GPX: threads writing it (0 or 1: one);
+                                  the bytes written do not depend on it */
 } hyp_output_info;
 
 /* Copies in_path to out_path replacing each corrected point's <ele> value

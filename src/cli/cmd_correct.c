@@ -37,6 +37,7 @@ typedef struct args {
     base_arg bases[MAX_BASES];
     int n_bases;
     const char *out, *out_dir, *table, *rover_zone;
+    int rover_threads;   /* threads inside one rover's correction and writing */
     const char *benchmarks_path, *ties_path, *crs, *bases_coloc_text;
     const char *base_dir, *summary_path, *report_path;
     int jobs, progress, overwrite;
@@ -131,7 +132,8 @@ static void help(void)
 "  --base-dir DIR           base logs listed in DIR/bases.csv (file, height, lat,\n"
 "                           lon, clock_offset, kind); each rover gets the logs\n"
 "                           that cover its time span\n"
-"  -j, --jobs N             worker threads (default: the number of cores)\n"
+"  -j, --jobs N             threads in all (default: the number of cores): one\n"
+"                           rover per thread, and a single rover uses them all\n"
 "  --summary FILE           one row per rover (.json for JSON, else CSV)\n"
 "  --progress               progress on stderr even when it is not a terminal\n"
 "  --overwrite              replace existing outputs (default: skip those rovers)\n"
@@ -1096,13 +1098,14 @@ static int correct_one(const args *a0, const char *rover_path, const base_arg *p
         hyp_correct_opts co = a->copts;
         co.waypoints = rv.is_gpx ? &rv.doc.wpts : NULL;
         co.gnss_height_m = x.gnss_known;
+        co.threads = a->rover_threads;
         st = hyp_correct(log_series(&rv), bases, (size_t)a->n_bases, &co, &res, &msgs, &err);
     }
     if (!st)
         st = hyp_heights_convert(a->geo, log_series(&rv), res.height_m, a->known_ref, a->out_ref, &err);
     char wrote[8300] = "";
     hyp_output_info info = {.vref = hyp_vref_name(a->out_ref), .gnss_m = x.gnss_out, .easting_m = x.east,
-                            .northing_m = x.north, .crs_name = x.crs_name};
+                            .northing_m = x.north, .crs_name = x.crs_name, .threads = a->rover_threads};
     err.status = HYP_ERR_IO;
     if (!st) {
         st = write_outputs(a, rover_path, &rv, &res, &info, wrote, sizeof wrote, &err);
@@ -1494,6 +1497,10 @@ static int run(args *a)
             batch_ctx ctx = {a, pool, logs, n_pool, &rz};
             long cores = sysconf(_SC_NPROCESSORS_ONLN);
             int jobs = a->jobs ? a->jobs : (int)(cores > 0 ? cores : 1);
+            /* -j is the number of threads in all: those the workers leave
+             * idle (fewer rovers than -j) go to each rover's own passes */
+            int busy = jobs < a->n_rovers ? jobs : a->n_rovers;
+            a->rover_threads = jobs > busy ? jobs / busy : 1;
             int progress = a->progress || (!a->quiet && a->n_rovers > 1 && isatty(2));
             xmlInitParser();   /* libxml2 wants its one-time set-up before threads */
             int sig = cli_run_jobs(a->n_rovers, jobs, progress, run_job, &ctx, res);
