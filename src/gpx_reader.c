@@ -227,8 +227,8 @@ static hyp_status grow_points(gpx_ctx *g)
         L->field = p; \
     } while (0)
     GROW(pt_step, uint32_t);
-    GROW(pt_ele_beg, uint32_t);
-    GROW(pt_ele_end, uint32_t);
+    GROW(pt_ele_beg, uint16_t);
+    GROW(pt_ele_len, uint16_t);
     GROW(pt_ext, uint32_t);
 #undef GROW
     if (g->doc->geoidheight_m) {   /* only once a point has one */
@@ -530,8 +530,25 @@ static void end_point(gpx_ctx *g)
     }
     L->pt_step[i] = (uint32_t)step;
     g->prev_anchor = g->anchor;
-    L->pt_ele_beg[i] = g->ele_end >= 0 ? (uint32_t)(g->ele_beg - g->anchor) : HYP_GPX_NONE;
-    L->pt_ele_end[i] = g->ele_end >= 0 ? (uint32_t)(g->ele_end - g->anchor) : HYP_GPX_NONE;
+    if (g->ele_end < 0)
+        L->pt_ele_beg[i] = L->pt_ele_len[i] = HYP_GPX_NONE16;
+    else if (g->ele_beg - g->anchor < HYP_GPX_FAR16 && g->ele_end - g->ele_beg < HYP_GPX_FAR16) {
+        L->pt_ele_beg[i] = (uint16_t)(g->ele_beg - g->anchor);
+        L->pt_ele_len[i] = (uint16_t)(g->ele_end - g->ele_beg);
+    } else {
+        if (L->n_far == L->far_alloc) {
+            size_t a = L->far_alloc ? 2 * L->far_alloc : 16;
+            void *p = realloc(L->ele_far, a * sizeof *L->ele_far);
+            if (!p) {
+                fail(g, HYP_ERR_NOMEM, "out of memory");
+                return;
+            }
+            L->ele_far = p;
+            L->far_alloc = a;
+        }
+        L->ele_far[L->n_far++] = (struct hyp_gpx_far){i, (uint32_t)(g->ele_beg - g->anchor), (uint32_t)(g->ele_end - g->ele_beg)};
+        L->pt_ele_beg[i] = L->pt_ele_len[i] = HYP_GPX_FAR16;
+    }
     L->pt_ext[i] = ext < 0 ? HYP_GPX_NONE : (uint32_t)(ext - g->anchor) | (uint32_t)kind << 30;
     if (g->geoid == g->geoid && !d->geoidheight_m) {   /* the first: NaN before it */
         if (!(d->geoidheight_m = malloc(g->lay_alloc * sizeof(double)))) {
@@ -810,8 +827,8 @@ hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts, hyp_gpx_doc
         size_t n = doc->pts.count ? doc->pts.count : 1;
         void *q;
         if ((q = realloc(L->pt_step, n * sizeof(uint32_t)))) L->pt_step = q;
-        if ((q = realloc(L->pt_ele_beg, n * sizeof(uint32_t)))) L->pt_ele_beg = q;
-        if ((q = realloc(L->pt_ele_end, n * sizeof(uint32_t)))) L->pt_ele_end = q;
+        if ((q = realloc(L->pt_ele_beg, n * sizeof(uint16_t)))) L->pt_ele_beg = q;
+        if ((q = realloc(L->pt_ele_len, n * sizeof(uint16_t)))) L->pt_ele_len = q;
         if ((q = realloc(L->pt_ext, n * sizeof(uint32_t)))) L->pt_ext = q;
         if (doc->geoidheight_m && (q = realloc(doc->geoidheight_m, n * sizeof(double))))
             doc->geoidheight_m = q;
@@ -829,8 +846,24 @@ void hyp_gpx_point_next(const hyp_gpx_layout *L, size_t i, int64_t *anchor, hyp_
     p->ext_ins = x == HYP_GPX_NONE ? -1 : a + (int64_t)(x & 0x3fffffffu);
     p->ext_kind = x == HYP_GPX_NONE ? HYP_EXT_INSIDE : (hyp_ext_kind)(x >> 30);
     p->open_end = x == HYP_GPX_NONE ? -1 : a;
-    p->ele_beg = L->pt_ele_beg[i] == HYP_GPX_NONE ? -1 : a + L->pt_ele_beg[i];
-    p->ele_end = L->pt_ele_end[i] == HYP_GPX_NONE ? -1 : a + L->pt_ele_end[i];
+    uint16_t b = L->pt_ele_beg[i];
+    if (b == HYP_GPX_NONE16) {
+        p->ele_beg = p->ele_end = -1;
+    } else if (b == HYP_GPX_FAR16) {
+        size_t lo = 0, hi = L->n_far;   /* binary search by index */
+        while (hi - lo > 1) {
+            size_t mid = lo + (hi - lo) / 2;
+            if (L->ele_far[mid].index <= i)
+                lo = mid;
+            else
+                hi = mid;
+        }
+        p->ele_beg = a + L->ele_far[lo].beg;
+        p->ele_end = p->ele_beg + L->ele_far[lo].len;
+    } else {
+        p->ele_beg = a + b;
+        p->ele_end = p->ele_beg + L->pt_ele_len[i];
+    }
 }
 
 void hyp_gpx_doc_init(hyp_gpx_doc *d)
@@ -845,7 +878,8 @@ void hyp_gpx_doc_free(hyp_gpx_doc *d)
     hyp_gpx_layout *L = &d->layout;
     free(L->pt_step);
     free(L->pt_ele_beg);
-    free(L->pt_ele_end);
+    free(L->pt_ele_len);
+    free(L->ele_far);
     free(L->pt_ext);
     free(d->geoidheight_m);
     for (size_t i = 0; i < d->wpts.count; i++)

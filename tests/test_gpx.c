@@ -239,7 +239,12 @@ static void test_splice_two_threads(void **state)
                 case 0: fprintf(f, "<trkpt lat=\"46.8\" lon=\"9.9\"><ele>812.%zu</ele>%s%s</trkpt>\n", i % 10, t, ext); break;
                 case 1: fprintf(f, "<trkpt lat=\"46.8\" lon=\"9.9\">%s%s</trkpt>\n", t, ext); break;
                 case 2: fprintf(f, "<trkpt lat=\"46.8\" lon=\"9.9\"/>\n"); break;
-                default: fprintf(f, "<trkpt lat=\"46.8\" lon=\"9.9\"><ele>  813 </ele>%s</trkpt>\n", t); break;
+                default:
+                    /* points whose <ele> lies beyond 64 KiB of white space
+                     * (the layout's rare wide case) */
+                    fprintf(f, "<trkpt lat=\"46.8\" lon=\"9.9\">%*s<ele>  813 </ele>%s</trkpt>\n",
+                            i == 15 || i == 12503 ? 70000 : 0, "", t);
+                    break;
                 }
             }
             fprintf(f, "</trkseg></trk></gpx>\n");

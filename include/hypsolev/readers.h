@@ -52,17 +52,23 @@ typedef struct hyp_gpx_layout {
     int meta_kind;          /* 0 no <metadata>, 1 inside its <extensions>,
                                2 before </metadata> (needs <extensions>),
                                3 <metadata/> (nowhere to add) */
-    /* Per point in 16 bytes, read through hyp_gpx_point_next(). A point's
+    /* Per point in 12 bytes, read through hyp_gpx_point_next(). A point's
      * anchor is its open_end, or for <trkpt .../> the '/' of its tag. */
     uint32_t *pt_step;      /* anchor minus the previous point's (the first's: minus 0) */
-    uint32_t *pt_ele_beg;   /* ele_beg - anchor, HYP_GPX_NONE without <ele> */
-    uint32_t *pt_ele_end;   /* ele_end - anchor */
+    uint16_t *pt_ele_beg;   /* ele_beg - anchor; HYP_GPX_NONE16 without <ele>,
+                               HYP_GPX_FAR16 when it does not fit (see ele_far) */
+    uint16_t *pt_ele_len;   /* ele_end - ele_beg (HYP_GPX_FAR16: see ele_far) */
     uint32_t *pt_ext;       /* ext_ins - anchor in the low 30 bits, the
                                hyp_ext_kind in the top 2; HYP_GPX_NONE for <trkpt/> */
+    /* The rare <ele> that does not fit 16 bits, by point index (ascending). */
+    size_t n_far, far_alloc;
+    struct hyp_gpx_far { size_t index; uint32_t beg, len; } *ele_far;
     int64_t file_size;
 } hyp_gpx_layout;
 
 #define HYP_GPX_NONE UINT32_MAX
+#define HYP_GPX_NONE16 UINT16_MAX
+#define HYP_GPX_FAR16 (UINT16_MAX - 1)
 
 /* One point's byte positions in the input file, -1 where there is none. */
 typedef struct hyp_gpx_point {
