@@ -167,7 +167,7 @@ static int gaps_and_clock(const hyp_series *s, const view *v, const hyp_inspect_
     for (size_t i = 0; i < s->count; i++) {
         if (s->flag[i] != HYP_SAMPLE_TIME_ORDER || (i > 0 && s->flag[i - 1] == HYP_SAMPLE_TIME_ORDER))
             continue;
-        if (add(r, HYP_ISSUE_CLOCK_JUMP, s->time_s[i], s->time_s[i], i > 0 ? s->time_s[i] - s->time_s[i - 1] : 0, s->line[i]))
+        if (add(r, HYP_ISSUE_CLOCK_JUMP, s->time_s[i], s->time_s[i], i > 0 ? s->time_s[i] - s->time_s[i - 1] : 0, hyp_series_line(s, i)))
             return -1;
     }
     return 0;
@@ -241,11 +241,14 @@ hyp_status hyp_inspect(const hyp_series *s, const hyp_inspect_opts *opts, hyp_in
         st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
         goto out;
     }
-    for (size_t i = 0; i < s->count; i++)
+    uint32_t line = 0;
+    for (size_t i = 0; i < s->count; i++) {
+        line = hyp_series_line_next(s, i, line);
         if (!s->flag[i]) {
-            v.t[v.n] = s->time_s[i], v.p[v.n] = s->pressure_pa[i], v.line[v.n] = s->line[i];
+            v.t[v.n] = s->time_s[i], v.p[v.n] = s->pressure_pa[i], v.line[v.n] = line;
             v.n++;
         }
+    }
     r->usable = v.n;
     if (v.n < 3) {
         st = hyp_error_set(err, HYP_ERR_NODATA, "fewer than three usable samples");

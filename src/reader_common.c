@@ -151,8 +151,9 @@ void hyp__check_series(const char *path, hyp_series *s, hyp_msgs *msgs)
 {
     size_t nbad_p = 0, nbad_t = 0, nbad_rh = 0, nbad_order = 0, nbad_pos = 0;
     double last_t = -INFINITY;
+    uint32_t line = 0;
     for (size_t i = 0; i < s->count; i++) {
-        unsigned line = s->line[i];
+        line = hyp_series_line_next(s, i, line);
         if (s->flag[i])
             continue;
         double p = s->pressure_pa[i];

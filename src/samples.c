@@ -24,7 +24,9 @@ void hyp_series_free(hyp_series *s)
     free(s->lat_e7);
     free(s->lon_e7);
     free(s->ele_m);
-    free(s->line);
+    free(s->line_step);
+    free(s->line_block);
+    free(s->line_far);
     free(s->flag);
     hyp_series_init(s);
 }
@@ -56,7 +58,8 @@ static hyp_status series_reserve(hyp_series *s, size_t n)
         grow((void **)&s->lat_e7, a, sizeof(int32_t)) ||
         grow((void **)&s->lon_e7, a, sizeof(int32_t)) ||
         grow((void **)&s->ele_m, a, sizeof(float)) ||
-        grow((void **)&s->line, a, sizeof(uint32_t)) ||
+        grow((void **)&s->line_step, a, 1) ||
+        grow((void **)&s->line_block, a / 64 + 1, sizeof(uint32_t)) ||
         grow((void **)&s->flag, a, sizeof(uint8_t)))
         return HYP_ERR_NOMEM;
     s->alloc = a;
@@ -79,7 +82,26 @@ hyp_status hyp_series_push(hyp_series *s, double time_s, double pressure_pa,
     s->lat_e7[i] = hyp_deg_e7(lat_deg);
     s->lon_e7[i] = hyp_deg_e7(lon_deg);
     s->ele_m[i] = (float)ele_m;
-    s->line[i] = line;
+    if (i % 64 == 0) {
+        s->line_block[i / 64] = line;
+        s->line_step[i] = 0;
+    } else if (line >= s->last_line && line - s->last_line < 255) {
+        s->line_step[i] = (uint8_t)(line - s->last_line);
+    } else {
+        if (s->n_line_far == s->line_far_alloc) {
+            size_t a = s->line_far_alloc ? 2 * s->line_far_alloc : 64;
+            void *p = realloc(s->line_far, a * sizeof *s->line_far);
+            if (!p) {
+                s->count--;
+                return HYP_ERR_NOMEM;
+            }
+            s->line_far = p;
+            s->line_far_alloc = a;
+        }
+        s->line_far[s->n_line_far++] = (struct hyp_line_far){i, line};
+        s->line_step[i] = 255;
+    }
+    s->last_line = line;
     s->flag[i] = (uint8_t)flag;
     if (temp_k == temp_k)
         s->has_temp = 1;
@@ -97,6 +119,32 @@ int32_t hyp_deg_e7(double deg)
     if (!(fabs(deg) <= 214.0))
         return HYP_BAD_POSITION;
     return (int32_t)lround(deg * 1e7);
+}
+
+uint32_t hyp_series_line_next(const hyp_series *s, size_t i, uint32_t prev)
+{
+    if (i % 64 == 0)
+        return s->line_block[i / 64];
+    if (s->line_step[i] < 255)
+        return prev + s->line_step[i];
+    size_t lo = 0, hi = s->n_line_far;   /* binary search by index */
+    while (hi - lo > 1) {
+        size_t mid = lo + (hi - lo) / 2;
+        if (s->line_far[mid].index <= i)
+            lo = mid;
+        else
+            hi = mid;
+    }
+    return s->line_far[lo].line;
+}
+
+uint32_t hyp_series_line(const hyp_series *s, size_t i)
+{
+    size_t j = i - i % 64;
+    uint32_t line = s->line_block[j / 64];
+    for (j++; j <= i; j++)
+        line = hyp_series_line_next(s, j, line);
+    return line;
 }
 
 size_t hyp_series_count_flag(const hyp_series *s, hyp_sample_flag f)
@@ -139,7 +187,8 @@ void hyp_series_shrink(hyp_series *s)
     shrink((void **)&s->lat_e7, s->count, sizeof(int32_t));
     shrink((void **)&s->lon_e7, s->count, sizeof(int32_t));
     shrink((void **)&s->ele_m, s->count, sizeof(float));
-    shrink((void **)&s->line, s->count, sizeof(uint32_t));
+    shrink((void **)&s->line_step, s->count, 1);
+    shrink((void **)&s->line_block, s->count / 64 + 1, sizeof(uint32_t));
     shrink((void **)&s->flag, s->count, sizeof(uint8_t));
     s->alloc = s->count;
 }

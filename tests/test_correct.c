@@ -180,6 +180,39 @@ static void test_two_base_proportion(void **state)
     hyp_series_free(&rover);
 }
 
+/* The compact sample storage gives back what was pushed: file lines
+ * (small steps, steps of 255 and more, a line smaller than the one before,
+ * every 64th sample stored in full), positions to 1e-7 degree, and the
+ * markers for no position and for one beyond the storage's range. */
+static void test_series_storage(void **state)
+{
+    (void)state;
+    hyp_series s;
+    hyp_series_init(&s);
+    uint32_t lines[1000], line = 3;
+    for (int i = 0; i < 1000; i++) {
+        line += i % 97 == 5 ? 1000 : i % 131 == 7 ? 255 : i % 10 == 3 ? 254 : (uint32_t)(i % 3);
+        if (i == 500)
+            line -= 40;   /* not from a reader, but stored all the same */
+        lines[i] = line;
+        double lat = i == 10 ? NAN : i == 11 ? 300.0 : 46.1234567 + 1e-7 * i;
+        assert_int_equal(hyp_series_push(&s, 1.8e9 + i, 90000, NAN, NAN, lat, -120.7654321, 800, line, HYP_SAMPLE_OK), HYP_OK);
+    }
+    uint32_t prev = 0;
+    for (size_t i = 0; i < 1000; i++) {
+        assert_int_equal(hyp_series_line(&s, i), lines[i]);
+        prev = hyp_series_line_next(&s, i, prev);
+        assert_int_equal(prev, lines[i]);
+    }
+    assert_true(fabs(hyp_series_lat(&s, 0) - 46.1234567) < 1e-12 && fabs(hyp_series_lon(&s, 0) + 120.7654321) < 1e-12);
+    assert_true(fabs(hyp_series_lat(&s, 999) - (46.1234567 + 999e-7)) < 1e-12);
+    assert_true(isnan(hyp_series_lat(&s, 10)) && s.lat_e7[10] == HYP_NO_POSITION);
+    assert_true(isnan(hyp_series_lat(&s, 11)) && s.lat_e7[11] == HYP_BAD_POSITION);
+    hyp_series_shrink(&s);
+    assert_int_equal(hyp_series_line(&s, 999), lines[999]);
+    hyp_series_free(&s);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -187,6 +220,7 @@ int main(void)
         cmocka_unit_test(test_base_clock_offset),
         cmocka_unit_test(test_drift_gap_outside),
         cmocka_unit_test(test_two_base_proportion),
+        cmocka_unit_test(test_series_storage),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -19,8 +19,10 @@ extern "C" {
  * POSIX does); pressure_pa: Pa (float: 0.008 Pa steps at 1000 hPa); temp_k:
  * K; rh_pct: relative humidity, %; lat_e7, lon_e7: degrees (WGS84) times
  * 10^7, rounded (1.1 cm steps; read them with hyp_series_lat/lon); ele_m:
- * the file's own height, m (float: 1 mm steps below 8 km). `line` is the
- * file line the sample came from (1-based), for messages. */
+ * the file's own height, m (float: 1 mm steps below 8 km). The file line
+ * each sample came from (1-based, for messages) is read with
+ * hyp_series_line(): it is kept as a byte of difference from the line
+ * before, the full number every 64 samples. */
 #define HYP_NO_POSITION INT32_MIN
 #define HYP_BAD_POSITION (INT32_MIN + 1)   /* given, but beyond +-214 degrees */
 
@@ -34,7 +36,11 @@ typedef struct hyp_series {
     int32_t *lat_e7;
     int32_t *lon_e7;
     float *ele_m;
-    uint32_t *line;
+    uint8_t *line_step;     /* line minus the previous sample's; 255: in line_far */
+    uint32_t *line_block;   /* the line of samples 0, 64, 128, ... */
+    size_t n_line_far, line_far_alloc;
+    struct hyp_line_far { size_t index; uint32_t line; } *line_far;  /* by index */
+    uint32_t last_line;
     uint8_t *flag;     /* hyp_sample_flag: why a reader refused the sample */
     /* flags for the whole series */
     int has_temp;      /* at least one sample has a temperature */
@@ -67,6 +73,11 @@ static inline double hyp_series_lon(const hyp_series *s, size_t i)
  * +-214 degrees (the range of the storage; readers refuse anything beyond
  * +-90 / +-180 anyway, with a message). */
 int32_t hyp_deg_e7(double deg);
+
+/* The file line of sample i; hyp_series_line_next gives that of sample i
+ * from that of sample i - 1 (prev) at once, for walks in order. */
+uint32_t hyp_series_line(const hyp_series *s, size_t i);
+uint32_t hyp_series_line_next(const hyp_series *s, size_t i, uint32_t prev);
 
 /* Short English reason for a flag ("pressure outside 300-1100 hPa"). */
 const char *hyp_sample_flag_text(hyp_sample_flag f);

@@ -722,7 +722,7 @@ static void print_budget(const hyp_series *s, const hyp_correct_result *r)
     budget_row(r, worst, "worst");
     char t[40];
     hyp_time_format(s->time_s[worst], t, sizeof t);
-    fprintf(cli_out(), "            (worst point: line %u, %s)\n", s->line[worst], t);
+    fprintf(cli_out(), "            (worst point: line %u, %s)\n", (unsigned)hyp_series_line(s, worst), t);
     fprintf(cli_out(), "            noise: sensors; fit: offset, drift and scale model; tcol: column temperature;\n"
                        "            rh: humidity; interp: base interpolation; clock: base clock; horiz: pressure gradient\n");
 }
