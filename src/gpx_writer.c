@@ -11,6 +11,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <fcntl.h>
 #include <sys/stat.h>
 #include <pthread.h>
 #include <unistd.h>
@@ -32,7 +33,25 @@ typedef struct src {
     size_t len, pos;
     int64_t off;          /* file offset of buf[pos] */
     int last;             /* the last byte consumed, -1 at start */
+    int64_t unsynced;     /* bytes copied out since writeback was last started */
 } src;
+
+/* Each FILE here belongs to one thread: the unlocked stdio calls. */
+#define PUT_BYTES(p, n, out) fwrite_unlocked((p), 1, (n), (out))
+#define PUT_STR(str, out) fputs_unlocked((str), (out))
+
+/* Starts the kernel writing out what is written so far, without waiting,
+ * every 32 MiB: the fsync before the rename then has little left to do.
+ * Not for pipes and devices (the call fails there, harmlessly). */
+static void kick_writeback(src *s, FILE *out, int64_t n)
+{
+    s->unsynced += n;
+    if (s->unsynced < ((int64_t)32 << 20))
+        return;
+    s->unsynced = 0;
+    if (fflush_unlocked(out) == 0)
+        (void)sync_file_range(fileno(out), 0, 0, SYNC_FILE_RANGE_WRITE);
+}
 
 static int src_fill(src *s)
 {
@@ -52,8 +71,10 @@ static int src_advance(src *s, int64_t to, FILE *out)
         size_t n = s->len - s->pos;
         if ((int64_t)n > to - s->off)
             n = (size_t)(to - s->off);
-        if (out && fwrite(s->buf + s->pos, 1, n, out) != n)
+        if (out && PUT_BYTES(s->buf + s->pos, n, out) != n)
             return -2;
+        if (out)
+            kick_writeback(s, out, (int64_t)n);
         s->last = s->buf[s->pos + n - 1];
         s->pos += n;
         s->off += (int64_t)n;
@@ -190,7 +211,7 @@ static hyp_status splice_point(src *s, FILE *out, const char *in, const hyp_gpx_
         if ((st = step(s, out, P->ele_beg, '>', 0, in, err)))
             return st;
         char h[32];
-        fwrite(h, 1, (size_t)fmt3(h, res->height_m[i]), out);
+        PUT_BYTES(h, (size_t)fmt3(h, res->height_m[i]), out);
         if ((st = step(s, NULL, P->ele_end, 0, '<', in, err)))
             return st;
     } else if (ok) {
@@ -202,10 +223,12 @@ static hyp_status splice_point(src *s, FILE *out, const char *in, const hyp_gpx_
         return st;
     char el[512];
     point_elements(el, sizeof el, doc, res, i);
-    if (P->ext_kind == HYP_EXT_WRAP)
-        fprintf(out, "<%s%sextensions>%s</%s%sextensions>", gp, colon, el, gp, colon);
-    else
-        fputs(el, out);
+    if (P->ext_kind == HYP_EXT_WRAP) {
+        PUT_STR("<", out), PUT_STR(gp, out), PUT_STR(colon, out), PUT_STR("extensions>", out);
+        PUT_STR(el, out);
+        PUT_STR("</", out), PUT_STR(gp, out), PUT_STR(colon, out), PUT_STR("extensions>", out);
+    } else
+        PUT_STR(el, out);
     return HYP_OK;
 }
 

@@ -1,6 +1,7 @@
 /* failshim.c - an LD_PRELOAD shim that makes the program fail on purpose:
  *   HYP_FAIL_MALLOC_AT=N     the N-th malloc/calloc/realloc returns NULL
- *   HYP_FAIL_FWRITE_AFTER=B  fwrite fails once B bytes have been written
+ *   HYP_FAIL_FWRITE_AFTER=B  fwrite, fputs (and their _unlocked forms) fail
+ *                            once B bytes have been written
  *   HYP_FAIL_FSYNC=1         fsync fails with EIO
  *   HYP_FAIL_COUNT=1         print the number of allocations counted at exit
  * so that tests can check the error paths: a message, exit status 1, the
@@ -17,6 +18,9 @@ static void *(*real_malloc)(size_t);
 static void *(*real_calloc)(size_t, size_t);
 static void *(*real_realloc)(void *, size_t);
 static size_t (*real_fwrite)(const void *, size_t, size_t, FILE *);
+static size_t (*real_fwrite_unlocked)(const void *, size_t, size_t, FILE *);
+static int (*real_fputs)(const char *, FILE *);
+static int (*real_fputs_unlocked)(const char *, FILE *);
 static int (*real_fsync)(int);
 static long fail_at = -1, count = 0;
 static long long write_after = -1, written = 0;
@@ -40,6 +44,9 @@ static void init(void)
     real_calloc = (void *(*)(size_t, size_t))dlsym(RTLD_NEXT, "calloc");
     real_realloc = (void *(*)(void *, size_t))dlsym(RTLD_NEXT, "realloc");
     real_fwrite = (size_t (*)(const void *, size_t, size_t, FILE *))dlsym(RTLD_NEXT, "fwrite");
+    real_fwrite_unlocked = (size_t (*)(const void *, size_t, size_t, FILE *))dlsym(RTLD_NEXT, "fwrite_unlocked");
+    real_fputs = (int (*)(const char *, FILE *))dlsym(RTLD_NEXT, "fputs");
+    real_fputs_unlocked = (int (*)(const char *, FILE *))dlsym(RTLD_NEXT, "fputs_unlocked");
     real_fsync = (int (*)(int))dlsym(RTLD_NEXT, "fsync");
     const char *e = getenv("HYP_FAIL_MALLOC_AT");
     fail_at = e ? atol(e) : -1;
@@ -113,18 +120,43 @@ void free(void *p)
     real_free(p);
 }
 
-size_t fwrite(const void *buf, size_t size, size_t n, FILE *f)
+/* glibc may define these as macros when optimising */
+#undef fwrite_unlocked
+#undef fputs_unlocked
+
+/* 1 when a write of n bytes to f is to fail (ENOSPC), counting the rest */
+static int write_fails(size_t n, FILE *f)
 {
     if (!ready)
         init();
     if (write_after >= 0 && f != stdout && f != stderr) {
-        if (written + (long long)(size * n) > write_after) {
+        if (written + (long long)n > write_after) {
             errno = ENOSPC;
-            return 0;
+            return 1;
         }
-        written += (long long)(size * n);
+        written += (long long)n;
     }
-    return real_fwrite(buf, size, n, f);
+    return 0;
+}
+
+size_t fwrite(const void *buf, size_t size, size_t n, FILE *f)
+{
+    return write_fails(size * n, f) ? 0 : real_fwrite(buf, size, n, f);
+}
+
+size_t fwrite_unlocked(const void *buf, size_t size, size_t n, FILE *f)
+{
+    return write_fails(size * n, f) ? 0 : real_fwrite_unlocked(buf, size, n, f);
+}
+
+int fputs(const char *str, FILE *f)
+{
+    return write_fails(strlen(str), f) ? EOF : real_fputs(str, f);
+}
+
+int fputs_unlocked(const char *str, FILE *f)
+{
+    return write_fails(strlen(str), f) ? EOF : real_fputs_unlocked(str, f);
 }
 
 int fsync(int fd)

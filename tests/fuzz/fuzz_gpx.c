@@ -26,7 +26,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
         size_t n = d.pts.count;
         r.count = n;
         r.height_m = calloc(n, sizeof(double));
-        r.sigma_m = calloc(n, sizeof(double));
+        r.sigma_m = calloc(n, sizeof *r.sigma_m);
         r.status = calloc(n, 1);
         for (size_t i = 0; i < n && r.status; i++)
             r.status[i] = d.pts.flag[i] ? HYP_PT_REFUSED : HYP_PT_OK;
