@@ -14,14 +14,14 @@ int hyp__csv_read_line(hyp__csv_lines *r)
     r->len = 0;
     int c, any = 0;
     r->ended_with_newline = 0;
-    while ((c = getc(r->f)) != EOF) {
+    while ((c = getc_unlocked(r->f)) != EOF) {   /* each reader owns its FILE */
         any = 1;
         if (c == '\n') {
             r->ended_with_newline = 1;
             break;
         }
         if (c == '\r') {   /* CR LF, or a lone CR (old line ends) */
-            int d = getc(r->f);
+            int d = getc_unlocked(r->f);
             if (d != '\n' && d != EOF)
                 ungetc(d, r->f);
             r->ended_with_newline = 1;

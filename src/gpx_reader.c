@@ -832,9 +832,16 @@ hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts, hyp_gpx_doc
     FILE *f = fopen(path, "rb");
     if (!f)
         return hyp_error_set(err, HYP_ERR_IO, "%s: cannot open: %s", path, strerror(errno));
+    /* libxml2 asks for about 4 KB at a time: a large stdio buffer saves a
+     * read call for each (glibc uses the size only with the buffer given) */
+    enum { IN_BUF = 1 << 18 };
+    char *ibuf = malloc(IN_BUF);
+    if (ibuf)
+        setvbuf(f, ibuf, _IOFBF, IN_BUF);
     gpx_ctx g = {.path = path, .opts = opts, .doc = doc, .msgs = msgs, .err = err};
     hyp_status st = parse_file(&g, f);
     fclose(f);
+    free(ibuf);
     if (!st && doc->pts.count == 0)
         st = hyp_error_set(err, HYP_ERR_NODATA, "%s: no <trkpt> or <rtept> in the file", path);
     if (!st)

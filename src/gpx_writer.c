@@ -1,17 +1,18 @@
 /* gpx_writer.c - the corrected GPX: the input's bytes copied unchanged,
  * with the new <ele> values and this project's elements spliced in at the
  * offsets the reader recorded; and a new GPX 1.1 for rovers read from CSV. */
-#define _GNU_SOURCE   /* copy_file_range */
+#define _GNU_SOURCE   /* fwrite_unlocked */
 #include "hypsolev/writers.h"
 #include "outfile.h"
 
 #include <errno.h>
+#include <fcntl.h>
 #include <math.h>
+#include <stdarg.h>
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#include <fcntl.h>
 #include <sys/stat.h>
 #include <pthread.h>
 #include <unistd.h>
@@ -33,24 +34,47 @@ typedef struct src {
     size_t len, pos;
     int64_t off;          /* file offset of buf[pos] */
     int last;             /* the last byte consumed, -1 at start */
-    int64_t unsynced;     /* bytes copied out since writeback was last started */
 } src;
 
-/* Each FILE here belongs to one thread: the unlocked stdio calls. */
-#define PUT_BYTES(p, n, out) fwrite_unlocked((p), 1, (n), (out))
-#define PUT_STR(str, out) fputs_unlocked((str), (out))
+/* Where the splice goes: a file, or (f NULL) nowhere, only counting the
+ * bytes, which tells where the second half of a two-thread splice starts.
+ * Each sink belongs to one thread: the unlocked stdio calls. */
+typedef struct sink {
+    FILE *f;
+    int64_t n;            /* bytes put */
+    int failed;
+} sink;
 
-/* Starts the kernel writing out what is written so far, without waiting,
- * every 32 MiB: the fsync before the rename then has little left to do.
- * Not for pipes and devices (the call fails there, harmlessly). */
-static void kick_writeback(src *s, FILE *out, int64_t n)
+static void put_bytes(sink *k, const void *p, size_t n)
 {
-    s->unsynced += n;
-    if (s->unsynced < ((int64_t)32 << 20))
+    k->n += (int64_t)n;
+    if (k->f && fwrite_unlocked(p, 1, n, k->f) != n)
+        k->failed = 1;
+}
+
+static void put_str(sink *k, const char *str)
+{
+    put_bytes(k, str, strlen(str));
+}
+
+static void put_fmt(sink *k, const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 2, 3)))
+#endif
+    ;
+
+static void put_fmt(sink *k, const char *fmt, ...)
+{
+    char buf[1024];
+    va_list ap;
+    va_start(ap, fmt);
+    int n = vsnprintf(buf, sizeof buf, fmt, ap);
+    va_end(ap);
+    if (n < 0 || (size_t)n >= sizeof buf) {
+        k->failed = 1;   /* never: the callers' strings are short */
         return;
-    s->unsynced = 0;
-    if (fflush_unlocked(out) == 0)
-        (void)sync_file_range(fileno(out), 0, 0, SYNC_FILE_RANGE_WRITE);
+    }
+    put_bytes(k, buf, (size_t)n);
 }
 
 static int src_fill(src *s)
@@ -62,19 +86,26 @@ static int src_fill(src *s)
     return s->len > 0;
 }
 
-/* Copies (out != NULL) or skips bytes up to file offset `to`. */
-static int src_advance(src *s, int64_t to, FILE *out)
+/* Copies (out != NULL) or skips bytes up to file offset `to`. A source
+ * without a file (counting) only moves on, putting the count to out. */
+static int src_advance(src *s, int64_t to, sink *out)
 {
+    if (!s->f) {
+        if (to > s->off) {
+            if (out)
+                out->n += to - s->off;
+            s->off = to;
+        }
+        return 0;
+    }
     while (s->off < to) {
         if (!src_fill(s))
             return -1;
         size_t n = s->len - s->pos;
         if ((int64_t)n > to - s->off)
             n = (size_t)(to - s->off);
-        if (out && PUT_BYTES(s->buf + s->pos, n, out) != n)
+        if (out && (put_bytes(out, s->buf + s->pos, n), out->failed))
             return -2;
-        if (out)
-            kick_writeback(s, out, (int64_t)n);
         s->last = s->buf[s->pos + n - 1];
         s->pos += n;
         s->off += (int64_t)n;
@@ -188,17 +219,19 @@ static hyp_status advance_error(hyp_error *err, const char *in, int rc, int64_t 
 
 /* Copies (or skips) to `to`, then checks the byte just consumed (want_last)
  * or the next one (want_next); 0 for no check. */
-static hyp_status step(src *s, FILE *out, int64_t to, int want_last, int want_next, const char *in, hyp_error *err)
+static hyp_status step(src *s, sink *out, int64_t to, int want_last, int want_next, const char *in, hyp_error *err)
 {
     int rc = src_advance(s, to, out);
     if (rc)
         return advance_error(err, in, rc, to);
+    if (!s->f)
+        return HYP_OK;   /* counting: the writing pass checks the bytes */
     if ((want_last && s->last != want_last) || (want_next && src_peek(s) != want_next))
         return layout_error(err, in, to);
     return HYP_OK;
 }
 
-static hyp_status splice_point(src *s, FILE *out, const char *in, const hyp_gpx_doc *doc,
+static hyp_status splice_point(src *s, sink *out, const char *in, const hyp_gpx_doc *doc,
                                const hyp_correct_result *res, size_t i, const hyp_gpx_point *P, hyp_error *err)
 {
     const hyp_gpx_layout *L = &doc->layout;
@@ -211,31 +244,31 @@ static hyp_status splice_point(src *s, FILE *out, const char *in, const hyp_gpx_
         if ((st = step(s, out, P->ele_beg, '>', 0, in, err)))
             return st;
         char h[32];
-        PUT_BYTES(h, (size_t)fmt3(h, res->height_m[i]), out);
+        put_bytes(out, h, (size_t)fmt3(h, res->height_m[i]));
         if ((st = step(s, NULL, P->ele_end, 0, '<', in, err)))
             return st;
     } else if (ok) {
         if ((st = step(s, out, P->open_end, '>', 0, in, err)))
             return st;
-        fprintf(out, "<%s%sele>%.3f</%s%sele>", gp, colon, res->height_m[i], gp, colon);
+        put_fmt(out, "<%s%sele>%.3f</%s%sele>", gp, colon, res->height_m[i], gp, colon);
     }
     if ((st = step(s, out, P->ext_ins, 0, '<', in, err)))
         return st;
     char el[512];
     point_elements(el, sizeof el, doc, res, i);
     if (P->ext_kind == HYP_EXT_WRAP) {
-        PUT_STR("<", out), PUT_STR(gp, out), PUT_STR(colon, out), PUT_STR("extensions>", out);
-        PUT_STR(el, out);
-        PUT_STR("</", out), PUT_STR(gp, out), PUT_STR(colon, out), PUT_STR("extensions>", out);
+        put_str(out, "<"), put_str(out, gp), put_str(out, colon), put_str(out, "extensions>");
+        put_str(out, el);
+        put_str(out, "</"), put_str(out, gp), put_str(out, colon), put_str(out, "extensions>");
     } else
-        PUT_STR(el, out);
+        put_str(out, el);
     return HYP_OK;
 }
 
 /* The document-level note of the vertical reference: GPX 1.1 in
  * <metadata><extensions> (metadata is the root's first child), GPX 1.0 as a
  * private element before </gpx>. */
-static hyp_status splice_vref(src *s, FILE *out, const char *in_path, const hyp_gpx_layout *L,
+static hyp_status splice_vref(src *s, sink *out, const char *in_path, const hyp_gpx_layout *L,
                               const char *vref, int at_end, hyp_error *err)
 {
     const char *gp = L->prefix, *colon = L->prefix[0] ? ":" : "";
@@ -248,7 +281,7 @@ static hyp_status splice_vref(src *s, FILE *out, const char *in_path, const hyp_
         hyp_status st = step(s, out, L->root_close, 0, '<', in_path, err);
         if (st)
             return st;
-        fputs(el, out);
+        put_str(out, el);
         return HYP_OK;
     }
     if (at_end || L->meta_kind == 3 || L->root_open_end < 0)
@@ -258,11 +291,11 @@ static hyp_status splice_vref(src *s, FILE *out, const char *in_path, const hyp_
     if (st)
         return st;
     if (L->meta_kind == 1)
-        fputs(el, out);
+        put_str(out, el);
     else if (L->meta_kind == 2)
-        fprintf(out, "<%s%sextensions>%s</%s%sextensions>", gp, colon, el, gp, colon);
+        put_fmt(out, "<%s%sextensions>%s</%s%sextensions>", gp, colon, el, gp, colon);
     else
-        fprintf(out, "<%s%smetadata><%s%sextensions>%s</%s%sextensions></%s%smetadata>", gp, colon, gp, colon, el, gp,
+        put_fmt(out, "<%s%smetadata><%s%sextensions>%s</%s%sextensions></%s%smetadata>", gp, colon, gp, colon, el, gp,
                 colon, gp, colon);
     return HYP_OK;
 }
@@ -270,7 +303,7 @@ static hyp_status splice_vref(src *s, FILE *out, const char *in_path, const hyp_
 /* Points [lo, hi) of the splice, from the anchor before point lo; the
  * document-level parts only where the range starts at the beginning
  * (lo == 0) or runs to the end (hi == count). */
-static hyp_status splice_range(src *s, FILE *out, const char *in_path, const hyp_gpx_doc *doc,
+static hyp_status splice_range(src *s, sink *out, const char *in_path, const hyp_gpx_doc *doc,
                                const hyp_correct_result *res, const char *vref, size_t lo, size_t hi,
                                int64_t anchor, int64_t stop, hyp_error *err)
 {
@@ -281,9 +314,9 @@ static hyp_status splice_range(src *s, FILE *out, const char *in_path, const hyp
             int c, rc = src_advance(s, L->root_attr_ins, out);
             if (rc)
                 return advance_error(err, in_path, rc, L->root_attr_ins);
-            if ((c = src_peek(s)) != '>' && c != '/')
+            if (s->f && (c = src_peek(s)) != '>' && c != '/')
                 return layout_error(err, in_path, L->root_attr_ins);
-            fprintf(out, " xmlns:%s=\"%s\"", HYP_GPX_PREFIX, HYP_GPX_NS);
+            put_fmt(out, " xmlns:%s=\"%s\"", HYP_GPX_PREFIX, HYP_GPX_NS);
         }
         if (vref && (st = splice_vref(s, out, in_path, L, vref, 0, err)))
             return st;
@@ -324,16 +357,18 @@ static hyp_status open_src(src *s, const char *in_path, const hyp_gpx_doc *doc, 
     return HYP_OK;
 }
 
-/* The second half of a two-part splice, in a thread of its own: the input
- * from the anchor of point lo on, into its own temporary file. */
+/* The second half of a two-part splice, in a thread of its own: it counts
+ * the bytes the first half will write (the same splice into a counting
+ * sink, the input not read), then writes points lo.. from the anchor of
+ * point lo on, at that offset of the same temporary file. */
 typedef struct half {
-    const char *in_path;
+    const char *in_path, *tmp_path;
     const hyp_gpx_doc *doc;
     const hyp_correct_result *res;
     const char *vref;
     size_t lo;
     int64_t anchor_before, start;
-    FILE *out;
+    int64_t first_len;    /* bytes of the first half's output */
     hyp_error err;
     hyp_status st;
 } half;
@@ -346,60 +381,49 @@ static void *second_half(void *arg)
         h->st = hyp_error_set(&h->err, HYP_ERR_NOMEM, "out of memory");
         return NULL;
     }
-    h->st = open_src(s, h->in_path, h->doc, &h->err);
+    sink count = {NULL, 0, 0};
+    s->last = -1;
+    h->st = splice_range(s, &count, h->in_path, h->doc, h->res, h->vref, 0, h->lo, 0, h->start, &h->err);
+    h->first_len = count.n;
+    FILE *out = NULL;
+    char *obuf = NULL;
+    if (!h->st) {
+        int fd = open(h->tmp_path, O_WRONLY);
+        if (fd < 0 || !(out = fdopen(fd, "wb"))) {
+            if (fd >= 0)
+                close(fd);
+            h->st = hyp_error_set(&h->err, HYP_ERR_IO, "%s: cannot write: %s", h->tmp_path, strerror(errno));
+        } else {
+            if ((obuf = malloc(HYP__OUT_BUF)))
+                setvbuf(out, obuf, _IOFBF, HYP__OUT_BUF);
+            if (fseeko(out, (off_t)h->first_len, SEEK_SET) != 0)
+                h->st = hyp_error_set(&h->err, HYP_ERR_IO, "%s: cannot seek: %s", h->tmp_path, strerror(errno));
+        }
+    }
+    if (!h->st)
+        h->st = open_src(s, h->in_path, h->doc, &h->err);
     if (!h->st) {
         /* start one byte early so that the check of the byte before the
          * first splice sees it; that byte is the first half's */
         if (fseeko(s->f, (off_t)(h->start - 1), SEEK_SET) != 0) {
             h->st = hyp_error_set(&h->err, HYP_ERR_IO, "%s: cannot seek: %s", h->in_path, strerror(errno));
         } else {
+            sink k = {out, 0, 0};
             s->off = h->start - 1;
             int rc = src_advance(s, h->start, NULL);
             h->st = rc ? advance_error(&h->err, h->in_path, rc, h->start)
-                       : splice_range(s, h->out, h->in_path, h->doc, h->res, h->vref, h->lo, h->doc->pts.count,
+                       : splice_range(s, &k, h->in_path, h->doc, h->res, h->vref, h->lo, h->doc->pts.count,
                                       h->anchor_before, 0, &h->err);
+            if (!h->st && k.failed)
+                h->st = hyp_error_set(&h->err, HYP_ERR_IO, "write error: %s; nothing written", strerror(errno));
         }
         fclose(s->f);
     }
+    if (out && fclose(out) != 0 && !h->st)
+        h->st = hyp_error_set(&h->err, HYP_ERR_IO, "write error: %s; nothing written", strerror(errno));
+    free(obuf);
     free(s);
     return NULL;
-}
-
-/* Appends the whole of file `from` to `to` (both flushed), in the kernel
- * where it can (copy_file_range), else by reading and writing. */
-static int append_file(FILE *to, FILE *from)
-{
-    if (fflush(to) != 0 || fflush(from) != 0)
-        return -1;
-    int fi = fileno(from), fo = fileno(to);
-    off_t in_off = 0;
-    struct stat sb;
-    if (fstat(fi, &sb) != 0 || lseek(fo, 0, SEEK_END) < 0)
-        return -1;
-    off_t left = sb.st_size;
-    while (left > 0) {
-        ssize_t k = copy_file_range(fi, &in_off, fo, NULL, (size_t)left, 0);
-        if (k <= 0)
-            break;
-        left -= k;
-    }
-    if (left == 0)
-        return 0;
-    char buf[1 << 16];   /* copy_file_range refused (another file system, old kernel) */
-    while (left > 0) {
-        ssize_t k = pread(fi, buf, sizeof buf, in_off);
-        if (k <= 0)
-            return -1;
-        for (ssize_t done = 0; done < k;) {
-            ssize_t wr = write(fo, buf + done, (size_t)(k - done));
-            if (wr <= 0)
-                return -1;
-            done += wr;
-        }
-        in_off += k;
-        left -= k;
-    }
-    return 0;
 }
 
 /* Below this many points one thread writes: a thread is not worth it. */
@@ -416,7 +440,7 @@ hyp_status hyp_gpx_write_spliced(const char *in_path, const hyp_gpx_doc *doc,
     src *s = calloc(1, sizeof *s);
     if (!s)
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
-    hyp__outfile o, o2;
+    hyp__outfile o;
     const char *vref = info ? info->vref : NULL;
     hyp_status st = open_src(s, in_path, doc, err);
     if (st) {
@@ -428,32 +452,28 @@ hyp_status hyp_gpx_write_spliced(const char *in_path, const hyp_gpx_doc *doc,
         goto close_in;
     size_t n = doc->pts.count, m = n / 2;
     int split = info && info->threads >= 2 && n >= SPLIT_MIN_POINTS && !o.to_stdout;
-    half h = {in_path, doc, res, vref, m, 0, 0, NULL, {0}, HYP_OK};
+    half h = {in_path, o.tmp, doc, res, vref, m, 0, 0, 0, {0}, HYP_OK};
     pthread_t tid;
     if (split) {
         /* the anchor before point m, and point m's own: where the halves meet */
         for (size_t i = 0; i < m; i++)
             h.anchor_before += doc->layout.pt_step[i];
         h.start = h.anchor_before + doc->layout.pt_step[m];
-        split = h.start > 0 && hyp__out_open(&o2, out_path, &h.err) == HYP_OK;
+        split = h.start > 0 && pthread_create(&tid, NULL, second_half, &h) == 0;
     }
+    sink k = {o.f, 0, 0};
     if (split) {
-        h.out = o2.f;
-        if (pthread_create(&tid, NULL, second_half, &h) != 0) {
-            hyp__out_abort(&o2);
-            split = 0;
-        }
-    }
-    if (split) {
-        st = splice_range(s, o.f, in_path, doc, res, vref, 0, m, 0, h.start, err);
+        st = splice_range(s, &k, in_path, doc, res, vref, 0, m, 0, h.start, err);
         pthread_join(tid, NULL);
         if (!st && h.st)
             st = hyp_error_set(err, h.st, "%s", h.err.message);
-        if (!st && append_file(o.f, o2.f) != 0)
-            st = hyp_error_set(err, HYP_ERR_IO, "%s: write error: %s; nothing written", out_path, strerror(errno));
-        hyp__out_abort(&o2);   /* the second half's temporary file goes */
+        if (!st && !k.failed && k.n != h.first_len)   /* the halves must meet exactly */
+            st = hyp_error_set(err, HYP_ERR_INTERNAL, "%s: the two halves of the output do not meet (%lld, %lld bytes); nothing written",
+                               out_path, (long long)k.n, (long long)h.first_len);
     } else
-        st = splice_range(s, o.f, in_path, doc, res, vref, 0, n, 0, 0, err);
+        st = splice_range(s, &k, in_path, doc, res, vref, 0, n, 0, 0, err);
+    if (!st && k.failed)
+        st = hyp_error_set(err, HYP_ERR_IO, "write error: %s; nothing written", strerror(errno));
     if (!st)
         st = hyp__out_commit(&o, err);
     else

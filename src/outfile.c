@@ -52,7 +52,8 @@ hyp_status hyp__out_open(hyp__outfile *o, const char *path, hyp_error *err)
         unlink(o->tmp);
         return hyp_error_set(err, HYP_ERR_IO, "%s: cannot write: %s", path, strerror(errno));
     }
-    setvbuf(o->f, NULL, _IOFBF, 1 << 16);
+    if ((o->buf = malloc(HYP__OUT_BUF)))
+        setvbuf(o->f, o->buf, _IOFBF, HYP__OUT_BUF);
     return HYP_OK;
 }
 
@@ -82,6 +83,8 @@ hyp_status hyp__out_commit(hyp__outfile *o, hyp_error *err)
         e = errno;
     }
     o->f = NULL;
+    free(o->buf);
+    o->buf = NULL;
     if (!bad && rename(o->tmp, o->final) != 0) {
         bad = 1;
         e = errno;
@@ -104,5 +107,7 @@ void hyp__out_abort(hyp__outfile *o)
         return;
     fclose(o->f);
     o->f = NULL;
+    free(o->buf);
+    o->buf = NULL;
     unlink(o->tmp);
 }

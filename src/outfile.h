@@ -5,8 +5,14 @@
 #include <stdio.h>
 #include "hypsolev/error.h"
 
+/* The stdio buffer of an output: glibc ignores the size asked of setvbuf
+ * unless it is given the buffer, and its own is 4 KiB (a write call per
+ * 4 KiB). */
+#define HYP__OUT_BUF (1 << 18)
+
 typedef struct hyp__outfile {
     FILE *f;
+    char *buf;       /* HYP__OUT_BUF bytes, or NULL (stdio's own) */
     int to_stdout;   /* 1 stdout, 2 a device or pipe written directly */
     char tmp[4096];
     char final[4096];
