@@ -4,6 +4,7 @@
 #define _GNU_SOURCE   /* fwrite_unlocked */
 #include "hypsolev/writers.h"
 #include "outfile.h"
+#include "fmtnum.h"
 
 #include <errno.h>
 #include <fcntl.h>
@@ -118,30 +119,11 @@ static int src_peek(src *s)
     return src_fill(s) ? s->buf[s->pos] : -1;
 }
 
-/* v with three decimals, as "%.3f" would print it but without printf (the
- * writer's hot path): rounding half away from zero on the thousandths. */
+/* v with three decimals exactly as "%.3f" prints it (fmtnum.c), into a
+ * buffer of 32 bytes. */
 static int fmt3(char *buf, double v)
 {
-    if (!(fabs(v) < 1e12))
-        return snprintf(buf, 32, "%.3f", v);
-    long long t = llround(v * 1000.0);
-    int neg = t < 0;
-    unsigned long long u = (unsigned long long)(neg ? -t : t);
-    char tmp[32];
-    int n = 0;
-    do {
-        tmp[n++] = (char)('0' + u % 10);
-        u /= 10;
-        if (n == 3)
-            tmp[n++] = '.';
-    } while (u || n < 5);
-    int k = 0;
-    if (neg)
-        buf[k++] = '-';
-    while (n)
-        buf[k++] = tmp[--n];
-    buf[k] = '\0';
-    return k;
+    return hyp__fmt_fixed(buf, 32, v, 3);
 }
 
 static void escape_into(char *dst, size_t n, const char *s)

@@ -2,18 +2,21 @@
  * every column are fixed and documented in docs/formats.md: degrees for
  * lat/lon, metres for heights and every sigma column, hPa for pressures,
  * degC for temperature. */
+#define _GNU_SOURCE   /* fwrite_unlocked */
 #include "hypsolev/writers.h"
 #include "outfile.h"
+#include "fmtnum.h"
 
 #include <math.h>
 #include <stdio.h>
 
+/* ",v" with prec decimals as printf prints it, or "," for NaN */
 static void num(FILE *f, double v, int prec)
 {
-    if (v == v)
-        fprintf(f, ",%.*f", prec, v);
-    else
-        fputs(",", f);
+    char b[40];
+    b[0] = ',';
+    int n = v == v ? hyp__fmt_fixed(b + 1, sizeof b - 1, v, prec) : 0;
+    fwrite_unlocked(b, 1, (size_t)n + 1, f);   /* the FILE is this writer's alone */
 }
 
 hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res, const hyp_output_info *info,
@@ -67,7 +70,9 @@ hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res, c
         const char *why = res->status[i] == HYP_PT_REFUSED ? hyp_sample_flag_text((hyp_sample_flag)s->flag[i])
                           : res->extrapolated && res->extrapolated[i] ? "ok, extrapolated outside the bases' heights"
                                                                       : hyp_point_status_text((hyp_point_status)res->status[i]);
-        fprintf(f, ",%s\n", why);
+        fputc_unlocked(',', f);
+        fputs_unlocked(why, f);
+        fputc_unlocked('\n', f);
     }
     return hyp__out_commit(&o, err);
 }

@@ -332,6 +332,18 @@ void hyp_time_format(double time_s, char *buf, size_t n)
     unsigned m, d;
     civil_from_days(days, &y, &m, &d);
     int hh = (int)(rem / 3600), mm = (int)(rem / 60 % 60), ss = (int)(rem % 60);
+    if (y >= 0 && y <= 9999 && n >= 25) {
+        /* by hand: the table writes one per row (same text as below) */
+        static const char pat[] = "0000-00-00T00:00:00.000Z";
+        int v[7] = {y, (int)m, (int)d, hh, mm, ss, ms}, at[7] = {3, 6, 9, 12, 15, 18, 22};
+        memcpy(buf, pat, sizeof pat);
+        for (int k = 0; k < 7; k++)
+            for (int q = at[k], x = v[k]; x; x /= 10)
+                buf[q--] = (char)('0' + x % 10);
+        if (!ms)
+            buf[19] = 'Z', buf[20] = '\0';
+        return;
+    }
     if (ms)
         snprintf(buf, n, "%04d-%02u-%02uT%02d:%02d:%02d.%03dZ", y, m, d, hh, mm, ss, ms);
     else

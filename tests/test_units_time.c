@@ -11,6 +11,10 @@
 
 #include "hypsolev/timeparse.h"
 #include "hypsolev/units.h"
+#include "fmtnum.h"
+
+#include <stdio.h>
+#include <stdlib.h>
 
 #define assert_near(a, b, tol) assert_true(fabs((a) - (b)) <= (tol))
 
@@ -170,6 +174,39 @@ static void test_time_format(void **state)
     assert_string_equal(b, "1969-12-31T23:59:59Z");
 }
 
+/* The writers' fixed-point formatter prints exactly what the C library's
+ * printf("%.*f") prints (glibc, the reference here): exact halves in
+ * binary (0.125, 2.5), values a hair either side of a half-thousandth,
+ * negatives that round to zero, large values, NaN, infinities, and a
+ * million pseudo-random values over twelve decades at every precision. */
+static void test_fmt_fixed(void **state)
+{
+    (void)state;
+    char a[64], b[64];
+    const double fixed[] = {0.0, -0.0, 0.125, -0.125, 2.5, 0.0005, 1.0005, -1.0005, 812.4005, 0.00049999999,
+                            -0.0001, 999.9995, 4294967.2955, 4294967296.5, 1e20, -3.75e-7, NAN, INFINITY, -INFINITY};
+    for (size_t k = 0; k < sizeof fixed / sizeof *fixed; k++)
+        for (int p = 0; p <= 9; p++) {
+            hyp__fmt_fixed(a, sizeof a, fixed[k], p);
+            snprintf(b, sizeof b, "%.*f", p, fixed[k]);
+            if (strcmp(a, b) != 0)
+                print_message("%.17g at %d: \"%s\", printf \"%s\"\n", fixed[k], p, a, b);
+            assert_string_equal(a, b);
+        }
+    uint64_t x = 88172645463325252ull;
+    for (int i = 0; i < 1000000; i++) {
+        x ^= x << 13, x ^= x >> 7, x ^= x << 17;   /* xorshift64 (Marsaglia 2003) */
+        double v = ((double)(x >> 11) / 9007199254740992.0 - 0.5) * pow(10.0, (double)(x % 12) - 4.0);
+        int p = (int)(x >> 60) % 10;
+        int n = hyp__fmt_fixed(a, sizeof a, v, p);
+        snprintf(b, sizeof b, "%.*f", p, v);
+        if (strcmp(a, b) != 0)
+            print_message("%.17g at %d: \"%s\", printf \"%s\"\n", v, p, a, b);
+        assert_string_equal(a, b);
+        assert_int_equal(n, (int)strlen(b));
+    }
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -181,6 +218,7 @@ int main(void)
         cmocka_unit_test(test_time_fixed_zone),
         cmocka_unit_test(test_time_tz_database),
         cmocka_unit_test(test_time_format),
+        cmocka_unit_test(test_fmt_fixed),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
