@@ -7,7 +7,7 @@
 
 /* v with prec decimals (0..9) into buf (n >= 32), exactly as
  * printf("%.*f", prec, v) prints it, in integer arithmetic where that is
- * provably the same: |v| 10^prec below 2^32 and not within 1e-6 of a half
+ * provably the same: |v| 10^prec below 2^35 and not within 4e-6 of a half
  * (where the exact binary value decides, as printf rounds it); otherwise
  * printf itself. Returns the length. */
 int hyp__fmt_fixed(char *buf, size_t n, double v, int prec);

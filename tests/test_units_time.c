@@ -184,7 +184,8 @@ static void test_fmt_fixed(void **state)
     (void)state;
     char a[64], b[64];
     const double fixed[] = {0.0, -0.0, 0.125, -0.125, 2.5, 0.0005, 1.0005, -1.0005, 812.4005, 0.00049999999,
-                            -0.0001, 999.9995, 4294967.2955, 4294967296.5, 1e20, -3.75e-7, NAN, INFINITY, -INFINITY};
+                            -0.0001, 999.9995, 4294967.2955, 4294967296.5, 1e20, -3.75e-7, 179.999999995,
+                            -179.123456785, 343.59738367, NAN, INFINITY, -INFINITY};
     for (size_t k = 0; k < sizeof fixed / sizeof *fixed; k++)
         for (int p = 0; p <= 9; p++) {
             hyp__fmt_fixed(a, sizeof a, fixed[k], p);
@@ -196,7 +197,7 @@ static void test_fmt_fixed(void **state)
     uint64_t x = 88172645463325252ull;
     for (int i = 0; i < 1000000; i++) {
         x ^= x << 13, x ^= x >> 7, x ^= x << 17;   /* xorshift64 (Marsaglia 2003) */
-        double v = ((double)(x >> 11) / 9007199254740992.0 - 0.5) * pow(10.0, (double)(x % 12) - 4.0);
+        double v = ((double)(x >> 11) / 9007199254740992.0 - 0.5) * pow(10.0, (double)(x % 13) - 4.0);
         int p = (int)(x >> 60) % 10;
         int n = hyp__fmt_fixed(a, sizeof a, v, p);
         snprintf(b, sizeof b, "%.*f", p, v);

@@ -23,6 +23,7 @@ int cli_cancelled(void)
 }
 
 typedef struct pool {
+    pthread_t main;    /* woken (SIGUSR2) as each job ends */
     int n, next, done;
     long long points_done;
     cli_job_fn fn;
@@ -60,6 +61,7 @@ static void *worker(void *arg)
         p->done++;
         p->points_done += (long long)p->results[i].points;
         pthread_mutex_unlock(&p->lock);
+        pthread_kill(p->main, SIGUSR2);   /* the end may be now: no waiting for the next tick */
     }
     return NULL;
 }
@@ -118,7 +120,7 @@ int cli_run_jobs(int n, int jobs, int progress, cli_job_fn fn, void *ctx, cli_jo
 {
     if (jobs <= 1 || n == 1)
         return run_inline(n, fn, ctx, results);
-    pool p = {.n = n, .fn = fn, .ctx = ctx, .results = results};
+    pool p = {.main = pthread_self(), .n = n, .fn = fn, .ctx = ctx, .results = results};
     pthread_mutex_init(&p.lock, NULL);
     the_pool = &p;
     if (jobs < 1)
@@ -131,6 +133,7 @@ int cli_run_jobs(int n, int jobs, int progress, cli_job_fn fn, void *ctx, cli_jo
     sigemptyset(&set);
     sigaddset(&set, SIGINT);
     sigaddset(&set, SIGTERM);
+    sigaddset(&set, SIGUSR2);
     pthread_sigmask(SIG_BLOCK, &set, &old);
     pthread_t *th = calloc((size_t)jobs, sizeof *th);
     int started = 0;
@@ -153,7 +156,7 @@ int cli_run_jobs(int n, int jobs, int progress, cli_job_fn fn, void *ctx, cli_jo
             sig = s;
             atomic_store(&cancelled, 1);
             cli_emit("\nhypsolev: interrupted: finishing the files under way without writing them\n", 74);
-        } else if (progress)
+        } else if (progress && s != SIGUSR2)
             show_progress(&p, t0);
         /* all workers idle and nothing left: done */
         pthread_mutex_lock(&p.lock);
@@ -164,6 +167,14 @@ int cli_run_jobs(int n, int jobs, int progress, cli_job_fn fn, void *ctx, cli_jo
     }
     for (int k = 0; k < started; k++)
         pthread_join(th[k], NULL);
+    /* a wake-up sent after the loop ended is still pending: take it, or it
+     * would end the program once unblocked */
+    sigset_t wake;
+    sigemptyset(&wake);
+    sigaddset(&wake, SIGUSR2);
+    struct timespec zero = {0, 0};
+    while (sigtimedwait(&wake, NULL, &zero) == SIGUSR2)
+        ;
     if (progress && !sig)
         show_progress(&p, t0), cli_emit("\n", 1);
     free(th);
