@@ -3,6 +3,7 @@
  * a layout for the splicing writer, waypoints for ties. No tree is ever
  * built. */
 #include "reader_common.h"
+#include "sparse.h"
 #include "hypsolev/writers.h"
 
 #include <ctype.h>
@@ -887,6 +888,8 @@ hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts, hyp_gpx_doc
     return st;
 }
 
+_Static_assert(offsetof(struct hyp_gpx_far, index) == 0, "hyp__sparse_find reads the index first");
+
 void hyp_gpx_point_next(const hyp_gpx_layout *L, size_t i, int64_t *anchor, hyp_gpx_point *p)
 {
     int64_t a = *anchor + L->pt_step[i];
@@ -899,14 +902,7 @@ void hyp_gpx_point_next(const hyp_gpx_layout *L, size_t i, int64_t *anchor, hyp_
     if (b == HYP_GPX_NONE16) {
         p->ele_beg = p->ele_end = -1;
     } else if (b == HYP_GPX_FAR16) {
-        size_t lo = 0, hi = L->n_far;   /* binary search by index */
-        while (hi - lo > 1) {
-            size_t mid = lo + (hi - lo) / 2;
-            if (L->ele_far[mid].index <= i)
-                lo = mid;
-            else
-                hi = mid;
-        }
+        size_t lo = hyp__sparse_find(L->ele_far, L->n_far, sizeof *L->ele_far, i);
         p->ele_beg = a + L->ele_far[lo].beg;
         p->ele_end = p->ele_beg + L->ele_far[lo].len;
     } else {

@@ -1,5 +1,6 @@
 /* samples.c - the growable struct-of-arrays sample series. */
 #include "hypsolev/samples.h"
+#include "sparse.h"
 
 #include <math.h>
 #include <stdlib.h>
@@ -121,21 +122,15 @@ int32_t hyp_deg_e7(double deg)
     return (int32_t)lround(deg * 1e7);
 }
 
+_Static_assert(offsetof(struct hyp_line_far, index) == 0, "hyp__sparse_find reads the index first");
+
 uint32_t hyp_series_line_next(const hyp_series *s, size_t i, uint32_t prev)
 {
     if (i % 64 == 0)
         return s->line_block[i / 64];
     if (s->line_step[i] < 255)
         return prev + s->line_step[i];
-    size_t lo = 0, hi = s->n_line_far;   /* binary search by index */
-    while (hi - lo > 1) {
-        size_t mid = lo + (hi - lo) / 2;
-        if (s->line_far[mid].index <= i)
-            lo = mid;
-        else
-            hi = mid;
-    }
-    return s->line_far[lo].line;
+    return s->line_far[hyp__sparse_find(s->line_far, s->n_line_far, sizeof *s->line_far, i)].line;
 }
 
 uint32_t hyp_series_line(const hyp_series *s, size_t i)
