@@ -78,6 +78,13 @@ static void put_fmt(sink *k, const char *fmt, ...)
     put_bytes(k, buf, (size_t)n);
 }
 
+/* v with prec decimals, exactly as printf's "%.*f" */
+static void put_num(sink *k, double v, int prec)
+{
+    char b[40];
+    put_bytes(k, b, (size_t)hyp__fmt_fixed(b, sizeof b, v, prec));
+}
+
 static int src_fill(src *s)
 {
     if (s->pos < s->len)
@@ -486,34 +493,44 @@ hyp_status hyp_gpx_write_new(const hyp_series *s, const hyp_correct_result *res,
                 HYP_GPX_PREFIX, v, HYP_GPX_PREFIX);
     }
     fprintf(f, "  <trk>\n    <name>%s</name>\n    <trkseg>\n", name);
-    for (size_t i = 0; i < s->count; i++) {
+    sink k = {f, 0, 0};
+    const char *P = HYP_GPX_PREFIX;
+    for (size_t i = 0; i < s->count && !k.failed; i++) {
         if (hyp_series_lat(s, i) != hyp_series_lat(s, i) || hyp_series_lon(s, i) != hyp_series_lon(s, i))
             continue;   /* GPX needs a position */
         int ok = res->status[i] == HYP_PT_OK;
         double ele = ok ? res->height_m[i] : s->ele_m[i];
-        fprintf(f, "      <trkpt lat=\"%.8f\" lon=\"%.8f\">", hyp_series_lat(s, i), hyp_series_lon(s, i));
+        /* by hand, without printf: this runs once per point */
+        put_str(&k, "      <trkpt lat=\"");
+        put_num(&k, hyp_series_lat(s, i), 8);
+        put_str(&k, "\" lon=\"");
+        put_num(&k, hyp_series_lon(s, i), 8);
+        put_str(&k, "\">");
         if (ele == ele)
-            fprintf(f, "<ele>%.3f</ele>", ele);
+            put_str(&k, "<ele>"), put_num(&k, ele, 3), put_str(&k, "</ele>");
         if (s->time_s[i] == s->time_s[i]) {
             char t[40];
             hyp_time_format(s->time_s[i], t, sizeof t);
-            fprintf(f, "<time>%s</time>", t);
+            put_str(&k, "<time>"), put_str(&k, t), put_str(&k, "</time>");
         }
-        const char *P = HYP_GPX_PREFIX;
-        fputs("<extensions>", f);
+        put_str(&k, "<extensions>");
         if (ok) {
             if (s->ele_m[i] == s->ele_m[i])
-                fprintf(f, "<%s:ele_in>%.3f</%s:ele_in>", P, s->ele_m[i], P);
-            fprintf(f, "<%s:sigma>%.3f</%s:sigma>", P, res->sigma_m[i], P);
+                put_fmt(&k, "<%s:ele_in>", P), put_num(&k, s->ele_m[i], 3), put_fmt(&k, "</%s:ele_in>", P);
+            put_fmt(&k, "<%s:sigma>", P), put_num(&k, res->sigma_m[i], 3), put_fmt(&k, "</%s:sigma>", P);
         } else {
             const char *reason = res->status[i] == HYP_PT_REFUSED ? hyp_sample_flag_text((hyp_sample_flag)s->flag[i])
                                                                    : hyp_point_status_text((hyp_point_status)res->status[i]);
-            fprintf(f, "<%s:status>not corrected: %s</%s:status>", P, reason, P);
+            put_fmt(&k, "<%s:status>not corrected: %s</%s:status>", P, reason, P);
         }
         if (s->pressure_pa[i] == s->pressure_pa[i])
-            fprintf(f, "<%s:pressure unit=\"hPa\">%.2f</%s:pressure>", P, s->pressure_pa[i] / 100.0, P);
-        fputs("</extensions></trkpt>\n", f);
+            put_fmt(&k, "<%s:pressure unit=\"hPa\">", P), put_num(&k, s->pressure_pa[i] / 100.0, 2), put_fmt(&k, "</%s:pressure>", P);
+        put_str(&k, "</extensions></trkpt>\n");
     }
     fputs("    </trkseg>\n  </trk>\n</gpx>\n", f);
+    if (k.failed) {
+        hyp__out_abort(&o);
+        return hyp_error_set(err, HYP_ERR_IO, "%s: write error: %s; nothing written", out_path, strerror(errno));
+    }
     return hyp__out_commit(&o, err);
 }
