@@ -962,7 +962,9 @@ static hyp_status prepare_extras(args *a, const log_in *rv, extras *x, hyp_error
     size_t n = s->count ? s->count : 1;
     memset(x, 0, sizeof *x);
     hyp_status st = track_heights(a, rv, a->known_ref, &x->gnss_known, &x->own_known, err);
-    if (!st)
+    if (!st && a->out_ref == a->known_ref)
+        x->gnss_out = x->gnss_known;   /* the same heights: one array */
+    else if (!st)
         st = track_heights(a, rv, a->out_ref, &x->gnss_out, &x->own_out, err);
     if (st || !a->crs)
         return st;
