@@ -16,6 +16,22 @@ void hyp_benchmarks_init(hyp_benchmarks *b)
     memset(b, 0, sizeof *b);
 }
 
+void hyp_waypoints_init(hyp_waypoints *w)
+{
+    memset(w, 0, sizeof *w);
+}
+
+void hyp_waypoints_free(hyp_waypoints *w)
+{
+    for (size_t i = 0; i < w->count; i++)
+        free(w->name[i]);
+    free(w->name);
+    free(w->time_s);
+    free(w->lat_deg);
+    free(w->lon_deg);
+    hyp_waypoints_init(w);
+}
+
 void hyp_benchmarks_free(hyp_benchmarks *b)
 {
     for (size_t i = 0; i < b->count; i++) {

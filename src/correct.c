@@ -130,7 +130,7 @@ void hyp__base_view_free(hyp__base_view *b)
 
 static void work_free(hyp__work *w)
 {
-    for (size_t k = 0; k < HYP__MAX_BASES; k++)
+    for (size_t k = 0; k < HYP_MAX_BASES; k++)
         hyp__base_view_free(&w->bvs[k]);
 }
 
@@ -738,8 +738,8 @@ static hyp_status correct_once(const hyp_series *rover, const hyp_base *bases, s
                                hyp_msgs *msgs, hyp_error *err)
 {
     hyp_correct_result_free(res);
-    if (nb == 0 || nb > HYP__MAX_BASES)
-        return hyp_error_set(err, HYP_ERR_USAGE, "between 1 and %d bases are needed, %zu given", HYP__MAX_BASES, nb);
+    if (nb == 0 || nb > HYP_MAX_BASES)
+        return hyp_error_set(err, HYP_ERR_USAGE, "between 1 and %d bases are needed, %zu given", HYP_MAX_BASES, nb);
     for (size_t k = 0; k < nb; k++)
         if (!(bases[k].height_m == bases[k].height_m && fabs(bases[k].height_m) < 10000.0))
             return hyp_error_set(err, HYP_ERR_USAGE, "%s: base height %g m is not a height between -10000 and 10000 m",

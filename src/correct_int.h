@@ -13,7 +13,6 @@ typedef struct hyp__base_view {
     double *rate;      /* hourly tendency at each sample, Pa/s */
 } hyp__base_view;
 
-#define HYP__MAX_BASES 16
 
 /* What one rover sample needs from the bases, computed on demand (nothing
  * of it is stored per sample: see docs/performance.md). */
@@ -46,8 +45,8 @@ typedef struct hyp__work {
     size_t nb;
     hyp_method method;
     hyp_base virt;             /* the field method's virtual base */
-    hyp_base base_copy[HYP__MAX_BASES];
-    hyp__base_view bvs[HYP__MAX_BASES];  /* every base's view (bvs[ref] is bv) */
+    hyp_base base_copy[HYP_MAX_BASES];
+    hyp__base_view bvs[HYP_MAX_BASES];  /* every base's view (bvs[ref] is bv) */
     size_t ref, upper;         /* two-base: indices of the lower and upper base */
     double field_sigma_pa;     /* field: scatter of the bases about the field */
     hyp_correct_opts opts;     /* copy of the caller's options (o points here) */

@@ -262,5 +262,11 @@ hyp_status hyp__fit_drift(hyp__work *w, hyp_error *err)
     }
     if (fit_calibrated(w, d))
         return hyp_error_set(err, HYP_ERR_NODATA, "the calibrations do not determine an offset (ill-conditioned fit)");
+    if (d->n_knots >= 2)
+        d->rate_pa_per_s = (d->knot_pa[d->n_knots - 1] - d->knot_pa[0]) / (d->knot_s[d->n_knots - 1] - d->knot_s[0]);
+    /* dz (1 + s) = dz Tv' / Tv: a scale s is a column temperature error of
+     * s Tv; 285 K is a nominal column (15 K below ISA sea level: a rough
+     * figure for a field day at height, common practice, no source) */
+    d->scale_tcol_k = d->has_scale ? d->scale * 285.0 : 0.0;
     return HYP_OK;
 }

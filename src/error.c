@@ -35,13 +35,16 @@ void hyp_msgs_free(hyp_msgs *m)
 {
     if (!m)
         return;
-    for (size_t i = 0; i < m->count; i++)
+    for (size_t i = 0; i < m->count; i++) {
         free(m->items[i].text);
+        free(m->items[i].file);
+    }
     free(m->items);
     hyp_msgs_init(m);
 }
 
-void hyp_msgs_add(hyp_msgs *m, hyp_level level, const char *fmt, ...)
+static void msgs_vadd(hyp_msgs *m, hyp_level level, const char *code, const char *file, unsigned line,
+                      const char *fmt, va_list ap)
 {
     if (!m)
         return;
@@ -61,18 +64,38 @@ void hyp_msgs_add(hyp_msgs *m, hyp_level level, const char *fmt, ...)
         m->alloc = n;
     }
     char buf[1024];
-    va_list ap;
-    va_start(ap, fmt);
     vsnprintf(buf, sizeof buf, fmt, ap);
-    va_end(ap);
     char *text = strdup(buf);
-    if (!text) {
+    char *f = file ? strdup(file) : NULL;
+    if (!text || (file && !f)) {
+        free(text);
+        free(f);
         m->dropped++;
         return;
     }
-    m->items[m->count].level = level;
-    m->items[m->count].text = text;
-    m->count++;
+    hyp_msg *it = &m->items[m->count++];
+    it->level = level;
+    it->code = code ? code : "";
+    it->file = f;
+    it->line = line;
+    it->text = text;
+}
+
+void hyp_msgs_add(hyp_msgs *m, hyp_level level, const char *fmt, ...)
+{
+    va_list ap;
+    va_start(ap, fmt);
+    msgs_vadd(m, level, "", NULL, 0, fmt, ap);
+    va_end(ap);
+}
+
+void hyp_msgs_add_at(hyp_msgs *m, hyp_level level, const char *code, const char *file, unsigned line,
+                     const char *fmt, ...)
+{
+    va_list ap;
+    va_start(ap, fmt);
+    msgs_vadd(m, level, code, file, line, fmt, ap);
+    va_end(ap);
 }
 
 const char *hyp_status_name(hyp_status s)

@@ -3,7 +3,8 @@
  * offsets the reader recorded; and a new GPX 1.1 for rovers read from CSV. */
 #define _GNU_SOURCE   /* fwrite_unlocked */
 #include "hypsolev/writers.h"
-#include "outfile.h"
+#include "output_set.h"
+#include "writers_int.h"
 #include "fmtnum.h"
 
 #include <errno.h>
@@ -418,30 +419,24 @@ static void *second_half(void *arg)
 /* Below this many points one thread writes: a thread is not worth it. */
 #define SPLIT_MIN_POINTS 20000
 
-hyp_status hyp_gpx_write_spliced(const char *in_path, const hyp_gpx_doc *doc,
-                                 const hyp_correct_result *res, const hyp_output_info *info,
-                                 const char *out_path, hyp_error *err)
+hyp_status hyp__gpx_splice_to(const char *in_path, const hyp_gpx_doc *doc, const hyp_correct_result *res,
+                              const hyp_output_info *info, hyp__outfile *o, hyp_error *err)
 {
-    if (hyp_same_file(in_path, out_path))
-        return hyp_error_set(err, HYP_ERR_USAGE, "%s: output would overwrite the input; choose another name", out_path);
+    const char *out_path = o->final[0] ? o->final : "standard output";
     if (res->count != doc->pts.count)
         return hyp_error_set(err, HYP_ERR_INTERNAL, "%s: result does not match the track", in_path);
     src *s = calloc(1, sizeof *s);
     if (!s)
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
-    hyp__outfile o;
     const char *vref = info ? info->vref : NULL;
     hyp_status st = open_src(s, in_path, doc, err);
     if (st) {
         free(s);
         return st;
     }
-    st = hyp__out_open(&o, out_path, err);
-    if (st)
-        goto close_in;
     size_t n = doc->pts.count, m = n / 2;
-    int split = info && info->threads >= 2 && n >= SPLIT_MIN_POINTS && !o.to_stdout;
-    half h = {in_path, o.tmp, doc, res, vref, m, 0, 0, 0, {0}, HYP_OK};
+    int split = info && info->threads >= 2 && n >= SPLIT_MIN_POINTS && o->kind == HYP__OUT_STAGED;
+    half h = {in_path, o->tmp, doc, res, vref, m, 0, 0, 0, {0}, HYP_OK};
     pthread_t tid;
     if (split) {
         /* the anchor before point m, and point m's own: where the halves meet */
@@ -450,7 +445,7 @@ hyp_status hyp_gpx_write_spliced(const char *in_path, const hyp_gpx_doc *doc,
         h.start = h.anchor_before + doc->layout.pt_step[m];
         split = h.start > 0 && pthread_create(&tid, NULL, second_half, &h) == 0;
     }
-    sink k = {o.f, 0, 0};
+    sink k = {o->f, 0, 0};
     if (split) {
         st = splice_range(s, &k, in_path, doc, res, vref, 0, m, 0, h.start, err);
         pthread_join(tid, NULL);
@@ -463,26 +458,34 @@ hyp_status hyp_gpx_write_spliced(const char *in_path, const hyp_gpx_doc *doc,
         st = splice_range(s, &k, in_path, doc, res, vref, 0, n, 0, 0, err);
     if (!st && k.failed)
         st = hyp_error_set(err, HYP_ERR_IO, "write error: %s; nothing written", strerror(errno));
-    if (!st)
-        st = hyp__out_commit(&o, err);
-    else
-        hyp__out_abort(&o);
-close_in:
     fclose(s->f);
     free(s);
     return st;
 }
 
-hyp_status hyp_gpx_write_new(const hyp_series *s, const hyp_correct_result *res, const hyp_output_info *info,
-                             const char *track_name, const char *out_path, hyp_error *err)
+hyp_status hyp_gpx_write_spliced(const char *in_path, const hyp_gpx_doc *doc,
+                                 const hyp_correct_result *res, const hyp_output_info *info,
+                                 const char *out_path, hyp_error *err)
 {
+    if (hyp_same_file(in_path, out_path))
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s: output would overwrite the input; choose another name", out_path);
     hyp__outfile o;
+    hyp__stale_remove(out_path);
     hyp_status st = hyp__out_open(&o, out_path, err);
-    if (st)
-        return st;
+    if (!st)
+        st = hyp__gpx_splice_to(in_path, doc, res, info, &o, err);
+    if (!st)
+        return hyp__out_commit(&o, err);
+    hyp__out_abort(&o);
+    return st;
+}
+
+hyp_status hyp__gpx_new_to(const hyp_series *s, const hyp_correct_result *res, const hyp_output_info *info,
+                           const char *track_name, hyp__outfile *o, hyp_error *err)
+{
     char name[256];
     escape_into(name, sizeof name, track_name ? track_name : "track");
-    FILE *f = o.f;
+    FILE *f = o->f;
     fprintf(f, "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n"
                "<gpx version=\"1.1\" creator=\"hypsolev\" xmlns=\"http://www.topografix.com/GPX/1/1\" xmlns:%s=\"%s\">\n",
             HYP_GPX_PREFIX, HYP_GPX_NS);
@@ -528,9 +531,22 @@ hyp_status hyp_gpx_write_new(const hyp_series *s, const hyp_correct_result *res,
         put_str(&k, "</extensions></trkpt>\n");
     }
     fputs("    </trkseg>\n  </trk>\n</gpx>\n", f);
-    if (k.failed) {
-        hyp__out_abort(&o);
-        return hyp_error_set(err, HYP_ERR_IO, "%s: write error: %s; nothing written", out_path, strerror(errno));
-    }
-    return hyp__out_commit(&o, err);
+    if (k.failed)
+        return hyp_error_set(err, HYP_ERR_IO, "%s: write error: %s; nothing written",
+                             o->final[0] ? o->final : "standard output", strerror(errno));
+    return HYP_OK;
+}
+
+hyp_status hyp_gpx_write_new(const hyp_series *s, const hyp_correct_result *res, const hyp_output_info *info,
+                             const char *track_name, const char *out_path, hyp_error *err)
+{
+    hyp__outfile o;
+    hyp__stale_remove(out_path);
+    hyp_status st = hyp__out_open(&o, out_path, err);
+    if (!st)
+        st = hyp__gpx_new_to(s, res, info, track_name, &o, err);
+    if (!st)
+        return hyp__out_commit(&o, err);
+    hyp__out_abort(&o);
+    return st;
 }

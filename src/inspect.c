@@ -4,6 +4,8 @@
 #include "stats.h"
 
 #include <math.h>
+#include <stdio.h>
+#include "hypsolev/timeparse.h"
 #include <stdlib.h>
 #include <string.h>
 
@@ -276,4 +278,34 @@ out:
     if (st)
         hyp_inspection_free(r);
     return st;
+}
+
+void hyp_issue_format(const hyp_issue *is, char *buf, size_t n)
+{
+    char a[40], b[40];
+    hyp_time_format(is->start_s, a, sizeof a);
+    hyp_time_format(is->end_s, b, sizeof b);
+    switch (is->kind) {
+    case HYP_ISSUE_GAP:
+        snprintf(buf, n, "gap          %s to %s (%.1f min without samples)", a, b, is->size / 60.0);
+        return;
+    case HYP_ISSUE_SPIKE:
+        snprintf(buf, n, "spike        %s: %+.2f hPa off its neighbours", a, is->size / 100.0);
+        return;
+    case HYP_ISSUE_STEP:
+        snprintf(buf, n, "step         %s: %+.2f hPa lasting jump", b, is->size / 100.0);
+        return;
+    case HYP_ISSUE_FLAT:
+        snprintf(buf, n, "flat line    %s to %s at %.2f hPa (frozen sensor?)", a, b, is->size / 100.0);
+        return;
+    case HYP_ISSUE_CLOCK_JUMP:
+        snprintf(buf, n, "clock jump   %s: time went back %.0f s", a, -is->size);
+        return;
+    case HYP_ISSUE_RAPID:
+        snprintf(buf, n, "rapid change %s to %s, up to %.2f hPa/h", a, b, is->size * 36.0);
+        return;
+    case HYP_ISSUE_KIND_COUNT:
+        break;
+    }
+    snprintf(buf, n, "unknown issue");
 }

@@ -215,12 +215,12 @@ static double pick_lon(const hyp__work *w, size_t i)
 
 hyp_point_status hyp__field_inputs(const hyp__work *w, size_t i, hyp__in *in, double *chi2)
 {
-    double bx[HYP__MAX_BASES], by[HYP__MAX_BASES];
+    double bx[HYP_MAX_BASES], by[HYP_MAX_BASES];
     for (size_t k = 0; k < w->nb; k++)
         local_xy(w, w->bases[k].lat_deg, w->bases[k].lon_deg, &bx[k], &by[k]);
     if (chi2)
         *chi2 = NAN;
-    double pk[HYP__MAX_BASES], tsum = 0, a[HYP__MAX_BASES * 3], b[HYP__MAX_BASES];
+    double pk[HYP_MAX_BASES], tsum = 0, a[HYP_MAX_BASES * 3], b[HYP_MAX_BASES];
     hyp_point_status st = HYP_PT_OK;
     for (size_t k = 0; k < w->nb && !st; k++) {
         double tr;

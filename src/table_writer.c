@@ -4,7 +4,8 @@
  * degC for temperature. */
 #define _GNU_SOURCE   /* fwrite_unlocked */
 #include "hypsolev/writers.h"
-#include "outfile.h"
+#include "output_set.h"
+#include "writers_int.h"
 #include "fmtnum.h"
 
 #include <math.h>
@@ -19,17 +20,13 @@ static void num(FILE *f, double v, int prec)
     fwrite_unlocked(b, 1, (size_t)n + 1, f);   /* the FILE is this writer's alone */
 }
 
-hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res, const hyp_output_info *info,
-                           const char *out_path, hyp_error *err)
+hyp_status hyp__table_to(const hyp_series *s, const hyp_correct_result *res, const hyp_output_info *info,
+                         hyp__outfile *o, hyp_error *err)
 {
     hyp_output_info none = {0};
     if (!info)
         info = &none;
-    hyp__outfile o;
-    hyp_status st = hyp__out_open(&o, out_path, err);
-    if (st)
-        return st;
-    FILE *f = o.f;
+    FILE *f = o->f;
     fputs("time,lat,lon,ele_in,height,sigma,p_rover_hpa,p_base_hpa,offset_hpa,tcol_c", f);
     for (int k = 0; k < HYP_B_COUNT; k++)
         fprintf(f, ",sigma_%s", hyp_budget_term_name((hyp_budget_term)k));
@@ -74,5 +71,20 @@ hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res, c
         fputs_unlocked(why, f);
         fputc_unlocked('\n', f);
     }
-    return hyp__out_commit(&o, err);
+    (void)err;   /* write errors are found when the set is committed */
+    return HYP_OK;
+}
+
+hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res, const hyp_output_info *info,
+                           const char *out_path, hyp_error *err)
+{
+    hyp__outfile o;
+    hyp__stale_remove(out_path);
+    hyp_status st = hyp__out_open(&o, out_path, err);
+    if (!st)
+        st = hyp__table_to(s, res, info, &o, err);
+    if (!st)
+        return hyp__out_commit(&o, err);
+    hyp__out_abort(&o);
+    return st;
 }

@@ -29,6 +29,9 @@ typedef enum hyp_tcol_mode {
 
 typedef struct hyp_window { double start_s, end_s; } hyp_window;
 
+/* The most bases one correction uses. */
+#define HYP_MAX_BASES 16
+
 typedef enum hyp_base_kind {
     HYP_BASE_STATION = 0,    /* the log holds the station's own pressure */
     HYP_BASE_QNH = 1         /* the log holds sea-level pressure (QNH) of a
@@ -195,6 +198,10 @@ typedef struct hyp_drift {
     double knot_pa[HYP_MAX_KNOTS];
     int has_scale;
     double scale, scale_sigma; /* dimensionless: h = base + dz (1 + scale) */
+    double scale_tcol_k;       /* the scale as a column temperature error, K:
+                                  scale times a nominal 285 K column */
+    double rate_pa_per_s;      /* drift between the first and last knot, Pa/s
+                                  (0 with fewer than two knots) */
     size_t p;                  /* parameters: knots, then the scale */
     double cov[(HYP_MAX_KNOTS + 1) * (HYP_MAX_KNOTS + 1)];
     double chi2;
@@ -266,7 +273,7 @@ typedef struct hyp_correct_result {
     hyp_method method_used;
     char method_why[200];
     size_t n_bases;
-    double base_offset_pa[16], base_offset_sigma_pa[16];
+    double base_offset_pa[HYP_MAX_BASES], base_offset_sigma_pa[HYP_MAX_BASES];
     int bases_compared;
     double implied_tcol_k, thermo_tcol_k;
     size_t n_extrapolated;     /* two-base points outside the bracket, within the limit */

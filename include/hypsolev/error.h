@@ -30,8 +30,17 @@ typedef struct hyp_error {
 
 typedef enum hyp_level { HYP_NOTE = 0, HYP_WARNING = 1 } hyp_level;
 
+/* A message about an input: its level, a short code saying what kind of
+ * message it is (stable, for filtering: "sample", "unit", "base-quality",
+ * "calibration", "fit", "gnss", "clock", "method", "output", "input";
+ * "" when unclassified), the file and line (or record) it is about (NULL
+ * and 0 when none), and its text, which does not repeat the file and line:
+ * hyp_msgs_write prints "file:line: text". */
 typedef struct hyp_msg {
     hyp_level level;
+    const char *code;   /* a static string, never NULL */
+    char *file;         /* NULL: not about one file */
+    unsigned line;      /* 0: not about one line */
     char *text;
 } hyp_msg;
 
@@ -61,6 +70,15 @@ void hyp_msgs_free(hyp_msgs *m);
 void hyp_msgs_add(hyp_msgs *m, hyp_level level, const char *fmt, ...)
 #if defined(__GNUC__)
     __attribute__((format(printf, 3, 4)))
+#endif
+    ;
+
+/* The same, with the message's code, file and line (file may be NULL,
+ * line 0). */
+void hyp_msgs_add_at(hyp_msgs *m, hyp_level level, const char *code, const char *file, unsigned line,
+                     const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 6, 7)))
 #endif
     ;
 

@@ -15,5 +15,7 @@
 #include "hypsolev/writers.h"
 #include "hypsolev/vertical.h"
 #include "hypsolev/inspect.h"
+#include "hypsolev/marks.h"
+#include "hypsolev/survey.h"
 
 #endif

@@ -30,6 +30,10 @@ typedef struct hyp_issue {
     unsigned line;          /* first line involved */
 } hyp_issue;
 
+/* One line describing an issue, without its file line (is->line):
+ * "gap          2026-06-18T07:00:00Z to ... (12.0 min without samples)". */
+void hyp_issue_format(const hyp_issue *is, char *buf, size_t n);
+
 typedef struct hyp_inspect_opts {
     double gap_factor;      /* a gap is longer than this many intervals, default 5 */
     double min_gap_s;       /* ... and than this, default 60 s */

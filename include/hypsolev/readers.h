@@ -9,6 +9,7 @@
 #include "hypsolev/samples.h"
 #include "hypsolev/timeparse.h"
 #include "hypsolev/units.h"
+#include "hypsolev/marks.h"
 
 #ifdef __cplusplus
 extern "C" {
@@ -84,11 +85,6 @@ typedef struct hyp_gpx_point {
  * leaves it ready for point i + 1. */
 void hyp_gpx_point_next(const hyp_gpx_layout *L, size_t i, int64_t *anchor, hyp_gpx_point *p);
 
-typedef struct hyp_waypoints {
-    size_t count, alloc;
-    char **name;
-    double *time_s, *lat_deg, *lon_deg;
-} hyp_waypoints;
 
 typedef struct hyp_gpx_doc {
     hyp_series pts;         /* one sample per trkpt/rtept, in file order */
@@ -118,30 +114,11 @@ hyp_status hyp_csv_read(const char *path, const hyp_read_opts *opts,
                         hyp_series *out, hyp_unit *pressure_unit_found,
                         hyp_msgs *msgs, hyp_error *err);
 
-/* Known points: a CSV with a header and columns name, lat, lon (degrees),
- * height (m), optional sigma (m, the known height's 1-sigma; default
- * `default_sigma_m`) and optional note. */
-typedef struct hyp_benchmarks {
-    size_t count, alloc;
-    char **name;
-    char **note;
-    double *lat_deg, *lon_deg, *height_m, *sigma_m;
-} hyp_benchmarks;
 
-void hyp_benchmarks_init(hyp_benchmarks *b);
-void hyp_benchmarks_free(hyp_benchmarks *b);
+
+/* Reads known points (see hyp_benchmarks in marks.h). */
 hyp_status hyp_benchmarks_read(const char *path, double default_sigma_m, hyp_benchmarks *out,
                                hyp_msgs *msgs, hyp_error *err);
-/* Index of the benchmark called name (case-insensitive), or -1. */
-long hyp_benchmarks_find(const hyp_benchmarks *b, const char *name);
-
-/* An explicit tie: the rover stood on benchmark `name` from start to end
- * (true time). The name "base" means the (first) base station. */
-typedef struct hyp_tie_spec {
-    char name[64];
-    double start_s, end_s;
-    unsigned line;
-} hyp_tie_spec;
 
 /* Reads a tie list: CSV with columns name, start, end (times as in logs;
  * `zone` for times without one). Every name must be "base" or one of
@@ -149,15 +126,6 @@ typedef struct hyp_tie_spec {
 hyp_status hyp_ties_read(const char *path, const hyp_zone *zone, const hyp_benchmarks *benchmarks,
                          hyp_tie_spec **out, size_t *count, hyp_error *err);
 
-/* An index of base logs in a folder (--base-dir): a CSV named bases.csv
- * with columns file (relative to the folder), height (m), optional lat,
- * lon (degrees), clock_offset (s) and kind ("station" or "qnh"). */
-typedef struct hyp_base_entry {
-    char file[256];
-    double height_m, lat_deg, lon_deg, clock_offset_s;
-    int qnh;
-    unsigned line;
-} hyp_base_entry;
 
 hyp_status hyp_base_index_read(const char *path, hyp_base_entry **out, size_t *count, hyp_error *err);
 

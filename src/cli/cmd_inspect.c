@@ -24,34 +24,15 @@ static void help(void)
     cli_print_safety();
 }
 
-/* One line per problem, as the summary of correct prints them too. */
-void cli_print_issue(FILE *f, const char *indent, const hyp_issue *is)
+/* One line per problem, with its file line. */
+static void print_issue(const hyp_issue *is)
 {
-    char a[40], b[40];
-    hyp_time_format(is->start_s, a, sizeof a);
-    hyp_time_format(is->end_s, b, sizeof b);
-    switch (is->kind) {
-    case HYP_ISSUE_GAP:
-        fprintf(f, "%sgap          %s to %s (%.1f min without samples), line %u\n", indent, a, b, is->size / 60.0, is->line);
-        break;
-    case HYP_ISSUE_SPIKE:
-        fprintf(f, "%sspike        %s: %+.2f hPa off its neighbours, line %u\n", indent, a, is->size / 100.0, is->line);
-        break;
-    case HYP_ISSUE_STEP:
-        fprintf(f, "%sstep         %s: %+.2f hPa lasting jump, line %u\n", indent, b, is->size / 100.0, is->line);
-        break;
-    case HYP_ISSUE_FLAT:
-        fprintf(f, "%sflat line    %s to %s at %.2f hPa (frozen sensor?), line %u\n", indent, a, b, is->size / 100.0, is->line);
-        break;
-    case HYP_ISSUE_CLOCK_JUMP:
-        fprintf(f, "%sclock jump   %s: time went back %.0f s, line %u\n", indent, a, -is->size, is->line);
-        break;
-    case HYP_ISSUE_RAPID:
-        fprintf(f, "%srapid change %s to %s, up to %.2f hPa/h\n", indent, a, b, is->size * 36.0);
-        break;
-    case HYP_ISSUE_KIND_COUNT:
-        break;
-    }
+    char line[300];
+    hyp_issue_format(is, line, sizeof line);
+    if (is->kind == HYP_ISSUE_RAPID)
+        printf("    %s\n", line);
+    else
+        printf("    %s, line %u\n", line, is->line);
 }
 
 static int inspect_one(const char *path, const hyp_read_opts *ro)
@@ -72,8 +53,7 @@ static int inspect_one(const char *path, const hyp_read_opts *ro)
         pu = d.pressure_unit;
     } else
         st = hyp_csv_read(path, ro, &s, &pu, &m, &err);
-    for (size_t i = 0; i < m.count; i++)
-        fprintf(stderr, "hypsolev: %s: %s\n", m.items[i].level == HYP_WARNING ? "warning" : "note", m.items[i].text);
+    hyp_msgs_write(stderr, &m, HYP_NOTE);
     hyp_inspection r;
     if (!st)
         st = hyp_inspect(ser, NULL, &r, &err);
@@ -109,7 +89,7 @@ static int inspect_one(const char *path, const hyp_read_opts *ro)
     putchar('\n');
     printf("  problems    %s\n", r.n_issues ? "" : "none found");
     for (size_t i = 0; i < r.n_issues; i++)
-        cli_print_issue(stdout, "    ", &r.issues[i]);
+        print_issue(&r.issues[i]);
     hyp_inspection_free(&r);
     hyp_series_free(&s);
     hyp_gpx_doc_free(&d);
@@ -131,7 +111,7 @@ int cmd_inspect(int argc, char **argv)
     int nf = 0, c, rc = 0;
     opterr = 0;
     optind = 1;
-    while ((c = getopt_long(argc, argv, "-", lo, NULL)) != -1) {
+    while ((c = getopt_long(argc, argv, "-:", lo, NULL)) != -1) {
         hyp_error err;
         switch (c) {
         case 1:
@@ -156,9 +136,7 @@ int cmd_inspect(int argc, char **argv)
             break;
         case 'h': help(); return 0;
         default:
-            fprintf(stderr, "hypsolev inspect: option \"%s\" is unknown or needs a value\n(hypsolev inspect --help lists the options)\n",
-                    argv[optind - 1]);
-            return EXIT_USAGE;
+            return cli_bad_option("inspect", argv[optind - 1], optopt, c == ':');
         }
     }
     if (!nf) {

@@ -1,0 +1,60 @@
+/* marks.h - what a survey knows besides its logs: benchmarks (points of
+ * known height), explicit ties, GPX waypoints and the index of a folder of
+ * base logs. Plain structs filled by the readers (readers.h). */
+#ifndef HYPSOLEV_MARKS_H
+#define HYPSOLEV_MARKS_H
+
+#include <stddef.h>
+#include "hypsolev/export.h"
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+/* Named GPX waypoints (<wpt>): time (s, UTC; NaN when none) and place. */
+typedef struct hyp_waypoints {
+    size_t count, alloc;
+    char **name;
+    double *time_s, *lat_deg, *lon_deg;
+} hyp_waypoints;
+
+HYP_API void hyp_waypoints_init(hyp_waypoints *w);
+HYP_API void hyp_waypoints_free(hyp_waypoints *w);
+
+/* Known points: a CSV with a header and columns name, lat, lon (degrees),
+ * height (m), optional sigma (m, the known height's 1-sigma; default
+ * `default_sigma_m`) and optional note. */
+typedef struct hyp_benchmarks {
+    size_t count, alloc;
+    char **name;
+    char **note;
+    double *lat_deg, *lon_deg, *height_m, *sigma_m;
+} hyp_benchmarks;
+
+void hyp_benchmarks_init(hyp_benchmarks *b);
+void hyp_benchmarks_free(hyp_benchmarks *b);
+/* Index of the benchmark called name (case-insensitive), or -1. */
+long hyp_benchmarks_find(const hyp_benchmarks *b, const char *name);
+
+/* An explicit tie: the rover stood on benchmark `name` from start to end
+ * (true time). The name "base" means the (first) base station. */
+typedef struct hyp_tie_spec {
+    char name[64];
+    double start_s, end_s;
+    unsigned line;
+} hyp_tie_spec;
+
+/* An index of base logs in a folder (--base-dir): a CSV named bases.csv
+ * with columns file (relative to the folder), height (m), optional lat,
+ * lon (degrees), clock_offset (s) and kind ("station" or "qnh"). */
+typedef struct hyp_base_entry {
+    char file[256];
+    double height_m, lat_deg, lon_deg, clock_offset_s;
+    int qnh;
+    unsigned line;
+} hyp_base_entry;
+
+#ifdef __cplusplus
+}
+#endif
+#endif

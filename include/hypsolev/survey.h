@@ -1,0 +1,223 @@
+/* survey.h - a survey run: everything `hypsolev correct` does, as a
+ * library. Open a run with its options, add its bases, run one rover or
+ * many (worker threads, progress), read each rover's result, free it.
+ * Reader choice, base selection by time, vertical references, projection,
+ * output naming, staging and the all-or-nothing commit of a rover's
+ * outputs all happen behind these calls.
+ *
+ *   hyp_survey *sv;
+ *   hyp_survey_opts o;  hyp_survey_opts_init(&o);
+ *   hyp_survey_new(&sv, &o, &msgs, &err);
+ *   hyp_base_spec b;    hyp_base_spec_init(&b, "base.csv", 812.4);
+ *   hyp_survey_add_base(sv, &b, &msgs, &err);
+ *   hyp_outputs out = {.gpx = "walk-corrected.gpx"};
+ *   hyp_rover_run *run;
+ *   hyp_survey_run(sv, "walk.gpx", &out, &run, &err);
+ *   hyp_rover_run_write_text(stdout, run, HYP_TEXT_ALL);
+ *   hyp_rover_run_free(run);
+ *   hyp_survey_free(sv);
+ */
+#ifndef HYPSOLEV_SURVEY_H
+#define HYPSOLEV_SURVEY_H
+
+#include <stddef.h>
+#include <stdio.h>
+#include "hypsolev/export.h"
+#include "hypsolev/error.h"
+#include "hypsolev/samples.h"
+#include "hypsolev/units.h"
+#include "hypsolev/geo.h"
+#include "hypsolev/correct.h"
+#include "hypsolev/readers.h"
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+typedef struct hyp_survey hyp_survey;
+
+/* One base station's log and what is known of it. */
+typedef struct hyp_base_spec {
+    const char *path;          /* the log (CSV or GPX) */
+    double height_m;           /* height of the base sensor, m (required) */
+    double lat_deg, lon_deg;   /* position, degrees; NaN when not given */
+    double clock_offset_s;     /* s the logger's clock is ahead of true time */
+    const char *time_zone;     /* zone of stamps that carry none; NULL: none */
+    hyp_base_kind kind;        /* station pressure, or a QNH series */
+    double offset_pa;          /* the base reads this much high, Pa; NaN: unknown */
+    double offset_sigma_pa;
+} hyp_base_spec;
+
+/* path and height; no position, clock offset 0, station pressure, offset
+ * unknown. */
+HYP_API void hyp_base_spec_init(hyp_base_spec *b, const char *path, double height_m);
+
+typedef struct hyp_survey_opts {
+    hyp_correct_opts correct;  /* the science (see correct.h); its benchmarks,
+                                  ties, colocate, waypoints, gnss_height_m and
+                                  threads are set by the run from the fields
+                                  below */
+    hyp_read_opts read;        /* how logs are read (its zone is ignored:
+                                  rover_time_zone and each base's own) */
+    const char *rover_time_zone;      /* NULL: stamps must carry a zone */
+    const char *const *colocate;      /* "START/END" windows, ISO 8601 */
+    size_t n_colocate;
+    const char *bases_colocated;      /* "START/END" or NULL */
+    const char *benchmarks_path;      /* NULL: none */
+    double benchmark_sigma_m;         /* for benchmarks that give none, default 0.01 m */
+    const char *ties_path;            /* NULL: none */
+    hyp_vref gnss_ref;                /* what the track's own ele is (default geoid) */
+    hyp_vref known_ref;               /* base and benchmark heights (default geoid) */
+    hyp_vref out_ref;                 /* heights written (default: known_ref) */
+    int out_ref_set;                  /* 0: out_ref follows known_ref */
+    const char *crs;                  /* easting/northing CRS, NULL: none */
+    int threads;                      /* threads in all, default 0: one per core */
+    int check_bases;                  /* warn about base log problems, default 1 */
+    /* Polled between steps: once it returns non-zero no output is renamed
+     * into place (a signal handler may set what it reads). NULL: never. */
+    int (*cancelled)(void *ctx);
+    void *cancel_ctx;
+} hyp_survey_opts;
+
+HYP_API void hyp_survey_opts_init(hyp_survey_opts *o);
+
+/* Where a rover's outputs go. Every output named is written through a
+ * staging file, and all of a rover's outputs are renamed into place
+ * together, only when each is complete and on disk. */
+typedef struct hyp_outputs {
+    const char *gpx;           /* corrected GPX (one rover only) */
+    const char *table;         /* per-sample CSV; "-" is standard output */
+    const char *report;        /* the run's text report (one rover only) */
+    const char *dir;           /* DIR/NAME.gpx, DIR/NAME.csv (unless table is
+                                  given) and DIR/NAME.report.txt per rover */
+    int overwrite;             /* with dir: replace existing outputs; else the
+                                  rover is skipped */
+} hyp_outputs;
+
+/* A base as one rover's correction used it. */
+typedef struct hyp_base_used {
+    const char *path;
+    const hyp_series *log;
+    hyp_unit pressure_unit;    /* as found or inferred */
+    double height_m, lat_deg, lon_deg;
+    double clock_offset_s;     /* as given (the result says what was applied) */
+    hyp_base_kind kind;
+} hyp_base_used;
+
+struct hyp__rover_priv;
+
+/* Everything about one rover's run that the summary, the report and the
+ * batch summary print. Valid until hyp_rover_run_free. */
+typedef struct hyp_rover_run {
+    const char *path;          /* the rover file as given */
+    char name[256];            /* file name without folder and extension */
+    hyp_status status;         /* HYP_OK, or why the rover could not be used */
+    hyp_error error;
+    int skipped;               /* outputs exist and overwrite was not asked:
+                                  nothing written (error.message says which) */
+    hyp_msgs msgs;             /* this rover's warnings and notes, in order */
+    const hyp_series *rover;   /* as read (NULL when it could not be read) */
+    hyp_unit rover_pressure_unit;
+    size_t n_bases;
+    hyp_base_used bases[HYP_MAX_BASES];
+    hyp_correct_result result; /* heights in out_ref */
+    hyp_vref gnss_ref, known_ref, out_ref;
+    const float *gnss_out_m;   /* the track's own heights in out_ref */
+    const double *easting_m, *northing_m;  /* NULL without a CRS */
+    char crs_name[256];
+    double rapid_pa_per_s;     /* the tendency called rapid */
+    size_t n_written;
+    const char *written[4];    /* the outputs written ("-" standard output) */
+    struct hyp__rover_priv *priv;
+} hyp_rover_run;
+
+HYP_API void hyp_rover_run_free(hyp_rover_run *r);
+
+/* The small part of a rover's run that a batch summary lists. */
+typedef struct hyp_run_info {
+    const char *path;          /* the rover file as given */
+    int started;               /* 0: not run (interrupted before it) */
+    hyp_status status;
+    int skipped;
+    size_t points, corrected, ties;
+    double median_sigma_m;     /* 1 sigma, m; NaN when none */
+    char method[48];
+    char message[1100];        /* "ok", "skipped: ...", the error, or
+                                  "not started (interrupted)" */
+} hyp_run_info;
+
+/* The exit status the program gives for a status: 0 ok, 1 an input could
+ * not be used, 2 a usage error (inconsistent request). */
+HYP_API int hyp_exit_status(hyp_status s);
+
+/* Opens a run: parses the zones and windows, reads the benchmarks and
+ * ties. Messages of those files go to msgs. */
+HYP_API hyp_status hyp_survey_new(hyp_survey **sv, const hyp_survey_opts *o, hyp_msgs *msgs, hyp_error *err);
+HYP_API void hyp_survey_free(hyp_survey *sv);
+
+/* Reads a base log now (its problems as warnings to msgs). At most
+ * HYP_MAX_BASES bases when every rover uses all of them. */
+HYP_API hyp_status hyp_survey_add_base(hyp_survey *sv, const hyp_base_spec *b, hyp_msgs *msgs, hyp_error *err);
+/* A folder of base logs listed in DIR/bases.csv (file, height, lat, lon,
+ * clock_offset, kind); each rover then gets the logs that cover at least
+ * 95 % of its time span. */
+HYP_API hyp_status hyp_survey_add_base_dir(hyp_survey *sv, const char *dir, hyp_msgs *msgs, hyp_error *err);
+
+/* Checks before anything runs that the outputs of these rovers are
+ * distinct, name no input (nor a hard link to one) and that their
+ * folders exist: HYP_ERR_USAGE (or HYP_ERR_IO) with a message otherwise. */
+HYP_API hyp_status hyp_survey_check_outputs(const hyp_survey *sv, const char *const *rovers, size_t n,
+                                            const hyp_outputs *out, const char *summary_path, hyp_error *err);
+
+/* Runs one rover: reads it, chooses its bases, corrects it, writes its
+ * outputs. *run is always set (free it) unless out of memory; its status
+ * says whether the rover succeeded. `threads` (0: the survey's) are those
+ * this rover's correction and writing may use. */
+HYP_API hyp_status hyp_survey_run(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
+                                  hyp_rover_run **run, hyp_error *err);
+
+/* Called as each rover ends, one call at a time (never concurrently), in
+ * the order they end; the run is freed after it returns. */
+typedef void (*hyp_rover_done_fn)(void *ctx, size_t index, const hyp_rover_run *run);
+/* Called about twice a second while rovers run, and once at the end;
+ * never while a done callback runs. */
+typedef void (*hyp_progress_fn)(void *ctx, size_t done, size_t n, double points_done);
+
+/* Runs n rovers on `jobs` worker threads (0: the survey's threads); the
+ * threads the workers leave idle go to each rover's own passes. infos[n]
+ * gets each rover's line of the batch summary. Returns HYP_OK when every
+ * rover was run (each may have failed: see infos), or the error that
+ * stopped the whole batch. */
+HYP_API hyp_status hyp_survey_run_many(hyp_survey *sv, const char *const *rovers, size_t n, const hyp_outputs *out,
+                                       int jobs, hyp_rover_done_fn done, hyp_progress_fn progress, void *ctx,
+                                       hyp_run_info *infos, hyp_error *err);
+
+/* What a text of a rover's run holds. */
+typedef enum hyp_text_parts {
+    HYP_TEXT_WARNINGS = 1,     /* warnings and the error */
+    HYP_TEXT_NOTES = 2,        /* notes */
+    HYP_TEXT_SUMMARY = 4,      /* the run summary with the error budget */
+    HYP_TEXT_ALL = 7
+} hyp_text_parts;
+
+/* Writes a rover's messages, its error or skip, and its summary (units on
+ * every number, the cautions last) as text. */
+HYP_API void hyp_rover_run_write_text(FILE *f, const hyp_rover_run *r, unsigned parts);
+/* Messages as "hypsolev: warning: TEXT" lines, those of level >= min. */
+HYP_API void hyp_msgs_write(FILE *f, const hyp_msgs *m, hyp_level min);
+
+typedef enum hyp_summary_format { HYP_SUMMARY_CSV = 0, HYP_SUMMARY_JSON = 1 } hyp_summary_format;
+
+/* The batch's table as text (one row per rover). */
+HYP_API void hyp_batch_table_write(FILE *f, const hyp_run_info *infos, size_t n);
+/* The batch summary as CSV or JSON into f. */
+HYP_API void hyp_batch_summary_write(FILE *f, const hyp_run_info *infos, size_t n, hyp_summary_format fmt);
+/* The same into a file (JSON when the name ends in .json), staged and
+ * renamed into place; refused when it names an input of the survey. */
+HYP_API hyp_status hyp_survey_write_summary(const hyp_survey *sv, const char *path, const hyp_run_info *infos,
+                                            size_t n, hyp_error *err);
+
+#ifdef __cplusplus
+}
+#endif
+#endif

@@ -1,0 +1,284 @@
+/* survey_batch.c - many rovers: a pool of worker threads, each rover's
+ * end reported one at a time, progress ticks for the caller; the checks of
+ * a batch's outputs before anything runs; the batch summary file. */
+#define _GNU_SOURCE
+#include "survey_int.h"
+#include "output_set.h"
+#include "hypsolev/writers.h"
+
+#include <errno.h>
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <time.h>
+#include <unistd.h>
+
+#include <libxml/parser.h>
+
+/* ---- outputs checked before anything runs -------------------------- */
+
+/* Two names of one output file; a device or pipe (/dev/null) may take
+ * several outputs. */
+static int same_target(const char *a, const char *b)
+{
+    struct stat st;
+    if (!a[0] || !b[0] || (stat(a, &st) == 0 && !S_ISREG(st.st_mode)))
+        return 0;
+    return strcmp(a, b) == 0 || hyp_same_file(a, b);
+}
+
+static const char *target_opt(int k)
+{
+    return k == 0 ? "-o" : k == 1 ? "--table" : "--report";
+}
+
+/* One rover's outputs: each distinct, none an input. */
+static hyp_status check_rover_targets(const hyp_survey *sv, const hyp__rover_paths *p, const char *const *rovers,
+                                      size_t n, hyp_error *err)
+{
+    const char *t[3] = {p->gpx, p->table, p->report};
+    for (int k = 0; k < 3; k++) {
+        if (!t[k][0] || strcmp(t[k], "-") == 0)
+            continue;
+        if (hyp__survey_is_input(sv, t[k], rovers, n))
+            return hyp_error_set(err, HYP_ERR_USAGE, "%s: %s would overwrite an input; choose another name", t[k], target_opt(k));
+        for (int j = 0; j < k; j++)
+            if (same_target(t[j], t[k]))
+                return hyp_error_set(err, HYP_ERR_USAGE, "%s: named by both %s and %s; give each output its own name", t[k],
+                                     target_opt(j), target_opt(k));
+    }
+    if (!strcmp(p->gpx, "-") && !strcmp(p->table, "-"))
+        return hyp_error_set(err, HYP_ERR_USAGE, "-o - and --table - both go to standard output; give one a file name");
+    return HYP_OK;
+}
+
+static hyp_status check_names(const hyp_outputs *out, const char *summary, size_t n, hyp_error *err)
+{
+    const char *named[4] = {out->gpx, out->table, out->report, summary};
+    static const char *opt[4] = {"-o", "--table", "--report", "--summary"};
+    for (int k = 0; k < 4; k++)
+        if (named[k] && !named[k][0])
+            return hyp_error_set(err, HYP_ERR_USAGE, "%s \"\": an output needs a file name", opt[k]);
+    if (out->dir && !out->dir[0])
+        return hyp_error_set(err, HYP_ERR_USAGE, "--out-dir \"\": an output folder needs a name");
+    if (!out->gpx && !out->dir && !out->table)
+        return hyp_error_set(err, HYP_ERR_USAGE, "no output: give -o FILE.gpx, --out-dir DIR or --table FILE");
+    if (out->gpx && out->dir)
+        return hyp_error_set(err, HYP_ERR_USAGE, "-o and --out-dir both given; choose one");
+    if (n > 1 && out->gpx)
+        return hyp_error_set(err, HYP_ERR_USAGE, "-o names one output but several rovers are given; use --out-dir");
+    if (n > 1 && out->report)
+        return hyp_error_set(err, HYP_ERR_USAGE, "--report names one file but several rovers are given; --out-dir writes one report per rover");
+    if (n > 1 && out->table && strcmp(out->table, "-") != 0)
+        return hyp_error_set(err, HYP_ERR_USAGE, "--table names one file but several rovers are given; use --out-dir (it writes one table per rover)");
+    return HYP_OK;
+}
+
+hyp_status hyp_survey_check_outputs(const hyp_survey *sv, const char *const *rovers, size_t n, const hyp_outputs *out,
+                                    const char *summary_path, hyp_error *err)
+{
+    hyp_status st = check_names(out, summary_path, n, err);
+    if (st)
+        return st;
+    if (summary_path && strcmp(summary_path, "-") != 0 && hyp__survey_is_input(sv, summary_path, rovers, n))
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s: --summary would overwrite an input; choose another name", summary_path);
+    hyp__rover_paths *p = malloc(2 * sizeof *p);
+    if (!p)
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    for (size_t i = 0; i < n && !st; i++) {
+        hyp__rover_paths_make(out, rovers[i], &p[0]);
+        st = check_rover_targets(sv, &p[0], rovers, n, err);
+        const char *t[3] = {p[0].gpx, p[0].table, p[0].report};
+        for (int k = 0; k < 3 && !st; k++)
+            if (summary_path && same_target(t[k], summary_path))
+                st = hyp_error_set(err, HYP_ERR_USAGE, "%s: named by both %s and --summary; give each output its own name",
+                                   summary_path, target_opt(k));
+        /* two rovers of one name (in/walk.gpx and in/walk.csv, a/x.gpx and
+         * b/x.gpx, or one given twice) would write the same outputs */
+        for (size_t j = 0; out->dir && j < i && !st; j++) {
+            hyp__rover_paths_make(out, rovers[j], &p[1]);
+            if (same_target(p[0].gpx, p[1].gpx))
+                st = hyp_error_set(err, HYP_ERR_USAGE, "%s and %s would both write %s; rename one, or run them separately",
+                                   rovers[j], rovers[i], p[0].gpx);
+        }
+    }
+    free(p);
+    return st;
+}
+
+/* ---- many rovers on worker threads --------------------------------- */
+
+typedef struct batch {
+    hyp_survey *sv;
+    const char *const *rovers;
+    size_t n, next, done;
+    double points_done;
+    const hyp_outputs *out;
+    int rover_threads;
+    hyp_rover_done_fn done_fn;
+    void *ctx;
+    hyp_run_info *infos;
+    pthread_mutex_t lock, report_lock;
+    pthread_cond_t ended;
+} batch;
+
+static int batch_cancelled(const batch *b)
+{
+    return b->sv->o.cancelled && b->sv->o.cancelled(b->sv->o.cancel_ctx);
+}
+
+static void fill_info(hyp_run_info *in, const hyp_rover_run *r, hyp_status st, const hyp_error *err)
+{
+    in->started = 1;
+    in->median_sigma_m = NAN;
+    if (!r) {
+        in->status = st;
+        snprintf(in->message, sizeof in->message, "%s", err->message);
+        return;
+    }
+    in->status = r->status;
+    in->skipped = r->skipped;
+    in->points = r->rover ? r->rover->count : 0;
+    if (!r->status && r->rover) {
+        const hyp_correct_result *res = &r->result;
+        in->corrected = res->n_ok;
+        in->ties = res->n_calibs;
+        in->median_sigma_m = res->median_sigma_m;
+        snprintf(in->method, sizeof in->method, "%s", hyp_method_name(res->method_used ? res->method_used : HYP_METHOD_SINGLE));
+    }
+    if (r->skipped)
+        snprintf(in->message, sizeof in->message, "skipped: %s", r->error.message);
+    else
+        snprintf(in->message, sizeof in->message, "%s", r->status ? r->error.message : "ok");
+}
+
+static void run_index(batch *b, size_t i)
+{
+    hyp_rover_run *r = NULL;
+    hyp_error err;
+    hyp_error_clear(&err);
+    hyp_status st = hyp_survey_run(b->sv, b->rovers[i], b->out, b->rover_threads, &r, &err);
+    fill_info(&b->infos[i], r, st, &err);
+    if (b->done_fn) {
+        hyp_rover_run bare;   /* out of memory: the rover's error alone */
+        if (!r) {
+            memset(&bare, 0, sizeof bare);
+            bare.path = b->rovers[i];
+            bare.status = st;
+            bare.error = err;
+        }
+        pthread_mutex_lock(&b->report_lock);   /* one report at a time */
+        b->done_fn(b->ctx, i, r ? r : &bare);
+        pthread_mutex_unlock(&b->report_lock);
+    }
+    pthread_mutex_lock(&b->lock);
+    b->done++;
+    b->points_done += (double)b->infos[i].points;
+    pthread_cond_signal(&b->ended);
+    pthread_mutex_unlock(&b->lock);
+    hyp_rover_run_free(r);
+}
+
+static void *worker(void *arg)
+{
+    batch *b = arg;
+    for (;;) {
+        pthread_mutex_lock(&b->lock);
+        size_t i = b->next < b->n && !batch_cancelled(b) ? b->next++ : SIZE_MAX;
+        pthread_mutex_unlock(&b->lock);
+        if (i == SIZE_MAX)
+            return NULL;
+        run_index(b, i);
+    }
+}
+
+/* Waits for the workers, ticking the progress callback about twice a
+ * second; all workers idle and nothing left to start is the end. */
+static void wait_workers(batch *b, hyp_progress_fn progress)
+{
+    pthread_mutex_lock(&b->lock);
+    while (b->done < b->next || (b->next < b->n && !batch_cancelled(b))) {
+        struct timespec to;
+        clock_gettime(CLOCK_REALTIME, &to);
+        to.tv_nsec += 500 * 1000 * 1000;
+        if (to.tv_nsec >= 1000000000L)
+            to.tv_sec++, to.tv_nsec -= 1000000000L;
+        pthread_cond_timedwait(&b->ended, &b->lock, &to);
+        size_t done = b->done;
+        double pts = b->points_done;
+        pthread_mutex_unlock(&b->lock);
+        if (progress) {
+            pthread_mutex_lock(&b->report_lock);   /* never beside a done call */
+            progress(b->ctx, done, b->n, pts);
+            pthread_mutex_unlock(&b->report_lock);
+        }
+        pthread_mutex_lock(&b->lock);
+    }
+    pthread_mutex_unlock(&b->lock);
+}
+
+hyp_status hyp_survey_run_many(hyp_survey *sv, const char *const *rovers, size_t n, const hyp_outputs *out, int jobs,
+                               hyp_rover_done_fn done, hyp_progress_fn progress, void *ctx, hyp_run_info *infos,
+                               hyp_error *err)
+{
+    for (size_t i = 0; i < n; i++) {
+        memset(&infos[i], 0, sizeof infos[i]);
+        infos[i].path = rovers[i];
+        infos[i].median_sigma_m = NAN;
+        snprintf(infos[i].message, sizeof infos[i].message, "not started (interrupted)");
+    }
+    if (jobs <= 0) {
+        long cores = sysconf(_SC_NPROCESSORS_ONLN);
+        jobs = sv->o.threads > 0 ? sv->o.threads : (int)(cores > 0 ? cores : 1);
+    }
+    /* jobs is the number of threads in all: those the workers leave idle
+     * (fewer rovers than jobs) go to each rover's own passes */
+    size_t busy = (size_t)jobs < n ? (size_t)jobs : n;
+    batch b = {.sv = sv, .rovers = rovers, .n = n, .out = out, .done_fn = done, .ctx = ctx, .infos = infos};
+    b.rover_threads = busy && (size_t)jobs > busy ? (int)((size_t)jobs / busy) : 1;
+    pthread_mutex_init(&b.lock, NULL);
+    pthread_mutex_init(&b.report_lock, NULL);
+    pthread_cond_init(&b.ended, NULL);
+    xmlInitParser();   /* libxml2 wants its one-time set-up before threads */
+    pthread_t *th = busy > 1 ? calloc(busy, sizeof *th) : NULL;
+    size_t started = 0;
+    for (size_t k = 0; th && k < busy; k++)
+        if (pthread_create(&th[k], NULL, worker, &b) == 0)
+            started++;
+    if (!started)
+        worker(&b);   /* one worker, or no threads to be had: here */
+    else
+        wait_workers(&b, progress);
+    for (size_t k = 0; k < started; k++)
+        pthread_join(th[k], NULL);
+    if (progress)
+        progress(ctx, b.done, n, b.points_done);
+    free(th);
+    pthread_cond_destroy(&b.ended);
+    pthread_mutex_destroy(&b.report_lock);
+    pthread_mutex_destroy(&b.lock);
+    (void)err;
+    return HYP_OK;
+}
+
+/* ---- the batch summary file ---------------------------------------- */
+
+hyp_status hyp_survey_write_summary(const hyp_survey *sv, const char *path, const hyp_run_info *infos, size_t n,
+                                    hyp_error *err)
+{
+    if (strcmp(path, "-") != 0 && hyp__survey_is_input(sv, path, NULL, 0))
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s: --summary would overwrite an input; choose another name", path);
+    for (size_t i = 0; i < n; i++)
+        if (hyp_same_file(infos[i].path, path))
+            return hyp_error_set(err, HYP_ERR_USAGE, "%s: --summary would overwrite an input; choose another name", path);
+    size_t len = strlen(path);
+    hyp_summary_format fmt = len >= 5 && strcasecmp(path + len - 5, ".json") == 0 ? HYP_SUMMARY_JSON : HYP_SUMMARY_CSV;
+    hyp__outset set;
+    hyp__outset_init(&set);
+    hyp__outfile *o = hyp__outset_add(&set, path, err);
+    if (!o)
+        return err->status;
+    hyp_batch_summary_write(o->f, infos, n, fmt);
+    return hyp__outset_commit(&set, NULL, NULL, err);
+}

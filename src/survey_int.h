@@ -1,0 +1,71 @@
+/* survey_int.h - the survey run's private parts shared by survey.c (the
+ * run), survey_batch.c (many rovers) and run_text.c (the texts). */
+#ifndef HYP_SURVEY_INT_H
+#define HYP_SURVEY_INT_H
+
+#include <pthread.h>
+#include "hypsolev/survey.h"
+#include "hypsolev/readers.h"
+#include "hypsolev/marks.h"
+
+/* A log read by either reader. */
+typedef struct hyp__log {
+    int is_gpx;
+    hyp_gpx_doc doc;
+    hyp_series csv;
+    hyp_unit punit;
+} hyp__log;
+
+const hyp_series *hyp__log_series(const hyp__log *l);
+hyp_status hyp__log_read(const char *path, const hyp_read_opts *ro, hyp__log *l, hyp_msgs *msgs, hyp_error *err);
+void hyp__log_free(hyp__log *l);
+
+typedef struct hyp__pool_base {
+    hyp_base_spec spec;
+    char *path;            /* owned copy of spec.path */
+    hyp__log log;
+    double t0_s, t1_s;     /* true-time span of its valid samples */
+} hyp__pool_base;
+
+struct hyp_survey {
+    hyp_survey_opts o;
+    hyp_correct_opts copts;     /* with benchmarks, ties and windows set */
+    hyp_zone rover_zone;
+    hyp_window *windows;
+    hyp_benchmarks bms;
+    hyp_tie_spec *ties;
+    size_t n_ties;
+    hyp__pool_base *pool;
+    size_t n_pool, pool_alloc;
+    char *base_dir;             /* set: bases chosen per rover by time */
+    char *inputs[3];            /* bases.csv, benchmarks, ties (NULL when none) */
+    pthread_mutex_t lock;       /* the list below */
+    char **cleaned;             /* directories cleared of stale staging files */
+    size_t n_cleaned;
+};
+
+struct hyp__rover_priv {
+    hyp__log rv;
+    hyp_geo *geo;
+    float *own_known, *own_out;
+    double *east, *north;
+    char *paths[4];             /* owned strings behind run->written */
+};
+
+/* The bases a rover uses (indices into the pool). */
+hyp_status hyp__select_bases(const hyp_survey *sv, const hyp_series *rv, size_t *sel, size_t *n, hyp_error *err);
+
+/* The three outputs of a rover (empty strings where none). */
+typedef struct hyp__rover_paths {
+    char gpx[4096], table[4096], report[4096];
+} hyp__rover_paths;
+
+void hyp__rover_paths_make(const hyp_outputs *out, const char *rover, hyp__rover_paths *p);
+/* The file name of path without folder and extension. */
+void hyp__stem(const char *path, char *out, size_t n);
+/* Removes stale staging files of the run's directory once per survey. */
+void hyp__survey_clean_dir(hyp_survey *sv, const char *target);
+/* 1 when path names one of the survey's inputs (or a hard link to one). */
+int hyp__survey_is_input(const hyp_survey *sv, const char *path, const char *const *rovers, size_t n);
+
+#endif

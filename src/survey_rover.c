@@ -1,0 +1,301 @@
+/* survey_rover.c - one rover's run: read, choose its bases, prepare the
+ * heights and positions the outputs need, correct, convert, and write
+ * every output through one all-or-nothing output set. */
+#define _GNU_SOURCE
+#include "survey_int.h"
+#include "hypsolev/vertical.h"
+#include "hypsolev/writers.h"
+#include "output_set.h"
+#include "writers_int.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+
+typedef struct hyp__rover_priv priv_t;
+
+void hyp_rover_run_free(hyp_rover_run *r)
+{
+    if (!r)
+        return;
+    hyp_correct_result_free(&r->result);
+    hyp_msgs_free(&r->msgs);
+    priv_t *p = r->priv;
+    if (p) {
+        hyp__log_free(&p->rv);
+        hyp_geo_close(p->geo);
+        free(p->own_known);
+        free(p->own_out);
+        free(p->east);
+        free(p->north);
+        for (int k = 0; k < 4; k++)
+            free(p->paths[k]);
+        free(p);
+    }
+    free(r);
+}
+
+static hyp_rover_run *run_new(const char *path)
+{
+    hyp_rover_run *r = calloc(1, sizeof *r);
+    if (!r || !(r->priv = calloc(1, sizeof *r->priv))) {
+        free(r);
+        return NULL;
+    }
+    r->path = path;
+    hyp__stem(path, r->name, sizeof r->name);
+    hyp_msgs_init(&r->msgs);
+    hyp_error_clear(&r->error);
+    hyp_correct_result_init(&r->result);
+    hyp_gpx_doc_init(&r->priv->rv.doc);
+    hyp_series_init(&r->priv->rv.csv);
+    return r;
+}
+
+/* The track's heights in reference `to`: the series' own array when they
+ * are in it already (no copy), else a converted copy in *own. */
+static hyp_status track_heights(const hyp_survey *sv, priv_t *p, hyp_vref to, const float **out, float **own,
+                                hyp_error *err)
+{
+    const hyp_series *s = hyp__log_series(&p->rv);
+    if (to == sv->o.gnss_ref) {
+        *out = s->ele_m;
+        return HYP_OK;
+    }
+    if (!(*own = malloc((s->count ? s->count : 1) * sizeof(float))))
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    *out = *own;
+    const double *gh = p->rv.is_gpx && p->rv.doc.has_geoidheight ? p->rv.doc.geoidheight_m : NULL;
+    return hyp_track_heights(p->geo, s, gh, sv->o.gnss_ref, to, *own, err);
+}
+
+/* GNSS heights in the known and the output reference, and projected
+ * positions when a CRS is asked for. */
+static hyp_status prepare_extras(const hyp_survey *sv, hyp_rover_run *r, const float **gnss_known, hyp_error *err)
+{
+    priv_t *p = r->priv;
+    const hyp_series *s = hyp__log_series(&p->rv);
+    hyp_status st = track_heights(sv, p, sv->o.known_ref, gnss_known, &p->own_known, err);
+    if (!st && sv->o.out_ref == sv->o.known_ref)
+        r->gnss_out_m = *gnss_known;   /* the same heights: one array */
+    else if (!st)
+        st = track_heights(sv, p, sv->o.out_ref, &r->gnss_out_m, &p->own_out, err);
+    if (st || !sv->o.crs)
+        return st;
+    double la = NAN, lo = NAN;
+    for (size_t i = 0; i < s->count && la != la; i++)
+        if (hyp_series_lat(s, i) == hyp_series_lat(s, i))
+            la = hyp_series_lat(s, i), lo = hyp_series_lon(s, i);
+    st = hyp_geo_set_crs(p->geo, sv->o.crs, la, lo, r->crs_name, sizeof r->crs_name, err);
+    if (st)
+        return st;
+    size_t n = s->count ? s->count : 1;
+    p->east = malloc(n * sizeof(double));
+    p->north = malloc(n * sizeof(double));
+    if (!p->east || !p->north)
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    for (size_t i = 0; i < s->count; i++)
+        if (hyp_geo_project(p->geo, hyp_series_lat(s, i), hyp_series_lon(s, i), &p->east[i], &p->north[i]))
+            p->east[i] = p->north[i] = NAN;
+    r->easting_m = p->east;
+    r->northing_m = p->north;
+    return HYP_OK;
+}
+
+/* Read the rover, choose its bases, correct it, convert its heights. */
+static hyp_status correct_rover(hyp_survey *sv, hyp_rover_run *r, int threads, hyp_error *err)
+{
+    priv_t *p = r->priv;
+    hyp_read_opts ro = sv->o.read;
+    ro.zone = &sv->rover_zone;
+    ro.need_position = 1;
+    hyp_status st = hyp_geo_open(&p->geo, err);
+    if (!st)
+        st = hyp__log_read(r->path, &ro, &p->rv, &r->msgs, err);
+    if (st)
+        return st;
+    r->rover = hyp__log_series(&p->rv);
+    r->rover_pressure_unit = p->rv.punit;
+    size_t sel[HYP_MAX_BASES], nb = 0;
+    hyp_base bases[HYP_MAX_BASES];
+    if ((st = hyp__select_bases(sv, r->rover, sel, &nb, err)))
+        return st;
+    for (size_t k = 0; k < nb; k++) {
+        const hyp__pool_base *pb = &sv->pool[sel[k]];
+        hyp_base_used *u = &r->bases[k];
+        u->path = pb->path;
+        u->log = hyp__log_series(&pb->log);
+        u->pressure_unit = pb->log.punit;
+        u->height_m = pb->spec.height_m;
+        u->lat_deg = pb->spec.lat_deg;
+        u->lon_deg = pb->spec.lon_deg;
+        u->clock_offset_s = pb->spec.clock_offset_s;
+        u->kind = pb->spec.kind;
+        hyp_base_init(&bases[k], u->log, u->path, u->height_m);
+        bases[k].lat_deg = u->lat_deg;
+        bases[k].lon_deg = u->lon_deg;
+        bases[k].clock_offset_s = u->clock_offset_s;
+        bases[k].offset_pa = pb->spec.offset_pa;
+        bases[k].offset_sigma_pa = pb->spec.offset_sigma_pa;
+        bases[k].kind = u->kind;
+    }
+    r->n_bases = nb;
+    const float *gnss_known = NULL;
+    if ((st = prepare_extras(sv, r, &gnss_known, err)))
+        return st;
+    hyp_correct_opts co = sv->copts;
+    co.waypoints = p->rv.is_gpx ? &p->rv.doc.wpts : NULL;
+    co.gnss_height_m = gnss_known;
+    co.threads = threads;
+    st = hyp_correct(r->rover, bases, nb, &co, &r->result, &r->msgs, err);
+    if (!st)
+        st = hyp_heights_convert(p->geo, r->rover, r->result.height_m, sv->o.known_ref, sv->o.out_ref, err);
+    return st;
+}
+
+/* Outputs that exist already: with a folder of outputs and no overwrite,
+ * the rover is skipped (reported, not an error). */
+static int outputs_exist(const hyp__rover_paths *ps, char *which, size_t n)
+{
+    const char *p[3] = {ps->gpx, ps->table, ps->report};
+    for (int k = 0; k < 3; k++) {
+        struct stat sb;
+        if (p[k][0] && strcmp(p[k], "-") != 0 && stat(p[k], &sb) == 0) {
+            snprintf(which, n, "%s exists (--overwrite replaces it)", p[k]);
+            return 1;
+        }
+    }
+    return 0;
+}
+
+static hyp_status check_dir(const char *path, hyp_error *err)
+{
+    if (!path[0] || strcmp(path, "-") == 0)
+        return HYP_OK;
+    struct stat sb;
+    char dir[4096];
+    snprintf(dir, sizeof dir, "%s", path);
+    char *slash = strrchr(dir, '/');
+    if (slash)
+        *slash = '\0';
+    if (stat(path, &sb) == 0 && S_ISDIR(sb.st_mode))
+        return hyp_error_set(err, HYP_ERR_IO, "%s: is a directory, expected an output file name", path);
+    if (stat(slash ? (dir[0] ? dir : "/") : ".", &sb) != 0 || !S_ISDIR(sb.st_mode))
+        return hyp_error_set(err, HYP_ERR_IO, "%s: cannot write: the directory does not exist", path);
+    return HYP_OK;
+}
+
+static void note_written(hyp_rover_run *r, const char *path)
+{
+    char *c = strdup(path);
+    if (c && r->n_written < 4) {
+        r->priv->paths[r->n_written] = c;
+        r->written[r->n_written++] = c;
+    } else
+        free(c);
+}
+
+/* The report: the rover's whole text, as the summary prints it. */
+static hyp_status stage_report(hyp__outset *set, const hyp_rover_run *r, const char *path, hyp_error *err)
+{
+    hyp__outfile *o = hyp__outset_add(set, path, err);
+    if (!o)
+        return err->status;
+    hyp_rover_run_write_text(o->f, r, HYP_TEXT_ALL);
+    return HYP_OK;
+}
+
+/* The GPX and the table, staged; the report beside them; one commit. */
+static hyp_status write_outputs(hyp_survey *sv, hyp_rover_run *r, const hyp__rover_paths *ps, int threads,
+                                hyp_error *err)
+{
+    priv_t *p = r->priv;
+    hyp_output_info info = {.vref = hyp_vref_name(sv->o.out_ref), .gnss_m = r->gnss_out_m, .easting_m = r->easting_m,
+                            .northing_m = r->northing_m, .crs_name = r->crs_name, .threads = threads};
+    hyp__outset set;
+    hyp__outset_init(&set);
+    hyp_status st = HYP_OK;
+    if (ps->gpx[0]) {
+        hyp__outfile *o = hyp__outset_add(&set, ps->gpx, err);
+        st = !o ? err->status
+             : p->rv.is_gpx ? hyp__gpx_splice_to(r->path, &p->rv.doc, &r->result, &info, o, err)
+                            : hyp__gpx_new_to(&p->rv.csv, &r->result, &info, r->name, o, err);
+        if (!st)
+            note_written(r, ps->gpx);
+    }
+    if (!st && ps->table[0]) {
+        hyp__outfile *o = hyp__outset_add(&set, ps->table, err);
+        st = !o ? err->status : hyp__table_to(r->rover, &r->result, &info, o, err);
+        if (!st)
+            note_written(r, ps->table);
+    }
+    if (!st && ps->report[0])
+        st = stage_report(&set, r, ps->report, err);
+    if (!st)
+        st = hyp__outset_commit(&set, sv->o.cancelled, sv->o.cancel_ctx, err);
+    else
+        hyp__outset_abort(&set);
+    if (st) {
+        for (size_t k = 0; k < r->n_written; k++)
+            r->written[k] = NULL;
+        r->n_written = 0;
+    }
+    return st;
+}
+
+/* A failed rover still gets its report (what went wrong), on its own. */
+static void failure_report(hyp_survey *sv, hyp_rover_run *r, const char *path)
+{
+    hyp__outset set;
+    hyp__outset_init(&set);
+    hyp_error e;
+    if (stage_report(&set, r, path, &e) || hyp__outset_commit(&set, sv->o.cancelled, sv->o.cancel_ctx, &e))
+        hyp_msgs_add_at(&r->msgs, HYP_WARNING, "output", path, 0, "the report of the failed run could not be written: %s",
+                        e.message);
+}
+
+hyp_status hyp_survey_run(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
+                          hyp_rover_run **run, hyp_error *err)
+{
+    hyp_outputs none = {0};
+    if (!out)
+        out = &none;
+    hyp_rover_run *r = *run = run_new(rover);
+    if (!r)
+        return hyp_error_set(err, HYP_ERR_NOMEM, "%s: out of memory", rover);
+    r->gnss_ref = sv->o.gnss_ref;
+    r->known_ref = sv->o.known_ref;
+    r->out_ref = sv->o.out_ref;
+    r->rapid_pa_per_s = sv->copts.rapid_pa_per_s;
+    hyp__rover_paths ps;
+    hyp__rover_paths_make(out, rover, &ps);
+    const char *targets[3] = {ps.gpx, ps.table, ps.report};
+    for (int k = 0; k < 3; k++)
+        if (targets[k][0] && strcmp(targets[k], "-") != 0)
+            hyp__survey_clean_dir(sv, targets[k]);
+    if (threads <= 0)
+        threads = sv->o.threads > 0 ? sv->o.threads : 1;
+    hyp_status st = HYP_OK;
+    for (int k = 0; k < 3 && !st; k++)
+        if (targets[k][0] && strcmp(targets[k], "-") != 0 && hyp__survey_is_input(sv, targets[k], &rover, 1))
+            st = hyp_error_set(&r->error, HYP_ERR_USAGE, "%s: output would overwrite an input; choose another name", targets[k]);
+    if (!st)
+        st = correct_rover(sv, r, threads, &r->error);
+    for (int k = 0; !st && k < 3; k++)
+        st = check_dir(targets[k], &r->error);
+    if (!st && out->dir && !out->overwrite && outputs_exist(&ps, r->error.message, sizeof r->error.message)) {
+        r->skipped = 1;
+        return HYP_OK;
+    }
+    if (!st)
+        st = write_outputs(sv, r, &ps, threads, &r->error);
+    r->status = st;
+    if (st) {
+        r->error.status = st;
+        if (ps.report[0] && !(sv->o.cancelled && sv->o.cancelled(sv->o.cancel_ctx)))
+            failure_report(sv, r, ps.report);
+    }
+    (void)err;
+    return HYP_OK;
+}
