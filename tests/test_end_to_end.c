@@ -81,91 +81,88 @@ static void run_survey(const char *dir, double base_h, double lat, double lon, s
     run_survey_opts(dir, &so, sc);
 }
 
-static void run_survey_opts(const char *dir, const survey_opts *so, score *sc)
+/* One whole run through the library's survey API, as any client makes it
+ * (threads: those of the rover's own passes). */
+static hyp_rover_run *survey_run(const char *dir, const survey_opts *so, int threads)
 {
-    double base_h = so->base_h, lat = so->lat, lon = so->lon;
-    char rover[4096], base[4096], tpath[4096];
+    char rover[4096], base[4096], bpath[4096];
     snprintf(rover, sizeof rover, "%s/rover.gpx", dir);
     snprintf(base, sizeof base, "%s/base.csv", dir);
-    snprintf(tpath, sizeof tpath, "%s/truth.csv", dir);
-    hyp_gpx_doc d;
-    hyp_gpx_doc_init(&d);
-    hyp_series b;
-    hyp_series_init(&b);
+    snprintf(bpath, sizeof bpath, "%s/benchmarks.csv", dir);
+    hyp_survey_opts o;
+    hyp_survey_opts_init(&o);
+    o.gnss_ref = so->gnss_ref;
+    if (so->benchmarks)
+        o.benchmarks_path = bpath;
+    if (so->gnss_anchor)
+        o.correct.auto_colocate = 0;
+    hyp_survey *sv;
     hyp_error err;
     hyp_msgs msgs;
     hyp_msgs_init(&msgs);
-    assert_int_equal(hyp_gpx_read(rover, NULL, &d, &msgs, &err), HYP_OK);
-    assert_int_equal(hyp_csv_read(base, NULL, &b, NULL, &msgs, &err), HYP_OK);
-    hyp_base hb = {.log = &b, .name = base, .height_m = base_h, .lat_deg = lat, .lon_deg = lon,
-                   .clock_offset_s = so->clock_s};
-    hyp_correct_opts o;
-    hyp_correct_opts_init(&o);
-    hyp_benchmarks bm;
-    hyp_benchmarks_init(&bm);
-    if (so->benchmarks) {
-        char bpath[4096];
-        snprintf(bpath, sizeof bpath, "%s/benchmarks.csv", dir);
-        assert_int_equal(hyp_benchmarks_read(bpath, 0.01, &bm, &msgs, &err), HYP_OK);
-        o.benchmarks = &bm;
-        o.waypoints = &d.wpts;
-    }
-    float *gnss = NULL;
-    hyp_geo *geo = NULL;
-    if (so->gnss_anchor) {
-        o.auto_colocate = 0;
-        gnss = malloc(d.pts.count * sizeof *gnss);
-        assert_int_equal(hyp_geo_open(&geo, &err), HYP_OK);
-        assert_int_equal(hyp_track_heights(geo, &d.pts, NULL, so->gnss_ref, HYP_VREF_GEOID, gnss, &err), HYP_OK);
-        o.gnss_height_m = gnss;
-    }
-    hyp_correct_result r;
-    hyp_correct_result_init(&r);
-    assert_int_equal(hyp_correct_single_base(&d.pts, &hb, &o, &r, &msgs, &err), HYP_OK);
+    assert_int_equal(hyp_survey_new(&sv, &o, &msgs, &err), HYP_OK);
+    hyp_base_spec b;
+    hyp_base_spec_init(&b, base, so->base_h);
+    b.lat_deg = so->lat;
+    b.lon_deg = so->lon;
+    b.clock_offset_s = so->clock_s;
+    assert_int_equal(hyp_survey_add_base(sv, &b, &msgs, &err), HYP_OK);
+    hyp_rover_run *run = NULL;
+    assert_int_equal(hyp_survey_run(sv, rover, NULL, threads, &run, &err), HYP_OK);
+    if (run->status)
+        print_message("%s\n", run->error.message);
+    assert_int_equal(run->status, HYP_OK);
+    hyp_survey_free(sv);   /* the run keeps what it needs */
+    hyp_msgs_free(&msgs);
+    return run;
+}
+
+static void run_survey_opts(const char *dir, const survey_opts *so, score *sc)
+{
+    char tpath[4096];
+    snprintf(tpath, sizeof tpath, "%s/truth.csv", dir);
+    hyp_rover_run *run = survey_run(dir, so, 1);
+    const hyp_correct_result *rp = &run->result;
+    const hyp_series *dp = run->rover;
     if (so->gnss_anchor)
-        assert_int_equal(r.drift.kind, HYP_DRIFT_GNSS);
+        assert_int_equal(rp->drift.kind, HYP_DRIFT_GNSS);
     /* Two threads give the same result to the bit, and each point's
      * recomputed details match what was stored. */
     {
-        hyp_correct_opts o2 = o;
-        o2.threads = 2;
-        hyp_correct_result r2;
-        hyp_correct_result_init(&r2);
-        assert_int_equal(hyp_correct_single_base(&d.pts, &hb, &o2, &r2, NULL, &err), HYP_OK);
-        assert_int_equal(r2.n_ok, r.n_ok);
-        assert_memory_equal(r2.status, r.status, r.count);
-        assert_memory_equal(r2.sigma_m, r.sigma_m, r.count * sizeof *r.sigma_m);
-        assert_memory_equal(r2.height_m, r.height_m, r.count * sizeof *r.height_m);
-        assert_true(r2.median_index == r.median_index && r2.worst_index == r.worst_index);
-        assert_true(r2.tcol_min_k == r.tcol_min_k && r2.tcol_max_k == r.tcol_max_k);
-        hyp_correct_result_free(&r2);
-        for (size_t i = 0; i < r.count; i++) {
+        hyp_rover_run *run2 = survey_run(dir, so, 2);
+        const hyp_correct_result *r2 = &run2->result;
+        assert_int_equal(r2->n_ok, rp->n_ok);
+        assert_memory_equal(r2->status, rp->status, rp->count);
+        assert_memory_equal(r2->sigma_m, rp->sigma_m, rp->count * sizeof *rp->sigma_m);
+        assert_memory_equal(r2->height_m, rp->height_m, rp->count * sizeof *rp->height_m);
+        assert_true(r2->median_index == rp->median_index && r2->worst_index == rp->worst_index);
+        assert_true(r2->tcol_min_k == rp->tcol_min_k && r2->tcol_max_k == rp->tcol_max_k);
+        hyp_rover_run_free(run2);
+        for (size_t i = 0; i < rp->count; i++) {
             hyp_point_detail pd;
-            hyp_status pst = hyp_correct_point(&r, i, &pd);
-            assert_int_equal(pst, r.status[i] == HYP_PT_OK ? HYP_OK : HYP_ERR_NODATA);
+            hyp_status pst = hyp_correct_point(rp, i, &pd);
+            assert_int_equal(pst, rp->status[i] == HYP_PT_OK ? HYP_OK : HYP_ERR_NODATA);
             if (pst == HYP_OK)
-                assert_true(pd.height_m == r.height_m[i] && (float)pd.sigma_m == r.sigma_m[i]);
+                assert_true(pd.height_m == rp->height_m[i] && (float)pd.sigma_m == rp->sigma_m[i]);
         }
     }
-    free(gnss);
-    hyp_geo_close(geo);
-    sc->n_calibs = r.n_calibs;
-    sc->has_scale = r.drift.has_scale;
+    sc->n_calibs = rp->n_calibs;
+    sc->has_scale = rp->drift.has_scale;
     truth tr;
     read_truth(tpath, &tr);
-    assert_int_equal(tr.n, d.pts.count);
+    assert_int_equal(tr.n, dp->count);
     double ss = 0, sum = 0, inside = 0;
     double *sig = malloc(tr.n * sizeof *sig);
     size_t n = 0;
     for (size_t i = 0; i < tr.n; i++) {
-        assert_true(fabs(tr.t[i] - d.pts.time_s[i]) < 1e-6);
-        if (r.status[i] != HYP_PT_OK)
+        assert_true(fabs(tr.t[i] - dp->time_s[i]) < 1e-6);
+        if (rp->status[i] != HYP_PT_OK)
             continue;
-        double e = r.height_m[i] - tr.h[i];
+        double e = rp->height_m[i] - tr.h[i];
         ss += e * e;
         sum += e;
-        inside += fabs(e) <= 2.0 * r.sigma_m[i];
-        sig[n++] = r.sigma_m[i];
+        inside += fabs(e) <= 2.0 * rp->sigma_m[i];
+        sig[n++] = rp->sigma_m[i];
     }
     qsort(sig, n, sizeof *sig, cmp);
     sc->n = n;
@@ -175,17 +172,17 @@ static void run_survey_opts(const char *dir, const survey_opts *so, score *sc)
     sc->n_inside = (size_t)inside;
     sc->median_sigma = sig[n / 2];
     /* the library's own median (radix selection, no sort) is the same value */
-    assert_true(r.median_sigma_m == sig[n / 2]);
-    assert_true(r.sigma_m[r.median_index] == sig[n / 2] && r.sigma_m[r.worst_index] == sig[n - 1]);
+    assert_true(rp->median_sigma_m == sig[n / 2]);
+    assert_true(rp->sigma_m[rp->median_index] == sig[n / 2] && rp->sigma_m[rp->worst_index] == sig[n - 1]);
     /* The floor: the simulator's white sensor noise and quantisation alone
      * (its scenario.txt), propagated through dz/dp = Rd Tv / (g p) at the
      * survey's mean pressure: no method beats it on single samples. */
     double p = 0, tv = 0;
-    for (size_t i = 0; i < d.pts.count; i++)
-        if (r.status[i] == HYP_PT_OK) {
+    for (size_t i = 0; i < dp->count; i++)
+        if (rp->status[i] == HYP_PT_OK) {
             hyp_point_detail pd;
-            assert_int_equal(hyp_correct_point(&r, i, &pd), HYP_OK);
-            p += d.pts.pressure_pa[i];
+            assert_int_equal(hyp_correct_point(rp, i, &pd), HYP_OK);
+            p += dp->pressure_pa[i];
             tv += pd.tcol_k;
         }
     p /= (double)n;
@@ -198,11 +195,7 @@ static void run_survey_opts(const char *dir, const survey_opts *so, score *sc)
     free(sig);
     free(tr.t);
     free(tr.h);
-    hyp_correct_result_free(&r);
-    hyp_benchmarks_free(&bm);
-    hyp_gpx_doc_free(&d);
-    hyp_series_free(&b);
-    hyp_msgs_free(&msgs);
+    hyp_rover_run_free(run);
 }
 
 /* Simulated "calm" day (seed 7): co-location at both ends, weak weather.
@@ -399,69 +392,62 @@ static void run_mb(const mb_case *mc)
     snprintf(dir, sizeof dir, "%s/mb-%s", HYP_BINARY_DIR, mc->scenario);
     snprintf(cmd, sizeof cmd, "mkdir -p '%s' && '%s' %s '%s'", dir, HYP_SIM_EXE, mc->scenario, dir);
     assert_int_equal(system(cmd), 0);
-    char path[4200];
+    char path[4200], bpath[4200], window[100];
     hyp_error err;
     hyp_msgs msgs;
     hyp_msgs_init(&msgs);
-    hyp_gpx_doc d;
-    hyp_gpx_doc_init(&d);
-    snprintf(path, sizeof path, "%s/rover.gpx", dir);
-    assert_int_equal(hyp_gpx_read(path, NULL, &d, &msgs, &err), HYP_OK);
-    hyp_series logs[3];
-    hyp_base bases[3];
-    for (size_t k = 0; k < mc->nb; k++) {
-        hyp_series_init(&logs[k]);
-        snprintf(path, sizeof path, "%s/%s", dir, mc->b[k].file);
-        assert_int_equal(hyp_csv_read(path, NULL, &logs[k], NULL, &msgs, &err), HYP_OK);
-        hyp_base_init(&bases[k], &logs[k], mc->b[k].file, mc->b[k].h);
-        bases[k].lat_deg = mc->b[k].lat;
-        bases[k].lon_deg = mc->b[k].lon;
-        bases[k].kind = mc->b[k].qnh ? HYP_BASE_QNH : HYP_BASE_STATION;
-    }
-    hyp_correct_opts o;
-    hyp_correct_opts_init(&o);
+    hyp_survey_opts o;
+    hyp_survey_opts_init(&o);
     if (mc->bases_colocated) {   /* the simulator's loggers stand together 2 h to 1.5 h before the start */
-        o.base_colocate.start_s = 1781766000.0 - 7200.0;
-        o.base_colocate.end_s = 1781766000.0 - 5460.0;
+        char a[40], b[40];
+        hyp_time_format(1781766000.0 - 7200.0, a, sizeof a);
+        hyp_time_format(1781766000.0 - 5460.0, b, sizeof b);
+        snprintf(window, sizeof window, "%s/%s", a, b);
+        o.bases_colocated = window;
     }
     if (mc->max_gap_s > 0)
-        o.max_gap_s = mc->max_gap_s;
-    hyp_benchmarks bm;
-    hyp_benchmarks_init(&bm);
-    if (mc->benchmarks) {
-        snprintf(path, sizeof path, "%s/benchmarks.csv", dir);
-        assert_int_equal(hyp_benchmarks_read(path, 0.01, &bm, &msgs, &err), HYP_OK);
-        o.benchmarks = &bm;
+        o.correct.max_gap_s = mc->max_gap_s;
+    snprintf(bpath, sizeof bpath, "%s/benchmarks.csv", dir);
+    if (mc->benchmarks)
+        o.benchmarks_path = bpath;
+    hyp_survey *sv;
+    assert_int_equal(hyp_survey_new(&sv, &o, &msgs, &err), HYP_OK);
+    for (size_t k = 0; k < mc->nb; k++) {
+        hyp_base_spec b;
+        snprintf(path, sizeof path, "%s/%s", dir, mc->b[k].file);
+        hyp_base_spec_init(&b, path, mc->b[k].h);
+        b.lat_deg = mc->b[k].lat;
+        b.lon_deg = mc->b[k].lon;
+        b.kind = mc->b[k].qnh ? HYP_BASE_QNH : HYP_BASE_STATION;
+        assert_int_equal(hyp_survey_add_base(sv, &b, &msgs, &err), HYP_OK);
     }
-    hyp_correct_result r;
-    hyp_correct_result_init(&r);
-    hyp_status st = hyp_correct(&d.pts, bases, mc->nb, &o, &r, &msgs, &err);
-    if (st)
-        print_message("%s\n", err.message);
-    assert_int_equal(st, HYP_OK);
-    assert_int_equal(r.method_used, mc->expect);
+    snprintf(path, sizeof path, "%s/rover.gpx", dir);
+    hyp_rover_run *run;
+    assert_int_equal(hyp_survey_run(sv, path, NULL, 1, &run, &err), HYP_OK);
+    if (run->status)
+        print_message("%s\n", run->error.message);
+    assert_int_equal(run->status, HYP_OK);
+    const hyp_correct_result *r = &run->result;
+    assert_int_equal(r->method_used, mc->expect);
     truth tr;
     snprintf(path, sizeof path, "%s/truth.csv", dir);
     read_truth(path, &tr);
     double ss = 0, in = 0, n = 0;
     for (size_t i = 0; i < tr.n; i++)
-        if (r.status[i] == HYP_PT_OK) {
-            double e = r.height_m[i] - tr.h[i];
-            ss += e * e, in += fabs(e) <= 2 * r.sigma_m[i], n++;
+        if (r->status[i] == HYP_PT_OK) {
+            double e = r->height_m[i] - tr.h[i];
+            ss += e * e, in += fabs(e) <= 2 * r->sigma_m[i], n++;
         }
     double rmse = sqrt(ss / n), cov = in / n;
     print_message("%s (%s): %.0f points, RMSE %.3f m (bound %.2f), 2-sigma coverage %.3f\n", mc->scenario,
-                  hyp_method_name(r.method_used), n, rmse, mc->rmse_max, cov);
+                  hyp_method_name(r->method_used), n, rmse, mc->rmse_max, cov);
     assert_true(n > 0.95 * (double)tr.n);
     assert_true(rmse <= mc->rmse_max);
     assert_true(cov >= 0.85 && cov <= mc->cov_max);
     free(tr.t);
     free(tr.h);
-    hyp_correct_result_free(&r);
-    hyp_benchmarks_free(&bm);
-    for (size_t k = 0; k < mc->nb; k++)
-        hyp_series_free(&logs[k]);
-    hyp_gpx_doc_free(&d);
+    hyp_rover_run_free(run);
+    hyp_survey_free(sv);
     hyp_msgs_free(&msgs);
 }
 
