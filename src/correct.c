@@ -3,6 +3,7 @@
  * fit (calib.c, drift.c), corrected heights from the hypsometric equation,
  * and the error budget (budget.c). */
 #include "correct_int.h"
+#include "base_clock.h"
 #include "hypsolev/atmosphere.h"
 #include "hypsolev/timeparse.h"
 #include "par.h"
@@ -113,311 +114,10 @@ const char *hyp_point_status_text(hyp_point_status s)
 
 /* ---- memory ---- */
 
-static double *dalloc(size_t n)
-{
-    return malloc((n ? n : 1) * sizeof(double));
-}
-
-void hyp__base_view_free(hyp__base_view *b)
-{
-    free(b->t);
-    free(b->p);
-    free(b->temp);
-    free(b->rh);
-    free(b->rate);
-    memset(b, 0, sizeof *b);
-}
-
 static void work_free(hyp__work *w)
 {
     for (size_t k = 0; k < HYP_MAX_BASES; k++)
         hyp__base_view_free(&w->bvs[k]);
-}
-
-/* ---- the base log ---- */
-
-/* Hourly tendency at each base sample: least-squares slope over the
- * samples within 30 minutes either side (robust to white noise, which the
- * slope of two neighbours is not). */
-static void base_rates(hyp__base_view *b)
-{
-    size_t lo = 0, hi = 0;
-    double st = 0, sp = 0, stt = 0, stp = 0;
-    for (size_t i = 0; i < b->n; i++) {
-        double t0 = b->t[i];
-        while (hi < b->n && b->t[hi] <= t0 + 1800.0) {
-            double t = b->t[hi] - b->t[0];
-            st += t, sp += b->p[hi], stt += t * t, stp += t * b->p[hi];
-            hi++;
-        }
-        while (b->t[lo] < t0 - 1800.0) {
-            double t = b->t[lo] - b->t[0];
-            st -= t, sp -= b->p[lo], stt -= t * t, stp -= t * b->p[lo];
-            lo++;
-        }
-        double n = (double)(hi - lo), den = n * stt - st * st;
-        b->rate[i] = n >= 3 && den > 0 ? (n * stp - st * sp) / den : 0.0;
-    }
-}
-
-hyp_status hyp__base_view_make(const hyp_base *base, hyp__base_view *b, hyp_error *err)
-{
-    const hyp_series *s = base->log;
-    size_t m = s->count;
-    memset(b, 0, sizeof *b);
-    b->t = dalloc(m), b->p = dalloc(m), b->temp = dalloc(m), b->rh = dalloc(m), b->rate = dalloc(m);
-    if (!b->t || !b->p || !b->temp || !b->rh || !b->rate)
-        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
-    double off = base->offset_pa == base->offset_pa ? base->offset_pa : 0.0;
-    for (size_t i = 0; i < s->count; i++) {
-        if (s->flag[i])
-            continue;
-        double p = s->pressure_pa[i];
-        if (base->kind == HYP_BASE_QNH)   /* ICAO standard-atmosphere reduction */
-            p = hyp_station_from_qnh_pa(p, base->height_m);
-        b->t[b->n] = s->time_s[i] - base->clock_offset_s;
-        b->p[b->n] = p - off;
-        b->temp[b->n] = s->temp_k[i];
-        b->rh[b->n] = s->rh_pct[i];
-        b->n++;
-    }
-    if (b->n < 2)
-        return hyp_error_set(err, HYP_ERR_NODATA, "%s: fewer than two usable base samples", base->name);
-    base_rates(b);
-    return HYP_OK;
-}
-
-static double lerp(const double *v, size_t k, double w)
-{
-    double a = v[k], b = v[k + 1];
-    if (a != a)
-        return b;
-    if (b != b)
-        return a;
-    return a + w * (b - a);
-}
-
-static hyp_point_status bracket(const hyp__base_view *b, double x, double max_gap_s, size_t *k, double *w);
-
-hyp_point_status hyp__base_at(const hyp__base_view *b, const double *v, double x, double max_gap_s, double *out)
-{
-    size_t k = 0;
-    double f;
-    hyp_point_status st = bracket(b, x, max_gap_s, &k, &f);
-    *out = st ? NAN : lerp(v, k, f);
-    return st;
-}
-
-static hyp_point_status bracket(const hyp__base_view *b, double x, double max_gap_s, size_t *k, double *w)
-{
-    if (!(x >= b->t[0] && x <= b->t[b->n - 1]))
-        return HYP_PT_OUTSIDE_BASE;
-    size_t lo = 0, hi = b->n - 1, h = *k;
-    /* the interval of the last call or the next one: a walk in time order */
-    if (h + 1 < b->n && b->t[h] <= x && x <= b->t[h + 1])
-        lo = h, hi = h + 1;
-    else if (h + 2 < b->n && b->t[h + 1] <= x && x <= b->t[h + 2])
-        lo = h + 1, hi = h + 2;
-    while (hi - lo > 1) {
-        size_t mid = lo + (hi - lo) / 2;
-        if (b->t[mid] <= x)
-            lo = mid;
-        else
-            hi = mid;
-    }
-    double dt = b->t[lo + 1] - b->t[lo];
-    if (dt > max_gap_s && x != b->t[lo] && x != b->t[lo + 1])
-        return HYP_PT_BASE_GAP;
-    *k = lo;
-    *w = dt > 0.0 ? (x - b->t[lo]) / dt : 0.0;
-    return HYP_PT_OK;
-}
-
-static double pick(double a, double b, double c)
-{
-    return a == a ? a : b == b ? b : c;
-}
-
-/* Centred moving average of the rover pressure over smooth_s around sample
- * i: the valid samples within smooth_s / 2 either side, both ends
- * inclusive (white noise falls as 1/sqrt(samples averaged); a height
- * change faster than the window is smoothed with it). */
-static double rover_pressure(const hyp__work *w, size_t i, double *navg)
-{
-    const hyp_series *rv = w->rv;
-    double half = 0.5 * w->o->smooth_s, p = rv->pressure_pa[i];
-    *navg = 1.0;
-    if (half <= 0)
-        return p;
-    double t = rv->time_s[i], sum = p;
-    size_t cnt = 1;
-    for (size_t j = i; j-- > 0;) {
-        if (rv->flag[j])
-            continue;
-        if (rv->time_s[j] < t - half)
-            break;
-        sum += rv->pressure_pa[j], cnt++;
-    }
-    for (size_t j = i + 1; j < w->n; j++) {
-        if (rv->flag[j])
-            continue;
-        if (rv->time_s[j] > t + half)
-            break;
-        sum += rv->pressure_pa[j], cnt++;
-    }
-    *navg = (double)cnt;
-    return sum / (double)cnt;
-}
-
-static hyp_point_status inputs(const hyp__work *w, size_t i, hyp__in *in, double *chi2)
-{
-    const hyp_series *rv = w->rv;
-    if (rv->flag[i])
-        return HYP_PT_REFUSED;
-    size_t k = in->hint;
-    double f;
-    const hyp__base_view *b = &w->bv;
-    hyp_point_status st = bracket(b, rv->time_s[i], w->o->max_gap_s, &k, &f);
-    if (st)
-        return st;
-    in->hint = k;
-    in->pb = b->p[k] + f * (b->p[k + 1] - b->p[k]);
-    in->rate = b->rate[k] + f * (b->rate[k + 1] - b->rate[k]);
-    in->dt_base = b->t[k + 1] - b->t[k];
-    double rhb = lerp(b->rh, k, f);
-    in->tb = lerp(b->temp, k, f);
-    in->rhr = pick(rv->rh_pct[i], rhb, w->o->default_rh_pct);
-    in->rhb = pick(rhb, rv->rh_pct[i], w->o->default_rh_pct);
-    in->pr = rover_pressure(w, i, &in->navg);
-    in->pu = in->xfrac = NAN;
-    if (w->method == HYP_METHOD_FIELD)
-        return hyp__field_inputs(w, i, in, chi2);
-    if (w->method == HYP_METHOD_TWO_BASE) {
-        /* the upper base's pressure, the rover's place in the bracket, and
-         * the extrapolation limit */
-        const hyp__base_view *u = &w->bvs[w->upper];
-        if ((st = hyp__base_at(u, u->p, rv->time_s[i], w->o->max_gap_s, &in->pu)))
-            return st;
-        double dh = w->bases[w->upper].height_m - w->bases[w->ref].height_m;
-        double lim = fmax(w->o->extrapolate_min_m, w->o->extrapolate_frac * dh) / dh;
-        in->xfrac = log(in->pb / in->pr) / log(in->pb / in->pu);
-        if (in->xfrac < -lim || in->xfrac > 1.0 + lim)
-            return HYP_PT_EXTRAPOLATION;
-    }
-    return HYP_PT_OK;
-}
-
-hyp_point_status hyp__inputs(const hyp__work *w, size_t i, hyp__in *in)
-{
-    return inputs(w, i, in, NULL);
-}
-
-/* ---- heights ---- */
-
-double hyp__lat(const hyp__work *w, size_t i)
-{
-    return pick(hyp_series_lat(w->rv, i), w->base->lat_deg, 45.0);
-}
-
-/* The rover-end temperature depends on the height (base + lapse), so
- * fixed-point steps; each changes dz by about lapse * dz / T (< 3 %), and
- * they stop when a step moves dz by less than 10 micrometres (at most 12;
- * typically three to five). The pressure ratio's logarithm and the
- * latitude's gravity are the same in every step, so evaluated once. */
-double hyp__height_above_base(const hyp__work *w, size_t i, const hyp__in *in, double pr, double *tv_out)
-{
-    const hyp_correct_opts *o = w->o;
-    double pb = in->pb;
-    if (w->method == HYP_METHOD_TWO_BASE) {
-        /* h = hL + (hU - hL) ln(pL/p) / ln(pL/pU): the two-base proportion
-         * in log-pressure (the hypsometric equation with the column
-         * temperature the two bases imply). */
-        double pu = in->pu, dh = w->bases[w->upper].height_m - w->bases[w->ref].height_m;
-        double l = log(pb / pu);
-        if (!(pb > 0 && pu > 0 && pr > 0) || fabs(l) < 1e-9)
-            return NAN;
-        double g = hyp_gravity_at_height_m_s2(hyp__lat(w, i), w->base->height_m + 0.5 * dh);
-        *tv_out = g * dh / (HYP_RD_J_KG_K * l);
-        return dh * log(pb / pr) / l;
-    }
-    double tb = in->tb, tr = w->rv->temp_k[i];
-    hyp_gravity gr = hyp_gravity_at_lat(hyp__lat(w, i));
-    if (!(pb > 0 && pr > 0))
-        return NAN;
-    double lnp = log(pb / pr);   /* hyp_hypsometric_dphi_j_kg: Rd Tv ln(p1/p2) */
-    double dz = 0.0, tv = NAN;
-    if (tb != tb) {
-        /* No base thermometer: the rover's carried down with the lapse
-         * rate, or the standard atmosphere at the base (USSA 1976). */
-        double dz0 = (pb - pr) / 12.0;   /* ~12 Pa per m: first guess only */
-        tb = tr == tr ? tr - o->lapse_k_per_m * dz0
-                      : hyp_isa_temperature_k(hyp_geopotential_from_geometric_m(w->base->height_m));
-    }
-    double tvb = hyp_virtual_temperature_k(tb, in->rhb, pb);
-    for (int it = 0; it < 12; it++) {
-        double t_top = tb + o->lapse_k_per_m * dz;
-        if (o->tcol == HYP_TCOL_ROVER && tr == tr)
-            t_top = tr;
-        else if (o->tcol == HYP_TCOL_BOTH && tr == tr)
-            t_top = 0.5 * (t_top + tr);
-        double tvr = hyp_virtual_temperature_k(t_top, in->rhr, pr);
-        tv = hyp_layer_mean_temperature_k(tvb, tvr);
-        double next = tv > 0 ? hyp_height_difference_g_m(HYP_RD_J_KG_K * tv * lnp, w->base->height_m, &gr) : NAN;
-        if (next != next) {
-            dz = NAN;
-            break;
-        }
-        int done = it > 0 && fabs(next - dz) < 1e-5;
-        dz = next;
-        if (done)
-            break;
-    }
-    *tv_out = tv;
-    return dz;
-}
-
-/* dh/dp = Rd Tv / (g p) (differentiating the hypsometric equation), with
- * g at the middle of the column of height difference dz. */
-static double sensitivity(const hyp__work *w, size_t i, double pr, double dz, double tv)
-{
-    return HYP_RD_J_KG_K * tv / (hyp_gravity_at_height_m_s2(hyp__lat(w, i), w->base->height_m + 0.5 * dz) * pr);
-}
-
-double hyp__raw_height(const hyp__work *w, size_t i, const hyp__in *in, double *sens, double *tv)
-{
-    double dz = hyp__height_above_base(w, i, in, in->pr, tv);
-    if (dz != dz)
-        return NAN;
-    *sens = sensitivity(w, i, in->pr, dz, *tv);
-    return w->base->height_m + dz;
-}
-
-/* The corrected point i into d; dz_out gets the height above the base
- * before GNSS levelling. The sensitivity for the budget is that of the
- * corrected column at the rover pressure used. HYP_PT_NO_CONVERGE when the
- * iteration fails. */
-static hyp_point_status corrected_point(const hyp__work *w, size_t i, const hyp__in *in, double *dz_out,
-                                        hyp_point_detail *d)
-{
-    const hyp_drift *dr = &w->r->drift;
-    double off = hyp__drift_offset(dr, w->rv->time_s[i], NULL), tv;
-    double dz = hyp__height_above_base(w, i, in, in->pr - off, &tv);
-    if (dz != dz)
-        return HYP_PT_NO_CONVERGE;
-    double c = sensitivity(w, i, in->pr, dz, tv);
-    dz *= 1.0 + dr->scale;
-    *dz_out = dz;
-    if (dr->kind == HYP_DRIFT_GNSS)
-        dz += dr->gnss_a_m + dr->gnss_b_m_per_s * (w->rv->time_s[i] - dr->gnss_t0_s);
-    d->height_m = w->base->height_m + dz;
-    d->base_p_pa = in->pb;
-    d->offset_pa = off;
-    d->tcol_k = tv * (1.0 + dr->scale);
-    hyp__in bin = *in;
-    if (w->method == HYP_METHOD_TWO_BASE)   /* the place in the bracket from the corrected height */
-        bin.xfrac = *dz_out / (w->bases[w->upper].height_m - w->bases[w->ref].height_m);
-    d->sigma_m = hyp__budget(w, i, &bin, dz, c, d->tcol_k, d->budget_m);
-    return HYP_PT_OK;
 }
 
 /* One pass of the median search: a histogram of 16 bits of the sigmas'
@@ -512,7 +212,7 @@ static void corrected_range(void *ctx, size_t lo, size_t hi, int part)
             continue;
         hyp_point_detail d;
         double dz;
-        if (hyp__inputs(w, i, &in) || corrected_point(w, i, &in, &dz, &d)) {
+        if (hyp__inputs(w, i, &in) || hyp__corrected_point(w, i, &in, &dz, &d)) {
             r->status[i] = HYP_PT_NO_CONVERGE;
             continue;
         }
@@ -572,7 +272,7 @@ hyp_status hyp_correct_point(const hyp_correct_result *res, size_t i, hyp_point_
     w.o = &w.opts;
     hyp__in in = {0};
     double dz;
-    if (hyp__inputs(&w, i, &in) || corrected_point(&w, i, &in, &dz, d))
+    if (hyp__inputs(&w, i, &in) || hyp__corrected_point(&w, i, &in, &dz, d))
         return HYP_ERR_NODATA;
     return HYP_OK;
 }
@@ -704,7 +404,7 @@ static void status_range(void *ctx, size_t lo, size_t hi, int part)
     hyp__in in = {0};   /* kept across samples: its hint */
     for (size_t i = lo; i < hi; i++) {
         double chi2 = NAN;
-        hyp_point_status st = inputs(w, i, &in, &chi2);
+        hyp_point_status st = hyp__inputs_chi2(w, i, &in, &chi2);
         if (st == HYP_PT_OK && chi2 == chi2)
             sm->chi_ss += chi2, sm->chi_n++;
         w->r->status[i] = (uint8_t)st;
@@ -820,7 +520,7 @@ hyp_status hyp_correct(const hyp_series *rover, const hyp_base *bases, size_t n_
     const hyp_base *base = &bases[0];
     double est = NAN, sig = NAN;
     hyp_error cerr;
-    hyp_status cst = hyp_estimate_base_clock(rover, base, res, opts->clock_max_lag_s, &est, &sig, &cerr);
+    hyp_status cst = hyp__estimate_base_clock(rover, base, res, opts->clock_max_lag_s, opts->max_gap_s, &est, &sig, &cerr);
     if (cst == HYP_ERR_NOMEM)
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     int ok = cst == HYP_OK;

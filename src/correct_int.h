@@ -6,12 +6,7 @@
 #include "hypsolev/correct.h"
 #include "hypsolev/readers.h"
 
-/* The base log as the core needs it: valid samples only, on true time. */
-typedef struct hyp__base_view {
-    size_t n;
-    double *t, *p, *temp, *rh;
-    double *rate;      /* hourly tendency at each sample, Pa/s */
-} hyp__base_view;
+#include "base_view.h"
 
 
 /* What one rover sample needs from the bases, computed on demand (nothing
@@ -63,18 +58,15 @@ typedef struct hyp__work {
 /* The inputs of rover sample i (its status: OK, or why it cannot be
  * corrected). The two-base extrapolation limit is checked here too. */
 hyp_point_status hyp__inputs(const hyp__work *w, size_t i, hyp__in *in);
+/* The same; for the field method *chi2 (may be NULL) gets the reduced
+ * chi-square of the bases about the plane (NaN without one). */
+hyp_point_status hyp__inputs_chi2(const hyp__work *w, size_t i, hyp__in *in, double *chi2);
 
 /* Height with no offset and no scale (m) of sample i with inputs in, its
  * sensitivity dh/dp (m/Pa) and column temperature (K); NaN when the
  * iteration fails. */
 double hyp__raw_height(const hyp__work *w, size_t i, const hyp__in *in, double *sens, double *tv);
 
-/* Fills a base's view: valid samples on true time, QNH reduced to station
- * pressure, the base's offset removed, hourly tendencies. */
-hyp_status hyp__base_view_make(const hyp_base *b, hyp__base_view *v, hyp_error *err);
-void hyp__base_view_free(hyp__base_view *v);
-/* Base quantity v (of view b) at true time x; status of the bracket. */
-hyp_point_status hyp__base_at(const hyp__base_view *b, const double *v, double x, double max_gap_s, double *out);
 
 /* Several bases: compares the bases and chooses the method (sets ref,
  * upper, base and bv). */
@@ -93,6 +85,12 @@ double hyp__height_above_base(const hyp__work *w, size_t i, const hyp__in *in, d
 
 /* Latitude used for gravity at sample i (rover, else base, else 45 deg). */
 double hyp__lat(const hyp__work *w, size_t i);
+
+/* The corrected point i (inputs in) into d; dz_out gets the height above
+ * the base before GNSS levelling. HYP_PT_NO_CONVERGE when the height
+ * iteration fails. */
+hyp_point_status hyp__corrected_point(const hyp__work *w, size_t i, const hyp__in *in, double *dz_out,
+                                      hyp_point_detail *d);
 
 /* Finds base co-locations and benchmark ties; fills r->calibs. */
 hyp_status hyp__find_calibrations(hyp__work *w, hyp_error *err);

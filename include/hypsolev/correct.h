@@ -327,19 +327,6 @@ hyp_status hyp_correct_single_base(const hyp_series *rover,
                                    hyp_correct_result *res,
                                    hyp_msgs *msgs, hyp_error *err);
 
-/* The base clock offset (s the base clock is ahead of true time) that
- * best lines up the rover's and the base's pressure changes in the base
- * co-locations of `res` (a correction of the same rover and base): the lag
- * minimising the scatter of rover - base pressure about each window's mean,
- * searched over +-max_lag_s around base->clock_offset_s, refined by a
- * parabola; its 1-sigma from the curvature of that scatter (least-squares
- * theory, e.g. Bevington and Robinson, Data Reduction and Error Analysis,
- * 3rd ed., section 8.1), inflated for autocorrelated residuals.
- * HYP_ERR_NODATA when no co-location holds enough samples or the minimum is
- * not determined. */
-hyp_status hyp_estimate_base_clock(const hyp_series *rover, const hyp_base *base,
-                                   const hyp_correct_result *res, double max_lag_s,
-                                   double *offset_s, double *sigma_s, hyp_error *err);
 
 #ifdef __cplusplus
 }

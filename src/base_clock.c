@@ -1,6 +1,7 @@
-/* clock.c - estimating a base logger's clock offset from co-locations by
- * lining up the pressure changes both loggers saw. */
-#include "hypsolev/correct.h"
+/* base_clock.c - estimating a base logger's clock offset from
+ * co-locations by lining up the pressure changes both loggers saw. */
+#include "base_clock.h"
+#include "base_view.h"
 #include "stats.h"
 
 #include <math.h>
@@ -8,30 +9,14 @@
 
 typedef struct pts { size_t n; double *t, *p; int *win; int nwin; } pts;
 
-/* Base pressure at logged time x (linear; NaN outside or across a gap). */
-static double base_at(const hyp_series *b, double x, size_t *hint)
-{
-    size_t k = *hint;
-    while (k + 1 < b->count && b->time_s[k + 1] <= x)
-        k++;
-    while (k > 0 && b->time_s[k] > x)
-        k--;
-    *hint = k;
-    if (k + 1 >= b->count || b->time_s[k] > x || b->flag[k] || b->flag[k + 1] || b->time_s[k + 1] - b->time_s[k] > 600)
-        return NAN;
-    double w = (x - b->time_s[k]) / (b->time_s[k + 1] - b->time_s[k]);
-    return b->pressure_pa[k] + w * (b->pressure_pa[k + 1] - b->pressure_pa[k]);
-}
-
 /* Scatter about the window means of rover - base with the base clock taken
  * as `off` s ahead; NaN when a sample falls outside the base log. */
-static double scatter(const pts *q, const hyp_series *b, double off, double *resid)
+static double scatter(const pts *q, const hyp__base_view *b, double max_gap_s, double off, double *resid)
 {
     double sum[64] = {0}, cnt[64] = {0}, ss = 0;
-    size_t hint = 0;
     for (size_t i = 0; i < q->n; i++) {
-        double pb = base_at(b, q->t[i] + off, &hint);
-        if (pb != pb)
+        double pb;
+        if (hyp__base_at(b, b->p, q->t[i] + off, max_gap_s, &pb))
             return NAN;
         resid[i] = q->p[i] - pb;
         sum[q->win[i]] += resid[i];
@@ -75,13 +60,20 @@ static hyp_status collect(const hyp_series *rv, const hyp_correct_result *res, p
     return HYP_OK;
 }
 
-hyp_status hyp_estimate_base_clock(const hyp_series *rover, const hyp_base *base,
-                                   const hyp_correct_result *res, double max_lag_s,
-                                   double *offset_s, double *sigma_s, hyp_error *err)
+hyp_status hyp__estimate_base_clock(const hyp_series *rover, const hyp_base *base, const hyp_correct_result *res,
+                                    double max_lag_s, double max_gap_s, double *offset_s, double *sigma_s,
+                                    hyp_error *err)
 {
     pts q = {0};
     double *resid = NULL, *ss = NULL;
-    hyp_status st = collect(rover, res, &q);
+    /* the base on its own clock: the lag is searched around its offset */
+    hyp_base logged = *base;
+    logged.clock_offset_s = 0.0;
+    hyp__base_view bv;
+    hyp_status st = hyp__base_view_make(&logged, &bv, err);
+    if (st)
+        return st;
+    st = collect(rover, res, &q);
     int nlag = (int)floor(max_lag_s);
     if (!st && (!(resid = malloc((q.n ? q.n : 1) * sizeof *resid)) || !(ss = malloc((size_t)(2 * nlag + 1) * sizeof *ss))))
         st = HYP_ERR_NOMEM;
@@ -95,7 +87,7 @@ hyp_status hyp_estimate_base_clock(const hyp_series *rover, const hyp_base *base
     }
     int best = -1;
     for (int k = 0; k <= 2 * nlag; k++) {
-        ss[k] = scatter(&q, base->log, base->clock_offset_s + (k - nlag), resid);
+        ss[k] = scatter(&q, &bv, max_gap_s, base->clock_offset_s + (k - nlag), resid);
         if (ss[k] == ss[k] && (best < 0 || ss[k] < ss[best]))
             best = k;
     }
@@ -158,7 +150,7 @@ hyp_status hyp_estimate_base_clock(const hyp_series *rover, const hyp_base *base
     if (shift > 10.0) shift = 10.0;
     if (shift < -10.0) shift = -10.0;
     double lag = best - nlag + shift, b = ss[best];
-    scatter(&q, base->log, base->clock_offset_s + lag, resid);
+    scatter(&q, &bv, max_gap_s, base->clock_offset_s + lag, resid);
     double mean, sd, neff;
     hyp__mean_sd_neff(resid, q.n, &mean, &sd, &neff);
     double sigma2 = b / (double)(q.n - (size_t)q.nwin - 1);
@@ -171,6 +163,7 @@ hyp_status hyp_estimate_base_clock(const hyp_series *rover, const hyp_base *base
     *offset_s = base->clock_offset_s + lag;
     *sigma_s = sig;
 out:
+    hyp__base_view_free(&bv);
     free(q.t);
     free(q.p);
     free(q.win);
