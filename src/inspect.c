@@ -309,3 +309,43 @@ void hyp_issue_format(const hyp_issue *is, char *buf, size_t n)
     }
     snprintf(buf, n, "unknown issue");
 }
+
+static void issue_line(FILE *f, const hyp_issue *is)
+{
+    char line[300];
+    hyp_issue_format(is, line, sizeof line);
+    if (is->kind == HYP_ISSUE_RAPID)
+        fprintf(f, "    %s\n", line);
+    else
+        fprintf(f, "    %s, line %u\n", line, is->line);
+}
+
+void hyp_inspection_write(FILE *f, const char *path, hyp_unit unit, const hyp_inspection *r)
+{
+    const char *pu = hyp_unit_name(unit);
+    char a[40], b[40];
+    hyp_time_format(r->t0_s, a, sizeof a);
+    hyp_time_format(r->t1_s, b, sizeof b);
+    fprintf(f, "hypsolev inspect: %s\n", path);
+    fprintf(f, "  span        %s to %s (%.2f h), %zu samples (%zu usable), interval %.1f s\n", a, b,
+           (r->t1_s - r->t0_s) / 3600.0, r->count, r->usable, r->interval_s);
+    fprintf(f, "  pressure    %.2f to %.2f hPa (file unit %s), white noise %.3f hPa\n", r->p_min_pa / 100.0, r->p_max_pa / 100.0,
+           pu, r->noise_pa / 100.0);
+    if (r->t_min_k <= r->t_max_k)
+        fprintf(f, "  temperature %.2f to %.2f degC\n", r->t_min_k - 273.15, r->t_max_k - 273.15);
+    if (r->rh_min <= r->rh_max)
+        fprintf(f, "  humidity    %.0f to %.0f %%\n", r->rh_min, r->rh_max);
+    fprintf(f, "  tendency    trend %+.3f hPa/h over the log", r->trend_pa_per_s * 36.0);
+    if (r->max_change_1h_at_s > 0) {
+        hyp_time_format(r->max_change_1h_at_s, a, sizeof a);
+        fprintf(f, "; largest change %+.2f hPa in 1 h (from %s)", r->max_change_1h_pa / 100.0, a);
+    }
+    if (r->max_change_3h_at_s > 0) {
+        hyp_time_format(r->max_change_3h_at_s, b, sizeof b);
+        fprintf(f, ", %+.2f hPa in 3 h (from %s)", r->max_change_3h_pa / 100.0, b);
+    }
+    fputc('\n', f);
+    fprintf(f, "  problems    %s\n", r->n_issues ? "" : "none found");
+    for (size_t i = 0; i < r->n_issues; i++)
+        issue_line(f, &r->issues[i]);
+}

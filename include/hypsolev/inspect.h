@@ -4,7 +4,9 @@
 #define HYPSOLEV_INSPECT_H
 
 #include <stddef.h>
+#include <stdio.h>
 #include "hypsolev/error.h"
+#include "hypsolev/units.h"
 #include "hypsolev/samples.h"
 
 #ifdef __cplusplus
@@ -60,6 +62,10 @@ typedef struct hyp_inspection {
 } hyp_inspection;
 
 void hyp_inspection_free(hyp_inspection *r);
+/* The inspection of the log at path (its pressure unit as found) as text:
+ * span, interval, ranges, tendency and one line per problem, units on
+ * every number. */
+void hyp_inspection_write(FILE *f, const char *path, hyp_unit unit, const hyp_inspection *r);
 hyp_status hyp_inspect(const hyp_series *s, const hyp_inspect_opts *o, hyp_inspection *out,
                        hyp_error *err);
 

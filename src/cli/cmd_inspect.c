@@ -4,7 +4,6 @@
 #include "hypsolev/hypsolev.h"
 
 #include <getopt.h>
-#include <math.h>
 #include <stdio.h>
 #include <string.h>
 
@@ -22,17 +21,6 @@ static void help(void)
           "\n"
           "exit status: 0 every log was read, 1 a log could not be used, 2 usage error.\n\n", stdout);
     cli_print_safety();
-}
-
-/* One line per problem, with its file line. */
-static void print_issue(const hyp_issue *is)
-{
-    char line[300];
-    hyp_issue_format(is, line, sizeof line);
-    if (is->kind == HYP_ISSUE_RAPID)
-        printf("    %s\n", line);
-    else
-        printf("    %s, line %u\n", line, is->line);
 }
 
 static int inspect_one(const char *path, const hyp_read_opts *ro)
@@ -65,31 +53,7 @@ static int inspect_one(const char *path, const hyp_read_opts *ro)
         hyp_msgs_free(&m);
         return EXIT_INPUT;
     }
-    char a[40], b[40];
-    hyp_time_format(r.t0_s, a, sizeof a);
-    hyp_time_format(r.t1_s, b, sizeof b);
-    printf("hypsolev inspect: %s\n", path);
-    printf("  span        %s to %s (%.2f h), %zu samples (%zu usable), interval %.1f s\n", a, b,
-           (r.t1_s - r.t0_s) / 3600.0, r.count, r.usable, r.interval_s);
-    printf("  pressure    %.2f to %.2f hPa (file unit %s), white noise %.3f hPa\n", r.p_min_pa / 100.0, r.p_max_pa / 100.0,
-           hyp_unit_name(pu), r.noise_pa / 100.0);
-    if (r.t_min_k <= r.t_max_k)
-        printf("  temperature %.2f to %.2f degC\n", r.t_min_k - 273.15, r.t_max_k - 273.15);
-    if (r.rh_min <= r.rh_max)
-        printf("  humidity    %.0f to %.0f %%\n", r.rh_min, r.rh_max);
-    printf("  tendency    trend %+.3f hPa/h over the log", r.trend_pa_per_s * 36.0);
-    if (r.max_change_1h_at_s > 0) {
-        hyp_time_format(r.max_change_1h_at_s, a, sizeof a);
-        printf("; largest change %+.2f hPa in 1 h (from %s)", r.max_change_1h_pa / 100.0, a);
-    }
-    if (r.max_change_3h_at_s > 0) {
-        hyp_time_format(r.max_change_3h_at_s, b, sizeof b);
-        printf(", %+.2f hPa in 3 h (from %s)", r.max_change_3h_pa / 100.0, b);
-    }
-    putchar('\n');
-    printf("  problems    %s\n", r.n_issues ? "" : "none found");
-    for (size_t i = 0; i < r.n_issues; i++)
-        print_issue(&r.issues[i]);
+    hyp_inspection_write(stdout, path, pu, &r);
     hyp_inspection_free(&r);
     hyp_series_free(&s);
     hyp_gpx_doc_free(&d);
