@@ -143,6 +143,11 @@ void hyp__svg_range(const double *v, size_t n, double *lo, double *hi)
 
 /* ---- layout ---------------------------------------------------------- */
 
+static double size_or(double px, double def)
+{
+    return px != 0 ? px : def;   /* NaN stays NaN, for check_spec to refuse */
+}
+
 static hyp_status check_spec(const hyp__svg_spec *s, hyp_error *err)
 {
     const char *id = s->id ? s->id : "";
@@ -152,7 +157,7 @@ static hyp_status check_spec(const hyp__svg_spec *s, hyp_error *err)
         ok = (id[i] >= '0' && id[i] <= '9') || ((id[i] | 32) >= 'a' && (id[i] | 32) <= 'z') || id[i] == '_' || id[i] == '-';
     if (!ok)
         return hyp_error_set(err, HYP_ERR_USAGE, "figure id: expected a letter then up to 30 letters, digits, '_' or '-'");
-    double w = s->width_px ? s->width_px : 720, h = s->height_px ? s->height_px : 400;
+    double w = size_or(s->width_px, 720), h = size_or(s->height_px, 400);
     if (!(w >= 120 && w <= 10000 && h >= 80 && h <= 10000))
         return hyp_error_set(err, HYP_ERR_USAGE, "figure %s: size out of range; expected 120 to 10000 px wide, 80 to 10000 px high", id);
     if (s->equal_aspect && (s->x.time_utc || s->y.time_utc))
@@ -160,10 +165,15 @@ static hyp_status check_spec(const hyp__svg_spec *s, hyp_error *err)
     return HYP_OK;
 }
 
-static hyp_status axis_ticks(const hyp__svg_axis *a, hyp__ticks *t, hyp_error *err)
+/* The axis's ticks; a failure's message says which figure and axis. */
+static hyp_status axis_ticks(const char *id, const char *name, const hyp__svg_axis *a, hyp__ticks *t, hyp_error *err)
 {
     int target = a->ticks ? a->ticks : 6;
-    return a->time_utc ? hyp__ticks_time(a->lo, a->hi, target, t, err) : hyp__ticks_nice(a->lo, a->hi, target, t, err);
+    hyp_error e;
+    hyp_status st = a->time_utc ? hyp__ticks_time(a->lo, a->hi, target, t, &e) : hyp__ticks_nice(a->lo, a->hi, target, t, &e);
+    if (st)
+        hyp_error_set(err, st, "figure %s, %s axis: %s", id, name, e.message);
+    return st;
 }
 
 static size_t widest_label(const hyp__ticks *t, int *has_date)
@@ -187,8 +197,8 @@ static void layout(hyp__svg *f, const hyp__svg_spec *s)
     int has_date = 0;
     size_t ylab = widest_label(&f->yt, NULL);
     widest_label(&f->xt, &has_date);
-    f->w_px = s->width_px ? s->width_px : 720;
-    f->h_px = s->height_px ? s->height_px : 400;
+    f->w_px = size_or(s->width_px, 720);
+    f->h_px = size_or(s->height_px, 400);
     f->left_px = 10 + (s->y.title ? 18 : 0) + CHAR_PX * (double)ylab + TICK_PX + 4;
     f->right_px = f->w_px - 18 - (s->colour_title ? 96 : 0);
     f->top_px = s->title ? 34 : 14;
@@ -298,14 +308,16 @@ hyp_status hyp__svg_begin(hyp__svg *f, hyp__buf *out, const hyp__svg_spec *spec,
     f->out = out;
     f->start = out->len;
     f->err = err;
+    f->start_fail = out->fail;
     hyp_status st = check_spec(spec, err);
     if (!st)
-        st = axis_ticks(&spec->x, &f->xt, err);
+        snprintf(f->id, sizeof f->id, "%s", spec->id);
     if (!st)
-        st = axis_ticks(&spec->y, &f->yt, err);
+        st = axis_ticks(f->id, "x", &spec->x, &f->xt, err);
+    if (!st)
+        st = axis_ticks(f->id, "y", &spec->y, &f->yt, err);
     if (st)
         return hyp__svg_fail(f, st);
-    snprintf(f->id, sizeof f->id, "%s", spec->id);
     layout(f, spec);
     if (f->right_px - f->left_px < 40 || f->bottom_px - f->top_px < 30)
         return hyp__svg_fail(f, hyp_error_set(err, HYP_ERR_USAGE, "figure %s: %.0f x %.0f px leave no room for the plot area",
@@ -324,6 +336,8 @@ hyp_status hyp__svg_begin(hyp__svg *f, hyp__buf *out, const hyp__svg_spec *spec,
 
 void hyp__svg_discard(hyp__svg *f)
 {
-    if (f->out)
+    if (f->out) {
         hyp__buf_truncate(f->out, f->start);
+        f->out->fail = f->start_fail;   /* a failure from before the figure stays the caller's */
+    }
 }

@@ -173,6 +173,7 @@ typedef struct hyp__svg_key {
 typedef struct hyp__svg {
     hyp__buf *out;
     size_t start;             /* out->len at hyp__svg_begin */
+    hyp__buf_fail start_fail; /* out->fail then */
     hyp_status status;
     hyp_error *err;
     char id[32];
@@ -209,7 +210,8 @@ hyp_status hyp__svg_markers(hyp__svg *f, const double *x, const double *y, const
 
 /* Markers filled by the sequential scale of v over [v_lo, v_hi] (a plan
  * coloured by sigma); a non-finite v gives a hollow grey marker. The colour
- * bar is drawn by hyp__svg_end when the spec asked for one. */
+ * bar is drawn by hyp__svg_end when the spec asked for one. Every call in
+ * a figure must give the same range (one colour bar). */
 hyp_status hyp__svg_points_coloured(hyp__svg *f, const double *x, const double *y, const double *v, size_t n,
                                     double v_lo, double v_hi, hyp__svg_marker m);
 

@@ -189,7 +189,9 @@ hyp_status hyp__svg_points_coloured(hyp__svg *f, const double *x, const double *
                                     double v_lo, double v_hi, hyp__svg_marker m)
 {
     if (need(f, !n || (x && y && v), "coloured points without their x, y or values") ||
-        need(f, isfinite(v_lo) && isfinite(v_hi) && v_lo <= v_hi, "colour scale range empty or not finite"))
+        need(f, isfinite(v_lo) && isfinite(v_hi) && v_lo <= v_hi, "colour scale range empty or not finite") ||
+        need(f, !f->cbar_set || (f->cbar_lo == v_lo && f->cbar_hi == v_hi),
+             "coloured points: the colour range differs from an earlier call's (one colour bar a figure)"))
         return f->status;
     hyp__svg_clip_enter(f);
     hyp__svg_out(f, "<g class=\"coloured\">\n");
@@ -203,8 +205,8 @@ hyp_status hyp__svg_points_coloured(hyp__svg *f, const double *x, const double *
         hyp__svg_out(f, "\n");
     }
     hyp__svg_out(f, "</g>\n");
-    f->cbar_lo = f->cbar_set ? fmin(f->cbar_lo, v_lo) : v_lo;
-    f->cbar_hi = f->cbar_set ? fmax(f->cbar_hi, v_hi) : v_hi;
+    f->cbar_lo = v_lo;
+    f->cbar_hi = v_hi;
     f->cbar_set = 1;
     return hyp__svg_settle(f);
 }

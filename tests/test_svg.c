@@ -108,6 +108,8 @@ static void test_escape(void **state)
     assert_int_equal(hyp__svg_text_chars("h\xC3\xB6he [m]"), 8);
 }
 
+/* The cap refuses an append whole and stays refused (the behaviour buf.h
+ * documents, after curl's dynbuf; common practice, no source). */
 static void test_buffer_cap(void **state)
 {
     (void)state;
@@ -704,8 +706,10 @@ static hyp_status draw_everything(hyp__buf *b, int strict)
         sm.marker = (hyp__svg_marker)m;
         check_call(hyp__svg_markers(&f, &mx[m], &my[m], &me[m], 1, &sm), strict);
     }
-    double cx[3] = {t0 + 500, t0 + 600, t0 + 700}, cy[3] = {900, 905, 910}, cv[3] = {0.5, NAN, 2.5};
-    check_call(hyp__svg_points_coloured(&f, cx, cy, cv, 3, 0.5, 2.5, HYP__SVG_TRIANGLE), strict);
+    double nx[2] = {t0 + 100, NAN}, ny[2] = {NAN, 850};   /* no position: skipped, nothing written */
+    check_call(hyp__svg_markers(&f, nx, ny, NULL, 2, NULL), strict);
+    double cx[4] = {t0 + 500, t0 + 600, t0 + 700, NAN}, cy[4] = {900, 905, 910, 915}, cv[4] = {0.5, NAN, 2.5, 1};
+    check_call(hyp__svg_points_coloured(&f, cx, cy, cv, 4, 0.5, 2.5, HYP__SVG_TRIANGLE), strict);
     double bx[2] = {t0 + 2000, t0 + 4000}, bv[6] = {5, 3, 2, 4, NAN, 1};
     const char *parts[3] = {"base", "rover", "model"};
     check_call(hyp__svg_bars(&f, bx, 2, bv, 3, 600, parts), strict);
@@ -772,7 +776,8 @@ static void test_figure_plan(void **state)
     assert_int_equal(hyp__svg_text(&f, e[2], n[2], "BM \xC3\xA9lan", 1), HYP_OK);
     assert_int_equal(hyp__svg_end(&f), HYP_OK);
     check_safe(&b);
-    /* one metre as long across as up: tick spacing in px per unit alike */
+    /* one metre as long across as up: px per unit alike on both axes (the
+     * definition of equal aspect; common practice, no source) */
     double sx = (f.right_px - f.left_px) / (f.x_hi - f.x_lo), sy = (f.bottom_px - f.top_px) / (f.y_hi - f.y_lo);
     assert_true(fabs(sx - sy) < 1e-9 * sx);
     assert_true(f.x_lo <= 0 && f.x_hi >= 1200 && f.y_lo <= 0 && f.y_hi >= 900);
@@ -882,7 +887,8 @@ static void test_figure_data_match(void **state)
     hyp__buf_free(&b);
 }
 
-/* Failures leave nothing half-written: the buffer is cut back. */
+/* Failures leave nothing half-written: the buffer is cut back (the house
+ * rule of STYLE.md and the preamble; curl's dynbuf refuses past its cap). */
 static void test_figure_failures(void **state)
 {
     (void)state;
@@ -891,6 +897,16 @@ static void test_figure_failures(void **state)
     hyp__buf_adds(&b, "<p>before</p>");
     assert_int_equal(draw_everything(&b, 0), HYP_ERR_NOMEM);   /* far more than 4000 bytes */
     assert_string_equal(b.data, "<p>before</p>");
+    assert_int_equal(b.fail, HYP__BUF_OK);
+    /* a buffer that had already failed before the figure stays failed */
+    hyp__buf_adds(&b, "0123456789012345678901234567890123456789012345678901234567890123456789");
+    for (int k = 0; k < 100 && !b.fail; k++)
+        hyp__buf_adds(&b, "0123456789012345678901234567890123456789012345678901234567890123456789");
+    assert_int_equal(b.fail, HYP__BUF_CAPPED);
+    size_t len = b.len;
+    assert_int_equal(draw_everything(&b, 0), HYP_ERR_NOMEM);
+    assert_int_equal(b.len, len);
+    assert_int_equal(b.fail, HYP__BUF_CAPPED);
     hyp__buf_free(&b);
 
     hyp__buf_init(&b, 0);
@@ -914,6 +930,17 @@ static void test_figure_failures(void **state)
     spec.y.hi = NAN;
     assert_int_equal(hyp__svg_begin(&f, &b, &spec, &err), HYP_ERR_VALUE);
     assert_null(strstr(err.message, "nan"));
+    assert_non_null(strstr(err.message, "figure ok, y axis: "));   /* the message says where */
+    spec.y.hi = 10;
+    /* two colour ranges in one figure would need two colour bars */
+    double px[1] = {1}, py[1] = {1}, pv[1] = {1};
+    assert_int_equal(hyp__svg_begin(&f, &b, &spec, &err), HYP_OK);
+    assert_int_equal(hyp__svg_points_coloured(&f, px, py, pv, 1, 0, 2, HYP__SVG_CIRCLE), HYP_OK);
+    assert_int_equal(hyp__svg_points_coloured(&f, px, py, pv, 1, 0, 3, HYP__SVG_CIRCLE), HYP_ERR_USAGE);
+    assert_non_null(strstr(err.message, "colour range differs"));
+    assert_int_equal(hyp__svg_end(&f), HYP_ERR_USAGE);
+    assert_int_equal(b.len, 0);
+    spec.y.hi = NAN;
     spec.y.hi = 10;
     spec.width_px = 130;
     spec.height_px = 90;
