@@ -116,15 +116,14 @@ void hyp__decim_free(hyp__decim *d);
 hyp_status hyp__decimate(const double *x, const double *y, const double *also, size_t n,
                          double x_lo, double x_hi, int columns, hyp__decim *d, hyp_error *err);
 
-/* ---- figures (svg.c, svg_marks.c) ------------------------------------ */
+/* ---- figures (svg.c, svg_marks.c, svg_legend.c) ---------------------- */
 
 typedef enum hyp__svg_marker {
     HYP__SVG_CIRCLE = 0,
     HYP__SVG_SQUARE,
     HYP__SVG_TRIANGLE,
     HYP__SVG_CROSS,
-    HYP__SVG_MARKER_N,
-    HYP__SVG_NO_MARKER = -1
+    HYP__SVG_MARKER_N
 } hyp__svg_marker;
 
 typedef struct hyp__svg_axis {
@@ -148,7 +147,7 @@ typedef struct hyp__svg_spec {
 typedef struct hyp__svg_style {
     int colour;               /* palette index */
     int dash;                 /* dash pattern index, 0 solid */
-    hyp__svg_marker marker;   /* HYP__SVG_NO_MARKER: none */
+    hyp__svg_marker marker;   /* the shape hyp__svg_markers draws (lines draw none) */
     double width_px;          /* line width (marker size 4 x width + 1); 0: 1.5 */
     const char *label;        /* legend text; NULL: no legend entry */
 } hyp__svg_style;

@@ -1,5 +1,6 @@
-/* svg_int.h - what the figure frame (svg.c) and the data marks
- * (svg_marks.c) share (private to the drawing layer). */
+/* svg_int.h - what the figure frame (svg.c), the data marks
+ * (svg_marks.c) and the legend (svg_legend.c) share (private to the
+ * drawing layer). */
 #ifndef HYP_SVG_INT_H
 #define HYP_SVG_INT_H
 
