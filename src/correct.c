@@ -465,13 +465,3 @@ hyp_status hyp_correct(const hyp_series *rover, const hyp_base *bases, size_t n_
     res->clock_applied_s = applied;
     return st;
 }
-
-hyp_status hyp_correct_single_base(const hyp_series *rover, const hyp_base *base,
-                                   const hyp_correct_opts *opts, hyp_correct_result *res,
-                                   hyp_msgs *msgs, hyp_error *err)
-{
-    hyp_base b = *base;
-    /* callers that filled the struct by hand before kind/offset existed get
-     * zeros there: a zero offset is no offset */
-    return hyp_correct(rover, &b, 1, opts, res, msgs, err);
-}

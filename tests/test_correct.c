@@ -45,7 +45,7 @@ static void test_reproduces_ussa(void **state)
     hyp_correct_result r;
     hyp_correct_result_init(&r);
     hyp_error err;
-    assert_int_equal(hyp_correct_single_base(&rover, &b, &o, &r, NULL, &err), HYP_OK);
+    assert_int_equal(hyp_correct(&rover, &b, 1, &o, &r, NULL, &err), HYP_OK);
     for (int i = 0; i < 3; i++) {
         print_message("USSA %.0f m: corrected %.3f m\n", z[i], r.height_m[i]);
         assert_true(fabs(r.height_m[i] - z[i]) < 0.06 * z[i] / 1000.0 + 0.02);
@@ -80,11 +80,11 @@ static void test_base_clock_offset(void **state)
     hyp_correct_result r;
     hyp_correct_result_init(&r);
     hyp_error err;
-    assert_int_equal(hyp_correct_single_base(&rover, &b, &o, &r, NULL, &err), HYP_OK);
+    assert_int_equal(hyp_correct(&rover, &b, 1, &o, &r, NULL, &err), HYP_OK);
     double dz = (90.0 * -rate) / (90000.0 * 9.806 / (287.05 * 285.0));   /* dp / (rho g) */
     assert_true(fabs(r.height_m[50] - 1000.0 - dz) < 0.02);
     b.clock_offset_s = 90.0;
-    assert_int_equal(hyp_correct_single_base(&rover, &b, &o, &r, NULL, &err), HYP_OK);
+    assert_int_equal(hyp_correct(&rover, &b, 1, &o, &r, NULL, &err), HYP_OK);
     assert_true(fabs(r.height_m[50] - 1000.0) < 0.005);
     hyp_correct_result_free(&r);
     hyp_series_free(&base);
@@ -119,7 +119,7 @@ static void test_drift_gap_outside(void **state)
     hyp_error err;
     hyp_msgs m;
     hyp_msgs_init(&m);
-    assert_int_equal(hyp_correct_single_base(&rover, &b, NULL, &r, &m, &err), HYP_OK);
+    assert_int_equal(hyp_correct(&rover, &b, 1, NULL, &r, &m, &err), HYP_OK);
     assert_int_equal(r.n_calibs, 2);
     assert_int_equal(r.drift.kind, HYP_DRIFT_LINEAR);
     for (size_t i = 0; i < rover.count - 1; i++) {

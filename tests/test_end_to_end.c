@@ -323,7 +323,7 @@ static void test_clock_estimate(void **state)
         hyp_base hb = {.log = &b, .name = base, .height_m = 812.4, .lat_deg = 46.8, .lon_deg = 9.9};
         hyp_correct_result r;
         hyp_correct_result_init(&r);
-        assert_int_equal(hyp_correct_single_base(&d.pts, &hb, NULL, &r, NULL, &err), HYP_OK);
+        assert_int_equal(hyp_correct(&d.pts, &hb, 1, NULL, &r, NULL, &err), HYP_OK);
         print_message("%s: clock estimate %s %+.1f s +- %.1f s\n", dirs[k], r.clock_est_ok ? "ok" : "not determined",
                       r.clock_est_s, r.clock_est_sigma_s);
         if (k == 0) {

@@ -142,7 +142,7 @@ static void test_drift_recovered(void **state)
     hyp_correct_result r;
     hyp_correct_result_init(&r);
     hyp_error err;
-    assert_int_equal(hyp_correct_single_base(&f.rover, &b, &o, &r, NULL, &err), HYP_OK);
+    assert_int_equal(hyp_correct(&f.rover, &b, 1, &o, &r, NULL, &err), HYP_OK);
     assert_int_equal(r.n_calibs, 4);
     assert_int_equal(r.drift.kind, HYP_DRIFT_LINEAR);
     const hyp_drift *d = &r.drift;
@@ -198,7 +198,7 @@ static void test_collinear_ties(void **state)
     hyp_correct_result r;
     hyp_correct_result_init(&r);
     hyp_error err;
-    assert_int_equal(hyp_correct_single_base(&f.rover, &b, &o, &r, NULL, &err), HYP_OK);
+    assert_int_equal(hyp_correct(&f.rover, &b, 1, &o, &r, NULL, &err), HYP_OK);
     print_message("note: %s\n", r.drift.note);
     assert_false(r.drift.has_scale);
     assert_non_null(strstr(r.drift.note, "column scale not estimated"));
@@ -242,7 +242,7 @@ static void test_budget_terms(void **state)
     hyp_correct_result r;
     hyp_correct_result_init(&r);
     hyp_error err;
-    assert_int_equal(hyp_correct_single_base(&rover, &b, &o, &r, NULL, &err), HYP_OK);
+    assert_int_equal(hyp_correct(&rover, &b, 1, &o, &r, NULL, &err), HYP_OK);
     size_t i = 25;
     double p = rover.pressure_pa[i];
     double c = HYP_RD_J_KG_K * 285.0 / (hyp_gravity_at_height_m_s2(45.0, 0.0) * p);
@@ -290,7 +290,7 @@ static void test_budget_tcol(void **state)
     hyp_correct_result r;
     hyp_correct_result_init(&r);
     hyp_error err;
-    assert_int_equal(hyp_correct_single_base(&rover, &b, &o, &r, NULL, &err), HYP_OK);
+    assert_int_equal(hyp_correct(&rover, &b, 1, &o, &r, NULL, &err), HYP_OK);
     assert_near(r.height_m[5], 1000.0, 0.3);   /* g differs slightly from 9.8062 with height */
     hyp_point_detail pd;
     assert_int_equal(hyp_correct_point(&r, 5, &pd), HYP_OK);
@@ -325,9 +325,9 @@ static void test_budget_smoothing(void **state)
     hyp_correct_result_init(&r0);
     hyp_correct_result_init(&r1);
     hyp_error err;
-    assert_int_equal(hyp_correct_single_base(&rover, &b, &o, &r0, NULL, &err), HYP_OK);
+    assert_int_equal(hyp_correct(&rover, &b, 1, &o, &r0, NULL, &err), HYP_OK);
     o.smooth_s = 60.0;
-    assert_int_equal(hyp_correct_single_base(&rover, &b, &o, &r1, NULL, &err), HYP_OK);
+    assert_int_equal(hyp_correct(&rover, &b, 1, &o, &r1, NULL, &err), HYP_OK);
     size_t i = 100;
     hyp_point_detail d0, d1;
     assert_int_equal(hyp_correct_point(&r0, i, &d0), HYP_OK);

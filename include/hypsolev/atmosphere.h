@@ -5,6 +5,8 @@
 #ifndef HYPSOLEV_ATMOSPHERE_H
 #define HYPSOLEV_ATMOSPHERE_H
 
+#include "hypsolev/export.h"
+
 #ifdef __cplusplus
 extern "C" {
 #endif
@@ -23,75 +25,75 @@ extern "C" {
 
 /* Geopotential height H (m') from geometric height z (m) and back,
  * USSA 1976 eq. 18: H = r0 z / (r0 + z). */
-double hyp_geopotential_from_geometric_m(double z_m);
-double hyp_geometric_from_geopotential_m(double h_gp_m);
+HYP_API double hyp_geopotential_from_geometric_m(double z_m);
+HYP_API double hyp_geometric_from_geopotential_m(double h_gp_m);
 
 /* USSA 1976 temperature (K) and pressure (Pa) at geopotential height
  * h_gp_m, valid from -5000 m' to 84852 m' (the 86 km geometric top of the
  * seven-layer model); NaN outside. */
-double hyp_isa_temperature_k(double h_gp_m);
-double hyp_isa_pressure_pa(double h_gp_m);
+HYP_API double hyp_isa_temperature_k(double h_gp_m);
+HYP_API double hyp_isa_pressure_pa(double h_gp_m);
 /* Inverse of hyp_isa_pressure_pa: geopotential height (m') of a pressure
  * (Pa), from 0.3734 Pa to 177687 Pa (the same domain); NaN outside. */
-double hyp_isa_height_gp_m(double pressure_pa);
+HYP_API double hyp_isa_height_gp_m(double pressure_pa);
 
 /* Station pressure (Pa) at height h_m (m above mean sea level, taken as
  * geopotential) from QNH (Pa), and QNH from station pressure: the
  * standard-atmosphere reduction, ICAO Doc 7488 / USSA 1976 troposphere:
  * p = QNH * (1 - L h / T0)^(g0 / (Rd L)), L = 0.0065 K/m. Valid for
  * -1000 m <= h <= 11000 m; NaN outside. */
-double hyp_station_from_qnh_pa(double qnh_pa, double h_m);
-double hyp_qnh_from_station_pa(double station_pa, double h_m);
+HYP_API double hyp_station_from_qnh_pa(double qnh_pa, double h_m);
+HYP_API double hyp_qnh_from_station_pa(double station_pa, double h_m);
 
 /* WGS84 normal gravity (m/s^2) on the ellipsoid at geodetic latitude
  * lat_deg (Somigliana closed form, NIMA TR8350.2, 3rd ed., eq. 4-1), and at
  * ellipsoidal height h_m above it (eq. 4-3, second-order series, valid
  * to about 20 km). lat_deg in [-90, 90], else NaN. */
-double hyp_gravity_normal_m_s2(double lat_deg);
-double hyp_gravity_at_height_m_s2(double lat_deg, double h_m);
+HYP_API double hyp_gravity_normal_m_s2(double lat_deg);
+HYP_API double hyp_gravity_at_height_m_s2(double lat_deg, double h_m);
 
 /* The same, evaluated once per latitude for many heights (the sine is the
  * costly part): g0 is the normal gravity there (NaN outside -90..90), s2
  * the squared sine of the latitude. */
 typedef struct hyp_gravity { double g0, s2; } hyp_gravity;
-hyp_gravity hyp_gravity_at_lat(double lat_deg);
-double hyp_gravity_h_m_s2(const hyp_gravity *g, double h_m);
+HYP_API hyp_gravity hyp_gravity_at_lat(double lat_deg);
+HYP_API double hyp_gravity_h_m_s2(const hyp_gravity *g, double h_m);
 
 /* Saturation vapour pressure over water (Pa) at temp_k, WMO-No. 8 (2018),
  * Annex 4.B: e_w(t) = 6.112 exp(17.62 t / (243.12 + t)) hPa, t in degC,
  * stated for -45 degC <= t <= 60 degC; NaN outside. */
-double hyp_svp_water_pa(double temp_k);
+HYP_API double hyp_svp_water_pa(double temp_k);
 /* Enhancement factor of moist air f(p) = 1.0016 + 3.15e-6 p - 0.074 / p
  * (p in hPa), WMO-No. 8 Annex 4.B. Dimensionless. */
-double hyp_svp_enhancement(double pressure_pa);
+HYP_API double hyp_svp_enhancement(double pressure_pa);
 
 /* Virtual temperature (K) of moist air at temp_k, relative humidity rh_pct
  * (0..100) and pressure_pa: vapour pressure e = rh/100 f(p) e_w(T), mixing
  * ratio r = eps e / (p - e), Tv = T (1 + r/eps) / (1 + r) (WMO-No. 8 Annex
  * 4.B definitions; Wallace and Hobbs, Atmospheric Science, 2nd ed., eq.
  * 3.59). NaN outside the domains above. */
-double hyp_virtual_temperature_k(double temp_k, double rh_pct,
+HYP_API double hyp_virtual_temperature_k(double temp_k, double rh_pct,
                                  double pressure_pa);
 
 /* Layer-mean temperature (K) of a layer whose temperature varies linearly
  * with height from t1_k to t2_k: the logarithmic mean (t1 - t2) / ln(t1/t2),
  * which makes the hypsometric equation exact for a constant lapse rate
  * (it follows from integrating dp/p = -g dz / (R T(z)) with T linear in z). */
-double hyp_layer_mean_temperature_k(double t1_k, double t2_k);
+HYP_API double hyp_layer_mean_temperature_k(double t1_k, double t2_k);
 
 /* Hypsometric equation: geopotential difference (J/kg = m^2/s^2) between
  * the levels of pressure p1_pa (lower) and p2_pa (upper) for a layer-mean
  * virtual temperature tv_mean_k: Phi2 - Phi1 = Rd Tv ln(p1/p2)
  * (Wallace and Hobbs, eq. 3.29). Positive when p2 < p1. */
-double hyp_hypsometric_dphi_j_kg(double p1_pa, double p2_pa, double tv_mean_k);
+HYP_API double hyp_hypsometric_dphi_j_kg(double p1_pa, double p2_pa, double tv_mean_k);
 
 /* Geometric height difference (m) for a geopotential difference dphi_j_kg
  * starting at ellipsoidal height h1_m, latitude lat_deg: solves
  * dphi = integral of g(lat, h) dh with the normal gravity above (two fixed
  * point iterations on the mid-layer gravity, exact to < 0.1 mm per km). */
-double hyp_height_difference_m(double dphi_j_kg, double h1_m, double lat_deg);
+HYP_API double hyp_height_difference_m(double dphi_j_kg, double h1_m, double lat_deg);
 /* The same with the latitude's gravity already evaluated. */
-double hyp_height_difference_g_m(double dphi_j_kg, double h1_m, const hyp_gravity *g);
+HYP_API double hyp_height_difference_g_m(double dphi_j_kg, double h1_m, const hyp_gravity *g);
 
 #ifdef __cplusplus
 }

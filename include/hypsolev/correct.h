@@ -3,6 +3,8 @@
 #ifndef HYPSOLEV_CORRECT_H
 #define HYPSOLEV_CORRECT_H
 
+#include "hypsolev/export.h"
+
 #include <stddef.h>
 #include <stdint.h>
 #include "hypsolev/error.h"
@@ -51,7 +53,7 @@ typedef struct hyp_base {
 
 /* Initialises a base description: no position, no clock offset, station
  * pressure, offset unknown. */
-void hyp_base_init(hyp_base *b, const hyp_series *log, const char *name, double height_m);
+HYP_API void hyp_base_init(hyp_base *b, const hyp_series *log, const char *name, double height_m);
 
 /* How heights are computed from the bases. */
 typedef enum hyp_method {
@@ -62,7 +64,7 @@ typedef enum hyp_method {
     HYP_METHOD_FIELD = 3     /* a pressure field from three or more bases */
 } hyp_method;
 
-const char *hyp_method_name(hyp_method m);
+HYP_API const char *hyp_method_name(hyp_method m);
 
 typedef struct hyp_correct_opts {
     double offset_pa;          /* explicit rover-minus-base offset, NaN: none */
@@ -135,7 +137,7 @@ typedef struct hyp_correct_opts {
                                   results do not depend on it) */
 } hyp_correct_opts;
 
-void hyp_correct_opts_init(hyp_correct_opts *o);
+HYP_API void hyp_correct_opts_init(hyp_correct_opts *o);
 
 typedef enum hyp_point_status {
     HYP_PT_OK = 0,
@@ -147,7 +149,7 @@ typedef enum hyp_point_status {
     HYP_PT_STATUS_COUNT
 } hyp_point_status;
 
-const char *hyp_point_status_text(hyp_point_status s);
+HYP_API const char *hyp_point_status_text(hyp_point_status s);
 
 /* One calibration: the rover beside the base (co-location) or on a
  * benchmark (tie), over a window of samples. */
@@ -231,7 +233,7 @@ typedef enum hyp_budget_term {
     HYP_B_COUNT
 } hyp_budget_term;
 
-const char *hyp_budget_term_name(hyp_budget_term t);
+HYP_API const char *hyp_budget_term_name(hyp_budget_term t);
 
 typedef struct hyp_period { double start_s, end_s, max_rate_pa_s; } hyp_period;
 
@@ -307,25 +309,18 @@ typedef struct hyp_point_detail {
  * HYP_ERR_NODATA when point i was not corrected (or res holds no
  * correction), HYP_ERR_USAGE when i is out of range. Only reads res, so
  * several threads may call it at once. */
-hyp_status hyp_correct_point(const hyp_correct_result *res, size_t i, hyp_point_detail *d);
+HYP_API hyp_status hyp_correct_point(const hyp_correct_result *res, size_t i, hyp_point_detail *d);
 
-void hyp_correct_result_init(hyp_correct_result *r);
-void hyp_correct_result_free(hyp_correct_result *r);
+HYP_API void hyp_correct_result_init(hyp_correct_result *r);
+HYP_API void hyp_correct_result_free(hyp_correct_result *r);
 
-/* Correction of `rover` against n_bases bases (method by opts->method),
- * with everything the single-base correction does on top. */
-hyp_status hyp_correct(const hyp_series *rover, const hyp_base *bases, size_t n_bases,
+/* Correction of `rover` against n_bases bases (method by opts->method):
+ * fills `res` (one entry per rover sample); warnings and notes go to msgs.
+ * HYP_ERR_NODATA when no rover sample could be corrected. */
+HYP_API hyp_status hyp_correct(const hyp_series *rover, const hyp_base *bases, size_t n_bases,
                        const hyp_correct_opts *opts, hyp_correct_result *res,
                        hyp_msgs *msgs, hyp_error *err);
 
-/* Single-base correction of `rover` against `base`. Fills `res` (one entry
- * per rover sample). Warnings go to msgs. HYP_ERR_NODATA when no rover
- * sample could be corrected. */
-hyp_status hyp_correct_single_base(const hyp_series *rover,
-                                   const hyp_base *base,
-                                   const hyp_correct_opts *opts,
-                                   hyp_correct_result *res,
-                                   hyp_msgs *msgs, hyp_error *err);
 
 
 #ifdef __cplusplus

@@ -3,6 +3,8 @@
 #ifndef HYPSOLEV_ERROR_H
 #define HYPSOLEV_ERROR_H
 
+#include "hypsolev/export.h"
+
 #include <stddef.h>
 
 #ifdef __cplusplus
@@ -55,19 +57,19 @@ typedef struct hyp_msgs {
     size_t dropped;
 } hyp_msgs;
 
-void hyp_error_clear(hyp_error *err);
+HYP_API void hyp_error_clear(hyp_error *err);
 /* Sets err (if not NULL) and returns status, printf-style. */
-hyp_status hyp_error_set(hyp_error *err, hyp_status status, const char *fmt, ...)
+HYP_API hyp_status hyp_error_set(hyp_error *err, hyp_status status, const char *fmt, ...)
 #if defined(__GNUC__)
     __attribute__((format(printf, 3, 4)))
 #endif
     ;
 
-void hyp_msgs_init(hyp_msgs *m);
-void hyp_msgs_free(hyp_msgs *m);
+HYP_API void hyp_msgs_init(hyp_msgs *m);
+HYP_API void hyp_msgs_free(hyp_msgs *m);
 /* Adds a message; msgs may be NULL (then nothing is kept). Out of memory is
  * counted in `dropped`, never fatal. */
-void hyp_msgs_add(hyp_msgs *m, hyp_level level, const char *fmt, ...)
+HYP_API void hyp_msgs_add(hyp_msgs *m, hyp_level level, const char *fmt, ...)
 #if defined(__GNUC__)
     __attribute__((format(printf, 3, 4)))
 #endif
@@ -75,14 +77,14 @@ void hyp_msgs_add(hyp_msgs *m, hyp_level level, const char *fmt, ...)
 
 /* The same, with the message's code, file and line (file may be NULL,
  * line 0). */
-void hyp_msgs_add_at(hyp_msgs *m, hyp_level level, const char *code, const char *file, unsigned line,
+HYP_API void hyp_msgs_add_at(hyp_msgs *m, hyp_level level, const char *code, const char *file, unsigned line,
                      const char *fmt, ...)
 #if defined(__GNUC__)
     __attribute__((format(printf, 6, 7)))
 #endif
     ;
 
-const char *hyp_status_name(hyp_status s);
+HYP_API const char *hyp_status_name(hyp_status s);
 
 #ifdef __cplusplus
 }

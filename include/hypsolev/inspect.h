@@ -3,6 +3,8 @@
 #ifndef HYPSOLEV_INSPECT_H
 #define HYPSOLEV_INSPECT_H
 
+#include "hypsolev/export.h"
+
 #include <stddef.h>
 #include <stdio.h>
 #include "hypsolev/error.h"
@@ -23,7 +25,7 @@ typedef enum hyp_issue_kind {
     HYP_ISSUE_KIND_COUNT
 } hyp_issue_kind;
 
-const char *hyp_issue_kind_name(hyp_issue_kind k);
+HYP_API const char *hyp_issue_kind_name(hyp_issue_kind k);
 
 typedef struct hyp_issue {
     hyp_issue_kind kind;
@@ -34,7 +36,7 @@ typedef struct hyp_issue {
 
 /* One line describing an issue, without its file line (is->line):
  * "gap          2026-06-18T07:00:00Z to ... (12.0 min without samples)". */
-void hyp_issue_format(const hyp_issue *is, char *buf, size_t n);
+HYP_API void hyp_issue_format(const hyp_issue *is, char *buf, size_t n);
 
 typedef struct hyp_inspect_opts {
     double gap_factor;      /* a gap is longer than this many intervals, default 5 */
@@ -46,7 +48,7 @@ typedef struct hyp_inspect_opts {
     double rapid_pa_per_s;  /* default 1 hPa/h */
 } hyp_inspect_opts;
 
-void hyp_inspect_opts_init(hyp_inspect_opts *o);
+HYP_API void hyp_inspect_opts_init(hyp_inspect_opts *o);
 
 typedef struct hyp_inspection {
     size_t count, usable;
@@ -61,12 +63,12 @@ typedef struct hyp_inspection {
     size_t n_kind[HYP_ISSUE_KIND_COUNT];
 } hyp_inspection;
 
-void hyp_inspection_free(hyp_inspection *r);
+HYP_API void hyp_inspection_free(hyp_inspection *r);
 /* The inspection of the log at path (its pressure unit as found) as text:
  * span, interval, ranges, tendency and one line per problem, units on
  * every number. */
-void hyp_inspection_write(FILE *f, const char *path, hyp_unit unit, const hyp_inspection *r);
-hyp_status hyp_inspect(const hyp_series *s, const hyp_inspect_opts *o, hyp_inspection *out,
+HYP_API void hyp_inspection_write(FILE *f, const char *path, hyp_unit unit, const hyp_inspection *r);
+HYP_API hyp_status hyp_inspect(const hyp_series *s, const hyp_inspect_opts *o, hyp_inspection *out,
                        hyp_error *err);
 
 #ifdef __cplusplus

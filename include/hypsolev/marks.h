@@ -31,10 +31,10 @@ typedef struct hyp_benchmarks {
     double *lat_deg, *lon_deg, *height_m, *sigma_m;
 } hyp_benchmarks;
 
-void hyp_benchmarks_init(hyp_benchmarks *b);
-void hyp_benchmarks_free(hyp_benchmarks *b);
+HYP_API void hyp_benchmarks_init(hyp_benchmarks *b);
+HYP_API void hyp_benchmarks_free(hyp_benchmarks *b);
 /* Index of the benchmark called name (case-insensitive), or -1. */
-long hyp_benchmarks_find(const hyp_benchmarks *b, const char *name);
+HYP_API long hyp_benchmarks_find(const hyp_benchmarks *b, const char *name);
 
 /* An explicit tie: the rover stood on benchmark `name` from start to end
  * (true time). The name "base" means the (first) base station. */

@@ -4,6 +4,8 @@
 #ifndef HYPSOLEV_READERS_H
 #define HYPSOLEV_READERS_H
 
+#include "hypsolev/export.h"
+
 #include <stdint.h>
 #include "hypsolev/error.h"
 #include "hypsolev/samples.h"
@@ -31,7 +33,7 @@ typedef struct hyp_read_opts {
     int need_position;
 } hyp_read_opts;
 
-void hyp_read_opts_init(hyp_read_opts *o);
+HYP_API void hyp_read_opts_init(hyp_read_opts *o);
 
 /* Where in a GPX file each point's bytes are, for the splicing writer.
  * Offsets are byte offsets into the input file. */
@@ -83,7 +85,7 @@ typedef struct hyp_gpx_point {
 /* Point i's positions. Points are stored relative to the one before, so
  * they are read in order: *anchor is 0 before point 0, and each call
  * leaves it ready for point i + 1. */
-void hyp_gpx_point_next(const hyp_gpx_layout *L, size_t i, int64_t *anchor, hyp_gpx_point *p);
+HYP_API void hyp_gpx_point_next(const hyp_gpx_layout *L, size_t i, int64_t *anchor, hyp_gpx_point *p);
 
 
 typedef struct hyp_gpx_doc {
@@ -96,13 +98,13 @@ typedef struct hyp_gpx_doc {
     int has_geoidheight;
 } hyp_gpx_doc;
 
-void hyp_gpx_doc_init(hyp_gpx_doc *d);
-void hyp_gpx_doc_free(hyp_gpx_doc *d);
+HYP_API void hyp_gpx_doc_init(hyp_gpx_doc *d);
+HYP_API void hyp_gpx_doc_free(hyp_gpx_doc *d);
 
 /* Reads a GPX 1.0 or 1.1 file (or one without namespace) with a streaming
  * parser: never builds a tree, never expands external entities or reaches the
  * network. Refuses encodings other than UTF-8 / ASCII. */
-hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts,
+HYP_API hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts,
                         hyp_gpx_doc *doc, hyp_msgs *msgs, hyp_error *err);
 
 /* Reads a CSV log: header row with columns time, pressure, and optional
@@ -110,28 +112,28 @@ hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts,
  * brackets "pressure [hPa]"), delimiter , ; or tab (detected), decimal
  * comma where the delimiter is not a comma, quoted fields, blank and '#'
  * lines skipped, UTF-8 byte-order mark accepted. */
-hyp_status hyp_csv_read(const char *path, const hyp_read_opts *opts,
+HYP_API hyp_status hyp_csv_read(const char *path, const hyp_read_opts *opts,
                         hyp_series *out, hyp_unit *pressure_unit_found,
                         hyp_msgs *msgs, hyp_error *err);
 
 
 
 /* Reads known points (see hyp_benchmarks in marks.h). */
-hyp_status hyp_benchmarks_read(const char *path, double default_sigma_m, hyp_benchmarks *out,
+HYP_API hyp_status hyp_benchmarks_read(const char *path, double default_sigma_m, hyp_benchmarks *out,
                                hyp_msgs *msgs, hyp_error *err);
 
 /* Reads a tie list: CSV with columns name, start, end (times as in logs;
  * `zone` for times without one). Every name must be "base" or one of
  * `benchmarks` (which may be NULL). *out is allocated; free() it. */
-hyp_status hyp_ties_read(const char *path, const hyp_zone *zone, const hyp_benchmarks *benchmarks,
+HYP_API hyp_status hyp_ties_read(const char *path, const hyp_zone *zone, const hyp_benchmarks *benchmarks,
                          hyp_tie_spec **out, size_t *count, hyp_error *err);
 
 
-hyp_status hyp_base_index_read(const char *path, hyp_base_entry **out, size_t *count, hyp_error *err);
+HYP_API hyp_status hyp_base_index_read(const char *path, hyp_base_entry **out, size_t *count, hyp_error *err);
 
 /* 1 when the file looks like XML (first non-blank byte after an optional
  * byte-order mark is '<'), 0 when not, -1 when it cannot be read. */
-int hyp_file_is_xml(const char *path);
+HYP_API int hyp_file_is_xml(const char *path);
 
 #ifdef __cplusplus
 }

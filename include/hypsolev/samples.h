@@ -3,6 +3,8 @@
 #ifndef HYPSOLEV_SAMPLES_H
 #define HYPSOLEV_SAMPLES_H
 
+#include "hypsolev/export.h"
+
 #include <stddef.h>
 #include <math.h>
 #include <stdint.h>
@@ -72,27 +74,27 @@ static inline double hyp_series_lon(const hyp_series *s, size_t i)
 /* Degrees as stored: HYP_NO_POSITION for NaN, HYP_BAD_POSITION beyond
  * +-214 degrees (the range of the storage; readers refuse anything beyond
  * +-90 / +-180 anyway, with a message). */
-int32_t hyp_deg_e7(double deg);
+HYP_API int32_t hyp_deg_e7(double deg);
 
 /* The file line of sample i; hyp_series_line_next gives that of sample i
  * from that of sample i - 1 (prev) at once, for walks in order. */
-uint32_t hyp_series_line(const hyp_series *s, size_t i);
-uint32_t hyp_series_line_next(const hyp_series *s, size_t i, uint32_t prev);
+HYP_API uint32_t hyp_series_line(const hyp_series *s, size_t i);
+HYP_API uint32_t hyp_series_line_next(const hyp_series *s, size_t i, uint32_t prev);
 
 /* Short English reason for a flag ("pressure outside 300-1100 hPa"). */
-const char *hyp_sample_flag_text(hyp_sample_flag f);
+HYP_API const char *hyp_sample_flag_text(hyp_sample_flag f);
 
-void hyp_series_init(hyp_series *s);
-void hyp_series_free(hyp_series *s);
+HYP_API void hyp_series_init(hyp_series *s);
+HYP_API void hyp_series_free(hyp_series *s);
 /* Appends one sample (NaN for what is missing), rounded to the storage
  * above. HYP_ERR_NOMEM on failure. */
-hyp_status hyp_series_push(hyp_series *s, double time_s, double pressure_pa,
+HYP_API hyp_status hyp_series_push(hyp_series *s, double time_s, double pressure_pa,
                            double temp_k, double rh_pct, double lat_deg,
                            double lon_deg, double ele_m, uint32_t line, hyp_sample_flag flag);
 /* Gives back the growth slack of the arrays (count becomes the capacity). */
-void hyp_series_shrink(hyp_series *s);
+HYP_API void hyp_series_shrink(hyp_series *s);
 /* Number of samples with flag f. */
-size_t hyp_series_count_flag(const hyp_series *s, hyp_sample_flag f);
+HYP_API size_t hyp_series_count_flag(const hyp_series *s, hyp_sample_flag f);
 
 #ifdef __cplusplus
 }

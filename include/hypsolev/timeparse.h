@@ -3,6 +3,8 @@
 #ifndef HYPSOLEV_TIMEPARSE_H
 #define HYPSOLEV_TIMEPARSE_H
 
+#include "hypsolev/export.h"
+
 #include <stddef.h>
 #include <stdint.h>
 #include "hypsolev/error.h"
@@ -23,17 +25,17 @@ typedef struct hyp_zone {
     int32_t first_off_s;   /* offset before the first transition */
 } hyp_zone;
 
-void hyp_zone_init(hyp_zone *z);
-void hyp_zone_free(hyp_zone *z);
+HYP_API void hyp_zone_init(hyp_zone *z);
+HYP_API void hyp_zone_free(hyp_zone *z);
 /* Parses "+HH:MM", "-HHMM", "UTC", "Z" or a tz database name such as
  * "Europe/Vienna" (read from zoneinfo_dir, or /usr/share/zoneinfo when
  * NULL). HYP_ERR_VALUE with a message when it cannot. */
-hyp_status hyp_zone_parse(hyp_zone *z, const char *text,
+HYP_API hyp_status hyp_zone_parse(hyp_zone *z, const char *text,
                           const char *zoneinfo_dir, hyp_error *err);
 /* UTC offset (s) in force for a local wall-clock time (seconds since the
  * epoch as if the wall clock were UTC). In a DST overlap the earlier
  * (summer) offset is taken; in a gap the offset before the gap. */
-int32_t hyp_zone_offset_for_local(const hyp_zone *z, int64_t local_s);
+HYP_API int32_t hyp_zone_offset_for_local(const hyp_zone *z, int64_t local_s);
 
 typedef enum hyp_time_result {
     HYP_TIME_OK = 0,
@@ -47,14 +49,14 @@ typedef enum hyp_time_result {
  * and a plain decimal number of Unix epoch seconds (between 1e8 and 7.3e9,
  * i.e. 1973 to 2200). A stamp without zone uses `zone` (NULL or kind 0:
  * refused). Leading and trailing blanks are ignored. */
-hyp_time_result hyp_time_parse(const char *text, const hyp_zone *zone,
+HYP_API hyp_time_result hyp_time_parse(const char *text, const hyp_zone *zone,
                                double *time_s);
 /* Formats time_s as "YYYY-MM-DDThh:mm:ss[.fff]Z" (milliseconds only when
  * not whole). buf needs 32 bytes. */
-void hyp_time_format(double time_s, char *buf, size_t n);
+HYP_API void hyp_time_format(double time_s, char *buf, size_t n);
 /* Days since 1970-01-01 of a proleptic Gregorian date (H. Hinnant's
  * days_from_civil algorithm, public domain). */
-int64_t hyp_days_from_civil(int64_t y, unsigned m, unsigned d);
+HYP_API int64_t hyp_days_from_civil(int64_t y, unsigned m, unsigned d);
 
 #ifdef __cplusplus
 }

@@ -5,6 +5,8 @@
 #ifndef HYPSOLEV_WRITERS_H
 #define HYPSOLEV_WRITERS_H
 
+#include "hypsolev/export.h"
+
 #include "hypsolev/error.h"
 #include "hypsolev/readers.h"
 #include "hypsolev/correct.h"
@@ -30,21 +32,21 @@ typedef struct hyp_output_info {
 /* Copies in_path to out_path replacing each corrected point's <ele> value
  * and adding hyp:ele_in, hyp:sigma (or hyp:status) under its extensions.
  * Refuses when out_path is in_path (same file). */
-hyp_status hyp_gpx_write_spliced(const char *in_path, const hyp_gpx_doc *doc,
+HYP_API hyp_status hyp_gpx_write_spliced(const char *in_path, const hyp_gpx_doc *doc,
                                  const hyp_correct_result *res, const hyp_output_info *info,
                                  const char *out_path, hyp_error *err);
 
 /* Writes a new GPX 1.1 track from a series (a rover read from CSV). */
-hyp_status hyp_gpx_write_new(const hyp_series *s, const hyp_correct_result *res,
+HYP_API hyp_status hyp_gpx_write_new(const hyp_series *s, const hyp_correct_result *res,
                              const hyp_output_info *info, const char *track_name,
                              const char *out_path, hyp_error *err);
 
 /* Writes the table (CSV, one row per rover sample); "-" is stdout. */
-hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res,
+HYP_API hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res,
                            const hyp_output_info *info, const char *out_path, hyp_error *err);
 
 /* 1 when the two paths name the same existing file, else 0. */
-int hyp_same_file(const char *a, const char *b);
+HYP_API int hyp_same_file(const char *a, const char *b);
 
 #ifdef __cplusplus
 }

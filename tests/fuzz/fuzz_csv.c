@@ -24,7 +24,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
         hyp_base b = {.log = &s, .name = "fuzz", .height_m = 500.0, .lat_deg = 46.8, .lon_deg = 9.9};
         hyp_correct_result r;
         hyp_correct_result_init(&r);
-        hyp_correct_single_base(&s, &b, NULL, &r, &m, &err);
+        hyp_correct(&s, &b, 1, NULL, &r, &m, &err);
         hyp_correct_result_free(&r);
         hyp_inspection in;
         if (hyp_inspect(&s, NULL, &in, &err) == HYP_OK)
