@@ -127,7 +127,9 @@ typedef struct hyp_rover_run {
     char crs_name[256];
     double rapid_pa_per_s;     /* the tendency called rapid */
     size_t n_written;
-    const char *written[4];    /* the outputs written ("-" standard output) */
+    const char *written[4];    /* the GPX and table written ("-" standard
+                                  output); a report asked for is written
+                                  with them, all or none */
     struct hyp__rover_priv *priv;
 } hyp_rover_run;
 
