@@ -306,9 +306,9 @@ static hyp_status check_datum(const hyp__adj_problem *pb, const unsigned char *f
 /* N = A^T P A (upper triangle, column-major) and A^T P l from the sparse
  * rows of the used observations, p_i = 1 / sigma_i^2: the weighted normal
  * equations N x = A^T P l (Ghilani & Wolf, Adjustment Computations, 4th
- * ed., least squares in matrix form), without forming A. Terms naming one unknown
- * twice add up: for i == j every ordered pair of terms counts, for i < j
- * each unordered pair once. */
+ * ed., least squares in matrix form), without forming A. Terms naming one
+ * unknown twice add up: on the diagonal every ordered pair of terms
+ * counts, above it each unordered pair once. */
 static void build_normal(const hyp__adj_problem *pb, const unsigned char *flag, work *ws)
 {
     size_t n = ws->n;
@@ -334,10 +334,10 @@ static void build_normal(const hyp__adj_problem *pb, const unsigned char *flag, 
 
 /* Scales N to unit diagonal, D N D with D = diag(1 / sqrt(N_jj)) (Jacobi
  * or diagonal scaling of a symmetric positive definite system: Golub & Van
- * Loan, Matrix Computations, the section on scaling),
- * so that a control mark with a tiny sigma or unknowns in different units
- * do not spoil the condition; returns the 1-norm of the scaled matrix for
- * dpocon. 0 when a diagonal element is not positive. */
+ * Loan, Matrix Computations, the section on scaling), so that a control
+ * mark with a tiny sigma or unknowns in different units do not spoil the
+ * condition; returns the 1-norm of the scaled matrix for dpocon, 0 when a
+ * diagonal element is not positive. */
 static double scale_normal(work *ws)
 {
     size_t n = ws->n;
