@@ -197,8 +197,9 @@ static void test_ghilani_12_1(void **state)
 /* The sample levelling network of GNU Gama ("Sample 1D vertical least
  * square adjustment, differential levels measured forward and reverse for
  * each leg, one known elevation for point 1a"), as adjusted by gama-local
- * 1.5.09 in its published output listing: 1a = 1000.000 m fixed, every
- * sigma 5 mm (m0 apriori 5.00). */
+ * 1.5.09 in its published output listing (read from a copy of
+ * http://www.vrmapper.com/gama/1doutput.html): 1a = 1000.000 m fixed,
+ * every sigma 5 mm (m0 apriori 5.00). */
 static const lev gama[8] = {
     {"1a", "4", -1.225, 0.005}, {"4", "3", -0.848, 0.005}, {"3", "2", 1.342, 0.005},
     {"2", "1a", 0.720, 0.005},  {"1a", "2", -0.724, 0.005}, {"2", "3", -1.335, 0.005},
