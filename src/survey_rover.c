@@ -244,9 +244,14 @@ static hyp_status write_outputs(hyp_survey *sv, hyp_rover_run *r, const hyp__rov
     return st;
 }
 
-/* A failed rover still gets its report (what went wrong), on its own. */
+/* A failed rover still gets its report (what went wrong), on its own, but
+ * never over an existing file: that may be the report of an earlier run
+ * whose outputs this failure leaves in place. */
 static void failure_report(hyp_survey *sv, hyp_rover_run *r, const char *path)
 {
+    struct stat sb;
+    if (stat(path, &sb) == 0)
+        return;
     hyp__outset set;
     hyp__outset_init(&set);
     hyp_error e;

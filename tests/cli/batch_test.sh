@@ -65,23 +65,37 @@ rc=$?
 [ $rc -eq 1 ] || bad "a pipe as base: exit $rc, expected 1 (124 is a hang)"
 grep -q "pipe.csv: not a regular file" "$work/stderr4" || bad "pipe message: $(cat "$work/stderr4")"
 
-# interrupted: many copies, SIGINT part-way; every output is complete or absent
+# interrupted: many copies, SIGINT (then SIGHUP) part-way; every rover's
+# outputs (GPX, table, report) are all complete or all absent, the summary
+# is written, and no staging file is left
 mkdir -p "$work/many" "$work/out2"
 for i in $(seq 1 60); do cp "$work/rovers/walk-day0.gpx" "$work/many/w$i.gpx"; done
 "$exe" correct "$work/many/w1.gpx" --base-dir "$work/bases" -o "$work/ref.gpx" -q || bad "reference run"
-echo old > "$work/out2/w1.gpx"
-"$exe" correct "$work/many" --base-dir "$work/bases" --out-dir "$work/out2" --overwrite -j 2 -q 2> "$work/stderr3" &
-pid=$!
-sleep 0.3
-kill -INT $pid
-wait $pid
-rc=$?
-[ $rc -eq 130 ] || [ $rc -eq 0 ] || bad "interrupted run: exit $rc, expected 130 (or 0 if it had finished)"
-ls "$work/out2" | grep -qE '\.tmp-|\.new-' && bad "temporary files left: $(ls "$work/out2")"
-for f in "$work"/out2/*.gpx; do
-  if [ "$(head -c 3 "$f")" = old ]; then continue; fi
-  cmp -s "$f" "$work/ref.gpx" || bad "$(basename "$f") is neither complete nor the previous output"
+for sig in INT HUP; do
+  rm -rf "$work/out2" && mkdir -p "$work/out2"
+  echo old > "$work/out2/w1.gpx"
+  "$exe" correct "$work/many" --base-dir "$work/bases" --out-dir "$work/out2" --overwrite -j 2 -q \
+      --summary "$work/sum-$sig.csv" 2> "$work/stderr3" &
+  pid=$!
+  sleep 0.3
+  kill -$sig $pid
+  wait $pid
+  rc=$?
+  want=$((128 + $(kill -l $sig)))
+  [ $rc -eq $want ] || [ $rc -eq 0 ] || bad "SIG$sig: exit $rc, expected $want (or 0 if it had finished)"
+  ls "$work/out2" | grep -qE 'hyp-tmp-' && bad "SIG$sig: staging files left: $(ls "$work/out2")"
+  [ -s "$work/sum-$sig.csv" ] || bad "SIG$sig: no summary written"
+  [ $rc -eq 0 ] || grep -q "not started (interrupted)" "$work/sum-$sig.csv" || bad "SIG$sig: summary does not list the rovers not run"
+  for f in "$work"/out2/*.gpx; do
+    b=${f%.gpx}
+    if [ "$(head -c 3 "$f")" = old ]; then
+      [ ! -e "$b.csv" ] && [ ! -e "$b.report.txt" ] || bad "SIG$sig: $(basename "$b"): table or report without its GPX"
+      continue
+    fi
+    cmp -s "$f" "$work/ref.gpx" || bad "SIG$sig: $(basename "$f") is neither complete nor the previous output"
+    [ -s "$b.csv" ] && [ -s "$b.report.txt" ] || bad "SIG$sig: $(basename "$b"): GPX without its table or report"
+  done
+  echo "batch: $(ls "$work/out2" | wc -l) outputs after SIG$sig (exit $rc)"
 done
-echo "batch: $(ls "$work/out2" | wc -l) outputs after the interruption (exit $rc)"
 echo "batch: $((fails == 0 ? 1 : 0)) passed, $((fails == 0 ? 0 : 1)) failed"
 [ $fails -eq 0 ]

@@ -6,7 +6,10 @@
 #  2. writes that fail part-way and an fsync that fails: exit 1 with a
 #     message, previous output intact, no temporary file;
 #  3. SIGKILL at random moments while writing: the final name holds either
-#     the previous output or the complete new one, never a truncated file.
+#     the previous output or the complete new one, never a truncated file;
+#     the staging files a killed run leaves are removed by the next run.
+# Every run writes a GPX, a table and a report: one output set, all of
+# whose files change together or not at all.
 # usage: run_faults.sh HYPSOLEV SHIM.so HYPSIM DATA_DIR WORK_DIR
 set -u
 exe=$1 shim=$2 sim=$3 data=$4 work=$5
@@ -14,12 +17,13 @@ rm -rf "$work" && mkdir -p "$work"
 fails=0
 bad() { echo "FAIL: $*"; fails=$((fails + 1)); }
 args=(correct "$data/rover.gpx" --base "$data/base.csv" --base-height 812.4 --base-at 46.8,9.9
-      -o "$work/out.gpx" --table "$work/out.csv" -q)
-reset() { echo old > "$work/out.gpx"; echo old > "$work/out.csv"; }
+      -o "$work/out.gpx" --table "$work/out.csv" --report "$work/out.txt" -q)
+reset() { echo old > "$work/out.gpx"; echo old > "$work/out.csv"; echo old > "$work/out.txt"; }
 check_failed_run() {   # $1 label
   [ "$(cat "$work/out.gpx")" = old ] || bad "$1: previous GPX output changed"
   [ "$(cat "$work/out.csv")" = old ] || bad "$1: previous table changed"
-  ls "$work" | grep -q 'tmp-' && bad "$1: temporary file left: $(ls "$work")"
+  [ "$(cat "$work/out.txt")" = old ] || bad "$1: previous report changed"
+  ls "$work" | grep -q 'hyp-tmp-' && bad "$1: staging file left: $(ls "$work")"
 }
 
 # 1. allocation failures
@@ -61,18 +65,31 @@ echo "write failures: checked"
 # 3. SIGKILL while writing a larger track
 mkdir -p "$work/sim" && "$sim" demo "$work/sim" > /dev/null || bad "simulator failed"
 kargs=(correct "$work/sim/rover.gpx" --base "$work/sim/base.csv" --base-height 812.4 --base-at 46.8,9.9 -q)
-"$exe" "${kargs[@]}" -o "$work/ref.gpx" || bad "reference run failed"
+"$exe" "${kargs[@]}" -o "$work/ref.gpx" --table "$work/ref.csv" || bad "reference run failed"
+left=0
 for i in $(seq 1 25); do
-  echo old > "$work/k.gpx"
-  "$exe" "${kargs[@]}" -o "$work/k.gpx" & pid=$!
-  sleep "0.0$(( RANDOM % 60 ))" 2>/dev/null || sleep 0.01
+  echo old > "$work/k.gpx"; echo old > "$work/k.csv"
+  "$exe" "${kargs[@]}" -o "$work/k.gpx" --table "$work/k.csv" & pid=$!
+  sleep "0.$(printf %03d $(( RANDOM % 130 )))" 2>/dev/null || sleep 0.01   # a run takes about 0.1 s
   kill -9 $pid 2>/dev/null
   wait $pid 2>/dev/null
-  if [ "$(head -c 3 "$work/k.gpx")" = old ]; then :;
-  elif cmp -s "$work/k.gpx" "$work/ref.gpx"; then :;
-  else bad "kill $i: truncated or foreign output under the final name"; fi
-  rm -f "$work"/k.gpx.tmp-*
+  old_g=$([ "$(head -c 3 "$work/k.gpx")" = old ] && echo 1 || echo 0)
+  old_c=$([ "$(head -c 3 "$work/k.csv")" = old ] && echo 1 || echo 0)
+  [ $old_g = 1 ] || cmp -s "$work/k.gpx" "$work/ref.gpx" || bad "kill $i: truncated or foreign GPX under the final name"
+  [ $old_c = 1 ] || cmp -s "$work/k.csv" "$work/ref.csv" || bad "kill $i: truncated or foreign table under the final name"
+  left=$((left + $(ls "$work" | grep -c 'hyp-tmp-' || true)))
 done
-echo "kill -9 while writing: 25 runs checked"
+echo "kill -9 while writing: 25 runs checked; $left staging files left by them (each run removes those of the runs before)"
+# a plain staging-like name of a living process and a foreign file stay
+sleep 300 & live=$!
+echo keep > "$work/k.gpx.hyp-tmp-$live-abcdef"; echo keep > "$work/k.gpx.notours"
+"$exe" "${kargs[@]}" -o "$work/k.gpx" --table "$work/k.csv" || bad "run after the kills failed"
+kill $live 2>/dev/null
+cmp -s "$work/k.gpx" "$work/ref.gpx" || bad "run after the kills: wrong GPX"
+stale=$(ls "$work" | grep 'hyp-tmp-' | grep -v "hyp-tmp-$live-abcdef" || true)
+[ -z "$stale" ] || bad "stale staging files not removed by the next run: $stale"
+[ -f "$work/k.gpx.hyp-tmp-$live-abcdef" ] || bad "a living process's staging file was removed"
+[ -f "$work/k.gpx.notours" ] || bad "a file not of our pattern was removed"
+echo "the next run removed the stale staging files of killed runs, and nothing else"
 echo "faults: $((fails == 0 ? 1 : 0)) passed, $((fails == 0 ? 0 : 1)) failed"
 [ $fails -eq 0 ]
