@@ -114,11 +114,13 @@ typedef struct pass {
     part_sums sum[HYP__MAX_PARTS];
 } pass;
 
-/* The parts of a pass: 1 for the field method, whose plane fit calls
- * LAPACK (not promised to be reentrant). */
+/* The parts of a pass. LAPACK calls (the field method's plane fit) may run
+ * in several threads at once: reference LAPACK has kept no state between
+ * calls since 3.1 removed its SAVE and DATA statements ("Improvements in
+ * LAPACK 3.1.0", netlib), and LAPACKE's work arrays are the caller's. */
 static int pass_parts(const hyp__work *w)
 {
-    return w->method == HYP_METHOD_FIELD || w->o->threads < 2 ? 1 : w->o->threads;
+    return w->o->threads < 2 ? 1 : w->o->threads;
 }
 
 static void corrected_range(void *ctx, size_t lo, size_t hi, int part)
