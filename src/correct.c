@@ -6,7 +6,7 @@
 #include "base_clock.h"
 #include "hypsolev/atmosphere.h"
 #include "hypsolev/timeparse.h"
-#include "par.h"
+#include "parallel_for.h"
 #include "stats.h"
 
 #include <math.h>

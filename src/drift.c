@@ -18,7 +18,7 @@
  * so. With more observations than parameters the covariance is inflated by
  * the reduced chi-square when that exceeds 1. */
 #include "correct_int.h"
-#include "lsq.h"
+#include "svd_solve.h"
 
 #include <math.h>
 #include <stdio.h>

@@ -3,7 +3,7 @@
  * a layout for the splicing writer, waypoints for ties. No tree is ever
  * built. */
 #include "reader_common.h"
-#include "sparse.h"
+#include "rare_values.h"
 #include "hypsolev/writers.h"
 
 #include <ctype.h>

@@ -4,7 +4,7 @@
 #include "correct_int.h"
 #include "hypsolev/atmosphere.h"
 #include "hypsolev/geo.h"
-#include "lsq.h"
+#include "svd_solve.h"
 
 #include <math.h>
 #include <stdio.h>

@@ -6,7 +6,7 @@
 #include "base_view.h"
 #include "hypsolev/atmosphere.h"
 #include "hypsolev/geo.h"
-#include "lsq.h"
+#include "svd_solve.h"
 
 #include <math.h>
 

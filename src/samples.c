@@ -1,6 +1,6 @@
 /* samples.c - the growable struct-of-arrays sample series. */
 #include "hypsolev/samples.h"
-#include "sparse.h"
+#include "rare_values.h"
 
 #include <math.h>
 #include <stdlib.h>

@@ -36,6 +36,11 @@ void hyp_survey_opts_init(hyp_survey_opts *o)
     o->check_bases = 1;
 }
 
+void hyp_outputs_init(hyp_outputs *o)
+{
+    memset(o, 0, sizeof *o);
+}
+
 int hyp_exit_status(hyp_status s)
 {
     return s == HYP_OK ? 0 : s == HYP_ERR_USAGE ? 2 : 1;

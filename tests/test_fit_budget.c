@@ -13,7 +13,7 @@
 
 #include "hypsolev/hypsolev.h"
 #include "correct_int.h"
-#include "lsq.h"
+#include "svd_solve.h"
 
 #define T0 1781766000.0
 #define assert_near(a, b, tol) assert_true(fabs((a) - (b)) <= (tol))

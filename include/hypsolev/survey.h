@@ -94,6 +94,9 @@ typedef struct hyp_outputs {
                                   rover is skipped */
 } hyp_outputs;
 
+/* No outputs, no overwrite (then name those wanted). */
+HYP_API void hyp_outputs_init(hyp_outputs *o);
+
 /* A base as one rover's correction used it. */
 typedef struct hyp_base_used {
     const char *path;

@@ -1,7 +1,7 @@
-/* lsq.h - small weighted linear least squares by singular value
+/* svd_solve.h - small weighted linear least squares by singular value
  * decomposition, with the condition number and the covariance (private). */
-#ifndef HYP_LSQ_H
-#define HYP_LSQ_H
+#ifndef HYP_SVD_SOLVE_H
+#define HYP_SVD_SOLVE_H
 
 #include <stddef.h>
 #include "hypsolev/error.h"

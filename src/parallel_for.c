@@ -1,5 +1,5 @@
-/* par.c - the parallel loop of par.h with POSIX threads. */
-#include "par.h"
+/* parallel_for.c - the parallel loop of parallel_for.h with POSIX threads. */
+#include "parallel_for.h"
 
 #include <pthread.h>
 

@@ -1,7 +1,7 @@
-/* lsq.c - weighted least squares through LAPACK's SVD (dgesvd): x = V S^-1
+/* svd_solve.c - weighted least squares through LAPACK's SVD (dgesvd): x = V S^-1
  * U^T b and cov = V S^-2 V^T (Golub and Van Loan, Matrix Computations,
  * 4th ed., section 5.5). */
-#include "lsq.h"
+#include "svd_solve.h"
 
 #include <lapacke.h>
 #include <math.h>

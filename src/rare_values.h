@@ -1,7 +1,7 @@
-/* sparse.h - the side tables of rare values kept beside compact per-sample
+/* rare_values.h - the side tables of rare values kept beside compact per-sample
  * arrays: entries sorted by a leading `size_t index` (private). */
-#ifndef HYP_SPARSE_H
-#define HYP_SPARSE_H
+#ifndef HYP_RARE_VALUES_H
+#define HYP_RARE_VALUES_H
 
 #include <stddef.h>
 #include <string.h>

@@ -1,7 +1,7 @@
-/* par.h - a parallel loop over index ranges for the per-point passes
+/* parallel_for.h - a parallel loop over index ranges for the per-point passes
  * (private). */
-#ifndef HYP_PAR_H
-#define HYP_PAR_H
+#ifndef HYP_PARALLEL_FOR_H
+#define HYP_PARALLEL_FOR_H
 
 #include <stddef.h>
 
