@@ -81,6 +81,20 @@ typedef struct hyp_survey_opts {
 
 HYP_API void hyp_survey_opts_init(hyp_survey_opts *o);
 
+/* Sets an option by its name, as the program's long option without the
+ * dashes ("lapse-rate", "method", "benchmarks", ...: every option of
+ * `hypsolev correct` that is not about bases, outputs or the batch), from
+ * its text in the user's unit (documented in the man page: K/km, hPa per
+ * 100 km, Pa, m, s, %). Flags ("no-auto-colocate", "no-gnss-anchor") take
+ * NULL. Texts are kept by pointer: they must outlive the survey.
+ * HYP_ERR_USAGE with a message ("smooth \"-5\": expected a number from 0
+ * to 3600") for an unknown name or a bad value. */
+HYP_API hyp_status hyp_survey_opts_set(hyp_survey_opts *o, const char *name, const char *value, hyp_error *err);
+/* The same for a base: "base-height" (m), "base-at" (LAT,LON degrees),
+ * "base-clock-offset" (s), "base-time-zone", "base-offset" and
+ * "base-offset-sigma" (Pa), "base-qnh" (NULL). */
+HYP_API hyp_status hyp_base_spec_set(hyp_base_spec *b, const char *name, const char *value, hyp_error *err);
+
 /* Where a rover's outputs go. Every output named is written through a
  * staging file, and all of a rover's outputs are renamed into place
  * together, only when each is complete and on disk. */

@@ -8,13 +8,16 @@
 set -euo pipefail
 src=$1
 page=$src/docs/hypsolev.1
-correct=$(grep -oE '\{"[a-z][a-z0-9-]*", *(required|no|optional)_argument' "$src/src/cli/cmd_correct.c" |
-          sed -E 's/^\{"([^"]*)".*/--\1/' | sort -u)
+# entries written out, or through the table's SET/FLAG/BASE("name") macros
+opts_of() {
+    grep -oE '\{"[a-z][a-z0-9-]*", *(required|no|optional)_argument|\b(SET|FLAG|BASE)\("[a-z][a-z0-9-]*"\)' "$@" |
+        sed -E 's/^[^"]*"([^"]*)".*/--\1/'
+}
+correct=$(opts_of "$src/src/cli/cmd_correct.c" | sort -u)
 # a pattern that stopped matching would make the check pass on nothing
 [ "$(wc -l <<<"$correct")" -ge 20 ] || { echo "man_options: found only: $correct in cmd_correct.c; has its longopts table changed shape?" >&2; exit 1; }
 program=$( { echo "$correct"
-             cat "$src"/src/cli/*.c | grep -oE '\{"[a-z][a-z0-9-]*", *(required|no|optional)_argument' |
-                 sed -E 's/^\{"([^"]*)".*/--\1/'
+             opts_of "$src"/src/cli/*.c
              grep -ohE '"--[a-z][a-z0-9-]*"' "$src/src/cli/main.c" | tr -d '"'; } | sort -u)
 # options named on the line after each .TP (the tag of an entry), unescaped
 documented=$(awk 'tag { print; tag = 0 } /^\.TP/ { tag = 1 }' "$page" |
