@@ -5,6 +5,7 @@
 #include "hypsolev/writers.h"
 #include "output_set.h"
 #include "writers_int.h"
+#include "text_safe.h"
 #include "fmtnum.h"
 
 #include <errno.h>
@@ -134,19 +135,30 @@ static int fmt3(char *buf, double v)
     return hyp__fmt_fixed(buf, 32, v, 3);
 }
 
+/* s escaped for XML into dst (text_safe.h: invalid UTF-8 and control
+ * characters of a file name become U+FFFD), cut at a whole character. */
 static void escape_into(char *dst, size_t n, const char *s)
 {
-    size_t k = 0;
-    for (; *s && k + 7 < n; s++) {
-        const char *rep = *s == '<' ? "&lt;" : *s == '>' ? "&gt;" : *s == '&' ? "&amp;" : NULL;
-        if (rep) {
-            size_t l = strlen(rep);
-            memcpy(dst + k, rep, l);
-            k += l;
-        } else
-            dst[k++] = *s;
+    hyp__buf b;
+    hyp__buf_init(&b, n - 1);
+    dst[0] = '\0';
+    char part[8];
+    const unsigned char *p = (const unsigned char *)s;
+    while (*p) {
+        long cp;
+        size_t len = hyp__utf8_next(p, &cp);
+        memcpy(part, p, len);
+        part[len] = '\0';
+        size_t before = b.len;
+        if (hyp__xml_escape(&b, part)) {
+            hyp__buf_truncate(&b, before);
+            break;
+        }
+        p += len;
     }
-    dst[k] = '\0';
+    if (b.data)
+        snprintf(dst, n, "%.*s", (int)b.len, b.data);
+    hyp__buf_free(&b);
 }
 
 /* The project's elements for point i, to go under its extensions. */

@@ -4,6 +4,7 @@
 #define _GNU_SOURCE
 #include "survey_int.h"
 #include "hypsolev/vertical.h"
+#include "text_safe.h"
 
 #include <math.h>
 #include <string.h>
@@ -281,27 +282,22 @@ static void csv_field(FILE *f, const char *s)
     fputc('"', f);
 }
 
-/* A JSON string: quotes, backslashes and control characters escaped, and
- * bytes that are not UTF-8 replaced by U+FFFD (JSON text is Unicode). */
+/* A JSON string (RFC 8259, section 7): quotes, backslashes and control
+ * characters escaped, ill-formed UTF-8 replaced by U+FFFD (JSON text is
+ * Unicode, section 8.1). */
 static void json_string(FILE *f, const char *s)
 {
     fputc('"', f);
     const unsigned char *p = (const unsigned char *)s;
     while (*p) {
-        unsigned c = *p;
-        size_t len = c < 0x80 ? 1 : (c >> 5) == 6 ? 2 : (c >> 4) == 14 ? 3 : (c >> 3) == 30 ? 4 : 0;
-        int ok = len > 0;
-        for (size_t k = 1; ok && k < len; k++)
-            ok = (p[k] & 0xC0) == 0x80;
-        if (!ok) {
+        long cp;
+        size_t len = hyp__utf8_next(p, &cp);
+        if (cp < 0)
             fputs("\\ufffd", f);
-            p++;
-            continue;
-        }
-        if (c == '"' || c == '\\')
-            fprintf(f, "\\%c", (char)c);
-        else if (c < 0x20)
-            fprintf(f, "\\u%04x", c);
+        else if (cp == '"' || cp == '\\')
+            fprintf(f, "\\%c", (char)cp);
+        else if (cp < 0x20)
+            fprintf(f, "\\u%04lx", (unsigned long)cp);
         else
             fwrite(p, 1, len, f);
         p += len;

@@ -133,3 +133,24 @@ set(HYP_CASE_OUT "")
 set(HYP_CASE_INPUTS @DATA@/rover.gpx)
 hyp_cli_case(summary_is_input 2 "--summary would overwrite an input" correct ${R} ${B} --table @OUT@/t.csv --summary @DATA@/rover.gpx)
 set(HYP_CASE_INPUTS "")
+
+# outputs that would destroy an input or each other: refused before
+# anything is written (exit 2), every input unchanged
+set(HYP_CASE_INPUTS @DATA@/rover.gpx @DATA@/base.csv @DATA@/benchmarks.csv @DATA@/ties.csv)
+hyp_cli_case(table_is_benchmarks 2 "benchmarks.csv: --table would overwrite an input" correct ${R} ${B} ${O} --benchmarks @DATA@/benchmarks.csv --table @DATA@/benchmarks.csv)
+hyp_cli_case(report_is_ties 2 "ties.csv: --report would overwrite an input" correct ${R} ${B} ${O} --benchmarks @DATA@/benchmarks.csv --ties @DATA@/ties.csv --report @DATA@/ties.csv)
+hyp_cli_case(summary_is_benchmarks 2 "benchmarks.csv: --summary would overwrite an input" correct ${R} ${B} ${O} --benchmarks @DATA@/benchmarks.csv --summary @DATA@/benchmarks.csv)
+hyp_cli_case(report_is_base 2 "base.csv: --report would overwrite an input" correct ${R} ${B} ${O} --report @DATA@/base.csv)
+set(HYP_CASE_INPUTS "")
+hyp_cli_case(gpx_is_table 2 "out.gpx: named by both -o and --table" correct ${R} ${B} ${O} --table @OUT@/out.gpx)
+hyp_cli_case(report_is_gpx 2 "out.gpx: named by both -o and --report" correct ${R} ${B} ${O} --report @OUT@/out.gpx)
+hyp_cli_case(summary_is_table 2 "t.csv: named by both --table and --summary" correct ${R} ${B} --table @OUT@/t.csv --summary @OUT@/t.csv)
+hyp_cli_case(both_to_stdout 2 "-o - and --table - both go to standard output" correct ${R} ${B} -o - --table -)
+hyp_cli_case(empty_output_name 2 "-o \"\": an output needs a file name" correct ${R} ${B} --output=)
+hyp_cli_case(same_rover_twice 2 "rover.gpx and .*rover.gpx would both write .*rover.gpx" correct ${R} ${R} ${B} --out-dir @OUT@)
+hyp_cli_case(same_stem_gpx_csv 2 "rover.gpx and .*rover.csv would both write" correct ${R} @DATA@/bad/samestem/rover.csv ${B} --out-dir @OUT@ --time-zone Europe/Vienna)
+# a report that cannot be written fails the run, and nothing else is written
+hyp_cli_case(report_unwritable 1 "r.txt: cannot write: the directory does not exist" correct ${R} ${B} ${O} --report @OUT@/no/such/dir/r.txt)
+# the option parser's own messages
+hyp_cli_case(missing_value 2 "option \"--table\" needs a value" correct ${R} ${B} ${O} --table)
+hyp_cli_case(hex_number 2 "--base-height \"0x10\": expected a number from -500 to 9000" correct ${R} --base @DATA@/base.csv --base-height 0x10 ${O})
