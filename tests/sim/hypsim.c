@@ -6,15 +6,23 @@
  * can score a correction against it.
  *
  *   hypsim SCENARIO OUTDIR [--seed N] [--lapse K_PER_KM] [--gnss-bias M]
- *          [--gnss-heights geoid|ellipsoidal] [--t0 UNIX_SECONDS]
+ *          [--gnss-heights geoid|ellipsoidal] [--t0 UNIX_SECONDS] [OPTION VALUE]...
  *   scenarios: demo, calm, ties, front, faraway, clock, twobase, threebase,
- *   qnh, warm
+ *   qnh, warm, coldfront
+ *   further options (each takes a value; the scenario's own value when
+ *   absent): --route-km KM, --top-h M, --rest-s S, --trend HPA_PER_H,
+ *   --front-pa PA, --front-kmh KMH, --front-km KM, --front-dir DEG,
+ *   --front-time S (after the start), --front-trough PA_PER_H,
+ *   --base-temp-bias K, --gnss-sd M, --gnss-tau S, --pos-noise M,
+ *   --pos-tau S, --pos-spike-s S, --coloc-offset M, --xbase-off PA,
+ *   --xbase-at-top 0|1, --xbase-coloc 0|1, --th-benchmark 0|1, --stops 0|3
  *
  * Writes OUTDIR/rover.gpx, OUTDIR/base.csv, OUTDIR/truth.csv and
  * OUTDIR/scenario.txt (the parameters), and OUTDIR/benchmarks.csv where the
  * scenario has benchmarks. Everything is invented. */
 #define _DEFAULT_SOURCE
 #include <math.h>
+#include <stddef.h>
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -60,6 +68,17 @@ typedef struct scenario {
     double grad_rot_deg_h;          /* the gradient turns this fast */
     int no_rover_temp;              /* the rover logs no temperature */
     double qnh_east_km, qnh_north_km, qnh_h, qnh_dt_s; /* a weather station's QNH series */
+    /* the coverage tests' additions (zero: as before) */
+    double front_trough_pa_h;       /* a trough moving with the front: the
+                                       pressure falls this fast ahead of it
+                                       and rises this fast behind it */
+    double base_temp_bias_k;        /* the base thermometer's error as a
+                                       measure of the air (siting, radiation) */
+    double pos_noise_m, pos_tau_s;  /* per-axis position noise (0: 2 m white)
+                                       and its correlation time (0: white) */
+    double pos_spike_s;             /* a 50 m position spike every this many s */
+    double coloc_offset_m;          /* standing this far east of the trailhead
+                                       when at the start (co-location) */
 } scenario;
 
 static const scenario scenarios[] = {
@@ -133,6 +152,19 @@ static const scenario scenarios[] = {
      900, 1200, 1.05, 5, 30,
      101600, -0.3, 0.0, 0.0, 294.0, -7.6, 3.0, 60, -8,
      40.0, 4.0, 2.5, 1.0, 0.0, 1.2, 1.0, 5.0, 4.0, 400, .n_stops = 0},
+    /* a cold front crossing the survey area: a trough of 1.5 hPa/100 km
+     * either side moves with it (at 30 km/h the pressure falls 0.45 hPa/h
+     * ahead of it and rises as fast behind it), and across its 4 km width
+     * the pressure rises 3 hPa (in 8 minutes at 30 km/h); it moves NE and is
+     * over the base 2.5 h after the start; a walk of 6 km climbing 190 m,
+     * co-locations at both ends; the options vary speed, direction, time
+     * and the walk's length */
+    {"coldfront", 46.80, 9.90, 812.4, 1000.0, 6.0, 1781766000.0,
+     900, 600, 1.0, 5, 30,
+     101300, 0.0, 0.0, 0.0, 290.0, -6.5, 2.0, 70, -8,
+     35.0, 3.0, 2.5, 1.0, 0.0, 1.2, 1.0, 2.5, 4.0, 400,
+     .front_pa = 300.0, .front_kmh = 30.0, .front_dir_deg = 45.0, .front_t_s = 2.5 * 3600.0, .front_km = 4.0,
+     .front_trough_pa_h = 45.0},
 };
 
 /* --- deterministic random numbers: xorshift64* and Box-Muller --- */
@@ -206,6 +238,12 @@ static double sea_level_pressure(const scenario *sc, double east_km, double nort
         double x = east_km * sin(a) + north_km * cos(a);
         double pos = sc->front_kmh / 3600.0 * (t - sc->t0 - sc->front_t_s);
         p += sc->front_pa * 0.5 * (1.0 + tanh((pos - x) / (0.5 * sc->front_km)));
+        if (sc->front_trough_pa_h != 0.0) {
+            /* |pos - x| smoothed over the front's width: at a fixed place the
+             * pressure falls at the given rate before, rises after */
+            double g = sc->front_trough_pa_h / sc->front_kmh;   /* Pa per km */
+            p += g * sqrt((pos - x) * (pos - x) + sc->front_km * sc->front_km);
+        }
     }
     return p;
 }
@@ -336,6 +374,8 @@ static state where(const scenario *sc, double t)
     else { s_km = 0; walking = 0; }
     state st = at_distance(sc, s_km);
     st.walking = walking;
+    if (s_km == 0 && !walking)
+        st.east_km += sc->coloc_offset_m / 1000.0;
     return st;
 }
 
@@ -415,7 +455,7 @@ static int write_base(const scenario *sc, const char *dir)
     for (double t = sc->t0 - (early ? 7200 : 1800); t <= t_end; t += sc->base_dt) {
         double p = true_pressure(sc, sc->lat0, 0, 0, sc->base_h, t);
         double pm = quant(p + sc->base_off_pa + sc->base_noise_pa * nrand(), sc->base_q_pa);
-        double tk = air_temp(sc, sc->base_h, t) + 0.2 * nrand();
+        double tk = air_temp(sc, sc->base_h, t) + sc->base_temp_bias_k + 0.2 * nrand();
         char ts[40];
         iso(t + sc->base_clock_s, ts, sizeof ts);   /* the logger's clock */
         fprintf(f, "%s,%.2f,%.2f,%.1f\n", ts, pm / 100.0, tk - 273.15, air_rh(sc, sc->base_h));
@@ -446,7 +486,7 @@ static int write_extra_bases(const scenario *sc, const char *dir)
             double p = beside ? true_pressure(sc, sc->lat0, 0, 0, sc->base_h, t)
                               : true_pressure(sc, lat, x->east_km, x->north_km, x->h, t);
             double pm = quant(p + x->off_pa + sc->base_noise_pa * nrand(), sc->base_q_pa);
-            double tk = air_temp(sc, beside ? sc->base_h : x->h, t) + 0.2 * nrand();
+            double tk = air_temp(sc, beside ? sc->base_h : x->h, t) + sc->base_temp_bias_k + 0.2 * nrand();
             char ts[40];
             iso(t, ts, sizeof ts);
             fprintf(f, "%s,%.2f,%.2f,%.1f\n", ts, pm / 100.0, tk - 273.15, air_rh(sc, x->h));
@@ -475,6 +515,33 @@ static int write_extra_bases(const scenario *sc, const char *dir)
             return 1;
     }
     return 0;
+}
+
+/* The measured position: 2 m of white noise per axis, or the scenario's
+ * own (white, or AR(1) with correlation time pos_tau_s), with a 50 m spike
+ * every pos_spike_s (north and east in turn; no random draw, so the rest
+ * of the day is unchanged). */
+static double pos_e_m, pos_n_m;
+static void position_fix(const scenario *sc, double t, double lat, double lon, double *mlat, double *mlon)
+{
+    double sd = sc->pos_noise_m > 0 ? sc->pos_noise_m : 2.0;
+    double a = sc->pos_tau_s > 0 ? exp(-sc->rover_dt / sc->pos_tau_s) : 0.0;
+    double de = nrand(), dn = nrand();   /* drawn in this order: lat first */
+    pos_n_m = a * pos_n_m + sqrt(1.0 - a * a) * sd * de;
+    pos_e_m = a * pos_e_m + sqrt(1.0 - a * a) * sd * dn;
+    double n = pos_n_m, e = pos_e_m;
+    if (sc->pos_spike_s > 0) {
+        long k = lround((t - sc->t0) / sc->rover_dt), every = lround(sc->pos_spike_s / sc->rover_dt);
+        if (every > 0 && k % every == every / 2)
+            (k / every) % 2 ? (n += 50.0) : (e += 50.0);
+    }
+    if (sc->pos_noise_m > 0 || sc->pos_tau_s > 0 || sc->pos_spike_s > 0) {
+        *mlat = lat + n / 111200.0;
+        *mlon = lon + e / (111200.0 * cos(lat * M_PI / 180.0));
+    } else {   /* as the first scenarios had it */
+        *mlat = lat + 2.0 / 111200.0 * de;
+        *mlon = lon + 2.0 / 80000.0 * dn;
+    }
 }
 
 static int write_rover(const scenario *sc, const char *dir)
@@ -511,7 +578,8 @@ static int write_rover(const scenario *sc, const char *dir)
         double pm = quant(p + sc->rover_off_pa + sc->rover_drift_pa_h * hours + sc->rover_noise_pa * nrand(), sc->rover_q_pa);
         double tk = air_temp(sc, st.z, t) + sc->body_warming_k * (st.walking ? 1.0 : 0.4) + 0.3 * nrand();
         gnss_err = a * gnss_err + sqrt(1 - a * a) * sc->gnss_sd_m * nrand();
-        double mlat = lat + 2.0 / 111200.0 * nrand(), mlon = lon + 2.0 / 80000.0 * nrand();
+        double mlat, mlon;
+        position_fix(sc, t, lat, lon, &mlat, &mlon);
         char ts[40];
         iso(t, ts, sizeof ts);
         if (sc->no_rover_temp)
@@ -552,6 +620,55 @@ static int write_benchmarks(const scenario *sc, const char *dir)
     return fclose(f) != 0;
 }
 
+/* The options of the coverage tests: one number each. 0 when known. */
+static int set_option(scenario *sc, const char *name, double v)
+{
+    static const struct { const char *name; size_t off; } num[] = {
+        {"--route-km", offsetof(scenario, route_km)},
+        {"--top-h", offsetof(scenario, top_h)},
+        {"--rest-s", offsetof(scenario, rest_s)},
+        {"--trend", offsetof(scenario, trend_pa_h)},
+        {"--front-pa", offsetof(scenario, front_pa)},
+        {"--front-kmh", offsetof(scenario, front_kmh)},
+        {"--front-km", offsetof(scenario, front_km)},
+        {"--front-dir", offsetof(scenario, front_dir_deg)},
+        {"--front-time", offsetof(scenario, front_t_s)},
+        {"--front-trough", offsetof(scenario, front_trough_pa_h)},
+        {"--base-temp-bias", offsetof(scenario, base_temp_bias_k)},
+        {"--gnss-sd", offsetof(scenario, gnss_sd_m)},
+        {"--gnss-tau", offsetof(scenario, gnss_tau_s)},
+        {"--pos-noise", offsetof(scenario, pos_noise_m)},
+        {"--pos-tau", offsetof(scenario, pos_tau_s)},
+        {"--pos-spike-s", offsetof(scenario, pos_spike_s)},
+        {"--coloc-offset", offsetof(scenario, coloc_offset_m)},
+    };
+    for (size_t i = 0; i < sizeof num / sizeof num[0]; i++)
+        if (strcmp(name, num[i].name) == 0) {
+            *(double *)((char *)sc + num[i].off) = v;
+            return 0;
+        }
+    if (strcmp(name, "--xbase-off") == 0 && sc->n_extra > 0)
+        sc->extra[0].off_pa = v;
+    else if (strcmp(name, "--xbase-coloc") == 0 && sc->n_extra > 0)
+        sc->extra[0].coloc_first = v != 0;   /* the logger first stands beside the main base */
+    else if (strcmp(name, "--xbase-at-top") == 0 && sc->n_extra > 0 && v != 0) {
+        /* the second logger at the walk's top, where the rover rests beside it */
+        state st = at_distance(sc, sc->route_km);
+        sc->extra[0].east_km = st.east_km;
+        sc->extra[0].north_km = st.north_km;
+        sc->extra[0].h = st.z;
+    } else if (strcmp(name, "--th-benchmark") == 0)
+        sc->th_is_benchmark = v != 0;   /* the trailhead is benchmark TH */
+    else if (strcmp(name, "--stops") == 0 && v == 3) {
+        /* stops at benchmarks at three heights, as the ties day has them */
+        static const stop three[3] = {{0.3, 240, "BM-LOW", 1}, {0.6, 240, "BM-MID", 0}, {0.92, 240, "BM-HIGH", 1}};
+        sc->n_stops = 3;
+        memcpy(sc->stops, three, sizeof three);
+    } else
+        return -1;
+    return 0;
+}
+
 int main(int argc, char **argv)
 {
     if (argc < 3) {
@@ -578,7 +695,7 @@ int main(int argc, char **argv)
             opt_gnss_bias_m = strtod(argv[k + 1], NULL);
         else if (strcmp(argv[k], "--gnss-heights") == 0)   /* geoid or ellipsoidal */
             opt_ellipsoidal = strcmp(argv[k + 1], "ellipsoidal") == 0;
-        else {
+        else if (set_option(&custom, argv[k], strtod(argv[k + 1], NULL)) != 0) {
             fprintf(stderr, "hypsim: unknown option %s\n", argv[k]);
             return 2;
         }
@@ -616,5 +733,11 @@ int main(int argc, char **argv)
                "base_noise_pa %.2f\nbase_quantum_pa %.2f\nbase_clock_s %.1f\n",
             sc->name, sc->base_h, sc->lat0, sc->lon0, sc->rover_off_pa, sc->rover_drift_pa_h,
             sc->rover_noise_pa, sc->rover_q_pa, sc->base_noise_pa, sc->base_q_pa, sc->base_clock_s);
+    for (int k = 0; k < sc->n_extra; k++) {   /* where the further loggers stand */
+        double lat, lon;
+        latlon(sc, sc->extra[k].east_km, sc->extra[k].north_km, &lat, &lon);
+        fprintf(f, "base%d_lat %.6f\nbase%d_lon %.6f\nbase%d_height_m %.3f\nbase%d_offset_pa %.2f\n", k + 2, lat, k + 2,
+                lon, k + 2, sc->extra[k].h, k + 2, sc->extra[k].off_pa);
+    }
     return fclose(f) != 0;
 }
