@@ -7,6 +7,8 @@
 
 #include <math.h>
 
+#define PI 3.14159265358979323846
+
 const char *hyp_budget_term_name(hyp_budget_term t)
 {
     static const char *n[HYP_B_COUNT] = {"noise", "fit", "tcol", "rh", "interp", "clock", "horiz"};
@@ -61,6 +63,120 @@ static double separation_m(const hyp__work *w, size_t i)
     return best == INFINITY ? 0.0 : best;
 }
 
+/* Base pressure at true time x by linear interpolation, searched from
+ * interval k (a hint near x); beyond the log, its end value carried on by
+ * the end's tendency. Gaps are bridged: this is for the budget only. */
+static double base_p_at(const hyp__base_view *b, size_t k, double x)
+{
+    size_t n = b->n;
+    if (x <= b->t[0])
+        return b->p[0] + b->rate[0] * (x - b->t[0]);
+    if (x >= b->t[n - 1])
+        return b->p[n - 1] + b->rate[n - 1] * (x - b->t[n - 1]);
+    double step = (b->t[n - 1] - b->t[0]) / (double)(n - 1);
+    double g = (double)k + floor((x - b->t[k]) / step);
+    size_t lo = g < 0 ? 0 : g > (double)(n - 2) ? n - 2 : (size_t)g;
+    for (int walk = 0; walk < 8 && !(b->t[lo] <= x && x <= b->t[lo + 1]); walk++)
+        lo = b->t[lo] > x ? lo - 1 : lo + 1;
+    if (!(b->t[lo] <= x && x <= b->t[lo + 1])) {   /* an irregular log: bisect */
+        size_t hi = n - 1;
+        lo = 0;
+        while (hi - lo > 1) {
+            size_t mid = lo + (hi - lo) / 2;
+            *(b->t[mid] <= x ? &lo : &hi) = mid;
+        }
+    }
+    double f = (x - b->t[lo]) / (b->t[lo + 1] - b->t[lo]);
+    return b->p[lo] + f * (b->p[lo + 1] - b->p[lo]);
+}
+
+/* The calibration whose offset the model applies at t most (the nearest in
+ * time), NULL when the level comes from no calibration at a place. */
+static const hyp_calib *calib_at(const hyp__work *w, double t)
+{
+    const hyp_correct_result *r = w->r;
+    if (r->drift.kind == HYP_DRIFT_NONE || r->drift.kind == HYP_DRIFT_EXPLICIT || r->drift.kind == HYP_DRIFT_GNSS)
+        return NULL;
+    const hyp_calib *best = NULL;
+    double bd = INFINITY;
+    for (size_t k = 0; k < r->n_calibs; k++) {
+        const hyp_calib *c = &r->calibs[k];
+        double d = fabs(0.5 * (c->start_s + c->end_s) - t);
+        if (c->lat_deg == c->lat_deg && d < bd)
+            bd = d, best = c;
+    }
+    return best;
+}
+
+/* A pressure pattern moving at speed v (a front, a trough) over the base
+ * reaches a place s metres further along its motion s / v later, so the
+ * rover sees now what the base saw then: p_r(t) - p_b(t) = p_b(t - s_r / v)
+ * - p_b(t), s_r the rover's distance from the base along the (unknown)
+ * direction of motion. A calibration at (t_c, s_c) absorbed the same
+ * difference there and then; what is left at the rover is
+ *   E = [p_b(t - s_r/v) - p_b(t)] - [p_b(t_c - s_c/v) - p_b(t_c)],
+ * read off the base's own log. Its mean square over eight directions of
+ * motion (uniform: no direction is preferred), less the base noise the
+ * two or four interpolated pressures carry, is the moving-pattern
+ * variance (Pa^2). For a steady tendency dp/dt it is
+ * (dp/dt d / v)^2 / 2, d the rover-calibration distance: the mean of
+ * cos^2 over the directions. */
+static double moving_var(const hyp__work *w, size_t i, const hyp__in *in, double v)
+{
+    const hyp_base *b = &w->bases[w->method == HYP_METHOD_SINGLE ? 0 : w->ref];
+    double t = w->rv->time_s[i], la = hyp_series_lat(w->rv, i), lo = hyp_series_lon(w->rv, i);
+    double dr, ar, dc = 0.0, ac = 0.0, tc = t;
+    if (hyp_geo_inverse(b->lat_deg, b->lon_deg, la, lo, &dr, &ar) != 0 || dr != dr)
+        return NAN;
+    const hyp_calib *c = calib_at(w, t);
+    if (c && (hyp_geo_inverse(b->lat_deg, b->lon_deg, c->lat_deg, c->lon_deg, &dc, &ac) != 0 || dc != dc))
+        return NAN;
+    if (c)
+        tc = 0.5 * (c->start_s + c->end_s);
+    const hyp__base_view *bv = &w->bv;
+    size_t k = in->hint;
+    double p0 = base_p_at(bv, k, t), pc0 = base_p_at(bv, k, tc), ss = 0.0;
+    for (int j = 0; j < 8; j++) {
+        double th = (double)j * PI / 4.0;
+        double sr = dr * cos(ar * PI / 180.0 - th), sc = dc * cos(ac * PI / 180.0 - th);
+        double e = base_p_at(bv, k, t - sr / v) - p0;
+        if (c && dc > 0.0)
+            e -= base_p_at(bv, k, tc - sc / v) - pc0;
+        ss += e * e;
+    }
+    double bn = w->r->base_noise_pa;
+    return fmax(0.0, ss / 8.0 - (c && dc > 0.0 ? 4.0 : 2.0) * bn * bn);
+}
+
+/* Horizontal term (Pa): a gradient that stays put, G over the distance
+ * from the calibration (the synoptic scale, see correct.h), the moving
+ * pattern as read off the base log, and the field method's scatter. */
+static double horiz_pa(const hyp__work *w, size_t i, const hyp__in *in)
+{
+    const hyp_correct_opts *o = w->o;
+    double d = separation_m(w, i), v = o->front_speed_m_s;
+    double mv = d > 0.0 ? moving_var(w, i, in, v) : 0.0;
+    if (mv != mv) {   /* no base position: the tendency as a moving gradient */
+        double g = fabs(in->rate) / v * d;
+        mv = 0.5 * g * g;
+    }
+    double s = o->gradient_sigma_pa_per_m * d;
+    return sqrt(s * s + mv + w->field_sigma_pa * w->field_sigma_pa);
+}
+
+/* The base's tendency at the rover time (Pa/s): the larger of the hourly
+ * slope and the change over the ten minutes around it, less the base
+ * noise that change carries (2 sigma_b^2 / (600 s)^2), so a sharp rise
+ * that the hourly fit smooths out still counts. */
+static double local_rate(const hyp__work *w, size_t i, const hyp__in *in)
+{
+    const double half_s = 300.0;
+    double t = w->rv->time_s[i], bn = w->r->base_noise_pa;
+    double s = (base_p_at(&w->bv, in->hint, t + half_s) - base_p_at(&w->bv, in->hint, t - half_s)) / (2.0 * half_s);
+    double v = s * s - 2.0 * bn * bn / (4.0 * half_s * half_s), h = fabs(in->rate);
+    return v > h * h ? sqrt(v) : h;
+}
+
 static double rh_term(const hyp__work *w, size_t i, const hyp__in *in, double dz, double tv)
 {
     int measured = w->rv->rh_pct[i] == w->rv->rh_pct[i] || in->rhb == in->rhb;
@@ -86,7 +202,7 @@ double hyp__budget(const hyp__work *w, size_t i, const hyp__in *in, double dz, d
 {
     const hyp_correct_opts *o = w->o;
     const hyp_correct_result *r = w->r;
-    double rate = fabs(in->rate);
+    double rate = local_rate(w, i, in);
     double rn = r->rover_noise_pa, bn = r->base_noise_pa;
     b[HYP_B_FIT] = fit_term(w, i, dz, c);
     if (w->method == HYP_METHOD_TWO_BASE) {
@@ -121,8 +237,7 @@ double hyp__budget(const hyp__work *w, size_t i, const hyp__in *in, double dz, d
     b[HYP_B_RH] = rh_term(w, i, in, dz, tv);
     b[HYP_B_INTERP] = c * rate * in->dt_base / sqrt(12.0);
     b[HYP_B_CLOCK] = c * rate * o->clock_sigma_s;
-    double grad = hypot(o->gradient_sigma_pa_per_m, rate / o->front_speed_m_s);
-    b[HYP_B_HORIZ] = c * hypot(grad * separation_m(w, i), w->field_sigma_pa);
+    b[HYP_B_HORIZ] = c * horiz_pa(w, i, in);
     double ss = 0;
     for (int k = 0; k < HYP_B_COUNT; k++)
         ss += b[k] * b[k];

@@ -27,7 +27,7 @@ void hyp_correct_opts_init(hyp_correct_opts *o)
     o->max_condition = 1e6;
     o->drift_rw_pa2_per_s = 4.0 / 3600.0;
     o->gradient_sigma_pa_per_m = 100.0 / 100000.0;
-    o->front_speed_m_s = 30.0 / 3.6;
+    o->front_speed_m_s = 20.0 / 3.6;
     o->clock_sigma_s = 2.0;
     o->rh_sigma_pct = 5.0;
     o->rapid_pa_per_s = 100.0 / 3600.0;
