@@ -189,6 +189,37 @@ static double rh_term(const hyp__work *w, size_t i, const hyp__in *in, double dz
     return fabs(dz) * fabs(t2 - t1) * (sig / (hi - rh > 0 ? hi - rh : sig)) / tv;
 }
 
+/* The mean square height above the base (m^2) of where the level was set:
+ * the calibrations' (as the mean height dz_ref is theirs) or the
+ * GNSS-anchored samples'. */
+static double level_dz2(const hyp__work *w)
+{
+    const hyp_correct_result *r = w->r;
+    if (r->drift.kind == HYP_DRIFT_GNSS)
+        return r->level_dz2_m2;
+    if (r->drift.kind < HYP_DRIFT_CONSTANT || !r->n_calibs)
+        return 0.0;
+    double s = 0.0;
+    for (size_t k = 0; k < r->n_calibs; k++) {
+        double d = r->calibs[k].known_m - w->base->height_m;
+        s += d * d;
+    }
+    return s / (double)r->n_calibs;
+}
+
+/* Column term of a single-base height dz above the base. A column whose
+ * base-end temperature is off by dT_b and whose lapse rate is off by dG
+ * has a mean temperature off by dT_b + dG dz / 2, so heights are off by
+ * (dT_b dz + dG dz^2 / 2) / Tv; a level set where the heights above the
+ * base average dz_ref (and their squares q_ref) absorbs the same there,
+ * leaving sqrt((s_T (dz - dz_ref))^2 + (s_G (dz^2 - q_ref) / 2)^2) / Tv. */
+static double column_term(const hyp__work *w, double dz, double tv)
+{
+    double a = w->tsig_k * (dz - w->dz_ref_m);
+    double b = 0.5 * w->o->lapse_sigma_k_per_m * (dz * dz - level_dz2(w));
+    return hypot(a, b) / tv;
+}
+
 /* Column term outside a calibrated bracket: the single-base prior over the
  * distance d beyond it. */
 static double prior_term(const hyp__work *w, double d, double tv)
@@ -224,10 +255,7 @@ double hyp__budget(const hyp__work *w, size_t i, const hyp__in *in, double dz, d
             b[HYP_B_TCOL] = prior_term(w, x < 0 ? x * dh : (x - 1) * dh, tv);
     } else {
         b[HYP_B_NOISE] = c * sqrt(rn * rn / in->navg + bn * bn);
-        /* A column temperature error dT shifts heights by dz dT / Tv; an
-         * offset calibrated at height difference dz_ref absorbs dz_ref dT / Tv
-         * of it, leaving (dz - dz_ref) dT / Tv. */
-        b[HYP_B_TCOL] = w->tcol_scaled ? 0.0 : prior_term(w, dz - w->dz_ref_m, tv);
+        b[HYP_B_TCOL] = w->tcol_scaled ? 0.0 : column_term(w, dz, tv);
         if (w->method == HYP_METHOD_SINGLE) {
             double so = r->base_offset_sigma_pa[w->ref];
             if (so == so && so > 0)

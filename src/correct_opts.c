@@ -33,7 +33,7 @@ void hyp_correct_opts_init(hyp_correct_opts *o)
     o->rapid_pa_per_s = 100.0 / 3600.0;
     o->clock_max_lag_s = 600.0;
     o->gnss_anchor = 1;
-    o->gnss_bias_sigma_m = 1.0;
+    o->gnss_bias_sigma_m = 0.0;
     o->method = HYP_METHOD_AUTO;
     o->base_colocate.start_s = o->base_colocate.end_s = NAN;
     o->extrapolate_min_m = 100.0;

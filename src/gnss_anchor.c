@@ -3,6 +3,7 @@
  * with a drift, whose uncertainty counts the GNSS errors' correlation in
  * time (an effective number of independent samples, not the raw count). */
 #include "correct_int.h"
+#include "serial_var.h"
 #include "stats.h"
 
 #include <math.h>
@@ -63,32 +64,25 @@ static double huber(const double *x, const double *y, size_t n, int line, double
     return s;
 }
 
-/* Effective sample count n / (1 + 2 sum rho_k), the sum over lags until the
- * autocorrelation first falls below 0.05 (Bretherton et al., J. Climate 12,
- * 1999, eq. 31 for the mean of a correlated series). */
-static double neff(const double *r, size_t n)
+/* Takes out of the residuals r the part proportional to the height above
+ * the base z (least squares about their means): a column temperature
+ * error makes barometric heights wrong in proportion to z, which the
+ * budget's column term carries already; left in, that smooth shape would
+ * pass for correlation of the GNSS errors. Returns the mean of z, and
+ * the mean of its square in *z2m. */
+static double column_shape_out(double *r, const double *z, size_t n, double *z2m)
 {
-    double m = 0, v = 0;
+    double zm = 0.0, rm = 0.0, szz = 0.0, szr = 0.0;
+    *z2m = 0.0;
     for (size_t i = 0; i < n; i++)
-        m += r[i];
-    m /= (double)n;
+        zm += z[i], rm += r[i], *z2m += z[i] * z[i];
+    zm /= (double)n, rm /= (double)n, *z2m /= (double)n;
     for (size_t i = 0; i < n; i++)
-        v += (r[i] - m) * (r[i] - m);
-    if (!(v > 0))
-        return (double)n;
-    double sum = 0;
-    size_t maxlag = n / 4 < 5000 ? n / 4 : 5000;
-    for (size_t k = 1; k < maxlag; k++) {
-        double c = 0;
-        for (size_t i = k; i < n; i++)
-            c += (r[i] - m) * (r[i - k] - m);
-        double rho = c / v;
-        if (rho < 0.05)
-            break;
-        sum += rho;
-    }
-    double ne = (double)n / (1.0 + 2.0 * sum);
-    return ne < 1.0 ? 1.0 : ne;
+        szz += (z[i] - zm) * (z[i] - zm), szr += (z[i] - zm) * (r[i] - rm);
+    double k = szz > 0.0 ? szr / szz : 0.0;
+    for (size_t i = 0; i < n; i++)
+        r[i] -= k * (z[i] - zm);
+    return zm;
 }
 
 hyp_status hyp__gnss_anchor(hyp__work *w)
@@ -106,9 +100,9 @@ hyp_status hyp__gnss_anchor(hyp__work *w)
     size_t n = 0, seen = 0;
     double *x = malloc(m * sizeof *x), *y = malloc(m * sizeof *y);
     double *r = malloc(m * sizeof *r), *wt = malloc(m * sizeof *wt);
-    double *tmp = malloc(m * sizeof *tmp);
+    double *tmp = malloc(m * sizeof *tmp), *z = malloc(m * sizeof *z);
     hyp_status st = HYP_OK;
-    if (!x || !y || !r || !wt || !tmp) {
+    if (!x || !y || !r || !wt || !tmp || !z) {
         st = HYP_ERR_NOMEM;
         goto out;
     }
@@ -124,6 +118,7 @@ hyp_status hyp__gnss_anchor(hyp__work *w)
             t0 = w->rv->time_s[i];
         x[n] = w->rv->time_s[i] - t0;
         y[n] = g[i] - raw;
+        z[n] = raw - w->base->height_m;
         n++;
     }
     if (n < 100)
@@ -132,13 +127,18 @@ hyp_status hyp__gnss_anchor(hyp__work *w)
      * of correlation) to average out at both ends: two hours (common
      * practice, no source). */
     int line = x[n - 1] - x[0] >= 7200.0;
-    double a, b, cov[4];
+    double a, b, cov[4], tau;
     double s = huber(x, y, n, line, &a, &b, cov, r, wt, tmp);
-    double ne = neff(r, n);
-    /* cov is for unit-variance independent samples: scale by s^2 and by
-     * n / neff for the correlation */
+    double z2m, zm = column_shape_out(r, z, n, &z2m);
+    double f = hyp__mean_var_factor(r, n, &tau);
+    /* cov is for unit-variance independent samples: scale by s^2 and by the
+     * correlation's factor (the mean of n correlated values is worth n / f
+     * independent ones); then widen by t / z for the few independent values
+     * the level rests on (Student, 97.5 %), so its two sigmas are a 95 %
+     * interval however few they are */
+    double ne = (double)n / f, p = line ? 2.0 : 1.0, tz = hyp__t975(ne - p) / 1.959963984540054;
     for (int k = 0; k < 4; k++)
-        cov[k] *= s * s * (double)n / ne;
+        cov[k] *= s * s * f * tz * tz;
     memset(d, 0, sizeof *d);
     d->kind = HYP_DRIFT_GNSS;
     d->n_knots = 1;
@@ -151,9 +151,13 @@ hyp_status hyp__gnss_anchor(hyp__work *w)
     d->gnss_floor_m = w->o->gnss_bias_sigma_m;
     d->gnss_neff = ne;
     d->gnss_n = n;
+    /* the level absorbs the column error at the samples' mean height above
+     * the base (as a calibration's offset does at its own) */
+    w->dz_ref_m = zm;
+    w->r->level_dz2_m2 = z2m;
     snprintf(d->note, sizeof d->note,
-             "GNSS-anchored (lower grade): %s fitted to GNSS - barometric heights, %+.2f m%s, robust scatter %.2f m, %zu samples worth %.0f independent",
-             line ? "offset and drift" : "offset", a, line ? "" : "", s, n, ne);
+             "GNSS-anchored (lower grade): %s fitted to GNSS - barometric heights, %+.2f m +- %.2f m, robust scatter %.2f m correlated over %.0f s, %zu samples worth %.0f independent",
+             line ? "offset and drift" : "offset", a, sqrt(cov[0]), s, tau * (x[n - 1] - x[0]) / (double)(n - 1), n, ne);
     if (line) {
         size_t l = strlen(d->note);
         snprintf(d->note + l, sizeof d->note - l, ", drift %+.3f m/h", b * 3600.0);
@@ -164,5 +168,6 @@ out:
     free(r);
     free(wt);
     free(tmp);
+    free(z);
     return st;
 }

@@ -290,6 +290,10 @@ typedef struct hyp_correct_result {
     double base_tendency_pa_s; /* least-squares trend of base pressure */
     char method[240];          /* what was done, one line */
     struct hyp__work *priv;    /* what hyp_correct_point() needs; private */
+    /* GNSS-anchored: the mean square height above the base of the samples
+     * the level was fitted to, m^2 (the column term's lapse part grows
+     * away from it); 0 otherwise. */
+    double level_dz2_m2;
 } hyp_correct_result;
 
 /* One corrected point in full. */
