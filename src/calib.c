@@ -2,6 +2,7 @@
  * and on benchmarks (ties), found from positions, from GPX waypoints named
  * like a benchmark, or given explicitly; and their statistics. */
 #include "correct_int.h"
+#include "base_offset.h"
 #include "hypsolev/geo.h"
 #include "hypsolev/timeparse.h"
 #include "stats.h"
@@ -264,6 +265,20 @@ static int by_time(const void *a, const void *b)
     return (x > y) - (x < y);
 }
 
+/* Two bases never compared: their relative offset from what the survey
+ * observes (base_offset.c); the calibrations' raw heights then change with
+ * the upper base's pressures, so their statistics are computed again. */
+static hyp_status upper_base_offset(hyp__work *w, hyp_error *err)
+{
+    int changed = hyp__estimate_base_offset(w);
+    if (changed < 0)
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    for (size_t k = 0; changed && k < w->r->n_calibs; k++)
+        if (window_stats(w, &w->r->calibs[k]) < 0)
+            return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    return HYP_OK;
+}
+
 hyp_status hyp__find_calibrations(hyp__work *w, hyp_error *err)
 {
     const hyp_correct_opts *o = w->o;
@@ -297,5 +312,7 @@ hyp_status hyp__find_calibrations(hyp__work *w, hyp_error *err)
         dedup(w->r);
         qsort(w->r->calibs, w->r->n_calibs, sizeof *w->r->calibs, by_time);
     }
+    if (!st)
+        st = upper_base_offset(w, err);
     return st;
 }

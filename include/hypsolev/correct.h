@@ -294,6 +294,12 @@ typedef struct hyp_correct_result {
      * the level was fitted to, m^2 (the column term's lapse part grows
      * away from it); 0 otherwise. */
     double level_dz2_m2;
+    /* Two bases never compared side by side: which constraint fixed the
+     * upper base's offset relative to the lower (base_offset_pa and
+     * base_offset_sigma_pa hold it), with each constraint's share of the
+     * information, e.g. "ties at different heights (93 % of the weight);
+     * GNSS heights (lower grade) 5 %"; empty otherwise. */
+    char base_offset_how[200];
 } hyp_correct_result;
 
 /* One corrected point in full. */
