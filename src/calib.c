@@ -77,26 +77,118 @@ static double dist_to(const hyp__work *w, size_t i, double lat, double lon)
     return hyp_geo_distance_m(hyp_series_lat(w->rv, i), hyp_series_lon(w->rv, i), lat, lon);
 }
 
-/* Within the run i..j near a point, the stretch where the rover stood
- * still: grown from the sample nearest the point while positions stay within
- * stationary_m of it. */
-static void stationary_part(const hyp__work *w, size_t *i, size_t *j, double lat, double lon)
+/* Standing still, robustly. GNSS positions of a receiver at rest scatter
+ * by metres and now and then jump tens of metres for a fix or two
+ * (multipath), so a stretch is not grown from one reference fix (itself
+ * off by the scatter) but judged against the median position of the
+ * fixes: those within stationary_m of it count as standing; an excursion
+ * beyond it whose fixes span at most EXCURSION_S (common practice, no
+ * source; a walker covers 15 m in that time) is isolated, tolerated and
+ * counted; a longer one ends the stretch. */
+#define EXCURSION_S 15.0
+#define EARTH_R_M 6371008.8   /* mean Earth radius (IUGG), for metres over a few tens of metres */
+
+typedef struct still { size_t a, b, outliers; } still;
+
+/* Distance (m) of sample i from (lat, lon) on the local plane (the
+ * equirectangular approximation: millimetres over 100 m). */
+static double plane_dist(const hyp__work *w, size_t i, double lat, double lon)
 {
-    size_t a = *i;
-    double best = INFINITY;
-    for (size_t k = *i; k <= *j; k++) {
-        double d = dist_to(w, k, lat, lon);
-        if (d < best)
-            best = d, a = k;
+    const double rad = 3.14159265358979323846 / 180.0;
+    double n = (hyp_series_lat(w->rv, i) - lat) * rad * EARTH_R_M;
+    double e = (hyp_series_lon(w->rv, i) - lon) * rad * EARTH_R_M * cos(lat * rad);
+    return hypot(e, n);
+}
+
+/* Component-wise median position of the usable samples lo..hi; -1 out of
+ * memory, 0 when none has a position. */
+static int median_pos(const hyp__work *w, size_t lo, size_t hi, double *lat, double *lon)
+{
+    double *la = malloc((hi - lo + 1) * sizeof *la), *ln = malloc((hi - lo + 1) * sizeof *ln);
+    size_t n = 0;
+    int ok = la && ln ? 1 : -1;
+    for (size_t i = lo; ok > 0 && i <= hi; i++)
+        if (w->r->status[i] == HYP_PT_OK && hyp_series_lat(w->rv, i) == hyp_series_lat(w->rv, i)) {
+            la[n] = hyp_series_lat(w->rv, i);
+            ln[n++] = hyp_series_lon(w->rv, i);
+        }
+    if (ok > 0 && n) {
+        *lat = hyp__median_inplace(la, n);
+        *lon = hyp__median_inplace(ln, n);
+    } else if (ok > 0)
+        ok = 0;
+    free(la);
+    free(ln);
+    return ok;
+}
+
+/* From sample k (inside) one way (step +1 or -1) within lo..hi: the last
+ * fix of the stretch, adding its tolerated outliers to *out. A sample the
+ * reader refused ends it. */
+static size_t extend(const hyp__work *w, size_t k, int step, size_t lo, size_t hi, double lat, double lon, double r,
+                     size_t *out)
+{
+    const double *t = w->rv->time_s;
+    size_t last = k, first_out = k, n_out = 0;
+    while (step > 0 ? k < hi : k > lo) {
+        k = step > 0 ? k + 1 : k - 1;
+        if (w->r->status[k] != HYP_PT_OK)
+            break;
+        if (plane_dist(w, k, lat, lon) <= r) {
+            *out += n_out;
+            n_out = 0;
+            last = k;
+            continue;
+        }
+        if (n_out++ == 0)
+            first_out = k;
+        if (fabs(t[k] - t[first_out]) > EXCURSION_S)
+            break;
     }
-    double la = hyp_series_lat(w->rv, a), lo = hyp_series_lon(w->rv, a), r = w->o->stationary_m;
-    size_t lo_i = a, hi_i = a;
-    while (lo_i > *i && dist_to(w, lo_i - 1, la, lo) <= r)
-        lo_i--;
-    while (hi_i < *j && dist_to(w, hi_i + 1, la, lo) <= r)
-        hi_i++;
-    *i = lo_i;
-    *j = hi_i;
+    return last;
+}
+
+/* The stretch of lo..hi where the rover stood still about the median
+ * position of the core s->a..s->b, grown both ways from the fix nearest
+ * that median (twice: the second time about the median of the first
+ * stretch). 0 when none; -1 out of memory. */
+static int still_stretch(const hyp__work *w, size_t lo, size_t hi, still *s)
+{
+    double lat, lon, r = w->o->stationary_m;
+    s->outliers = 0;
+    for (int pass = 0; pass < 2; pass++) {
+        int ok = median_pos(w, s->a, s->b, &lat, &lon);
+        if (ok <= 0)
+            return ok;
+        size_t anchor = lo;
+        double best = INFINITY;
+        for (size_t k = lo; k <= hi; k++) {
+            double d = w->r->status[k] == HYP_PT_OK ? plane_dist(w, k, lat, lon) : NAN;
+            if (d < best)
+                best = d, anchor = k;
+        }
+        if (!(best <= r))
+            return 0;
+        s->outliers = 0;
+        s->a = extend(w, anchor, -1, lo, hi, lat, lon, r, &s->outliers);
+        s->b = extend(w, anchor, +1, lo, hi, lat, lon, r, &s->outliers);
+    }
+    return 1;
+}
+
+/* The end of a run of samples within radius of (lat, lon) from i: isolated
+ * excursions beyond it (at most EXCURSION_S) do not end it. */
+static size_t run_end(const hyp__work *w, size_t i, double lat, double lon, double radius)
+{
+    const hyp_series *rv = w->rv;
+    size_t j = i;
+    for (size_t k = i + 1; k < w->n && !rv->flag[k]; k++) {
+        if (dist_to(w, k, lat, lon) <= radius)
+            j = k;
+        else if (rv->time_s[k] - rv->time_s[j] > EXCURSION_S + (rv->time_s[j + 1] - rv->time_s[j]))
+            break;
+    }
+    return j;
 }
 
 /* Runs of samples within radius of (lat, lon), standing still there for at
@@ -111,20 +203,21 @@ static hyp_status find_near(hyp__work *w, hyp_calib *proto, double lat, double l
             i++;
             continue;
         }
-        size_t j = i;
-        while (j + 1 < w->n && !rv->flag[j + 1] && dist_to(w, j + 1, lat, lon) <= radius)
-            j++;
-        size_t next = j + 1, a = i, b = j;
-        stationary_part(w, &a, &b, lat, lon);
-        if (rv->time_s[b] - rv->time_s[a] >= min_s) {
+        size_t j = run_end(w, i, lat, lon, radius);
+        still st = {i, j, 0};
+        int ok = still_stretch(w, i, j, &st);
+        if (ok < 0)
+            return HYP_ERR_NOMEM;
+        if (ok && rv->time_s[st.b] - rv->time_s[st.a] >= min_s) {
             hyp_calib c = *proto;
-            c.start_s = rv->time_s[a];
-            c.end_s = rv->time_s[b];
-            int ok = window_stats(w, &c);
-            if (ok < 0 || (ok && push(w->r, &c)))
+            c.start_s = rv->time_s[st.a];
+            c.end_s = rv->time_s[st.b];
+            c.pos_outliers = st.outliers;
+            int got = window_stats(w, &c);
+            if (got < 0 || (got && push(w->r, &c)))
                 return HYP_ERR_NOMEM;
         }
-        i = next;
+        i = j + 1;
     }
     return HYP_OK;
 }
@@ -222,16 +315,27 @@ static hyp_status waypoint_ties(hyp__work *w)
                          wp->name[k], d);
         size_t i = (size_t)a, j = (size_t)a;
         double t = w->rv->time_s[a];
-        while (i > 0 && w->r->status[i - 1] == HYP_PT_OK && t - w->rv->time_s[i - 1] <= 600.0 &&
-               !(dist_to(w, i - 1, la, lo) > w->o->stationary_m))
+        while (i > 0 && w->r->status[i - 1] == HYP_PT_OK && t - w->rv->time_s[i - 1] <= 600.0)
             i--;
-        while (j + 1 < w->n && w->r->status[j + 1] == HYP_PT_OK && w->rv->time_s[j + 1] - t <= 600.0 &&
-               !(dist_to(w, j + 1, la, lo) > w->o->stationary_m))
+        while (j + 1 < w->n && w->r->status[j + 1] == HYP_PT_OK && w->rv->time_s[j + 1] - t <= 600.0)
             j++;
+        /* standing still about the median of the minute around the waypoint */
+        still st = {(size_t)a, (size_t)a, 0};
+        while (st.a > i && t - w->rv->time_s[st.a - 1] <= 30.0)
+            st.a--;
+        while (st.b < j && w->rv->time_s[st.b + 1] - t <= 30.0)
+            st.b++;
+        int got = still_stretch(w, i, j, &st);
+        if (got < 0)
+            return HYP_ERR_NOMEM;
+        if (!got)
+            continue;
+        i = st.a, j = st.b;
         hyp_calib c;
         proto_for(w, &c, bm, HYP_HOW_WAYPOINT);
         c.start_s = w->rv->time_s[i];
         c.end_s = w->rv->time_s[j];
+        c.pos_outliers = st.outliers;
         int ok = j - i >= 2 ? window_stats(w, &c) : 0;
         if (ok < 0 || (ok && push(w->r, &c)))
             return HYP_ERR_NOMEM;

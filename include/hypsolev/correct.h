@@ -175,6 +175,9 @@ typedef struct hyp_calib {
     double scatter_pa;         /* sample standard deviation of the pressure */
     double misclosure_m;       /* raw_m - known_m: before adjustment */
     double residual_m;         /* corrected - known_m: after the fit */
+    size_t pos_outliers;       /* isolated fixes farther than stationary_m from
+                                  the window's median position, tolerated
+                                  (found from positions; 0 otherwise) */
 } hyp_calib;
 
 /* The offset model fitted to the calibrations: offset(t) piecewise linear
