@@ -116,6 +116,50 @@ void hyp__decim_free(hyp__decim *d);
 hyp_status hyp__decimate(const double *x, const double *y, const double *also, size_t n,
                          double x_lo, double x_hi, int columns, hyp__decim *d, hyp_error *err);
 
+/* ---- streaming thinning (svg_thin.c) -------------------------------- */
+
+/* hyp__decimate for series that are not held as arrays of double (a float
+ * array, a value computed per point, a distance summed along a track):
+ * points are fed in order, one index at a time with its x and one y per
+ * series, and the thinner keeps every index hyp__decimate would keep of
+ * any of the series, and for each segment that ends the index of the point
+ * that ended it (so the gap survives). Drawing the kept points (gathered
+ * into arrays) with hyp__svg_line or hyp__svg_band over the same range and
+ * columns then keeps exactly the points the whole series would: at most a
+ * few per pixel column and series, whatever the length. The two edges of
+ * a band must be non-finite together. */
+#define HYP__THIN_SERIES 4
+
+typedef struct hyp__thin_col {
+    size_t first, low, high, last;
+    double y_low, y_high;
+    long col;
+    int open;
+} hyp__thin_col;
+
+typedef struct hyp__thin {
+    size_t n_series;
+    double x_lo, scale, x_prev;
+    int columns;
+    hyp__thin_col c[HYP__THIN_SERIES];
+    size_t *idx;      /* kept indices; after hyp__thin_end increasing, unique */
+    size_t n_idx, alloc;
+    int oom;
+} hyp__thin;
+
+/* Range and columns as the figure's (hyp__svg_columns). HYP_ERR_USAGE for
+ * 0 or more than HYP__THIN_SERIES series, or a range as hyp__decimate
+ * refuses. */
+hyp_status hyp__thin_begin(hyp__thin *t, size_t n_series, double x_lo, double x_hi, int columns, hyp_error *err);
+/* Point i (increasing from call to call) at x with y[0 .. n_series-1]; a
+ * non-finite x ends every series' segment, a non-finite y its own.
+ * HYP_ERR_USAGE when a finite x is below the one before. */
+hyp_status hyp__thin_add(hyp__thin *t, size_t i, double x, const double *y, hyp_error *err);
+/* Closes the open columns; sorts the kept indices. HYP_ERR_NOMEM when an
+ * allocation failed on the way. */
+hyp_status hyp__thin_end(hyp__thin *t, hyp_error *err);
+void hyp__thin_free(hyp__thin *t);
+
 /* ---- figures (svg.c, svg_marks.c, svg_legend.c) ---------------------- */
 
 typedef enum hyp__svg_marker {
@@ -223,6 +267,9 @@ hyp_status hyp__svg_bars(hyp__svg *f, const double *x, size_t n_bars, const doub
 
 /* Text at a data position; anchor -1 start, 0 middle, 1 end. Not clipped. */
 hyp_status hyp__svg_text(hyp__svg *f, double x, double y, const char *text, int anchor);
+
+/* The pixel columns the figure's lines and bands are decimated to. */
+int hyp__svg_columns(const hyp__svg *f);
 
 /* Closes the figure: frame, legend (two entries or more), colour bar.
  * On any failure the buffer is cut back to where hyp__svg_begin found it. */

@@ -8,7 +8,7 @@
 #define BAND_OPACITY "0.25"
 #define MAX_PARTS 64
 
-static int columns_of(const hyp__svg *f)
+int hyp__svg_columns(const hyp__svg *f)
 {
     return (int)ceil(f->right_px - f->left_px);
 }
@@ -57,7 +57,7 @@ hyp_status hyp__svg_line(hyp__svg *f, const double *x, const double *y, size_t n
     st = st ? st : &def;
     hyp__decim d;
     hyp__decim_init(&d);
-    hyp_status rc = hyp__decimate(x, y, NULL, n, f->x_lo, f->x_hi, columns_of(f), &d, f->err);
+    hyp_status rc = hyp__decimate(x, y, NULL, n, f->x_lo, f->x_hi, hyp__svg_columns(f), &d, f->err);
     if (rc) {
         hyp__decim_free(&d);
         return hyp__svg_fail(f, rc);
@@ -104,7 +104,7 @@ hyp_status hyp__svg_band(hyp__svg *f, const double *x, const double *y_lo, const
     hyp__decim up, dn;
     hyp__decim_init(&up);
     hyp__decim_init(&dn);
-    int cols = columns_of(f);
+    int cols = hyp__svg_columns(f);
     hyp_status rc = hyp__decimate(x, y_hi, y_lo, n, f->x_lo, f->x_hi, cols, &up, f->err);
     if (!rc)
         rc = hyp__decimate(x, y_lo, y_hi, n, f->x_lo, f->x_hi, cols, &dn, f->err);

@@ -575,6 +575,94 @@ static void test_decimate(void **state)
     free(x), free(y);
 }
 
+/* The streaming thinner against hyp__decimate itself (the oracle): for each
+ * series, decimating the thinned points gives the very points, in the very
+ * segments, that decimating the whole series gives. */
+static void check_thin_series(const double *x, const double *y, size_t n, const hyp__thin *t, double lo, double hi,
+                              int cols)
+{
+    hyp__decim full, part;
+    hyp__decim_init(&full);
+    hyp__decim_init(&part);
+    hyp_error err;
+    assert_int_equal(hyp__decimate(x, y, NULL, n, lo, hi, cols, &full, &err), HYP_OK);
+    double *tx = malloc((t->n_idx + 1) * sizeof *tx), *ty = malloc((t->n_idx + 1) * sizeof *ty);
+    assert_non_null(tx), assert_non_null(ty);
+    for (size_t k = 0; k < t->n_idx; k++)
+        tx[k] = x[t->idx[k]], ty[k] = y[t->idx[k]];
+    assert_int_equal(hyp__decimate(tx, ty, NULL, t->n_idx, lo, hi, cols, &part, &err), HYP_OK);
+    assert_int_equal(part.n_seg, full.n_seg);
+    assert_int_equal(part.n_idx, full.n_idx);
+    for (size_t k = 0; k < full.n_idx; k++)
+        assert_int_equal(t->idx[part.idx[k]], full.idx[k]);
+    for (size_t s = 0; s < full.n_seg; s++)
+        assert_int_equal(part.seg_end[s], full.seg_end[s]);
+    free(tx), free(ty);
+    hyp__decim_free(&full);
+    hyp__decim_free(&part);
+}
+
+static void test_thin(void **state)
+{
+    (void)state;
+    enum { N = 100000, S = 3 };
+    double *x = malloc(N * sizeof *x), *y[S];
+    assert_non_null(x);
+    uint64_t r = 4242;
+    double t = 0, v[S] = {0, 0, 0};
+    for (int k = 0; k < S; k++)
+        assert_non_null(y[k] = malloc(N * sizeof *y[k]));
+    for (size_t i = 0; i < N; i++) {
+        t += (rng_next(&r) % 4) * 0.25;   /* uneven steps with repeats */
+        x[i] = t;
+        for (int k = 0; k < S; k++) {
+            v[k] += uniform(&r) - 0.5;
+            y[k][i] = v[k];
+        }
+        if (i % 997 == 5 || (i / 3000) % 9 == 4)
+            y[0][i] = NAN;            /* gaps of series 0 alone */
+        if (i % 53 == 0)
+            y[1][i] = y[1][i] * 1e3;  /* spikes */
+        if (i % 41 == 3)
+            y[2][i] = NAN, y[2][i + 2 < N ? i + 2 : i] = NAN;   /* points alone between gaps */
+    }
+    x[777] = NAN;   /* a gap of every series */
+    y[1][60000] = INFINITY;
+    int cols_list[3] = {640, 1, 97};
+    for (int c = 0; c < 3; c++) {
+        double lo = c == 2 ? x[N / 4] : x[0], hi = c == 2 ? x[N / 2] : x[N - 1];   /* c = 2: points outside the range */
+        hyp__thin th;
+        hyp_error err;
+        assert_int_equal(hyp__thin_begin(&th, S, lo, hi, cols_list[c], &err), HYP_OK);
+        for (size_t i = 0; i < N; i++) {
+            double yy[S] = {y[0][i], y[1][i], y[2][i]};
+            assert_int_equal(hyp__thin_add(&th, i, x[i], yy, &err), HYP_OK);
+        }
+        assert_int_equal(hyp__thin_end(&th, &err), HYP_OK);
+        for (size_t k = 1; k < th.n_idx; k++)
+            assert_true(th.idx[k] > th.idx[k - 1]);
+        if (c == 0)   /* far fewer than the whole: at most 4 a column and series, and the gaps */
+            assert_true(th.n_idx < N / 4);
+        for (int k = 0; k < S; k++)
+            check_thin_series(x, y[k], N, &th, lo, hi, cols_list[c]);
+        hyp__thin_free(&th);
+    }
+    /* refusals: x going back, too many series, an empty range */
+    hyp__thin th;
+    hyp_error err;
+    double yy[1] = {0};
+    assert_int_equal(hyp__thin_begin(&th, 1, 0, 10, 100, &err), HYP_OK);
+    assert_int_equal(hyp__thin_add(&th, 0, 5, yy, &err), HYP_OK);
+    assert_int_equal(hyp__thin_add(&th, 1, 4, yy, &err), HYP_ERR_USAGE);
+    assert_non_null(strstr(err.message, "point 1"));
+    hyp__thin_free(&th);
+    assert_int_equal(hyp__thin_begin(&th, HYP__THIN_SERIES + 1, 0, 10, 100, &err), HYP_ERR_USAGE);
+    assert_int_equal(hyp__thin_begin(&th, 1, 3, 3, 100, &err), HYP_ERR_USAGE);
+    for (int k = 0; k < S; k++)
+        free(y[k]);
+    free(x);
+}
+
 /* ---- whole figures ----------------------------------------------------- */
 
 static int xml_errors;
@@ -966,6 +1054,7 @@ int main(void)
         cmocka_unit_test(test_ticks_degenerate),
         cmocka_unit_test(test_time_ticks),
         cmocka_unit_test(test_decimate),
+        cmocka_unit_test(test_thin),
         cmocka_unit_test(test_figure_well_formed),
         cmocka_unit_test(test_figure_plan),
         cmocka_unit_test(test_figure_data_match),
