@@ -201,6 +201,8 @@ typedef struct hyp__svg_style {
 hyp__svg_style hyp__svg_style_nth(int k, const char *label);
 
 #define HYP__SVG_LEGEND_MAX 16
+#define HYP__SVG_OCC_ROWS 12
+#define HYP__SVG_OCC_COLS 24
 #define HYP__SVG_TEXT_MAX 160   /* bytes kept of a legend or colour bar text */
 
 typedef struct hyp__svg_key {
@@ -228,6 +230,9 @@ typedef struct hyp__svg {
     int hatches;              /* bar hatch patterns defined */
     hyp__svg_key keys[HYP__SVG_LEGEND_MAX];
     int n_keys;
+    unsigned char occ[HYP__SVG_OCC_ROWS][HYP__SVG_OCC_COLS];   /* plot area cells
+                                 something was drawn in: the legend goes to
+                                 the corner that covers fewest of them */
     int has_cbar;             /* colour bar room and title */
     int cbar_set;             /* its range known */
     double cbar_lo, cbar_hi;
@@ -271,7 +276,9 @@ hyp_status hyp__svg_text(hyp__svg *f, double x, double y, const char *text, int 
 /* The pixel columns the figure's lines and bands are decimated to. */
 int hyp__svg_columns(const hyp__svg *f);
 
-/* Closes the figure: frame, legend (two entries or more), colour bar.
+/* Closes the figure: frame, legend (two entries or more, in the corner
+ * of the plot area that hides the fewest drawn marks: top right, top left,
+ * bottom right, bottom left on a tie), colour bar.
  * On any failure the buffer is cut back to where hyp__svg_begin found it. */
 hyp_status hyp__svg_end(hyp__svg *f);
 

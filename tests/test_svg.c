@@ -975,6 +975,53 @@ static void test_figure_data_match(void **state)
     hyp__buf_free(&b);
 }
 
+/* The legend goes to the corner that hides the fewest drawn marks: data
+ * filling the top right puts it top left; data along the top puts it at
+ * the bottom (right, the first of the tied bottom corners). */
+static void legend_at(const double *x, const double *y, size_t n, int want_left, int want_top)
+{
+    hyp__svg_spec spec = {
+        .id = "leg", .width_px = 600, .height_px = 400,
+        .x = {.title = "x [m]", .lo = 0, .hi = 100},
+        .y = {.title = "y [m]", .lo = 0, .hi = 100},
+    };
+    hyp__buf b;
+    hyp__buf_init(&b, 0);
+    hyp__svg f;
+    hyp_error err;
+    assert_int_equal(hyp__svg_begin(&f, &b, &spec, &err), HYP_OK);
+    hyp__svg_style s0 = hyp__svg_style_nth(0, "one"), s1 = hyp__svg_style_nth(1, "two");
+    assert_int_equal(hyp__svg_line(&f, x, y, n, &s0), HYP_OK);
+    assert_int_equal(hyp__svg_markers(&f, x, y, NULL, 1, &s1), HYP_OK);
+    double left = f.left_px, right = f.right_px, top = f.top_px, bottom = f.bottom_px;
+    assert_int_equal(hyp__svg_end(&f), HYP_OK);
+    xmlDocPtr doc = parse_svg(&b);
+    xmlXPathObjectPtr o = xpath(doc, "(//s:g[@class='legend']/s:rect)[1]");
+    assert_int_equal(o->nodesetval->nodeNr, 1);
+    xmlNodePtr r = o->nodesetval->nodeTab[0];
+    double cx = attr_num(r, "x") + attr_num(r, "width") / 2, cy = attr_num(r, "y") + attr_num(r, "height") / 2;
+    assert_int_equal(cx < (left + right) / 2, want_left);
+    assert_int_equal(cy < (top + bottom) / 2, want_top);
+    xmlXPathFreeObject(o);
+    xmlFreeDoc(doc);
+    hyp__buf_free(&b);
+}
+
+static void test_legend_place(void **state)
+{
+    (void)state;
+    enum { N = 400 };
+    double x[N], y[N];
+    for (int i = 0; i < N; i++)   /* a zigzag over the top right quarter */
+        x[i] = 50 + 50.0 * i / (N - 1), y[i] = i % 2 ? 100 : 50;
+    legend_at(x, y, N, 1, 1);
+    for (int i = 0; i < N; i++)   /* a zigzag along the top */
+        x[i] = 100.0 * i / (N - 1), y[i] = i % 2 ? 100 : 70;
+    legend_at(x, y, N, 0, 0);
+    double ex[2] = {0, 100}, ey[2] = {0, 0};   /* nothing at the top: the default top right */
+    legend_at(ex, ey, 2, 0, 1);
+}
+
 /* Failures leave nothing half-written: the buffer is cut back (the house
  * rule of STYLE.md and the preamble; curl's dynbuf refuses past its cap). */
 static void test_figure_failures(void **state)
@@ -1059,6 +1106,7 @@ int main(void)
         cmocka_unit_test(test_figure_plan),
         cmocka_unit_test(test_figure_data_match),
         cmocka_unit_test(test_figure_failures),
+        cmocka_unit_test(test_legend_place),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
