@@ -365,7 +365,7 @@ void hyp__rover_paths_make(const hyp_outputs *out, const char *rover, hyp__rover
         if (!out->table)
             snprintf(p->table, sizeof p->table, "%s/%s.csv", out->dir, stem);
         if (!out->report)
-            snprintf(p->report, sizeof p->report, "%s/%s.report.txt", out->dir, stem);
+            snprintf(p->report, sizeof p->report, "%s/%s.report.%s", out->dir, stem, out->report_html ? "html" : "txt");
     }
 }
 

@@ -50,6 +50,9 @@ struct hyp__rover_priv {
     float *own_known, *own_out;
     double *east, *north;
     char *paths[4];             /* owned strings behind run->written */
+    const hyp_survey *sv;       /* the survey it ran in (benchmarks and inputs
+                                   for the HTML report) */
+    const hyp_report_info *report_info;   /* the outputs' (NULL: none) */
 };
 
 /* The bases a rover uses (indices into the pool). */

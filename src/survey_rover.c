@@ -11,6 +11,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include <strings.h>
 #include <sys/stat.h>
 
 typedef struct hyp__rover_priv priv_t;
@@ -196,12 +197,16 @@ static void note_written(hyp_rover_run *r, const char *path)
         free(c);
 }
 
-/* The report: the rover's whole text, as the summary prints it. */
+/* The report: HTML when its name ends in .html, else the rover's whole
+ * text, as the summary prints it. */
 static hyp_status stage_report(hyp__outset *set, const hyp_rover_run *r, const char *path, hyp_error *err)
 {
     hyp__outfile *o = hyp__outset_add(set, path, err);
     if (!o)
         return err->status;
+    size_t n = strlen(path);
+    if (n >= 5 && strcasecmp(path + n - 5, ".html") == 0)
+        return hyp_rover_run_write_html(o->f, r, r->priv->report_info, err);
     hyp_rover_run_write_text(o->f, r, HYP_TEXT_ALL);
     return HYP_OK;
 }
@@ -255,7 +260,10 @@ static void failure_report(hyp_survey *sv, hyp_rover_run *r, const char *path)
     hyp__outset set;
     hyp__outset_init(&set);
     hyp_error e;
-    if (stage_report(&set, r, path, &e) || hyp__outset_commit(&set, sv->o.cancelled, sv->o.cancel_ctx, &e))
+    hyp_status st = stage_report(&set, r, path, &e);
+    if (st)
+        hyp__outset_abort(&set);
+    if (st || hyp__outset_commit(&set, sv->o.cancelled, sv->o.cancel_ctx, &e))
         hyp_msgs_add_at(&r->msgs, HYP_WARNING, "output", path, 0, "the report of the failed run could not be written: %s",
                         e.message);
 }
@@ -273,6 +281,8 @@ hyp_status hyp_survey_run(hyp_survey *sv, const char *rover, const hyp_outputs *
     r->known_ref = sv->o.known_ref;
     r->out_ref = sv->o.out_ref;
     r->rapid_pa_per_s = sv->copts.rapid_pa_per_s;
+    r->priv->sv = sv;
+    r->priv->report_info = out->report_info;
     hyp__rover_paths ps;
     hyp__rover_paths_make(out, rover, &ps);
     const char *targets[3] = {ps.gpx, ps.table, ps.report};

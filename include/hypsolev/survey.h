@@ -95,17 +95,28 @@ HYP_API hyp_status hyp_survey_opts_set(hyp_survey_opts *o, const char *name, con
  * "base-offset-sigma" (Pa), "base-qnh" (NULL). */
 HYP_API hyp_status hyp_base_spec_set(hyp_base_spec *b, const char *name, const char *value, hyp_error *err);
 
+/* What an HTML report says of the program that wrote it. */
+typedef struct hyp_report_info {
+    const char *tool;          /* name and version, e.g. "hypsolev 0.1.0";
+                                  NULL: the library's */
+    const char *command_line;  /* the full command as typed; NULL: not shown */
+} hyp_report_info;
+
 /* Where a rover's outputs go. Every output named is written through a
  * staging file, and all of a rover's outputs are renamed into place
  * together, only when each is complete and on disk. */
 typedef struct hyp_outputs {
     const char *gpx;           /* corrected GPX (one rover only) */
     const char *table;         /* per-sample CSV; "-" is standard output */
-    const char *report;        /* the run's text report (one rover only) */
+    const char *report;        /* the run's report (one rover only): HTML when
+                                  the name ends in .html (any case), else text */
     const char *dir;           /* DIR/NAME.gpx, DIR/NAME.csv (unless table is
                                   given) and DIR/NAME.report.txt per rover */
     int overwrite;             /* with dir: replace existing outputs; else the
                                   rover is skipped */
+    int report_html;           /* with dir and no report: the report is
+                                  DIR/NAME.report.html in place of .txt */
+    const hyp_report_info *report_info;   /* shown in HTML reports; NULL: none */
 } hyp_outputs;
 
 /* No outputs, no overwrite (then name those wanted). */
@@ -222,6 +233,18 @@ typedef enum hyp_text_parts {
 /* Writes a rover's messages, its error or skip, and its summary (units on
  * every number, the cautions last) as text. */
 HYP_API void hyp_rover_run_write_text(FILE *f, const hyp_rover_run *r, unsigned parts);
+/* Writes a rover's report as one self-contained HTML page: figures
+ * (inline SVG: heights against time and distance with their 2-sigma band,
+ * base pressure and tendency, the offset model, the ties, the error
+ * budget, a plan coloured by sigma) and tables (inputs, method, the
+ * calibrations and fit, warnings, vertical reference, tool and command
+ * line, cautions). Inline CSS, no script, nothing fetched; long tracks are
+ * drawn thinned per pixel column with every extreme kept. A failed run
+ * gets its error and messages. info may be NULL. The survey the run came
+ * from must still exist. HYP_ERR_NOMEM, or HYP_ERR_IO when f refuses the
+ * page; nothing is written to f unless the whole page was built. */
+HYP_API hyp_status hyp_rover_run_write_html(FILE *f, const hyp_rover_run *r, const hyp_report_info *info,
+                                            hyp_error *err);
 /* Messages as "hypsolev: warning: TEXT" lines, those of level >= min. */
 HYP_API void hyp_msgs_write(FILE *f, const hyp_msgs *m, hyp_level min);
 

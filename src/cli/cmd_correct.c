@@ -21,6 +21,8 @@ typedef struct args {
     const char *base_dir, *summary_path;
     const char *colocate[MAX_WINDOWS];
     hyp_outputs out;
+    hyp_report_info report_info;
+    char *command_line;         /* for the HTML report */
     int jobs, progress, quiet;
     cli_files rovers;
 } args;
@@ -41,7 +43,7 @@ static int usage_error(const char *fmt, ...)
 /* O_SET: a survey setting of the library, O_BASE_SET: one of the --base
  * before it; both named as the option (hyp_survey_opts_set). */
 enum { O_SET = 256, O_BASE_SET, O_BASE, O_CLOCK, O_COLOC, O_OUTDIR, O_TABLE, O_HELP, O_BASE_DIR, O_SUMMARY,
-       O_PROGRESS, O_OVERWRITE, O_REPORT };
+       O_PROGRESS, O_OVERWRITE, O_REPORT, O_REPORT_HTML };
 #define SET(name) {name, required_argument, 0, O_SET}
 #define FLAG(name) {name, no_argument, 0, O_SET}
 #define BASE(name) {name, required_argument, 0, O_BASE_SET}
@@ -59,6 +61,7 @@ static const struct option longopts[] = {
     SET("benchmark-sigma"),
     {"output", required_argument, 0, 'o'}, {"out-dir", required_argument, 0, O_OUTDIR},
     {"table", required_argument, 0, O_TABLE}, {"report", required_argument, 0, O_REPORT},
+    {"report-html", no_argument, 0, O_REPORT_HTML},
     {"quiet", no_argument, 0, 'q'}, {"help", no_argument, 0, O_HELP}, {"base-dir", required_argument, 0, O_BASE_DIR},
     {"summary", required_argument, 0, O_SUMMARY}, {"progress", no_argument, 0, O_PROGRESS},
     {"overwrite", no_argument, 0, O_OVERWRITE}, {"jobs", required_argument, 0, 'j'},
@@ -105,6 +108,7 @@ static int parse_one(args *a, int c, const char *name, const char *arg)
     case O_PROGRESS: a->progress = 1; return 0;
     case O_OVERWRITE: a->out.overwrite = 1; return 0;
     case O_REPORT: a->out.report = arg; return 0;
+    case O_REPORT_HTML: a->out.report_html = 1; return 0;
     case 'o': a->out.gpx = arg; return 0;
     case O_OUTDIR: a->out.dir = arg; return 0;
     case O_TABLE: a->out.table = arg; return 0;
@@ -113,9 +117,42 @@ static int parse_one(args *a, int c, const char *name, const char *arg)
     return EXIT_USAGE;
 }
 
+/* The command as typed, for the HTML report: words joined by spaces, a
+ * word with anything but [A-Za-z0-9_./:,=+@%-] in it single-quoted as a
+ * POSIX shell would need it. */
+static char *join_command(int argc, char **argv)
+{
+    size_t n = sizeof "hypsolev";
+    for (int i = 0; i < argc; i++)
+        n += 4 * strlen(argv[i]) + 3;
+    char *s = malloc(n), *p = s;
+    if (!s)
+        return NULL;
+    p += sprintf(p, "hypsolev");
+    for (int i = 0; i < argc; i++) {
+        const char *w = argv[i];
+        int plain = *w && strspn(w, "ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789_./:,=+@%-") == strlen(w);
+        *p++ = ' ';
+        if (plain) {
+            p += sprintf(p, "%s", w);
+            continue;
+        }
+        *p++ = '\'';
+        for (; *w; w++)
+            p += *w == '\'' ? sprintf(p, "'\\''") : sprintf(p, "%c", *w);
+        *p++ = '\'';
+    }
+    *p = '\0';
+    return s;
+}
+
 static int parse_args(args *a, int argc, char **argv)
 {
     memset(a, 0, sizeof *a);
+    a->command_line = join_command(argc, argv);
+    a->report_info.tool = "hypsolev " HYPSOLEV_VERSION;
+    a->report_info.command_line = a->command_line;
+    a->out.report_info = &a->report_info;
     hyp_survey_opts_init(&a->so);
     a->so.colocate = a->colocate;
     a->so.cancelled = cli_cancelled_cb;
@@ -142,6 +179,10 @@ static int parse_args(args *a, int argc, char **argv)
         return usage_error("no rover file given");
     if (!a->n_bases && !a->base_dir)
         return usage_error("no --base or --base-dir given: a base station's pressure log is needed");
+    if (a->out.report_html && !a->out.dir)
+        return usage_error("--report-html names the reports of --out-dir (DIR/NAME.report.html); for one rover give --report FILE.html");
+    if (a->out.report_html && a->out.report)
+        return usage_error("--report-html and --report both given; --report FILE.html alone chooses HTML");
     return cli_files_expand(&a->rovers, "correct");
 }
 
@@ -222,5 +263,6 @@ int cmd_correct(int argc, char **argv)
     if (rc == 0)
         rc = run(&a);
     cli_files_free(&a.rovers);
+    free(a.command_line);
     return rc < 0 ? 0 : rc;
 }

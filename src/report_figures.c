@@ -1,0 +1,361 @@
+/* report_figures.c - the figures of a rover's HTML report along the
+ * track: heights against time and distance, the bases' pressure and
+ * tendency, the offset model, the ties and the error budget. Long series
+ * are thinned per pixel column (hyp__thin) without copying them. */
+#include "report_html.h"
+#include "correct_int.h"
+#include "base_view.h"
+#include "svg.h"
+#include "hypsolev/geo.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#define LONG_STEP_M 1000.0   /* steps longer than this go to the geodesic solver */
+
+void hyp__rover_span(const hyp_series *s, double *t0_s, double *t1_s)
+{
+    *t0_s = *t1_s = NAN;
+    for (size_t i = 0; i < s->count; i++)
+        if (!s->flag[i]) {
+            if (*t0_s != *t0_s)
+                *t0_s = s->time_s[i];
+            *t1_s = s->time_s[i];
+        }
+}
+
+/* Steps between track points are metres long and a million of them would
+ * take the geodesic solver about half a second; over such a step the
+ * geodesic is the straight line in the local tangent plane, with the
+ * ellipsoid's meridian radius M = a (1 - e^2) / W^3 and prime vertical
+ * radius N = a / W, W = sqrt(1 - e^2 sin^2 lat), at the mean latitude
+ * (the radii: Torge and Mueller, Geodesy, 4th ed. 2012, section 4.1, from
+ * memory), with a relative error of the order of (step / radius)^2: under
+ * 1e-7 below 1 km. Longer steps (after gaps) use the solver. WGS84: a =
+ * 6378137 m, f = 1/298.257223563 (NIMA TR8350.2). */
+double hyp__track_step_m(double lat1_deg, double lon1_deg, double lat2_deg, double lon2_deg)
+{
+    if (!(lat1_deg == lat1_deg) || !(lat2_deg == lat2_deg) || !(lon1_deg == lon1_deg) || !(lon2_deg == lon2_deg))
+        return NAN;
+    static const double a = 6378137.0, f = 1.0 / 298.257223563, deg = 3.14159265358979323846 / 180.0;
+    const double e2 = f * (2.0 - f);
+    double dlon = lon2_deg - lon1_deg;
+    dlon = dlon > 180 ? dlon - 360 : dlon < -180 ? dlon + 360 : dlon;
+    double phi = 0.5 * (lat1_deg + lat2_deg) * deg, s = sin(phi);
+    double w2 = 1.0 - e2 * s * s, w = sqrt(w2);
+    double dn = (lat2_deg - lat1_deg) * deg * a * (1.0 - e2) / (w2 * w), de = dlon * deg * (a / w) * cos(phi);
+    double d = sqrt(dn * dn + de * de);
+    return d < LONG_STEP_M ? d : hyp_geo_distance_m(lat1_deg, lon1_deg, lat2_deg, lon2_deg);
+}
+
+/* ---- heights along the track ----------------------------------------- */
+
+/* x of the track figures: time, or distance walked so far (a point with no
+ * position keeps the distance of the one before). */
+typedef struct walk {
+    int by_distance;
+    double unit_m;          /* metres per axis unit (1 or 1000) */
+    double cum_m, lat, lon;
+    int has;
+} walk;
+
+static double walk_x(walk *w, const hyp_series *s, size_t i)
+{
+    if (s->flag[i])
+        return NAN;
+    if (!w->by_distance)
+        return s->time_s[i];
+    double la = hyp_series_lat(s, i), lo = hyp_series_lon(s, i);
+    if (la == la && lo == lo) {
+        if (w->has)
+            w->cum_m += hyp__track_step_m(w->lat, w->lon, la, lo);
+        w->lat = la, w->lon = lo, w->has = 1;
+    }
+    return w->cum_m / w->unit_m;
+}
+
+/* The four series: h - 2 sigma, h + 2 sigma, h, the GNSS height. */
+static void track_values(const hyp_rover_run *r, size_t i, double y[4])
+{
+    double h = r->result.height_m[i], sg = (double)r->result.sigma_m[i];
+    y[0] = h - 2.0 * sg;
+    y[1] = h + 2.0 * sg;
+    y[2] = h;
+    y[3] = r->gnss_out_m ? (double)r->gnss_out_m[i] : NAN;
+}
+
+typedef struct track_pts {
+    size_t n;
+    double *x, *y[4];
+} track_pts;
+
+static void track_pts_free(track_pts *t)
+{
+    free(t->x);
+    for (int k = 0; k < 4; k++)
+        free(t->y[k]);
+}
+
+/* Ranges of x (where any series is finite) and of the band. */
+static void track_ranges(const hyp_rover_run *r, walk w, double xr[2], double yr[2])
+{
+    const hyp_series *s = r->rover;
+    xr[0] = yr[0] = INFINITY;
+    xr[1] = yr[1] = -INFINITY;
+    for (size_t i = 0; i < s->count; i++) {
+        double x = walk_x(&w, s, i), y[4];
+        track_values(r, i, y);
+        if (!isfinite(x) || !(isfinite(y[0]) || isfinite(y[3])))
+            continue;
+        xr[0] = fmin(xr[0], x), xr[1] = fmax(xr[1], x);
+        if (isfinite(y[0]) && isfinite(y[1]))
+            yr[0] = fmin(yr[0], y[0]), yr[1] = fmax(yr[1], y[1]);
+    }
+}
+
+/* Thins the four series to the figure's columns and gathers the kept
+ * points into arrays. */
+static hyp_status track_thin(const hyp_rover_run *r, walk w0, const hyp__svg *f, track_pts *out, hyp_error *err)
+{
+    const hyp_series *s = r->rover;
+    hyp__thin th;
+    walk w = w0;
+    hyp_status st = hyp__thin_begin(&th, 4, f->x_lo, f->x_hi, hyp__svg_columns(f), err);
+    for (size_t i = 0; !st && i < s->count; i++) {
+        double x = walk_x(&w, s, i), y[4];
+        track_values(r, i, y);
+        st = hyp__thin_add(&th, i, x, y, err);
+    }
+    if (!st)
+        st = hyp__thin_end(&th, err);
+    memset(out, 0, sizeof *out);
+    size_t m = th.n_idx ? th.n_idx : 1;
+    out->x = malloc(m * sizeof(double));
+    for (int k = 0; k < 4; k++)
+        out->y[k] = malloc(m * sizeof(double));
+    if (!st && (!out->x || !out->y[0] || !out->y[1] || !out->y[2] || !out->y[3]))
+        st = hyp_error_set(err, HYP_ERR_NOMEM, "HTML report: out of memory");
+    w = w0;
+    for (size_t i = 0, k = 0; !st && i < s->count && k < th.n_idx; i++) {
+        double x = walk_x(&w, s, i);   /* the distance needs every step */
+        if (i != th.idx[k])
+            continue;
+        double y[4];
+        track_values(r, i, y);
+        out->x[k] = x;
+        for (int q = 0; q < 4; q++)
+            out->y[q][k] = y[q];
+        k++;
+    }
+    out->n = th.n_idx;
+    hyp__thin_free(&th);
+    return st;
+}
+
+static void vref_title(const hyp_rover_run *r, char *buf, size_t n)
+{
+    snprintf(buf, n, "height [m, %s]", hyp_vref_name(r->out_ref));
+}
+
+/* The calibrations as markers at their mid time and known height, 2 sigma bars. */
+static void calib_markers(hyp__svg *f, const hyp_rover_run *r)
+{
+    const hyp_correct_result *res = &r->result;
+    for (size_t k = 0; k < res->n_calibs; k++) {
+        const hyp_calib *c = &res->calibs[k];
+        double x = 0.5 * (c->start_s + c->end_s), y = c->known_m, e = 2.0 * c->known_sigma_m;
+        hyp__svg_style st = hyp__svg_style_nth(2, k == 0 ? "calibration: known height, +-2 sigma" : NULL);
+        st.marker = HYP__SVG_TRIANGLE;
+        hyp__svg_markers(f, &x, &y, &e, 1, &st);
+    }
+}
+
+static hyp_status track_figure(hyp__page *p, const hyp_rover_run *r, int by_distance, hyp_error *err)
+{
+    const hyp_series *s = r->rover;
+    walk w = {.by_distance = by_distance, .unit_m = 1.0};
+    double xr[2], yr[2];
+    if (by_distance) {
+        walk t = w;
+        for (size_t i = 0; i < s->count; i++)
+            walk_x(&t, s, i);
+        w.unit_m = t.cum_m >= 5000.0 ? 1000.0 : 1.0;
+        if (!(t.cum_m > 0)) {
+            hyp__page_out(p, "<p class=\"note\">No height against distance: the track has no two positions apart.</p>\n");
+            return HYP_OK;
+        }
+    }
+    track_ranges(r, w, xr, yr);
+    if (!(yr[1] >= yr[0]) || !(xr[1] >= xr[0])) {
+        hyp__page_out(p, "<p class=\"note\">No corrected height to draw.</p>\n");
+        return HYP_OK;
+    }
+    char ytitle[96];
+    vref_title(r, ytitle, sizeof ytitle);
+    hyp__svg_spec spec = {
+        .id = by_distance ? "height-distance" : "height-time",
+        .title = by_distance ? "Corrected height along the track" : "Corrected height against time",
+        .width_px = HYP__FIG_W, .height_px = HYP__FIG_H,
+        .x = {.title = by_distance ? (w.unit_m > 1 ? "distance along the track [km]" : "distance along the track [m]")
+                                   : "time [UTC]",
+              .lo = xr[0], .hi = xr[1], .time_utc = !by_distance, .ticks = 8},
+        .y = {.title = ytitle, .lo = yr[0], .hi = yr[1]},
+    };
+    hyp__svg f;
+    track_pts t = {0};
+    hyp__page_figure(p);
+    hyp_status st = hyp__svg_begin(&f, &p->b, &spec, err);
+    if (!st && (st = track_thin(r, w, &f, &t, err)))
+        hyp__svg_discard(&f);
+    if (!st) {
+        hyp__svg_style g = {.colour = 1, .dash = 0, .width_px = 0.6, .label = "GNSS height (the track's own)"};
+        hyp__svg_style h = {.colour = 0, .dash = 0, .width_px = 1.4, .label = "corrected height"};
+        if (r->gnss_out_m)
+            hyp__svg_line(&f, t.x, t.y[3], t.n, &g);
+        hyp__svg_band(&f, t.x, t.y[0], t.y[1], t.n, 0, "+-2 sigma");
+        hyp__svg_line(&f, t.x, t.y[2], t.n, &h);
+        if (!by_distance)
+            calib_markers(&f, r);
+        st = hyp__svg_end(&f);
+    }
+    if (!st)
+        hyp__page_figure_end(p,
+                             "Corrected heights (line) with their &#177;2-sigma band, and the track's own GNSS heights "
+                             "(thin line) in the same reference%s. %s%z samples drawn as %z points: per pixel column the "
+                             "first, lowest, highest and last point of each series, so every extreme is shown. GNSS "
+                             "heights outside the band's range are cut at the frame.",
+                             by_distance ? "" : "; triangles are the calibrations' known heights with &#177;2 sigma",
+                             by_distance ? "Distance: the geodesic length of the steps between positions, summed. " : "",
+                             s->count, t.n);
+    track_pts_free(&t);
+    return st;
+}
+
+hyp_status hyp__fig_height_time(hyp__page *p, const hyp_rover_run *r, hyp_error *err)
+{
+    return track_figure(p, r, 0, err);
+}
+
+hyp_status hyp__fig_height_distance(hyp__page *p, const hyp_rover_run *r, hyp_error *err)
+{
+    return track_figure(p, r, 1, err);
+}
+
+/* ---- the bases ------------------------------------------------------- */
+
+static const hyp__base_view *base_views(const hyp_rover_run *r, size_t *n)
+{
+    const hyp__work *w = r->result.priv;
+    *n = w ? w->nb : 0;
+    return w ? w->bvs : NULL;
+}
+
+/* Indices [*a, *b) of view samples within [t0, t1]. */
+static void view_window(const hyp__base_view *v, double t0, double t1, size_t *a, size_t *b)
+{
+    *a = 0;
+    while (*a < v->n && v->t[*a] < t0)
+        (*a)++;
+    *b = *a;
+    while (*b < v->n && v->t[*b] <= t1)
+        (*b)++;
+}
+
+/* A figure of a base quantity (pressure or tendency) of every base, or of
+ * base `only` alone (SIZE_MAX: all), over the rover's span widened by an hour each side. */
+static hyp_status base_figure(hyp__page *p, const hyp_rover_run *r, int tendency, size_t only, hyp_error *err)
+{
+    size_t nb;
+    const hyp__base_view *v = base_views(r, &nb);
+    size_t k0 = only < nb ? only : 0;
+    nb = only < nb ? only + 1 : nb;
+    double t0, t1;
+    hyp__rover_span(r->rover, &t0, &t1);
+    t0 -= 3600, t1 += 3600;
+    double lo = INFINITY, hi = -INFINITY, tlo = INFINITY, thi = -INFINITY, scale = tendency ? 3600.0 / 100.0 : 0.01;
+    for (size_t k = k0; k < nb; k++) {
+        size_t a, b;
+        view_window(&v[k], t0, t1, &a, &b);
+        for (size_t i = a; i < b; i++) {
+            double y = (tendency ? v[k].rate[i] : v[k].p[i]) * scale;
+            if (isfinite(y))
+                lo = fmin(lo, y), hi = fmax(hi, y), tlo = fmin(tlo, v[k].t[i]), thi = fmax(thi, v[k].t[i]);
+        }
+    }
+    if (!(hi >= lo)) {
+        hyp__page_out(p, "<p class=\"note\">No base samples over the track's span.</p>\n");
+        return HYP_OK;
+    }
+    double rapid = r->rapid_pa_per_s * scale;
+    if (tendency)
+        lo = fmin(lo, -rapid), hi = fmax(hi, rapid);
+    char id[48], title[300];
+    snprintf(id, sizeof id, tendency ? "base-tendency" : only < HYP_MAX_BASES ? "base-pressure-%zu" : "base-pressure", k0 + 1);
+    snprintf(title, sizeof title, "%s%s", tendency ? "Hourly tendency of the base pressure" : "Base pressure",
+             only < HYP_MAX_BASES ? ": " : "");
+    if (only < HYP_MAX_BASES)
+        snprintf(title + strlen(title), sizeof title - strlen(title), "%s", r->bases[k0].path);
+    hyp__svg_spec spec = {
+        .id = id, .title = title,
+        .width_px = HYP__FIG_W, .height_px = tendency || only < HYP_MAX_BASES ? 300 : HYP__FIG_H,
+        .x = {.title = "time [UTC]", .lo = tlo, .hi = thi, .time_utc = 1, .ticks = 8},
+        .y = {.title = tendency ? "tendency [hPa/h]" : "pressure [hPa]", .lo = lo, .hi = hi},
+    };
+    hyp__svg f;
+    hyp__page_figure(p);
+    hyp_status st = hyp__svg_begin(&f, &p->b, &spec, err);
+    for (size_t k = k0; !st && k < nb; k++) {
+        size_t a, b;
+        view_window(&v[k], t0, t1, &a, &b);
+        double *y = malloc((b > a ? b - a : 1) * sizeof *y);
+        if (!y) {
+            hyp__svg_discard(&f);
+            return hyp_error_set(err, HYP_ERR_NOMEM, "HTML report: out of memory");
+        }
+        for (size_t i = a; i < b; i++)
+            y[i - a] = (tendency ? v[k].rate[i] : v[k].p[i]) * scale;
+        char label[300];
+        snprintf(label, sizeof label, "%s", r->bases[k].path);
+        hyp__svg_style sty = hyp__svg_style_nth((int)k, tendency && nb > 1 ? label : NULL);
+        hyp__svg_line(&f, v[k].t + a, y, b - a, &sty);
+        free(y);
+    }
+    if (!st && tendency) {
+        double x[2] = {tlo, thi}, up[2] = {rapid, rapid}, dn[2] = {-rapid, -rapid};
+        hyp__svg_style lim = {.colour = 6, .dash = 1, .width_px = 1.0, .label = "rapid change (threshold)"};
+        hyp__svg_line(&f, x, up, 2, &lim);
+        lim.label = NULL;
+        hyp__svg_line(&f, x, dn, 2, &lim);
+    }
+    if (!st)
+        st = hyp__svg_end(&f);
+    if (!st && tendency)
+        hyp__page_figure_end(p, "The change of each base's pressure over an hour, as the correction estimated it at "
+                                "each base sample, from an hour before the track to an hour after; the dashed lines are "
+                                "the threshold above which a change counts as rapid (&#177;%.2f hPa/h). A passing front or "
+                                "a pressure surge shows as a run beyond them.",
+                             rapid);
+    else if (!st)
+        hyp__page_figure_end(p, "Station pressure at %s as the correction used it: on true time (the clock offset "
+                                "applied), the base's instrument offset removed, a QNH series reduced to the station. From "
+                                "an hour before the track to an hour after.%s",
+                             only < HYP_MAX_BASES ? "this base" : "the base",
+                             only < HYP_MAX_BASES ? " One figure a base: their pressures differ by their heights." : "");
+    return st;
+}
+
+hyp_status hyp__fig_base_pressure(hyp__page *p, const hyp_rover_run *r, hyp_error *err)
+{
+    size_t nb;
+    base_views(r, &nb);
+    hyp_status st = nb > 1 ? HYP_OK : base_figure(p, r, 0, SIZE_MAX, err);
+    for (size_t k = 0; nb > 1 && !st && k < nb; k++)
+        st = base_figure(p, r, 0, k, err);
+    return st;
+}
+
+hyp_status hyp__fig_tendency(hyp__page *p, const hyp_rover_run *r, hyp_error *err)
+{
+    return base_figure(p, r, 1, SIZE_MAX, err);
+}
