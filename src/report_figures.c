@@ -34,18 +34,56 @@ void hyp__rover_span(const hyp_series *s, double *t0_s, double *t1_s)
  * memory), with a relative error of the order of (step / radius)^2: under
  * 1e-7 below 1 km. Longer steps (after gaps) use the solver. WGS84: a =
  * 6378137 m, f = 1/298.257223563 (NIMA TR8350.2). */
+#define WGS84_A 6378137.0
+#define WGS84_E2 (1.0 / 298.257223563 * (2.0 - 1.0 / 298.257223563))
+#define DEG (3.14159265358979323846 / 180.0)
+
+static void cache_at(hyp__step_cache *c, double lat_deg)
+{
+    double s = sin(lat_deg * DEG), co = cos(lat_deg * DEG), w2 = 1.0 - WGS84_E2 * s * s, w = sqrt(w2);
+    c->lat_deg = lat_deg, c->sin_lat = s, c->cos_lat = co;
+    c->m_m = WGS84_A * (1.0 - WGS84_E2) / (w2 * w);
+    c->n_m = WGS84_A / w;
+    c->km = 3.0 * WGS84_E2 * s * co / w2;   /* dM/dlat / M */
+    c->kn = WGS84_E2 * s * co / w2;         /* dN/dlat / N */
+    c->set = 1;
+}
+
+static double chord(double dlat_deg, double dlon_deg, double m_m, double n_m, double cos_lat)
+{
+    dlon_deg = dlon_deg > 180 ? dlon_deg - 360 : dlon_deg < -180 ? dlon_deg + 360 : dlon_deg;
+    double dn = dlat_deg * DEG * m_m, de = dlon_deg * DEG * n_m * cos_lat;
+    return sqrt(dn * dn + de * de);
+}
+
+static int no_position(double a, double b, double c, double d)
+{
+    return !(a == a) || !(b == b) || !(c == c) || !(d == d);
+}
+
 double hyp__track_step_m(double lat1_deg, double lon1_deg, double lat2_deg, double lon2_deg)
 {
-    if (!(lat1_deg == lat1_deg) || !(lat2_deg == lat2_deg) || !(lon1_deg == lon1_deg) || !(lon2_deg == lon2_deg))
+    if (no_position(lat1_deg, lon1_deg, lat2_deg, lon2_deg))
         return NAN;
-    static const double a = 6378137.0, f = 1.0 / 298.257223563, deg = 3.14159265358979323846 / 180.0;
-    const double e2 = f * (2.0 - f);
-    double dlon = lon2_deg - lon1_deg;
-    dlon = dlon > 180 ? dlon - 360 : dlon < -180 ? dlon + 360 : dlon;
-    double phi = 0.5 * (lat1_deg + lat2_deg) * deg, s = sin(phi);
-    double w2 = 1.0 - e2 * s * s, w = sqrt(w2);
-    double dn = (lat2_deg - lat1_deg) * deg * a * (1.0 - e2) / (w2 * w), de = dlon * deg * (a / w) * cos(phi);
-    double d = sqrt(dn * dn + de * de);
+    hyp__step_cache c;
+    cache_at(&c, 0.5 * (lat1_deg + lat2_deg));
+    double d = chord(lat2_deg - lat1_deg, lon2_deg - lon1_deg, c.m_m, c.n_m, c.cos_lat);
+    return d < LONG_STEP_M ? d : hyp_geo_distance_m(lat1_deg, lon1_deg, lat2_deg, lon2_deg);
+}
+
+/* The same with the radii and the cosine carried from a latitude within
+ * 0.01 degree by their first derivatives: the terms left out are below
+ * (1.75e-4)^2 / 2 = 1.5e-8 of them. */
+double hyp__track_step_fast(hyp__step_cache *c, double lat1_deg, double lon1_deg, double lat2_deg, double lon2_deg)
+{
+    if (no_position(lat1_deg, lon1_deg, lat2_deg, lon2_deg))
+        return NAN;
+    double mid = 0.5 * (lat1_deg + lat2_deg);
+    if (!c->set || fabs(mid - c->lat_deg) > 0.01)
+        cache_at(c, mid);
+    double dl = (mid - c->lat_deg) * DEG;
+    double d = chord(lat2_deg - lat1_deg, lon2_deg - lon1_deg, c->m_m * (1.0 + c->km * dl), c->n_m * (1.0 + c->kn * dl),
+                     c->cos_lat - c->sin_lat * dl);
     return d < LONG_STEP_M ? d : hyp_geo_distance_m(lat1_deg, lon1_deg, lat2_deg, lon2_deg);
 }
 
@@ -58,6 +96,7 @@ typedef struct walk {
     double unit_m;          /* metres per axis unit (1 or 1000) */
     double cum_m, lat, lon;
     int has;
+    hyp__step_cache cache;
 } walk;
 
 static double walk_x(walk *w, const hyp_series *s, size_t i)
@@ -69,7 +108,7 @@ static double walk_x(walk *w, const hyp_series *s, size_t i)
     double la = hyp_series_lat(s, i), lo = hyp_series_lon(s, i);
     if (la == la && lo == lo) {
         if (w->has)
-            w->cum_m += hyp__track_step_m(w->lat, w->lon, la, lo);
+            w->cum_m += hyp__track_step_fast(&w->cache, w->lat, w->lon, la, lo);
         w->lat = la, w->lon = lo, w->has = 1;
     }
     return w->cum_m / w->unit_m;
@@ -97,30 +136,38 @@ static void track_pts_free(track_pts *t)
         free(t->y[k]);
 }
 
-/* Ranges of x (where any series is finite) and of the band. */
-static void track_ranges(const hyp_rover_run *r, walk w, double xr[2], double yr[2])
+/* What both track figures need, in one pass: the time range where any
+ * series is finite, the band's range, the distance walked. */
+typedef struct track_range {
+    double t[2], y[2], dist_m;
+} track_range;
+
+static void track_ranges(const hyp_rover_run *r, track_range *tr)
 {
     const hyp_series *s = r->rover;
-    xr[0] = yr[0] = INFINITY;
-    xr[1] = yr[1] = -INFINITY;
+    walk w = {.by_distance = 1, .unit_m = 1.0};
+    tr->t[0] = tr->y[0] = INFINITY;
+    tr->t[1] = tr->y[1] = -INFINITY;
     for (size_t i = 0; i < s->count; i++) {
-        double x = walk_x(&w, s, i), y[4];
+        walk_x(&w, s, i);
+        double y[4];
         track_values(r, i, y);
-        if (!isfinite(x) || !(isfinite(y[0]) || isfinite(y[3])))
+        if (s->flag[i] || !(isfinite(y[0]) || isfinite(y[3])))
             continue;
-        xr[0] = fmin(xr[0], x), xr[1] = fmax(xr[1], x);
+        tr->t[0] = fmin(tr->t[0], s->time_s[i]), tr->t[1] = fmax(tr->t[1], s->time_s[i]);
         if (isfinite(y[0]) && isfinite(y[1]))
-            yr[0] = fmin(yr[0], y[0]), yr[1] = fmax(yr[1], y[1]);
+            tr->y[0] = fmin(tr->y[0], y[0]), tr->y[1] = fmax(tr->y[1], y[1]);
     }
+    tr->dist_m = w.cum_m;
 }
 
 /* Thins the four series to the figure's columns and gathers the kept
  * points into arrays. */
-static hyp_status track_thin(const hyp_rover_run *r, walk w0, const hyp__svg *f, track_pts *out, hyp_error *err)
+static hyp_status track_thin(const hyp_rover_run *r, walk w, const hyp__svg *f, track_pts *out, hyp_error *err)
 {
     const hyp_series *s = r->rover;
     hyp__thin th;
-    walk w = w0;
+    memset(out, 0, sizeof *out);
     hyp_status st = hyp__thin_begin(&th, 4, f->x_lo, f->x_hi, hyp__svg_columns(f), err);
     for (size_t i = 0; !st && i < s->count; i++) {
         double x = walk_x(&w, s, i), y[4];
@@ -129,26 +176,20 @@ static hyp_status track_thin(const hyp_rover_run *r, walk w0, const hyp__svg *f,
     }
     if (!st)
         st = hyp__thin_end(&th, err);
-    memset(out, 0, sizeof *out);
-    size_t m = th.n_idx ? th.n_idx : 1;
+    size_t m = th.n ? th.n : 1;
     out->x = malloc(m * sizeof(double));
     for (int k = 0; k < 4; k++)
         out->y[k] = malloc(m * sizeof(double));
     if (!st && (!out->x || !out->y[0] || !out->y[1] || !out->y[2] || !out->y[3]))
         st = hyp_error_set(err, HYP_ERR_NOMEM, "HTML report: out of memory");
-    w = w0;
-    for (size_t i = 0, k = 0; !st && i < s->count && k < th.n_idx; i++) {
-        double x = walk_x(&w, s, i);   /* the distance needs every step */
-        if (i != th.idx[k])
-            continue;
+    for (size_t k = 0; !st && k < th.n; k++) {
         double y[4];
-        track_values(r, i, y);
-        out->x[k] = x;
+        track_values(r, th.pts[k].i, y);
+        out->x[k] = th.pts[k].x;
         for (int q = 0; q < 4; q++)
             out->y[q][k] = y[q];
-        k++;
     }
-    out->n = th.n_idx;
+    out->n = st ? 0 : th.n;
     hyp__thin_free(&th);
     return st;
 }
@@ -171,24 +212,12 @@ static void calib_markers(hyp__svg *f, const hyp_rover_run *r)
     }
 }
 
-static hyp_status track_figure(hyp__page *p, const hyp_rover_run *r, int by_distance, hyp_error *err)
+static hyp_status track_figure(hyp__page *p, const hyp_rover_run *r, const track_range *tr, int by_distance,
+                               hyp_error *err)
 {
-    const hyp_series *s = r->rover;
-    walk w = {.by_distance = by_distance, .unit_m = 1.0};
-    double xr[2], yr[2];
-    if (by_distance) {
-        walk t = w;
-        for (size_t i = 0; i < s->count; i++)
-            walk_x(&t, s, i);
-        w.unit_m = t.cum_m >= 5000.0 ? 1000.0 : 1.0;
-        if (!(t.cum_m > 0)) {
-            hyp__page_out(p, "<p class=\"note\">No height against distance: the track has no two positions apart.</p>\n");
-            return HYP_OK;
-        }
-    }
-    track_ranges(r, w, xr, yr);
-    if (!(yr[1] >= yr[0]) || !(xr[1] >= xr[0])) {
-        hyp__page_out(p, "<p class=\"note\">No corrected height to draw.</p>\n");
+    walk w = {.by_distance = by_distance, .unit_m = by_distance && tr->dist_m >= 5000.0 ? 1000.0 : 1.0};
+    if (by_distance && !(tr->dist_m > 0)) {
+        hyp__page_out(p, "<p class=\"note\">No height against distance: the track has no two positions apart.</p>\n");
         return HYP_OK;
     }
     char ytitle[96];
@@ -199,8 +228,9 @@ static hyp_status track_figure(hyp__page *p, const hyp_rover_run *r, int by_dist
         .width_px = HYP__FIG_W, .height_px = HYP__FIG_H,
         .x = {.title = by_distance ? (w.unit_m > 1 ? "distance along the track [km]" : "distance along the track [m]")
                                    : "time [UTC]",
-              .lo = xr[0], .hi = xr[1], .time_utc = !by_distance, .ticks = 8},
-        .y = {.title = ytitle, .lo = yr[0], .hi = yr[1]},
+              .lo = by_distance ? 0 : tr->t[0], .hi = by_distance ? tr->dist_m / w.unit_m : tr->t[1],
+              .time_utc = !by_distance, .ticks = 8},
+        .y = {.title = ytitle, .lo = tr->y[0], .hi = tr->y[1]},
     };
     hyp__svg f;
     track_pts t = {0};
@@ -227,19 +257,21 @@ static hyp_status track_figure(hyp__page *p, const hyp_rover_run *r, int by_dist
                              "heights outside the band's range are cut at the frame.",
                              by_distance ? "" : "; triangles are the calibrations' known heights with &#177;2 sigma",
                              by_distance ? "Distance: the geodesic length of the steps between positions, summed. " : "",
-                             s->count, t.n);
+                             r->rover->count, t.n);
     track_pts_free(&t);
     return st;
 }
 
-hyp_status hyp__fig_height_time(hyp__page *p, const hyp_rover_run *r, hyp_error *err)
+hyp_status hyp__fig_heights(hyp__page *p, const hyp_rover_run *r, hyp_error *err)
 {
-    return track_figure(p, r, 0, err);
-}
-
-hyp_status hyp__fig_height_distance(hyp__page *p, const hyp_rover_run *r, hyp_error *err)
-{
-    return track_figure(p, r, 1, err);
+    track_range tr;
+    track_ranges(r, &tr);
+    if (!(tr.y[1] >= tr.y[0]) || !(tr.t[1] >= tr.t[0])) {
+        hyp__page_out(p, "<p class=\"note\">No corrected height to draw.</p>\n");
+        return HYP_OK;
+    }
+    hyp_status st = track_figure(p, r, &tr, 0, err);
+    return st ? st : track_figure(p, r, &tr, 1, err);
 }
 
 /* ---- the bases ------------------------------------------------------- */

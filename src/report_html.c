@@ -98,10 +98,17 @@ static void inputs(hyp__page *p, const hyp_rover_run *r)
     for (size_t k = 0; k < r->n_bases; k++) {
         const hyp_base_used *b = &r->bases[k];
         double clk = r->n_bases == 1 ? r->result.clock_applied_s : b->clock_offset_s;
-        hyp__page_out(p, "<tr><td><code>%t</code></td><td class=\"n\">%.3f m</td><td>%.6f&#176;, %.6f&#176;</td>"
-                         "<td class=\"n\">%+.1f s</td><td class=\"n\">%+.3f hPa &#177; %.3f hPa</td></tr>\n",
-                      b->path, b->height_m, b->lat_deg, b->lon_deg, clk, r->result.base_offset_pa[k] / 100.0,
-                      r->result.base_offset_sigma_pa[k] / 100.0);
+        hyp__page_out(p, "<tr><td><code>%t</code></td><td class=\"n\">%.3f m</td>", b->path, b->height_m);
+        if (b->lat_deg == b->lat_deg)
+            hyp__page_out(p, "<td>%.6f&#176;, %.6f&#176;</td>", b->lat_deg, b->lon_deg);
+        else
+            hyp__page_out(p, "<td>not given</td>");
+        hyp__page_out(p, "<td class=\"n\">%+.1f s</td>", clk);
+        if (r->n_bases > 1)   /* estimated or given for several bases; one base's is in the rover's offset */
+            hyp__page_out(p, "<td class=\"n\">%+.3f hPa &#177; %.3f hPa</td></tr>\n", r->result.base_offset_pa[k] / 100.0,
+                          r->result.base_offset_sigma_pa[k] / 100.0);
+        else
+            hyp__page_out(p, "<td>in the rover's offset (one base)</td></tr>\n");
     }
     hyp__page_table_end(p);
 }
@@ -295,7 +302,7 @@ static hyp_status body(hyp__page *p, const hyp_rover_run *r, hyp_error *err)
     key_figures(p, r);
     nav(p);
     hyp__page_section(p, "heights", "Heights");
-    if ((st = hyp__fig_height_time(p, r, err)) || (st = hyp__fig_height_distance(p, r, err)))
+    if ((st = hyp__fig_heights(p, r, err)))
         return st;
     hyp__page_section(p, "plan", "Plan");
     if ((st = hyp__fig_plan(p, r, err)))

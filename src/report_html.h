@@ -16,8 +16,8 @@
 
 /* Each figure function writes one <figure> with its caption, or a note
  * saying why there is none; it fails only when memory does. */
-hyp_status hyp__fig_height_time(hyp__page *p, const hyp_rover_run *r, hyp_error *err);
-hyp_status hyp__fig_height_distance(hyp__page *p, const hyp_rover_run *r, hyp_error *err);
+/* Heights against time, then against distance along the track. */
+hyp_status hyp__fig_heights(hyp__page *p, const hyp_rover_run *r, hyp_error *err);
 hyp_status hyp__fig_base_pressure(hyp__page *p, const hyp_rover_run *r, hyp_error *err);
 hyp_status hyp__fig_tendency(hyp__page *p, const hyp_rover_run *r, hyp_error *err);
 hyp_status hyp__fig_offset(hyp__page *p, const hyp_rover_run *r, hyp_error *err);
@@ -28,6 +28,14 @@ hyp_status hyp__fig_plan(hyp__page *p, const hyp_rover_run *r, hyp_error *err);
 /* Length of the step between two positions, m: the geodesic (see the
  * definition in report_figures.c); NaN when either has no position. */
 double hyp__track_step_m(double lat1_deg, double lon1_deg, double lat2_deg, double lon2_deg);
+
+/* The same along a track, with the latitude's sine, cosine and radii
+ * carried from step to step (recomputed every 0.01 degree). */
+typedef struct hyp__step_cache {
+    double lat_deg, sin_lat, cos_lat, m_m, n_m, km, kn;
+    int set;
+} hyp__step_cache;
+double hyp__track_step_fast(hyp__step_cache *c, double lat1_deg, double lon1_deg, double lat2_deg, double lon2_deg);
 
 /* Time span of the rover's accepted samples (NaN, NaN when none). */
 void hyp__rover_span(const hyp_series *s, double *t0_s, double *t1_s);

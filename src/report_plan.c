@@ -17,6 +17,7 @@ typedef struct plan {
     const hyp_rover_run *r;
     hyp_geo *geo;          /* the run's, with its CRS; NULL: local plan */
     double lat0, lon0, coslat0;
+    double lat_lo, lat_hi, lon_lo, lon_hi;   /* the track's positions */
 } plan;
 
 /* A position on the plan, m; 0 with x, y set, -1 when it has none. */
@@ -55,6 +56,7 @@ static void plan_setup(plan *pl, const hyp_rover_run *r)
         if (la == la && lo == lo)
             la_lo = fmin(la_lo, la), la_hi = fmax(la_hi, la), lo_lo = fmin(lo_lo, lo), lo_hi = fmax(lo_hi, lo);
     }
+    pl->lat_lo = la_lo, pl->lat_hi = la_hi, pl->lon_lo = lo_lo, pl->lon_hi = lo_hi;
     pl->lat0 = 0.5 * (la_lo + la_hi);
     pl->lon0 = 0.5 * (lo_lo + lo_hi);
     pl->coslat0 = cos(pl->lat0 * DEG);
@@ -82,9 +84,14 @@ static int plan_box(const plan *pl, double track[4], double box[4], double *marg
     const hyp_rover_run *r = pl->r;
     track[0] = track[2] = INFINITY, track[1] = track[3] = -INFINITY;
     double x, y;
-    for (size_t i = 0; i < r->rover->count; i++)
-        if (!point_xy(pl, i, &x, &y))
-            grow(track, x, y);
+    if (r->easting_m) {
+        for (size_t i = 0; i < r->rover->count; i++)
+            if (!point_xy(pl, i, &x, &y))
+                grow(track, x, y);
+    } else if (pl->lat_hi >= pl->lat_lo) {   /* the local plan is linear in lat and lon: the box's corners */
+        plan_xy(pl, pl->lat_lo, pl->lon_lo, &track[0], &track[2]);
+        plan_xy(pl, pl->lat_hi, pl->lon_hi, &track[1], &track[3]);
+    }
     if (!(track[1] >= track[0]))
         return -1;
     *margin = 0.1 * fmax(track[1] - track[0], track[3] - track[2]) + 100.0;
@@ -118,7 +125,7 @@ static int by_value(const void *a, const void *b)
 /* Per cell of CELL_PX the point with the largest sigma (a point with none
  * only where no other is), drawn in rising order of sigma so the worst lie
  * on top. */
-static hyp_status thin_cells(const plan *pl, const hyp__svg *f, kept *out, hyp_error *err)
+static hyp_status thin_cells(const plan *pl, const hyp__svg *f, kept *out, double *v_lo, double *v_hi, hyp_error *err)
 {
     const hyp_rover_run *r = pl->r;
     double w = f->right_px - f->left_px, h = f->bottom_px - f->top_px;
@@ -129,7 +136,11 @@ static hyp_status thin_cells(const plan *pl, const hyp__svg *f, kept *out, hyp_e
     for (size_t c = 0; c < nx * ny; c++)
         cell[c] = SIZE_MAX;
     double sx = (double)nx / (f->x_hi - f->x_lo), sy = (double)ny / (f->y_hi - f->y_lo), x, y;
+    *v_lo = INFINITY, *v_hi = -INFINITY;
     for (size_t i = 0; i < r->rover->count; i++) {
+        float sg = r->result.sigma_m[i];
+        if (sg == sg)
+            *v_lo = fmin(*v_lo, sg), *v_hi = fmax(*v_hi, sg);
         if (point_xy(pl, i, &x, &y) || x < f->x_lo || x > f->x_hi || y < f->y_lo || y > f->y_hi)
             continue;
         size_t cx = (size_t)fmin(floor((x - f->x_lo) * sx), (double)nx - 1);
@@ -220,11 +231,6 @@ hyp_status hyp__fig_plan(hyp__page *p, const hyp_rover_run *r, hyp_error *err)
         hyp__page_out(p, "<p class=\"note\">No plan: the track has no positions.</p>\n");
         return HYP_OK;
     }
-    for (size_t i = 0; i < r->result.count; i++)
-        if (r->result.sigma_m[i] == r->result.sigma_m[i])
-            v_lo = fmin(v_lo, r->result.sigma_m[i]), v_hi = fmax(v_hi, r->result.sigma_m[i]);
-    if (!(v_hi >= v_lo))
-        v_lo = 0, v_hi = 1;
     char xt[300], yt[300];
     if (pl.geo) {
         snprintf(xt, sizeof xt, "easting [m] (%s)", r->crs_name);
@@ -244,8 +250,10 @@ hyp_status hyp__fig_plan(hyp__page *p, const hyp_rover_run *r, hyp_error *err)
     kept k = {0};
     hyp__page_figure(p);
     hyp_status st = hyp__svg_begin(&f, &p->b, &spec, err);
-    if (!st && (st = thin_cells(&pl, &f, &k, err)))
+    if (!st && (st = thin_cells(&pl, &f, &k, &v_lo, &v_hi, err)))
         hyp__svg_discard(&f);
+    if (!(v_hi >= v_lo))
+        v_lo = 0, v_hi = 1;
     size_t outside = 0;
     if (!st) {
         hyp__svg_points_coloured(&f, k.x, k.y, k.v, k.n, v_lo, v_hi, HYP__SVG_CIRCLE);

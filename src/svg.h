@@ -122,7 +122,7 @@ hyp_status hyp__decimate(const double *x, const double *y, const double *also, s
  * array, a value computed per point, a distance summed along a track):
  * points are fed in order, one index at a time with its x and one y per
  * series, and the thinner keeps every index hyp__decimate would keep of
- * any of the series, and for each segment that ends the index of the point
+ * any of the series (with its x), and for each segment that ends the point
  * that ended it (so the gap survives). Drawing the kept points (gathered
  * into arrays) with hyp__svg_line or hyp__svg_band over the same range and
  * columns then keeps exactly the points the whole series would: at most a
@@ -130,8 +130,13 @@ hyp_status hyp__decimate(const double *x, const double *y, const double *also, s
  * a band must be non-finite together. */
 #define HYP__THIN_SERIES 4
 
+typedef struct hyp__thin_pt {
+    size_t i;         /* index of the point */
+    double x;         /* its x as given (so a caller need not recompute it) */
+} hyp__thin_pt;
+
 typedef struct hyp__thin_col {
-    size_t first, low, high, last;
+    hyp__thin_pt first, low, high, last;
     double y_low, y_high;
     long col;
     int open;
@@ -142,8 +147,8 @@ typedef struct hyp__thin {
     double x_lo, scale, x_prev;
     int columns;
     hyp__thin_col c[HYP__THIN_SERIES];
-    size_t *idx;      /* kept indices; after hyp__thin_end increasing, unique */
-    size_t n_idx, alloc;
+    hyp__thin_pt *pts;   /* kept points; after hyp__thin_end by increasing index, unique */
+    size_t n, alloc;
     int oom;
 } hyp__thin;
 
@@ -155,7 +160,7 @@ hyp_status hyp__thin_begin(hyp__thin *t, size_t n_series, double x_lo, double x_
  * non-finite x ends every series' segment, a non-finite y its own.
  * HYP_ERR_USAGE when a finite x is below the one before. */
 hyp_status hyp__thin_add(hyp__thin *t, size_t i, double x, const double *y, hyp_error *err);
-/* Closes the open columns; sorts the kept indices. HYP_ERR_NOMEM when an
+/* Closes the open columns; sorts the kept points by index. HYP_ERR_NOMEM when an
  * allocation failed on the way. */
 hyp_status hyp__thin_end(hyp__thin *t, hyp_error *err);
 void hyp__thin_free(hyp__thin *t);

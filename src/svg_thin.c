@@ -6,21 +6,21 @@
 #include <stdlib.h>
 #include <string.h>
 
-static void keep(hyp__thin *t, size_t i)
+static void keep(hyp__thin *t, hyp__thin_pt p)
 {
     if (t->oom)
         return;
-    if (t->n_idx == t->alloc) {
+    if (t->n == t->alloc) {
         size_t n = t->alloc ? 2 * t->alloc : 1024;
-        size_t *p = realloc(t->idx, n * sizeof *p);
-        if (!p) {
+        hyp__thin_pt *q = realloc(t->pts, n * sizeof *q);
+        if (!q) {
             t->oom = 1;
             return;
         }
-        t->idx = p;
+        t->pts = q;
         t->alloc = n;
     }
-    t->idx[t->n_idx++] = i;
+    t->pts[t->n++] = p;
 }
 
 /* The column's first, lowest, highest and last point, as flush() in
@@ -53,7 +53,7 @@ hyp_status hyp__thin_begin(hyp__thin *t, size_t n_series, double x_lo, double x_
     return HYP_OK;
 }
 
-static void add_point(hyp__thin_col *c, size_t i, double y, long col)
+static void add_point(hyp__thin_col *c, hyp__thin_pt i, double y, long col)
 {
     if (!c->open) {
         c->first = c->low = c->high = c->last = i;
@@ -85,20 +85,20 @@ hyp_status hyp__thin_add(hyp__thin *t, size_t i, double x, const double *y, hyp_
         if (!isfinite(x) || !isfinite(y[k])) {
             if (c->open) {   /* the segment ends here: keep the point that ends it */
                 flush(t, c);
-                keep(t, i);
+                keep(t, (hyp__thin_pt){i, x});
             }
             continue;
         }
         if (c->open && col != c->col)
             flush(t, c);
-        add_point(c, i, y[k], col);
+        add_point(c, (hyp__thin_pt){i, x}, y[k], col);
     }
     return HYP_OK;
 }
 
 static int by_index(const void *a, const void *b)
 {
-    size_t x = *(const size_t *)a, y = *(const size_t *)b;
+    size_t x = ((const hyp__thin_pt *)a)->i, y = ((const hyp__thin_pt *)b)->i;
     return x < y ? -1 : x > y;
 }
 
@@ -108,19 +108,19 @@ hyp_status hyp__thin_end(hyp__thin *t, hyp_error *err)
         flush(t, &t->c[k]);
     if (t->oom)
         return hyp_error_set(err, HYP_ERR_NOMEM, "thinning: out of memory");
-    if (t->n_idx)
-        qsort(t->idx, t->n_idx, sizeof *t->idx, by_index);
+    if (t->n)
+        qsort(t->pts, t->n, sizeof *t->pts, by_index);
     size_t m = 0;
-    for (size_t j = 0; j < t->n_idx; j++)
-        if (!m || t->idx[m - 1] != t->idx[j])
-            t->idx[m++] = t->idx[j];
-    t->n_idx = m;
+    for (size_t j = 0; j < t->n; j++)
+        if (!m || t->pts[m - 1].i != t->pts[j].i)
+            t->pts[m++] = t->pts[j];
+    t->n = m;
     return HYP_OK;
 }
 
 void hyp__thin_free(hyp__thin *t)
 {
-    free(t->idx);
-    t->idx = NULL;
-    t->n_idx = t->alloc = 0;
+    free(t->pts);
+    t->pts = NULL;
+    t->n = t->alloc = 0;
 }

@@ -370,6 +370,16 @@ static void test_track_step(void **state)
                 double s = hyp__track_step_m(lats[a], 9.9, lats[a] + dlat, 9.9 + dlon);
                 assert_true(fabs(s - g) <= 1e-6 * g + 1e-9);
             }
+    /* along a track, the carried radii and cosine against the step's own:
+     * 1 m steps over 0.2 degree of latitude (about 22 km) at 60 N */
+    hyp__step_cache c = {0};
+    double fast = 0, exact = 0;
+    for (int i = 0; i < 20000; i++) {
+        double la1 = 60 + 1e-5 * i, lo1 = 9.9 + 1.3e-5 * i, la2 = la1 + 1e-5, lo2 = lo1 + 1.3e-5;
+        fast += hyp__track_step_fast(&c, la1, lo1, la2, lo2);
+        exact += hyp__track_step_m(la1, lo1, la2, lo2);
+    }
+    assert_true(fabs(fast - exact) <= 1e-7 * exact);
     /* longer steps are the solver's own; no position: NaN */
     assert_true(hyp__track_step_m(46, 9, 46.5, 9.5) == hyp_geo_distance_m(46, 9, 46.5, 9.5));
     assert_true(isnan(hyp__track_step_m(NAN, 9, 46, 9)));

@@ -586,15 +586,17 @@ static void check_thin_series(const double *x, const double *y, size_t n, const 
     hyp__decim_init(&part);
     hyp_error err;
     assert_int_equal(hyp__decimate(x, y, NULL, n, lo, hi, cols, &full, &err), HYP_OK);
-    double *tx = malloc((t->n_idx + 1) * sizeof *tx), *ty = malloc((t->n_idx + 1) * sizeof *ty);
+    double *tx = malloc((t->n + 1) * sizeof *tx), *ty = malloc((t->n + 1) * sizeof *ty);
     assert_non_null(tx), assert_non_null(ty);
-    for (size_t k = 0; k < t->n_idx; k++)
-        tx[k] = x[t->idx[k]], ty[k] = y[t->idx[k]];
-    assert_int_equal(hyp__decimate(tx, ty, NULL, t->n_idx, lo, hi, cols, &part, &err), HYP_OK);
+    for (size_t k = 0; k < t->n; k++) {
+        tx[k] = t->pts[k].x, ty[k] = y[t->pts[k].i];
+        assert_true(tx[k] == x[t->pts[k].i] || (isnan(tx[k]) && isnan(x[t->pts[k].i])));   /* x kept as given */
+    }
+    assert_int_equal(hyp__decimate(tx, ty, NULL, t->n, lo, hi, cols, &part, &err), HYP_OK);
     assert_int_equal(part.n_seg, full.n_seg);
     assert_int_equal(part.n_idx, full.n_idx);
     for (size_t k = 0; k < full.n_idx; k++)
-        assert_int_equal(t->idx[part.idx[k]], full.idx[k]);
+        assert_int_equal(t->pts[part.idx[k]].i, full.idx[k]);
     for (size_t s = 0; s < full.n_seg; s++)
         assert_int_equal(part.seg_end[s], full.seg_end[s]);
     free(tx), free(ty);
@@ -639,10 +641,10 @@ static void test_thin(void **state)
             assert_int_equal(hyp__thin_add(&th, i, x[i], yy, &err), HYP_OK);
         }
         assert_int_equal(hyp__thin_end(&th, &err), HYP_OK);
-        for (size_t k = 1; k < th.n_idx; k++)
-            assert_true(th.idx[k] > th.idx[k - 1]);
+        for (size_t k = 1; k < th.n; k++)
+            assert_true(th.pts[k].i > th.pts[k - 1].i);
         if (c == 0)   /* far fewer than the whole: at most 4 a column and series, and the gaps */
-            assert_true(th.n_idx < N / 4);
+            assert_true(th.n < N / 4);
         for (int k = 0; k < S; k++)
             check_thin_series(x, y[k], N, &th, lo, hi, cols_list[c]);
         hyp__thin_free(&th);

@@ -154,3 +154,7 @@ hyp_cli_case(report_unwritable 1 "r.txt: cannot write: the directory does not ex
 # the option parser's own messages
 hyp_cli_case(missing_value 2 "option \"--table\" needs a value" correct ${R} ${B} ${O} --table)
 hyp_cli_case(hex_number 2 "--base-height \"0x10\": expected a number from -500 to 9000" correct ${R} --base @DATA@/base.csv --base-height 0x10 ${O})
+# the HTML report: written by its extension; --report-html is for --out-dir
+hyp_cli_case(report_html_quiet 0 "^$" correct ${R} ${B} ${O} --report @OUT@/r.html -q)
+hyp_cli_case(report_html_needs_dir 2 "--report-html names the reports of --out-dir" correct ${R} ${B} ${O} --report-html)
+hyp_cli_case(report_html_unwritable 1 "r.HTML: cannot write: the directory does not exist" correct ${R} ${B} ${O} --report @OUT@/no/dir/r.HTML)
