@@ -70,7 +70,7 @@ static void series_row(hyp__page *p, const char *role, const char *path, const h
             used++;
         }
     hyp__page_out(p, "<tr><td>%t</td><td><code>%t</code></td><td class=\"n\">%z</td><td class=\"n\">%z</td>"
-                     "<td>%T</td><td>%T</td><td class=\"n\">%.2f h</td><td>%t</td></tr>\n",
+                     "<td class=\"t\">%T</td><td class=\"t\">%T</td><td class=\"n\">%.2f h</td><td>%t</td></tr>\n",
                   role, path, s ? s->count : 0, used, t0, t1, (t1 - t0) / 3600.0, s ? hyp_unit_name(unit) : "");
 }
 
@@ -165,7 +165,7 @@ static void calib_table(hyp__page *p, const hyp_correct_result *res)
     hyp__page_table(p, "Calibrations (misclosure: height before the fit minus known; residual: after)", h, 10);
     for (size_t k = 0; k < res->n_calibs; k++) {
         const hyp_calib *c = &res->calibs[k];
-        hyp__page_out(p, "<tr><td>%t</td><td>%s</td><td>%s</td><td>%T</td><td>%T</td><td class=\"n\">%z</td>"
+        hyp__page_out(p, "<tr><td>%t</td><td>%s</td><td>%s</td><td class=\"t\">%T</td><td class=\"t\">%T</td><td class=\"n\">%z</td>"
                          "<td class=\"n\">%.3f m &#177; %.3f m</td><td class=\"n\">%+.3f m</td><td class=\"n\">%+.3f m</td>"
                          "<td class=\"n\">%+.3f hPa</td></tr>\n",
                       c->name, c->kind == HYP_CAL_BASE ? "co-location" : "tie", how_text(c->how), c->start_s, c->end_s,

@@ -21,7 +21,7 @@ static const char style[] =
     "caption{text-align:left;font-weight:bold;padding:.2em 0}\n"
     "th,td{border:1px solid #c8c8c8;padding:.2em .55em;text-align:left;vertical-align:top}\n"
     "thead th{background:#f0f0f0}tbody th{font-weight:normal;background:#fafafa}\n"
-    "td.n{text-align:right;white-space:nowrap;font-variant-numeric:tabular-nums}\n"
+    "td.n{text-align:right;white-space:nowrap;font-variant-numeric:tabular-nums}td.t{white-space:nowrap}\n"
     "div.figure{margin:1em 0 1.6em;break-inside:avoid;page-break-inside:avoid}\n"
     "div.figure svg{display:block;max-width:100%;height:auto}\n"
     "p.caption{font-size:.87em;color:#333;max-width:760px;margin-top:.3em}\n"
