@@ -294,100 +294,137 @@ static void view_window(const hyp__base_view *v, double t0, double t1, size_t *a
         (*b)++;
 }
 
-/* A figure of a base quantity (pressure or tendency) of every base, or of
- * base `only` alone (SIZE_MAX: all), over the rover's span widened by an hour each side. */
-static hyp_status base_figure(hyp__page *p, const hyp_rover_run *r, int tendency, size_t only, hyp_error *err)
+/* A figure of the bases: pressure or tendency, bases k0 .. k1-1 (`one`:
+ * a figure of one base among several), over t0 .. t1. */
+typedef struct base_fig {
+    const hyp_rover_run *r;
+    const hyp__base_view *v;
+    int tendency, one;
+    size_t k0, k1;
+    double t0, t1, scale;   /* hPa or hPa/h per Pa or Pa/s */
+} base_fig;
+
+static double base_value(const base_fig *b, size_t k, size_t i)
 {
-    size_t nb;
-    const hyp__base_view *v = base_views(r, &nb);
-    size_t k0 = only < nb ? only : 0;
-    nb = only < nb ? only + 1 : nb;
-    double t0, t1;
-    hyp__rover_span(r->rover, &t0, &t1);
-    t0 -= 3600, t1 += 3600;
-    double lo = INFINITY, hi = -INFINITY, tlo = INFINITY, thi = -INFINITY, scale = tendency ? 3600.0 / 100.0 : 0.01;
-    for (size_t k = k0; k < nb; k++) {
-        size_t a, b;
-        view_window(&v[k], t0, t1, &a, &b);
-        for (size_t i = a; i < b; i++) {
-            double y = (tendency ? v[k].rate[i] : v[k].p[i]) * scale;
-            if (isfinite(y))
-                lo = fmin(lo, y), hi = fmax(hi, y), tlo = fmin(tlo, v[k].t[i]), thi = fmax(thi, v[k].t[i]);
-        }
+    return (b->tendency ? b->v[k].rate[i] : b->v[k].p[i]) * b->scale;
+}
+
+/* The values' and times' ranges; 0 when there is no sample. */
+static int base_ranges(const base_fig *b, double y[2], double t[2])
+{
+    y[0] = t[0] = INFINITY, y[1] = t[1] = -INFINITY;
+    for (size_t k = b->k0; k < b->k1; k++) {
+        size_t a, z;
+        view_window(&b->v[k], b->t0, b->t1, &a, &z);
+        for (size_t i = a; i < z; i++)
+            if (isfinite(base_value(b, k, i)))
+                y[0] = fmin(y[0], base_value(b, k, i)), y[1] = fmax(y[1], base_value(b, k, i)),
+                t[0] = fmin(t[0], b->v[k].t[i]), t[1] = fmax(t[1], b->v[k].t[i]);
     }
-    if (!(hi >= lo)) {
-        hyp__page_out(p, "<p class=\"note\">No base samples over the track's span.</p>\n");
-        return HYP_OK;
-    }
-    double rapid = r->rapid_pa_per_s * scale;
-    if (tendency)
-        lo = fmin(lo, -rapid), hi = fmax(hi, rapid);
-    char id[48], title[300];
-    snprintf(id, sizeof id, tendency ? "base-tendency" : only < HYP_MAX_BASES ? "base-pressure-%zu" : "base-pressure", k0 + 1);
-    snprintf(title, sizeof title, "%s%s", tendency ? "Hourly tendency of the base pressure" : "Base pressure",
-             only < HYP_MAX_BASES ? ": " : "");
-    if (only < HYP_MAX_BASES)
-        snprintf(title + strlen(title), sizeof title - strlen(title), "%s", r->bases[k0].path);
-    hyp__svg_spec spec = {
-        .id = id, .title = title,
-        .width_px = HYP__FIG_W, .height_px = tendency || only < HYP_MAX_BASES ? 300 : HYP__FIG_H,
-        .x = {.title = "time [UTC]", .lo = tlo, .hi = thi, .time_utc = 1, .ticks = 8},
-        .y = {.title = tendency ? "tendency [hPa/h]" : "pressure [hPa]", .lo = lo, .hi = hi},
-    };
-    hyp__svg f;
-    hyp__page_figure(p);
-    hyp_status st = hyp__svg_begin(&f, &p->b, &spec, err);
-    for (size_t k = k0; !st && k < nb; k++) {
-        size_t a, b;
-        view_window(&v[k], t0, t1, &a, &b);
-        double *y = malloc((b > a ? b - a : 1) * sizeof *y);
-        if (!y) {
-            hyp__svg_discard(&f);
+    return y[1] >= y[0];
+}
+
+static hyp_status base_lines(hyp__svg *f, const base_fig *b, hyp_error *err)
+{
+    for (size_t k = b->k0; k < b->k1 && !f->status; k++) {
+        size_t a, z;
+        view_window(&b->v[k], b->t0, b->t1, &a, &z);
+        double *y = malloc((z > a ? z - a : 1) * sizeof *y);
+        if (!y)
             return hyp_error_set(err, HYP_ERR_NOMEM, "HTML report: out of memory");
-        }
-        for (size_t i = a; i < b; i++)
-            y[i - a] = (tendency ? v[k].rate[i] : v[k].p[i]) * scale;
-        char label[300];
-        snprintf(label, sizeof label, "%s", r->bases[k].path);
-        hyp__svg_style sty = hyp__svg_style_nth((int)k, tendency && nb > 1 ? label : NULL);
-        hyp__svg_line(&f, v[k].t + a, y, b - a, &sty);
+        for (size_t i = a; i < z; i++)
+            y[i - a] = base_value(b, k, i);
+        hyp__svg_style sty = hyp__svg_style_nth((int)k, b->tendency ? b->r->bases[k].path : NULL);
+        sty.dash = b->one ? 0 : sty.dash;
+        hyp__svg_line(f, b->v[k].t + a, y, z - a, &sty);
         free(y);
     }
-    if (!st && tendency) {
-        double x[2] = {tlo, thi}, up[2] = {rapid, rapid}, dn[2] = {-rapid, -rapid};
-        hyp__svg_style lim = {.colour = 6, .dash = 1, .width_px = 1.0, .label = "rapid change (threshold)"};
-        hyp__svg_line(&f, x, up, 2, &lim);
-        lim.label = NULL;
-        hyp__svg_line(&f, x, dn, 2, &lim);
-    }
-    if (!st)
-        st = hyp__svg_end(&f);
-    if (!st && tendency)
+    return HYP_OK;
+}
+
+static void rapid_lines(hyp__svg *f, const double t[2], double rapid)
+{
+    double x[2] = {t[0], t[1]}, up[2] = {rapid, rapid}, dn[2] = {-rapid, -rapid};
+    hyp__svg_style lim = {.colour = 6, .dash = 1, .width_px = 1.0, .label = "rapid change (threshold)"};
+    hyp__svg_line(f, x, up, 2, &lim);
+    lim.label = NULL;
+    hyp__svg_line(f, x, dn, 2, &lim);
+}
+
+static void base_caption(hyp__page *p, const base_fig *b, double rapid)
+{
+    if (b->tendency)
         hyp__page_figure_end(p, "The change of each base's pressure over an hour, as the correction estimated it at "
                                 "each base sample, from an hour before the track to an hour after; the dashed lines are "
                                 "the threshold above which a change counts as rapid (&#177;%.2f hPa/h). A passing front or "
                                 "a pressure surge shows as a run beyond them.",
                              rapid);
-    else if (!st)
+    else
         hyp__page_figure_end(p, "Station pressure at %s as the correction used it: on true time (the clock offset "
                                 "applied), the base's instrument offset removed, a QNH series reduced to the station. From "
                                 "an hour before the track to an hour after.%s",
-                             only < HYP_MAX_BASES ? "this base" : "the base",
-                             only < HYP_MAX_BASES ? " One figure a base: their pressures differ by their heights." : "");
+                             b->one ? "this base" : "the base",
+                             b->one ? " One figure a base: their pressures differ by their heights." : "");
+}
+
+static hyp_status base_figure(hyp__page *p, const base_fig *b, hyp_error *err)
+{
+    double y[2], t[2], rapid = b->r->rapid_pa_per_s * b->scale;
+    if (!base_ranges(b, y, t)) {
+        hyp__page_out(p, "<p class=\"note\">No base samples over the track's span.</p>\n");
+        return HYP_OK;
+    }
+    if (b->tendency)
+        y[0] = fmin(y[0], -rapid), y[1] = fmax(y[1], rapid);
+    char id[48], title[300];
+    snprintf(id, sizeof id, b->tendency ? "base-tendency" : b->one ? "base-pressure-%zu" : "base-pressure", b->k0 + 1);
+    snprintf(title, sizeof title, "%s%s%s", b->tendency ? "Hourly tendency of the base pressure" : "Base pressure",
+             b->one ? ": " : "", b->one ? b->r->bases[b->k0].path : "");
+    hyp__svg_spec spec = {
+        .id = id, .title = title,
+        .width_px = HYP__FIG_W, .height_px = b->tendency || b->one ? 300 : HYP__FIG_H,
+        .x = {.title = "time [UTC]", .lo = t[0], .hi = t[1], .time_utc = 1, .ticks = 8},
+        .y = {.title = b->tendency ? "tendency [hPa/h]" : "pressure [hPa]", .lo = y[0], .hi = y[1]},
+    };
+    hyp__svg f;
+    hyp__page_figure(p);
+    hyp_status st = hyp__svg_begin(&f, &p->b, &spec, err);
+    if (!st && (st = base_lines(&f, b, err)))
+        hyp__svg_discard(&f);
+    if (!st && b->tendency)
+        rapid_lines(&f, t, rapid);
+    if (!st)
+        st = hyp__svg_end(&f);
+    if (!st)
+        base_caption(p, b, rapid);
     return st;
+}
+
+static base_fig base_fig_of(const hyp_rover_run *r, int tendency)
+{
+    base_fig b = {.r = r, .tendency = tendency, .scale = tendency ? 3600.0 / 100.0 : 0.01};
+    b.v = base_views(r, &b.k1);
+    hyp__rover_span(r->rover, &b.t0, &b.t1);
+    b.t0 -= 3600, b.t1 += 3600;
+    return b;
 }
 
 hyp_status hyp__fig_base_pressure(hyp__page *p, const hyp_rover_run *r, hyp_error *err)
 {
-    size_t nb;
-    base_views(r, &nb);
-    hyp_status st = nb > 1 ? HYP_OK : base_figure(p, r, 0, SIZE_MAX, err);
-    for (size_t k = 0; nb > 1 && !st && k < nb; k++)
-        st = base_figure(p, r, 0, k, err);
+    base_fig all = base_fig_of(r, 0);
+    if (all.k1 <= 1)
+        return base_figure(p, &all, err);
+    hyp_status st = HYP_OK;
+    for (size_t k = 0; !st && k < all.k1; k++) {
+        base_fig one = all;
+        one.k0 = k, one.k1 = k + 1, one.one = 1;
+        st = base_figure(p, &one, err);
+    }
     return st;
 }
 
 hyp_status hyp__fig_tendency(hyp__page *p, const hyp_rover_run *r, hyp_error *err)
 {
-    return base_figure(p, r, 1, SIZE_MAX, err);
+    base_fig all = base_fig_of(r, 1);
+    return base_figure(p, &all, err);
 }
