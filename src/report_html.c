@@ -329,7 +329,8 @@ static hyp_status body(hyp__page *p, const hyp_rover_run *r, hyp_error *err)
 
 static void failed(hyp__page *p, const hyp_rover_run *r)
 {
-    hyp__page_out(p, "<p class=\"warning\"><strong>The run failed:</strong> %t</p>\n", r->error.message);
+    hyp__page_out(p, "<p class=\"warning\"><strong>%s</strong> %t</p>\n", r->skipped ? "Skipped:" : "The run failed:",
+                  r->error.message);
 }
 
 hyp_status hyp_rover_run_write_html(FILE *f, const hyp_rover_run *r, const hyp_report_info *info, hyp_error *err)
@@ -343,7 +344,7 @@ hyp_status hyp_rover_run_write_html(FILE *f, const hyp_rover_run *r, const hyp_r
     hyp__page_out(&p, "<h1>Barometric heights: %t</h1>\n<p>Rover <code>%t</code>, corrected by <code>hypsolev correct</code>.</p>\n",
                   r->name, r->path ? r->path : "");
     hyp_status st = HYP_OK;
-    if (r->status || !r->rover)
+    if (r->status || r->skipped || !r->rover)
         failed(&p, r);
     else
         st = body(&p, r, err);
