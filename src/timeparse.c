@@ -171,9 +171,9 @@ static hyp_status tzif_load(hyp_zone *z, const char *path, hyp_error *err)
     unsigned char buf[1 << 16];
     size_t n = fread(buf, 1, sizeof buf, f);
     fclose(f);
-    /* a block holds at least one type, so a length of 0 means a bad one */
     if (n < 44 || memcmp(buf, "TZif", 4) != 0)
         return not_tzif(z, path, err);
+    /* a block holds at least one type, so a length of 0 means a bad one */
     size_t off = 0, len = tzif_block_len(buf, n, 4);
     int v2 = buf[4] >= '2', tsize = 4;
     if (len && v2) {   /* skip the 32-bit block: RFC 8536 section 3.2 */
@@ -232,13 +232,9 @@ hyp_status hyp_zone_parse(hyp_zone *z, const char *text, const char *zoneinfo_di
     return st;
 }
 
-static int32_t offset_at_utc(const hyp_zone *z, int64_t utc_s)
+/* How many transitions are at or before utc_s. */
+static size_t trans_upto(const hyp_zone *z, int64_t utc_s)
 {
-    if (z->kind == 1)
-        return z->offset_s;
-    if (z->kind != 2)
-        return 0;
-    /* last transition at or before utc_s */
     size_t lo = 0, hi = z->count;
     while (lo < hi) {
         size_t mid = lo + (hi - lo) / 2;
@@ -247,11 +243,40 @@ static int32_t offset_at_utc(const hyp_zone *z, int64_t utc_s)
         else
             hi = mid;
     }
+    return lo;
+}
+
+static int32_t offset_at_utc(const hyp_zone *z, int64_t utc_s)
+{
+    if (z->kind == 1)
+        return z->offset_s;
+    if (z->kind != 2)
+        return 0;
+    size_t k = trans_upto(z, utc_s);
     /* RFC 8536 section 3.3: the footer rule after the last transition, and
      * at all instants of a file without transitions */
-    if (lo == z->count && z->has_rule && (lo == 0 || utc_s > z->trans_s[lo - 1]))
+    if (k == z->count && z->has_rule && (k == 0 || utc_s > z->trans_s[k - 1]))
         return hyp__tz_rule_offset(&z->rule, utc_s);
-    return lo == 0 ? z->first_off_s : z->trans_off_s[lo - 1];
+    return k == 0 ? z->first_off_s : z->trans_off_s[k - 1];
+}
+
+#define MAX_CHANGES 16
+
+/* The changes of offset in (from_s, to_s]: the transitions, then the
+ * footer rule's changes after the last of them; ascending, at most
+ * MAX_CHANGES instants to at_s and the offsets from them on to off_s. */
+static size_t zone_changes(const hyp_zone *z, int64_t from_s, int64_t to_s, int64_t *at_s, int32_t *off_s)
+{
+    size_t n = 0;
+    for (size_t k = trans_upto(z, from_s); k < z->count && z->trans_s[k] <= to_s && n < MAX_CHANGES; k++) {
+        at_s[n] = z->trans_s[k];
+        off_s[n++] = z->trans_off_s[k];
+    }
+    if (z->has_rule) {
+        int64_t after_s = z->count && z->trans_s[z->count - 1] > from_s ? z->trans_s[z->count - 1] : from_s;
+        n += hyp__tz_rule_changes(&z->rule, after_s, to_s, at_s + n, off_s + n, MAX_CHANGES - n);
+    }
+    return n;
 }
 
 int32_t hyp_zone_offset_for_local(const hyp_zone *z, int64_t local_s)
@@ -259,21 +284,42 @@ int32_t hyp_zone_offset_for_local(const hyp_zone *z, int64_t local_s)
     if (!z || z->kind != 2)
         return z && z->kind == 1 ? z->offset_s : 0;
     /* The instant is local_s - offset with |offset| < 26 h (RFC 8536
-     * section 3.2 bounds utoff to -24:59:59..+25:59:59), and offsets change
-     * at most a few times a year, so the offsets in force 26 h either side
-     * are the only candidates; keep those that map back. (12 h was too
-     * short for offsets past +12 h: Pacific/Auckland's spring gap took the
-     * offset after it.) The transitions and the footer rule are read
-     * through offset_at_utc alike, so both get this same choice. */
-    const int64_t w_s = 26 * 3600;
-    int32_t o1 = offset_at_utc(z, local_s - w_s), o2 = offset_at_utc(z, local_s + w_s);
-    int v1 = offset_at_utc(z, local_s - o1) == o1;
-    int v2 = offset_at_utc(z, local_s - o2) == o2;
-    if (v1 && v2)
-        return o1 > o2 ? o1 : o2;   /* overlap: the earlier instant */
-    if (v2)
-        return o2;
-    return o1;                      /* valid, or a gap: the offset before it */
+     * section 3.2 bounds utoff to -24:59:59..+25:59:59), so only the
+     * stretches of constant offset within 26 h of local_s matter. A
+     * stretch [at[i], at[i+1]) with offset off[i] reads local_s when
+     * local_s - off[i] falls inside it. Transitions and the footer rule
+     * are listed alike, so both get the same choice: of several readings
+     * (an overlap) the earliest instant, the largest offset; with none (a
+     * gap) the offset in force before the gap. */
+    const int64_t w_s = 26 * 3600, lim_s = (int64_t)1 << 50;
+    local_s = local_s < -lim_s ? -lim_s : local_s > lim_s ? lim_s : local_s;
+    int64_t at[MAX_CHANGES + 2];
+    int32_t off[MAX_CHANGES + 1], best = 0;
+    at[0] = local_s - w_s;
+    off[0] = offset_at_utc(z, at[0]);
+    size_t n = zone_changes(z, at[0], local_s + w_s, at + 1, off + 1), m = 0;
+    for (size_t i = 1; i <= n; i++) {   /* of changes at one instant, the last holds */
+        if (at[i] != at[m])
+            m++;
+        at[m] = at[i];
+        off[m] = off[i];
+    }
+    n = m;
+    at[n + 1] = local_s + w_s + 1;
+    int found = 0;
+    for (size_t i = 0; i <= n; i++) {
+        int64_t u = local_s - off[i];
+        if (u >= at[i] && u < at[i + 1] && (!found || off[i] > best)) {
+            best = off[i];
+            found = 1;
+        }
+    }
+    if (found)
+        return best;
+    for (size_t i = 1; i <= n; i++)   /* the change whose gap holds local_s */
+        if (at[i] + off[i - 1] <= local_s && local_s < at[i] + off[i])
+            return off[i - 1];
+    return off[0];
 }
 
 static int digits(const char *s, int n, int *v)

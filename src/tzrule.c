@@ -196,11 +196,10 @@ static int is_leap(int64_t y)
 static int64_t rule_day(const hyp_tz_date *d, int64_t y)
 {
     static const int dm[12] = {31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31};
-    int64_t jan1 = hyp_days_from_civil(y, 1, 1);
     if (d->kind == 'J')   /* Feb 29 is never counted: J60 is always Mar 1 */
-        return jan1 + d->day - 1 + (is_leap(y) && d->day >= 60);
+        return hyp_days_from_civil(y, 1, 1) + d->day - 1 + (is_leap(y) && d->day >= 60);
     if (d->kind == 'D')
-        return jan1 + d->day;
+        return hyp_days_from_civil(y, 1, 1) + d->day;
     int64_t first = hyp_days_from_civil(y, (unsigned)d->month, 1);
     int wd_first = (int)(((first + 4) % 7 + 7) % 7);   /* 1970-01-01 was a Thursday */
     int mday = (d->wday - wd_first + 7) % 7 + 7 * (d->week - 1);
@@ -222,35 +221,87 @@ static int64_t year_of(int64_t t)
     return y;
 }
 
+/* Far enough for any civil use and far from int64 overflow below. */
+static int64_t clamp_s(int64_t t)
+{
+    const int64_t lim_s = (int64_t)1 << 50;
+    return t < -lim_s ? -lim_s : t > lim_s ? lim_s : t;
+}
+
+/* The UTC instants of year y's changes, in order of occurrence: at_s[k]
+ * is to DST when dst[k]. A change is stated in the local time in force
+ * before it (POSIX.1-2017 section 8.3). */
+static void year_changes(const hyp_tz_rule *r, int64_t y, int64_t at_s[2], int dst[2])
+{
+    int64_t on = rule_day(&r->start, y) * 86400 + r->start.time_s - r->std_off_s;
+    int64_t off = rule_day(&r->end, y) * 86400 + r->end.time_s - r->dst_off_s;
+    int on_first = on <= off;
+    at_s[0] = on_first ? on : off;
+    at_s[1] = on_first ? off : on;
+    dst[0] = on_first;
+    dst[1] = !on_first;
+}
+
+/* How far a change can fall outside its year: day 365 of a common year
+ * is Jan 1 of the next (1 day), a rule time up to 167 h, offsets up to
+ * 25 h. */
+#define SPILL_S ((int64_t)9 * 86400)
+
 int32_t hyp__tz_rule_offset(const hyp_tz_rule *r, int64_t utc_s)
 {
     if (!r->has_dst)
         return r->std_off_s;
-    /* Far enough for any civil use and far from int64 overflow below. */
-    const int64_t lim_s = (int64_t)1 << 50;
-    int64_t t = utc_s < -lim_s ? -lim_s : utc_s > lim_s ? lim_s : utc_s;
-    /* The state at t is set by the latest change at or before t. A change
-     * is stated in the local time in force before it (POSIX), and rule
-     * times of up to 167 h can carry a change into the next year, so the
-     * changes of the two years before t's year and the one after are
-     * looked at too. Changes are taken in order of occurrence, so of two
-     * at the same instant the later one wins: with RFC 8536 3.3.1's
-     * all-year DST ("EST5EDT,0/0,J365/25") next year's start falls on
-     * this year's end and DST stays in force. */
-    int64_t y0 = year_of(t), best_s = INT64_MIN;
+    /* The state at t is set by the latest change at or before t. Years
+     * are taken from the last whose changes can reach t backwards, until
+     * the changes of the years before must all be earlier than the one
+     * found. Of two changes at one instant the later in the calendar
+     * wins: with RFC 8536 3.3.1's all-year DST ("EST5EDT,0/0,J365/25")
+     * next year's start falls on this year's end and DST stays. */
+    int64_t t = clamp_s(utc_s), best_s = INT64_MIN, y_hi = year_of(t + SPILL_S);
     int dst = 0;
-    for (int64_t y = y0 - 2; y <= y0 + 1; y++) {
-        const int64_t at_s[2] = {   /* [0] to DST, [1] back */
-            rule_day(&r->start, y) * 86400 + r->start.time_s - r->std_off_s,
-            rule_day(&r->end, y) * 86400 + r->end.time_s - r->dst_off_s};
-        const int earlier = at_s[0] <= at_s[1] ? 0 : 1;
-        for (int k = 0; k < 2; k++) {
-            int i = k == 0 ? earlier : 1 - earlier;
-            if (at_s[i] <= t && at_s[i] >= best_s) {
-                best_s = at_s[i];
-                dst = i == 0;
+    for (int64_t y = y_hi; y >= y_hi - 3; y--) {
+        int64_t at_s[2];
+        int to_dst[2];
+        year_changes(r, y, at_s, to_dst);
+        for (int k = 1; k >= 0; k--)   /* backwards too: a tie goes to the later */
+            if (at_s[k] <= t && at_s[k] > best_s) {
+                best_s = at_s[k];
+                dst = to_dst[k];
             }
-        }
+        if (best_s >= hyp_days_from_civil(y, 1, 1) * 86400 + SPILL_S)
+            break;   /* year y-1's changes are all at or before that */
     }
     return dst ? r->dst_off_s : r->std_off_s;
+}
+
+size_t hyp__tz_rule_changes(const hyp_tz_rule *r, int64_t after_s, int64_t upto_s, int64_t *at_s,
+                            int32_t *off_s, size_t cap)
+{
+    size_t n = 0;
+    if (!r->has_dst)
+        return 0;
+    after_s = clamp_s(after_s);
+    upto_s = clamp_s(upto_s);
+    for (int64_t y = year_of(after_s - SPILL_S), y1 = year_of(upto_s + SPILL_S); y <= y1; y++) {
+        int64_t c[2];
+        int to_dst[2];
+        year_changes(r, y, c, to_dst);
+        for (int k = 0; k < 2; k++)
+            if (c[k] > after_s && c[k] <= upto_s && n < cap) {
+                at_s[n] = c[k];
+                off_s[n++] = to_dst[k] ? r->dst_off_s : r->std_off_s;
+            }
+    }
+    /* Few: an insertion sort, stable so that of two changes at one
+     * instant the later stays last, as in hyp__tz_rule_offset. */
+    for (size_t i = 1; i < n; i++)
+        for (size_t j = i; j > 0 && at_s[j - 1] > at_s[j]; j--) {
+            int64_t a = at_s[j];
+            int32_t o = off_s[j];
+            at_s[j] = at_s[j - 1];
+            off_s[j] = off_s[j - 1];
+            at_s[j - 1] = a;
+            off_s[j - 1] = o;
+        }
+    return n;
 }

@@ -18,4 +18,11 @@ const char *hyp__tz_rule_parse(hyp_tz_rule *r, const char **pp, int v3);
  * no allocation, any utc_s. */
 int32_t hyp__tz_rule_offset(const hyp_tz_rule *r, int64_t utc_s);
 
+/* The rule's changes in (after_s, upto_s], ascending: at most cap
+ * instants to at_s and the offsets from them on to off_s; returns how
+ * many. Changes that leave the offset as it was (DST all year) are listed
+ * too; of two at one instant the one that wins comes last. */
+size_t hyp__tz_rule_changes(const hyp_tz_rule *r, int64_t after_s, int64_t upto_s, int64_t *at_s,
+                            int32_t *off_s, size_t cap);
+
 #endif
