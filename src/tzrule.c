@@ -71,8 +71,10 @@ static const char *read_hms(const char **pp, int sign_ok, long max_h, int32_t *o
         *pp = at;
         if (h < 0)
             return "expected hours";
-        return max_h == 24 ? "expected hours 0-24 (beyond 24 only in rule times of TZif version 3+)"
-                           : "expected hours -167..167";
+        if (max_h > 24)
+            return "expected hours -167..167";
+        return sign_ok ? "expected hours 0-24"
+                       : "expected hours 0-24 (rule times beyond 24 h need TZif version 3 or later)";
     }
     for (int part = 0; part < 2 && *p == ':'; part++) {
         at = ++p;
