@@ -69,7 +69,7 @@ HYP_API hyp_status hyp_zone_parse(hyp_zone *z, const char *text,
  * epoch as if the wall clock were UTC), from the transitions or, after the
  * last one, the footer rule alike. A local time that occurs twice (an
  * overlap, when clocks go back) takes the earlier instant, the larger
- * offset (summer time); one that does not occur (a gap, when clocks go
+ * offset (usually summer time); one that does not occur (a gap, when clocks go
  * forward) takes the offset in force before the gap, so 02:30 in a gap
  * from 02:00 to 03:00 reads as 03:30 after it. */
 HYP_API int32_t hyp_zone_offset_for_local(const hyp_zone *z, int64_t local_s);
