@@ -162,6 +162,39 @@ static void test_time_tz_database(void **state)
     hyp_zone_free(&z);
 }
 
+/* After the file's last transition (2037 in Debian's tzdata) the footer
+ * rule "CET-1CEST,M3.5.0,M10.5.0/3" gives the offset. Expected values from
+ * `zdump -v -c 2040,2041 Europe/Vienna` (Debian libc-bin): CEST from
+ * 2040-03-25 01:00 UT, CET from 2040-10-28 01:00 UT; the epoch seconds
+ * from GNU date -u. */
+static void test_time_tz_footer_vienna(void **state)
+{
+    (void)state;
+    struct stat st;
+    if (stat("/usr/share/zoneinfo/Europe/Vienna", &st) != 0) {
+        print_message("skipped: /usr/share/zoneinfo/Europe/Vienna absent (install tzdata)\n");
+        skip();
+    }
+    hyp_zone z;
+    hyp_zone_init(&z);
+    hyp_error err;
+    assert_int_equal(hyp_zone_parse(&z, "Europe/Vienna", NULL, &err), HYP_OK);
+    double t;
+    /* the regression: read as CET (11:00Z) before the footer was used */
+    assert_int_equal(hyp_time_parse("2040-07-15T12:00:00", &z, &t), HYP_TIME_OK);
+    assert_near(t, 2225959200.0, 1e-9);   /* 2040-07-15T10:00:00Z, CEST */
+    assert_int_equal(hyp_time_parse("2040-01-15T12:00:00", &z, &t), HYP_TIME_OK);
+    assert_near(t, 2210238000.0, 1e-9);   /* 11:00Z, CET */
+    /* the rule's gap and overlap read as the transitions' are (timeparse.h):
+     * 02:30 on 2040-03-25 does not exist: the offset before the gap (+01) */
+    assert_int_equal(hyp_time_parse("2040-03-25T02:30:00", &z, &t), HYP_TIME_OK);
+    assert_near(t, 2216251800.0, 1e-9);   /* 01:30Z */
+    /* 02:30 on 2040-10-28 happens twice: the earlier, summer time (+02) */
+    assert_int_equal(hyp_time_parse("2040-10-28T02:30:00", &z, &t), HYP_TIME_OK);
+    assert_near(t, 2234997000.0, 1e-9);   /* 00:30Z */
+    hyp_zone_free(&z);
+}
+
 static void test_time_format(void **state)
 {
     (void)state;
@@ -218,6 +251,7 @@ int main(void)
         cmocka_unit_test(test_time_bad),
         cmocka_unit_test(test_time_fixed_zone),
         cmocka_unit_test(test_time_tz_database),
+        cmocka_unit_test(test_time_tz_footer_vienna),
         cmocka_unit_test(test_time_format),
         cmocka_unit_test(test_fmt_fixed),
     };
