@@ -302,6 +302,8 @@ typedef struct hyp_point_detail {
     double offset_pa;          /* rover offset applied, Pa */
     double tcol_k;             /* column mean virtual temperature used, K */
     double budget_m[HYP_B_COUNT];
+    double sens_m_per_pa;      /* the height gained per Pa the rover pressure
+                                  falls (-dh/dp), m/Pa */
 } hyp_point_detail;
 
 /* The details of point i of a result, recomputed from the inputs: the
