@@ -147,7 +147,7 @@ static void fill(hyp__net *N, const layout *L, const hyp__adj_result *a)
         o->redundancy = a->r[row];
         if (a->flag[row] & HYP_ADJ_REJECTED) {
             o->rejected = 1;
-            r->n_rejected += o->kind == HYP_OBS_OCCUPATION;
+            r->n_rejected++;
             snprintf(o->flag, sizeof o->flag, "rejected: |w| beyond %.2f (Baarda's w-test, alpha %g)", a->w_crit,
                      N->o->alpha_w);
         } else if (a->flag[row] & HYP_ADJ_OUTLIER) {

@@ -134,16 +134,21 @@ static void text_tests(FILE *f, const hyp_network_result *r)
                                                                    : "FAILED (the sigmas are larger than the scatter)");
     fprintf(f, "  sigmas    %s\n", r->scaled ? "a-posteriori: scaled by the variance factor (the global test's upper side failed)"
                                              : "a-priori (from the error budgets; not scaled)");
-    fprintf(f, "  w-test    Baarda's, alpha %g, critical |w| %.2f; data snooping: %zu occupation(s) rejected\n", r->alpha_w,
+    fprintf(f, "  w-test    Baarda's, alpha %g, critical |w| %.2f; data snooping: %zu observation(s) rejected\n", r->alpha_w,
             r->w_crit, r->n_rejected);
     for (size_t i = 0; i < r->n_obs; i++) {
         const hyp_network_obs *o = &r->obs[i];
-        if (!o->flag[0] || o->kind != HYP_OBS_OCCUPATION)
+        if (!o->flag[0])
             continue;
         char a[40];
         hyp_time_format(o->start_s, a, sizeof a);
-        fprintf(f, "            %s by %s from %s (%s", r->stations.name[o->station], r->tracks[o->track].name, a,
-                source_name(o->source));
+        if (o->kind == HYP_OBS_OCCUPATION)
+            fprintf(f, "            %s by %s from %s (%s", r->stations.name[o->station], r->tracks[o->track].name, a,
+                    source_name(o->source));
+        else if (o->kind == HYP_OBS_CONTROL)
+            fprintf(f, "            control height of %s (%.3f m", r->stations.name[o->station], o->observed_m);
+        else
+            fprintf(f, "            %s of %s from %s (", kind_name(o->kind), r->tracks[o->track].name, a);
         if (o->line)
             fprintf(f, ", line %u", o->line);
         fprintf(f, "): ");

@@ -123,7 +123,8 @@ typedef struct hyp_network_result {
     size_t n_tracks;
     hyp_network_obs *obs;
     size_t n_obs;
-    size_t n_unknowns, n_used, dof, n_rejected;
+    size_t n_unknowns, n_used, dof;
+    size_t n_rejected;                /* observations of any kind rejected */
     double vtpv, s0_sq, chi2_lower, chi2_upper, w_crit, alpha_global, alpha_w;
     int global_pass;                  /* 1 passed, 0 failed, -1 no test (dof 0) */
     int scaled;                       /* sigmas scaled by the variance factor */
