@@ -161,6 +161,16 @@ hyp_status hyp__net_occupation(hyp__net *N, size_t k, const hyp_rover_run *run, 
         snprintf(o->flag, sizeof o->flag, "not used: %zu corrected samples in the window (3 needed)", n);
         return HYP_OK;
     }
+    /* beside the base the samples already observe the offset (a
+     * co-location): used twice they would count as independent evidence */
+    for (size_t j = 0; j + 1 < N->r->n_obs; j++) {
+        const hyp_network_obs *co = &N->r->obs[j];
+        if (co->kind == HYP_OBS_COLOCATION && co->track == k && co->start_s < win->t1 && win->t0 < co->end_s) {
+            snprintf(o->flag, sizeof o->flag, "not used: the rover stood beside the base then (a co-location uses "
+                     "these samples)");
+            return HYP_OK;
+        }
+    }
     double nn = (double)n, rw = c * sqrt(N->q_pa2_per_s * drift_distance_s(N, k, tm));
     o->observed_m = sum_h / nn;
     o->sigma_m = sqrt(noise2 / nn / nn + other2 / nn + rw * rw);
@@ -222,6 +232,8 @@ static hyp_status open_result(hyp__net *N, const char *const *rovers, size_t n, 
     hyp_msgs_init(&r->msgs);
     hyp_benchmarks_init(&r->stations);
     r->out_ref = N->sv->o.out_ref;
+    r->stations_path = N->o->stations_path;
+    r->fieldbook_path = N->o->fieldbook_path;
     if (!N->o->stations_path)
         return hyp_error_set(err, HYP_ERR_USAGE, "no stations file given (--stations)");
     hyp_status st = hyp_stations_read(N->o->stations_path, N->o->control_sigma_m, &r->stations, &r->msgs, err);

@@ -9,6 +9,7 @@
 #include "hypsolev/writers.h"
 
 #include <math.h>
+#include <stdlib.h>
 #include <string.h>
 
 static const char *kind_name(hyp_obs_kind k)
@@ -230,30 +231,54 @@ void hyp_network_write_text(FILE *f, const hyp_network_result *r)
     fprintf(f, "  (not for aviation or navigation; survey deliverables defer to local codes and licensed surveyors)\n");
 }
 
-static hyp__outfile *stage(hyp__outset *set, const hyp_survey *sv, const char *path, const char *opt, hyp_error *err)
+static const char *out_opts[4] = {"-o", "--gpx", "--residuals", "--report"};
+
+hyp_status hyp_network_check_outputs(const hyp_survey *sv, const hyp_network_opts *o, const char *const *rovers,
+                                     size_t n, const hyp_network_outputs *out, hyp_error *err)
 {
-    if (strcmp(path, "-") != 0 && hyp__survey_is_input(sv, path, NULL, 0)) {
-        hyp_error_set(err, HYP_ERR_USAGE, "%s: %s would overwrite an input; choose another name", path, opt);
-        return NULL;
+    const char *paths[4] = {out->stations_csv, out->gpx, out->residuals_csv, out->report};
+    for (int k = 0; k < 4; k++) {
+        if (!paths[k])
+            continue;
+        if (!paths[k][0])
+            return hyp_error_set(err, HYP_ERR_USAGE, "%s \"\": an output needs a file name", out_opts[k]);
+        int dash = strcmp(paths[k], "-") == 0;
+        for (int j = 0; j < k; j++)
+            if (paths[j] && !dash && (strcmp(paths[j], paths[k]) == 0 || hyp_same_file(paths[j], paths[k])))
+                return hyp_error_set(err, HYP_ERR_USAGE, "%s: named by both %s and %s; give each output its own name",
+                                     paths[k], out_opts[j], out_opts[k]);
+        if (!dash && (hyp__survey_is_input(sv, paths[k], rovers, n) ||
+                      (o && o->stations_path && hyp_same_file(o->stations_path, paths[k])) ||
+                      (o && o->fieldbook_path && hyp_same_file(o->fieldbook_path, paths[k]))))
+            return hyp_error_set(err, HYP_ERR_USAGE, "%s: %s would overwrite an input; choose another name", paths[k],
+                                 out_opts[k]);
     }
-    return hyp__outset_add(set, path, err);
+    return HYP_OK;
 }
 
 hyp_status hyp_network_write(const hyp_survey *sv, const hyp_network_result *r, const hyp_network_outputs *out,
                              hyp_error *err)
 {
     const char *paths[4] = {out->stations_csv, out->gpx, out->residuals_csv, out->report};
-    static const char *opts[4] = {"-o", "--gpx", "--residuals", "--report"};
-    for (int k = 0; k < 4; k++)
-        for (int j = 0; j < k && paths[k]; j++)
-            if (paths[j] && strcmp(paths[j], paths[k]) == 0 && strcmp(paths[k], "-") != 0)
-                return hyp_error_set(err, HYP_ERR_USAGE, "%s: named by both %s and %s", paths[k], opts[j], opts[k]);
+    hyp_network_opts no;
+    hyp_network_opts_init(&no);
+    no.stations_path = r->stations_path;
+    no.fieldbook_path = r->fieldbook_path;
+    const char **rovers = calloc(r->n_tracks + 1, sizeof *rovers);
+    if (!rovers)
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    for (size_t k = 0; k < r->n_tracks; k++)
+        rovers[k] = r->tracks[k].path;
+    hyp_status st = hyp_network_check_outputs(sv, &no, rovers, r->n_tracks, out, err);
+    free(rovers);
+    if (st)
+        return st;
     hyp__outset set;
     hyp__outset_init(&set);
     for (int k = 0; k < 4; k++) {
         if (!paths[k])
             continue;
-        hyp__outfile *o = stage(&set, sv, paths[k], opts[k], err);
+        hyp__outfile *o = hyp__outset_add(&set, paths[k], err);
         if (!o) {
             hyp__outset_abort(&set);
             return err->status;

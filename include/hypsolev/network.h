@@ -128,9 +128,14 @@ typedef struct hyp_network_result {
     double vtpv, s0_sq, chi2_lower, chi2_upper, w_crit, alpha_global, alpha_w;
     int global_pass;                  /* 1 passed, 0 failed, -1 no test (dof 0) */
     int scaled;                       /* sigmas scaled by the variance factor */
-    int tests_failed;                 /* the global test failed or an occupation was rejected */
+    int tests_failed;                 /* the global test failed on its upper side (the
+                                         observations scatter more than their sigmas
+                                         say) or an observation was rejected; a
+                                         failure on the lower side (sigmas larger
+                                         than the scatter) is reported, not failed */
     hyp_vref out_ref;
     hyp_msgs msgs;
+    const char *stations_path, *fieldbook_path;   /* the caller's strings */
 } hyp_network_result;
 
 /* Runs every rover of the survey (bases, units, zones and the rest as the
@@ -153,6 +158,10 @@ typedef struct hyp_network_outputs {
 
 HYP_API hyp_status hyp_network_write(const hyp_survey *sv, const hyp_network_result *r,
                                      const hyp_network_outputs *out, hyp_error *err);
+/* Checks before a run that the outputs are distinct and name no input
+ * (rovers, stations, field book, the survey's bases): HYP_ERR_USAGE. */
+HYP_API hyp_status hyp_network_check_outputs(const hyp_survey *sv, const hyp_network_opts *o, const char *const *rovers,
+                                             size_t n, const hyp_network_outputs *out, hyp_error *err);
 /* The summary as text: counts, the tests, rejections, per track the offset
  * and drift, repeat differences, the cautions. */
 HYP_API void hyp_network_write_text(FILE *f, const hyp_network_result *r);

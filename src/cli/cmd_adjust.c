@@ -60,6 +60,8 @@ static int run(args *a)
     hyp_survey *sv = NULL;
     hyp_network_result *res = NULL;
     hyp_status st = cli_open_survey(&a->c, &sv, &err);
+    if (!st)
+        st = hyp_network_check_outputs(sv, &a->no, (const char *const *)a->c.rovers.path, a->c.rovers.n, &a->out, &err);
     if (!st) {
         cli_signals_catch();
         st = hyp_network_run(sv, &a->no, (const char *const *)a->c.rovers.path, a->c.rovers.n, &res, &err);

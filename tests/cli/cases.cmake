@@ -154,3 +154,18 @@ hyp_cli_case(report_unwritable 1 "r.txt: cannot write: the directory does not ex
 # the option parser's own messages
 hyp_cli_case(missing_value 2 "option \"--table\" needs a value" correct ${R} ${B} ${O} --table)
 hyp_cli_case(hex_number 2 "--base-height \"0x10\": expected a number from -500 to 9000" correct ${R} --base @DATA@/base.csv --base-height 0x10 ${O})
+
+# adjust: bad input gets a clear message (exit 1), usage errors exit 2
+set(A adjust @DATA@/rover.gpx ${B} --stations @DATA@/benchmarks.csv -o @OUT@/st.csv)
+hyp_cli_case(adjust_ok 0 "hypsolev adjust: 2 stations in the file.*global" ${A} --occupations @DATA@/adjust/book.csv --no-find-occupations --control-sigma 0.5)
+hyp_cli_case(adjust_book_unknown_station 1 "book_unknown.csv:3: station \"BM-9\" is not in the stations file" ${A} --occupations @DATA@/adjust/book_unknown.csv)
+hyp_cli_case(adjust_book_overlap 1 "book_overlap.csv:3: the window on BM-2 overlaps line 2's on BM-1 for the same rover rover" ${A} --occupations @DATA@/adjust/book_overlap.csv)
+hyp_cli_case(adjust_book_outside_and_unknown_rover 0 "book_outside.csv:3: the window on BM-2 lies outside the track rover.*book_outside.csv:4: rover \"walk\" is none of the tracks given" ${A} --occupations @DATA@/adjust/book_outside.csv)
+hyp_cli_case(adjust_station_duplicate 1 "bench_duplicate.csv:3: station \"bm-1\" is listed twice" adjust @DATA@/rover.gpx ${B} --stations @DATA@/bad/bench_duplicate.csv -o @OUT@/st.csv)
+hyp_cli_case(adjust_station_off_globe 1 "bench_bad_lat.csv:2: lat 95 is outside -90 to 90" adjust @DATA@/rover.gpx ${B} --stations @DATA@/bad/bench_bad_lat.csv -o @OUT@/st.csv)
+hyp_cli_case(adjust_no_control 1 "no occupied control station and no co-location with a base: nothing fixes the heights" adjust @DATA@/rover.gpx --base @DATA@/base.csv --base-height 812.4 --stations @DATA@/adjust/stations_nocontrol.csv --occupations @DATA@/adjust/book.csv -o @OUT@/st.csv)
+hyp_cli_case(adjust_no_stations 2 "no --stations FILE given" adjust @DATA@/rover.gpx ${B} -o @OUT@/st.csv)
+hyp_cli_case(adjust_no_output 2 "no output: give -o STATIONS.csv" adjust @DATA@/rover.gpx ${B} --stations @DATA@/benchmarks.csv)
+set(HYP_CASE_INPUTS @DATA@/benchmarks.csv)
+hyp_cli_case(adjust_output_is_input 2 "benchmarks.csv: -o would overwrite an input" adjust @DATA@/rover.gpx ${B} --stations @DATA@/benchmarks.csv -o @DATA@/benchmarks.csv)
+set(HYP_CASE_INPUTS "")
