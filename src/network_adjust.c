@@ -145,6 +145,7 @@ static void fill(hyp__net *N, const layout *L, const hyp__adj_result *a)
         o->residual_m = a->v[row];
         o->w = a->w[row];
         o->redundancy = a->r[row];
+        o->used = (a->flag[row] & HYP_ADJ_USED) != 0;
         if (a->flag[row] & HYP_ADJ_REJECTED) {
             o->rejected = 1;
             r->n_rejected++;
@@ -192,10 +193,8 @@ static void station_counts(hyp__net *N)
         if (o->kind != HYP_OBS_OCCUPATION)
             continue;
         hyp_network_station *t = &r->st[o->station];
-        if (o->rejected)
-            t->rejected++;
-        else if (usable(o))
-            t->used++;
+        t->rejected += o->rejected != 0;
+        t->used += o->used != 0;
         if (o->w == o->w && !(fabs(o->w) <= t->max_abs_w))
             t->max_abs_w = fabs(o->w);
     }

@@ -148,13 +148,15 @@ static void text_tests(FILE *f, const hyp_network_result *r)
                     source_name(o->source));
         else if (o->kind == HYP_OBS_CONTROL)
             fprintf(f, "            control height of %s (%.3f m", r->stations.name[o->station], o->observed_m);
+        else if (o->kind == HYP_OBS_COLOCATION)
+            fprintf(f, "            co-location of %s from %s (with the base", r->tracks[o->track].name, a);
         else
-            fprintf(f, "            %s of %s from %s (", kind_name(o->kind), r->tracks[o->track].name, a);
+            fprintf(f, "            drift prior of %s (%.0f Pa/h", r->tracks[o->track].name, o->sigma_m);
         if (o->line)
             fprintf(f, ", line %u", o->line);
         fprintf(f, "): ");
         if (o->w == o->w)
-            fprintf(f, "w %+.2f, residual %+.3f m; ", o->w, o->residual_m);
+            fprintf(f, "w %+.2f, residual %+.3f %s; ", o->w, o->residual_m, o->kind == HYP_OBS_DRIFT_PRIOR ? "Pa/h" : "m");
         fprintf(f, "%s\n", o->flag);
     }
 }
@@ -185,7 +187,7 @@ static void text_repeats(FILE *f, const hyp_network_result *r)
         size_t n = 0;
         for (size_t i = 0; i < r->n_obs; i++) {
             const hyp_network_obs *o = &r->obs[i];
-            if (o->kind != HYP_OBS_OCCUPATION || o->station != s || o->flag[0] || !(o->residual_m == o->residual_m))
+            if (o->kind != HYP_OBS_OCCUPATION || o->station != s || !o->used || !(o->residual_m == o->residual_m))
                 continue;
             double e = -o->residual_m;   /* relative to the adjusted height */
             lo = e < lo ? e : lo, hi = e > hi ? e : hi, n++;

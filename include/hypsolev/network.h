@@ -84,11 +84,13 @@ typedef struct hyp_network_obs {
     size_t samples;
     double observed_m;        /* occupation: the mean barometric height with no
                                  offset; co-location: that minus the base height;
-                                 control: the height; drift prior: 0 (Pa/h) */
+                                 control: the height; drift prior: 0 (Pa/h:
+                                 the unit of sigma and residual there too) */
     double sigma_m;           /* a-priori 1 sigma (unit of observed) */
-    double residual_m;        /* adjusted minus observed */
+    double residual_m;        /* adjusted minus observed (unit of observed) */
     double w;                 /* standardized residual, NaN when none */
     double redundancy;        /* NaN when not used */
+    int used;                 /* in the final adjustment */
     int rejected;             /* taken out by data snooping */
     char flag[160];           /* "" or why it was rejected or left out */
     unsigned line;            /* field book line (0: none) */
