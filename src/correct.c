@@ -439,6 +439,23 @@ hyp_status hyp_correct(const hyp_series *rover, const hyp_base *bases, size_t n_
         hyp_correct_opts_init(&dflt);
         opts = &dflt;
     }
+    for (size_t k = 0; k < n_bases; k++) {
+        double lag;
+        char others[400];
+        hyp_status cst = hyp__base_clock_hours(rover, &bases[k], opts, &lag, others, sizeof others, err);
+        if (cst)
+            return cst;
+        if (lag != 0.0) {
+            int m = (int)lround(fabs(lag) / 60.0);
+            return hyp_error_set(err, HYP_ERR_VALUE,
+                                 "%s: the base's clock looks %d h %02d min %s the rover's: the rover stood beside the "
+                                 "base at times the log does not cover until it is shifted so%s%s (a log kept in local "
+                                 "or summer time and marked as UTC?); give the base's zone (--base-time-zone) or its "
+                                 "clock offset (--base-clock-offset %+.0f)", bases[k].name, m / 60, m % 60,
+                                 lag > 0 ? "ahead of" : "behind", others[0] ? "; other shifts that would: " : "",
+                                 others, bases[k].clock_offset_s + lag);
+        }
+    }
     /* With an estimated clock the first pass only finds the co-locations;
      * its messages would repeat, so they are dropped. */
     int est_clock = opts->estimate_clock && n_bases == 1;

@@ -346,6 +346,46 @@ static void test_clock_estimate(void **state)
  * the 5/25/50/75/95 % points of a 1 m sd (the anchoring's own floor, common
  * practice, no source), each with its own seed. Pooled coverage must lie in
  * 0.85-0.99 for each height reference. */
+/* A base log kept in local summer time and marked as UTC: its stamps run
+ * 1 h 30 min ahead here (a half-hour zone keeps the test honest about the
+ * 30 min steps). The rover's co-locations line up only with the shifted
+ * log: the run is refused with the offset named, and with that offset
+ * given it runs. The demo survey's own log (right clock) raises nothing. */
+static void test_base_clock_hours(void **state)
+{
+    (void)state;
+    hyp_gpx_doc d;
+    hyp_gpx_doc_init(&d);
+    hyp_series b;
+    hyp_series_init(&b);
+    hyp_error err;
+    const char *dir = HYP_SOURCE_DIR "/surveys/quenwick-tor";
+    char rover[4200], base[4200];
+    snprintf(rover, sizeof rover, "%s/rover.gpx", dir);
+    snprintf(base, sizeof base, "%s/base.csv", dir);
+    assert_int_equal(hyp_gpx_read(rover, NULL, &d, NULL, &err), HYP_OK);
+    assert_int_equal(hyp_csv_read(base, NULL, &b, NULL, NULL, &err), HYP_OK);
+    hyp_base hb;
+    hyp_base_init(&hb, &b, "base.csv", 812.4);
+    hb.lat_deg = 46.80, hb.lon_deg = 9.90;
+    hyp_correct_result r;
+    hyp_correct_result_init(&r);
+    assert_int_equal(hyp_correct(&d.pts, &hb, 1, NULL, &r, NULL, &err), HYP_OK);   /* right clock: no alarm */
+    hyp_correct_result_free(&r);
+    for (size_t i = 0; i < b.count; i++)
+        b.time_s[i] += 5400.0;
+    assert_int_equal(hyp_correct(&d.pts, &hb, 1, NULL, &r, NULL, &err), HYP_ERR_VALUE);
+    print_message("%s\n", err.message);
+    assert_non_null(strstr(err.message, "1 h 30 min ahead of"));
+    assert_non_null(strstr(err.message, "--base-clock-offset +5400"));
+    hb.clock_offset_s = 5400.0;   /* the offset the message names */
+    hyp_correct_result_init(&r);
+    assert_int_equal(hyp_correct(&d.pts, &hb, 1, NULL, &r, NULL, &err), HYP_OK);
+    hyp_correct_result_free(&r);
+    hyp_series_free(&b);
+    hyp_gpx_doc_free(&d);
+}
+
 static void test_gnss_anchor(void **state)
 {
     (void)state;
@@ -488,6 +528,7 @@ int main(void)
         cmocka_unit_test(test_scenario_ties),
         cmocka_unit_test(test_scenarios_pooled),
         cmocka_unit_test(test_clock_estimate),
+        cmocka_unit_test(test_base_clock_hours),
         cmocka_unit_test(test_gnss_anchor),
         cmocka_unit_test(test_multibase),
     };

@@ -59,11 +59,11 @@ static int run(args *a)
     hyp_error err;
     hyp_survey *sv = NULL;
     hyp_network_result *res = NULL;
+    cli_signals_catch();   /* before anything is read: a signal then still ends it in order */
     hyp_status st = cli_open_survey(&a->c, &sv, &err);
     if (!st)
         st = hyp_network_check_outputs(sv, &a->no, (const char *const *)a->c.rovers.path, a->c.rovers.n, &a->out, &err);
     if (!st) {
-        cli_signals_catch();
         st = hyp_network_run(sv, &a->no, (const char *const *)a->c.rovers.path, a->c.rovers.n, &res, &err);
         if (res)
             hyp_msgs_write(stderr, &res->msgs, a->c.quiet ? HYP_WARNING : HYP_NOTE);

@@ -67,6 +67,7 @@ static int run(args *a)
     size_t n = a->c.rovers.n;
     const char *const *rovers = (const char *const *)a->c.rovers.path;
     hyp_run_info *infos = NULL;
+    cli_signals_catch();   /* before anything is read: a signal then still ends it in order */
     hyp_status st = cli_open_survey(&a->c, &sv, &err);
     if (!st)
         st = hyp_survey_check_outputs(sv, rovers, n, &a->out, a->summary_path, &err);
@@ -74,7 +75,6 @@ static int run(args *a)
         st = hyp_error_set(&err, HYP_ERR_NOMEM, "out of memory");
     int rc = 0, progress = a->progress || (!a->c.quiet && n > 1 && isatty(2));
     if (!st) {
-        cli_signals_catch();
         hyp_survey_run_many(sv, rovers, n, &a->out, a->c.jobs, rover_done, progress ? cli_progress : cli_progress_quiet,
                             a, infos, &err);
         for (size_t i = 0; i < n; i++) {

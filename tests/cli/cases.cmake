@@ -171,3 +171,7 @@ hyp_cli_case(adjust_no_output 2 "no output: give -o STATIONS.csv" adjust @DATA@/
 set(HYP_CASE_INPUTS @DATA@/benchmarks.csv)
 hyp_cli_case(adjust_output_is_input 2 "benchmarks.csv: -o would overwrite an input" adjust @DATA@/rover.gpx ${B} --stations @DATA@/benchmarks.csv -o @DATA@/benchmarks.csv)
 set(HYP_CASE_INPUTS "")
+# a base log kept in local summer time and marked as UTC (2 h ahead): the
+# co-location lines up only with the shifted log; refused, the offset named
+hyp_cli_case(base_local_time_as_utc 1 "the base's clock looks 2 h 00 min ahead of the rover's.*--base-clock-offset \\+7200" correct ${R} --base @DATA@/bad/base_local_as_utc.csv --base-height 812.4 --base-at 46.8,9.9 ${O})
+hyp_cli_case(base_local_time_offset_given 0 "wrote" correct ${R} --base @DATA@/bad/base_local_as_utc.csv --base-height 812.4 --base-at 46.8,9.9 --base-clock-offset 7200 ${O})
