@@ -15,7 +15,7 @@
  * scenario has benchmarks. Everything is invented.
  *
  *   hypsim network|network-hard OUTDIR [--seed N] [--days D] [--rovers R]
- *          [--stations S] [--dt S] [--mislabel]
+ *          [--stations S] [--dt S] [--mislabel] [--open-tracks]
  *
  * A whole multi-day, multi-rover survey of stations in the same atmosphere
  * (network.c, which documents its files). */
@@ -535,7 +535,7 @@ int main(int argc, char **argv)
     if (argc < 3) {
         fprintf(stderr, "usage: hypsim SCENARIO OUTDIR [--seed N]\n"
                         "       hypsim network|network-hard OUTDIR [--seed N] [--days D] [--rovers R]\n"
-                        "              [--stations S] [--dt S] [--mislabel]\n");
+                        "              [--stations S] [--dt S] [--mislabel] [--open-tracks]\n");
         return 2;
     }
     const scenario *sc = NULL;

@@ -8,14 +8,20 @@
  * shared with the library. Everything (place, marks, crew) is invented.
  *
  *   hypsim network      OUTDIR [--seed N] [--days D] [--rovers R] [--stations S]
- *                       [--dt S] [--mislabel]       2 days, 2 rovers, 9 + 3 stations
+ *                       [--dt S] [--mislabel] [--open-tracks]
+ *                                                   2 days, 2 rovers, 9 + 3 stations
  *   hypsim network-hard OUTDIR [same options]       4 days, 3 rovers, 30 + 4 stations,
  *                       a stronger turning pressure gradient, a front on day 2,
- *                       larger drifts and day-to-day jumps, more body warming
+ *                       larger drifts and day-to-day jumps, more body warming,
+ *                       open tracks
  *
  * --stations counts the stations to be determined; the control marks come on
  * top (3, or 4 in network-hard; the first is the base mark). --dt is the
- * rovers' sampling interval (s, default 10). Deterministic for a seed.
+ * rovers' sampling interval (s, default 10). --open-tracks: every third
+ * track (day + rover index = 2 mod 3) does not come back to the base: it
+ * ends on its last station, a control mark or a station occupied again
+ * elsewhere (the crew is picked up there), so only the network ties its
+ * drift. Deterministic for a seed.
  *
  * Files written to OUTDIR (CSV with a header line; times ISO 8601 UTC, "Z"):
  *   stations.csv   name,lat,lon,height,sigma: degrees (WGS84), height in m
@@ -34,8 +40,8 @@
  *   fieldbook.csv  station,rover,start,end: every occupation as booked
  *                  (rover = track file name without .gpx; whole minutes at
  *                  least 15 s inside the true window), including the
- *                  co-locations on the base mark at the start and end of
- *                  each track, ordered by day, rover and time
+ *                  co-locations on the base mark at the start and (unless
+ *                  open) the end of each track, ordered by day, rover, time
  *   occupations-truth.csv  station,rover,start,end: the same occupations,
  *                  line for line, with their true windows (to the second)
  *   truth-mislabel.txt     (--mislabel only) which fieldbook line names the
@@ -75,11 +81,12 @@ typedef struct variant {
     double warming_k;          /* rover thermometer warming while walking */
     int front_day;             /* a pressure front passes on this day (0: none) */
     double front_pa;
+    int open_tracks;           /* every third track ends at its last station */
 } variant;
 
 static const variant variants[] = {
-    {"network", 2, 2, 9, 3, 3.0, 1.0, 0.01, 0.0, 4.0, 3.0, 2.5, 0, 0.0},
-    {"network-hard", 4, 3, 30, 4, 4.5, 1.4, 0.03, 15.0, 8.0, 6.0, 4.0, 2, -150.0},
+    {"network", 2, 2, 9, 3, 3.0, 1.0, 0.01, 0.0, 4.0, 3.0, 2.5, 0, 0.0, 0},
+    {"network-hard", 4, 3, 30, 4, 4.5, 1.4, 0.03, 15.0, 8.0, 6.0, 4.0, 2, -150.0, 1},
 };
 
 static const char *const control_names[] = {"BM-HOLM", "BM-TARN", "BM-RIGG", "BM-SCAR"};
@@ -103,6 +110,7 @@ typedef struct visit {
 /* One rover on one day. */
 typedef struct loop {
     int day, rover, n;
+    int open;                       /* no co-location at the end: the track stops at its last station */
     visit v[MAX_VISITS];
     double off_pa, drift_pa_h, noise_pa;
     double cen_e_km, cen_n_km;      /* where its own stations lie */
@@ -290,6 +298,21 @@ static void assign(network *nw)
             loop_add(&nw->lp[l], nw, 1 + l % (v->controls - 1));
 }
 
+/* An open track ends on a control mark or a station occupied again
+ * elsewhere (the last in walking order), so its drift stays tied. */
+static void end_on_tied_station(const network *nw, loop *l)
+{
+    for (int k = l->n - 1; k >= 0; k--) {
+        const station *s = &nw->st[l->v[k].st];
+        if (s->sigma_m > 0 || s->n_occ >= 2) {
+            visit t = l->v[k];
+            memmove(&l->v[k], &l->v[k + 1], (size_t)(l->n - 1 - k) * sizeof l->v[0]);
+            l->v[l->n - 1] = t;
+            return;
+        }
+    }
+}
+
 /* Visits in walking order: nearest station next, from the base. */
 static void order_loop(network *nw, loop *l)
 {
@@ -304,11 +327,19 @@ static void order_loop(network *nw, loop *l)
         l->v[k] = l->v[best], l->v[best] = t;
         e = nw->st[l->v[k].st].e_km, n = nw->st[l->v[k].st].n_km;
     }
-    /* the co-locations beside the base open and close the day */
+    if (l->open)
+        end_on_tied_station(nw, l);
+    /* the co-locations beside the base open (and unless open, close) the day */
     memmove(&l->v[1], &l->v[0], (size_t)l->n * sizeof l->v[0]);
     memset(&l->v[0], 0, sizeof l->v[0]);
-    memset(&l->v[l->n + 1], 0, sizeof l->v[0]);
-    l->n += 2;
+    l->n++;
+    if (!l->open)
+        memset(&l->v[l->n++], 0, sizeof l->v[0]);
+}
+
+static int is_coloc(const loop *l, int k)
+{
+    return k == 0 || (k == l->n - 1 && !l->open);
 }
 
 /* --- the timetable --- */
@@ -327,7 +358,7 @@ static void timetable(network *nw, loop *l)
     double t = T0_DAY1 + DAY_S * l->day + 300.0 * l->rover;
     for (int k = 0; k < l->n; k++) {
         visit *v = &l->v[k];
-        int coloc = k == 0 || k == l->n - 1;
+        int coloc = is_coloc(l, k);
         if (k > 0)
             t += walk_s(nw, &l->v[k - 1], v);
         v->t_on = t;
@@ -401,7 +432,9 @@ static void choose_mislabel(network *nw)
     int cand[4096][2], n = 0;
     nw->bad_loop = nw->bad_visit = nw->bad_station = -1;
     for (int l = 0; l < nw->n_loops; l++)
-        for (int k = 1; k + 1 < nw->lp[l].n && n < 4096; k++) {
+        for (int k = 1; k < nw->lp[l].n && n < 4096; k++) {
+            if (is_coloc(&nw->lp[l], k))
+                continue;
             const visit *v = &nw->lp[l].v[k];
             if (nw->st[v->st].sigma_m == 0.0 && nw->st[v->st].n_occ >= 2)
                 cand[n][0] = l, cand[n][1] = k, n++;
@@ -432,8 +465,10 @@ static int plan(network *nw)
         fprintf(stderr, "hypsim: out of memory\n");
         return 1;
     }
-    for (int l = 0; l < nw->n_loops; l++)
+    for (int l = 0; l < nw->n_loops; l++) {
         nw->lp[l].day = l / v->rovers, nw->lp[l].rover = l % v->rovers;
+        nw->lp[l].open = v->open_tracks && (nw->lp[l].day + nw->lp[l].rover) % 3 == 2;
+    }
     assign(nw);
     for (int l = 0; l < nw->n_loops; l++) {
         order_loop(nw, &nw->lp[l]);
@@ -543,9 +578,9 @@ static int write_track(const network *nw, const loop *l, const char *dir)
                "     xmlns:lg=\"urn:example:field-logger:1\">\n"
                "  <metadata><name>simulated station survey (%s), rover %c, day %d</name></metadata>\n",
             nw->var.name, 'a' + l->rover, l->day + 1);
-    for (int k = 1; k + 1 < l->n; k++) {
+    for (int k = 1; k < l->n; k++) {
         const visit *v = &l->v[k];
-        if (!v->waypoint)
+        if (!v->waypoint || is_coloc(l, k))
             continue;
         double mid = floor(0.5 * (v->t_on + v->t_off));
         size_t i = (size_t)floor((mid - f[0].time) / nw->dt_s + 0.5);
@@ -701,8 +736,9 @@ static int write_params(const network *nw, const char *dir)
         char name[64], s[40], e[40];
         rover_name(a, name, sizeof name);
         iso(a->v[0].t_on, s, sizeof s), iso(a->v[a->n - 1].t_off, e, sizeof e);
-        fprintf(f, "%s_offset_pa %.2f\n%s_drift_pa_per_h %.2f\n%s_noise_pa %.2f\n%s_start %s\n%s_end %s\n", name,
-                a->off_pa, name, a->drift_pa_h, name, a->noise_pa, name, s, name, e);
+        fprintf(f, "%s_offset_pa %.2f\n%s_drift_pa_per_h %.2f\n%s_noise_pa %.2f\n%s_start %s\n%s_end %s\n"
+                   "%s_ends_beside_base %d\n",
+                name, a->off_pa, name, a->drift_pa_h, name, a->noise_pa, name, s, name, e, name, !a->open);
     }
     return fclose(f) != 0;
 }
@@ -728,6 +764,10 @@ static int parse(network *nw, int argc, char **argv)
         int bad = 0;
         if (strcmp(o, "--mislabel") == 0) {
             nw->mislabel = 1;
+            continue;
+        }
+        if (strcmp(o, "--open-tracks") == 0) {
+            nw->var.open_tracks = 1;
             continue;
         }
         if (!val) {
@@ -768,7 +808,7 @@ int sim_network_main(int argc, char **argv)
 {
     if (argc < 2) {
         fprintf(stderr, "usage: hypsim %s OUTDIR [--seed N] [--days D] [--rovers R] [--stations S] [--dt S] "
-                        "[--mislabel]\n", argv[0]);
+                        "[--mislabel] [--open-tracks]\n", argv[0]);
         return 2;
     }
     static network nw;   /* large: not on the stack */

@@ -243,11 +243,41 @@ check_heights() {
   ! grep -q FAIL "$d.hyps" || fails=$((fails + 1))
 }
 
+# Track ends: beside the base (the last booking on the base mark) unless
+# scenario.txt says the track is open; an open track ends on a control mark
+# or on a station occupied again by another track, so its drift stays tied.
+check_ends() {
+  local d=$1 tag=$2
+  awk -v tag="$tag" '
+    FILENAME ~ /scenario.txt$/ { if ($1 ~ /_ends_beside_base$/) { r = $1; sub(/_ends_beside_base$/, "", r); closes[r] = $2 }
+                                 if ($1 == "base_mark") base = $2; next }
+    FILENAME ~ /stations.csv$/ { split($0, f, ","); if (FNR > 1 && f[4] != "") ctl[f[1]] = 1; next }
+    FNR > 1 { split($0, f, ","); last[f[2]] = f[1]; n_by[f[1]]++ }
+    END {
+      for (r in closes) {
+        if (!(r in last)) { print "FAIL: " tag ": no booking for " r; continue }
+        if (closes[r] == 1 && last[r] != base) print "FAIL: " tag ": " r " should end beside the base, ends on " last[r]
+        if (closes[r] == 0) {
+          n_open++
+          if (last[r] == base || !(last[r] in ctl || n_by[last[r]] >= 2)) print "FAIL: " tag ": open " r " ends on " last[r] ", not a tied station"
+        }
+      }
+      print tag ": " length(closes) " tracks, " n_open + 0 " open"
+    }' "$d/scenario.txt" "$d/stations.csv" "$d/fieldbook.csv" | tee "$d.ends"
+  ! grep -q FAIL "$d.ends" || fails=$((fails + 1))
+  if [ "$3" = open ]; then grep -q ", 0 open" "$d.ends" && bad "$tag: no open track"; fi
+  if [ "$3" = closed ]; then grep -q ", 0 open" "$d.ends" || bad "$tag: open tracks where none were asked"; fi
+}
+
 check_folder "$work/a" network
+check_ends "$work/a" network closed
 check_coloc "$work/a" network
 check_heights "$work/a" network
 check_folder "$work/h" network-hard
 check_coloc "$work/h" network-hard
+check_ends "$work/h" network-hard open
+"$sim" network "$work/o" --seed 11 --open-tracks || bad "run with --open-tracks"
+check_ends "$work/o" network-open-tracks open
 
 # --mislabel: every file as without it except fieldbook.csv, which differs in
 # exactly the line truth-mislabel.txt names, booked to a station > 30 m away
