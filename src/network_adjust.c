@@ -148,6 +148,9 @@ static void fill(hyp__net *N, const layout *L, const hyp__adj_result *a)
         o->used = (a->flag[row] & HYP_ADJ_USED) != 0;
         if (a->flag[row] & HYP_ADJ_REJECTED) {
             o->rejected = 1;
+            for (size_t j = 0; j < a->n_rejections; j++)   /* its w and residual when it was rejected */
+                if (a->rejections[j].obs == row)
+                    o->w = a->rejections[j].w, o->residual_m = a->rejections[j].v;
             r->n_rejected++;
             snprintf(o->flag, sizeof o->flag, "rejected: |w| beyond %.2f (Baarda's w-test, alpha %g)", a->w_crit,
                      N->o->alpha_w);

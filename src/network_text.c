@@ -132,15 +132,19 @@ static void text_tests(FILE *f, const hyp_network_result *r)
         fprintf(f, "  global    variance factor %.3f (sum of weighted squared residuals %.2f, two-sided chi-square test at "
                    "alpha %g: %.2f to %.2f): %s\n", r->s0_sq, r->vtpv, r->alpha_global, r->chi2_lower, r->chi2_upper,
                 r->global_pass ? "passed" : r->vtpv > r->chi2_upper ? "FAILED (the observations scatter more than their sigmas say)"
-                                                                   : "FAILED (the sigmas are larger than the scatter)");
+                                                                   : "below the lower bound: the sigmas are larger than the "
+                                                                     "scatter (cautious; reported, not failed)");
     fprintf(f, "  sigmas    %s\n", r->scaled ? "a-posteriori: scaled by the variance factor (the global test's upper side failed)"
                                              : "a-priori (from the error budgets; not scaled)");
     fprintf(f, "  w-test    Baarda's, alpha %g, critical |w| %.2f; data snooping: %zu observation(s) rejected\n", r->alpha_w,
             r->w_crit, r->n_rejected);
+    size_t beside = 0;
     for (size_t i = 0; i < r->n_obs; i++) {
         const hyp_network_obs *o = &r->obs[i];
-        if (!o->flag[0])
+        if (!o->rejected && !(o->used && o->flag[0])) {
+            beside += o->flag[0] != 0;   /* not used: listed in --residuals */
             continue;
+        }
         char a[40];
         hyp_time_format(o->start_s, a, sizeof a);
         if (o->kind == HYP_OBS_OCCUPATION)
@@ -159,6 +163,9 @@ static void text_tests(FILE *f, const hyp_network_result *r)
             fprintf(f, "w %+.2f, residual %+.3f %s; ", o->w, o->residual_m, o->kind == HYP_OBS_DRIFT_PRIOR ? "Pa/h" : "m");
         fprintf(f, "%s\n", o->flag);
     }
+    if (beside)
+        fprintf(f, "            %zu booked or found occupation(s) not used (beside the base, or too few samples: "
+                   "--residuals lists them)\n", beside);
 }
 
 static void text_tracks(FILE *f, const hyp_network_result *r)

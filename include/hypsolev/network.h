@@ -88,7 +88,9 @@ typedef struct hyp_network_obs {
                                  the unit of sigma and residual there too) */
     double sigma_m;           /* a-priori 1 sigma (unit of observed) */
     double residual_m;        /* adjusted minus observed (unit of observed) */
-    double w;                 /* standardized residual, NaN when none */
+    double w;                 /* standardized residual, NaN when none (a
+                                 rejected one: w and residual of the
+                                 adjustment that rejected it) */
     double redundancy;        /* NaN when not used */
     int used;                 /* in the final adjustment */
     int rejected;             /* taken out by data snooping */
