@@ -209,6 +209,58 @@ static void station_counts(hyp__net *N)
         }
 }
 
+static size_t uf_find(size_t *up, size_t i)
+{
+    while (up[i] != i)
+        i = up[i] = up[up[i]];
+    return i;
+}
+
+/* Every group of unknowns linked by observations must hold a height that
+ * is known: a control station or a co-location with a base (a drift prior
+ * fixes no height). A group without one is named: its stations and
+ * tracks, which nothing ties to the rest. */
+static hyp_status check_tied(const hyp__net *N, const layout *L, hyp_error *err)
+{
+    const hyp_network_result *r = N->r;
+    size_t n = L->n_unknowns;
+    size_t *up = malloc((n ? n : 1) * sizeof *up);
+    unsigned char *tied = calloc(n ? n : 1, 1);
+    if (!up || !tied) {
+        free(up);
+        free(tied);
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    }
+    for (size_t j = 0; j < n; j++)
+        up[j] = j;
+    for (size_t row = 0; row < L->n_rows; row++)
+        for (size_t t = 1; t < L->rows[row].n_terms; t++)
+            up[uf_find(up, L->rows[row].terms[t].unknown)] = uf_find(up, L->rows[row].terms[0].unknown);
+    for (size_t row = 0; row < L->n_rows; row++) {
+        hyp_obs_kind k = r->obs[L->row_obs[row]].kind;
+        if (k == HYP_OBS_CONTROL || k == HYP_OBS_COLOCATION)
+            tied[uf_find(up, L->rows[row].terms[0].unknown)] = 1;
+    }
+    char list[700] = "";
+    size_t named = 0, loose = 0;
+    for (size_t j = 0; j < n; j++) {
+        if (tied[uf_find(up, j)] || strstr(L->names[j], " drift"))
+            continue;
+        loose++;
+        size_t l = strlen(list);
+        if (named++ < 12 && l + 80 < sizeof list)
+            snprintf(list + l, sizeof list - l, "%s%s", l ? ", " : "", L->names[j]);
+    }
+    free(up);
+    free(tied);
+    if (!loose)
+        return HYP_OK;
+    return hyp_error_set(err, HYP_ERR_NODATA,
+                         "nothing ties these to a control station or a base: %s%s (no co-location on these tracks, no "
+                         "control station and no station shared with a tied track among these); book or find an "
+                         "occupation linking them, or a co-location", list, named > 12 ? " and more" : "");
+}
+
 hyp_status hyp__net_adjust(hyp__net *N, hyp_error *err)
 {
     hyp_network_result *r = N->r;
@@ -223,6 +275,8 @@ hyp_status hyp__net_adjust(hyp__net *N, hyp_error *err)
     layout L = {0};
     if (!st)
         st = build(N, occupied, &L, err);
+    if (!st)
+        st = check_tied(N, &L, err);
     hyp__adj_opts ao;
     hyp__adj_opts_default(&ao);
     ao.alpha_w = N->o->alpha_w;

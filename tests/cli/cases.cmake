@@ -175,3 +175,7 @@ set(HYP_CASE_INPUTS "")
 # co-location lines up only with the shifted log; refused, the offset named
 hyp_cli_case(base_local_time_as_utc 1 "the base's clock looks 2 h 00 min ahead of the rover's.*--base-clock-offset \\+7200" correct ${R} --base @DATA@/bad/base_local_as_utc.csv --base-height 812.4 --base-at 46.8,9.9 ${O})
 hyp_cli_case(base_local_time_offset_given 0 "wrote" correct ${R} --base @DATA@/bad/base_local_as_utc.csv --base-height 812.4 --base-at 46.8,9.9 --base-clock-offset 7200 ${O})
+# a track tied to nothing (no co-location, no control, no shared station):
+# its stations and its offset are named
+set(SK ${PROJECT_SOURCE_DIR}/surveys/skelvorn-moor)
+hyp_cli_case(adjust_untied_block 1 "nothing ties these to a control station or a base: .*GR05, GR06, rb-day1 offset" adjust ${SK}/ra-day1.gpx ${SK}/rb-day1.gpx --stations ${SK}/stations.csv --base-dir ${SK} --occupations @DATA@/adjust/book_singular.csv --no-find-occupations --no-auto-colocate -o @OUT@/st.csv)
