@@ -14,6 +14,8 @@
 #include "hypsolev/hypsolev.h"
 
 #include <glob.h>
+#include <sys/stat.h>
+#include <libxml/xmlschemas.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -284,6 +286,36 @@ static void test_mislabelled_booking(void **state)
         }
     assert_int_equal(rejected, 1);
     assert_true(r->tests_failed);
+    /* the stations as GPX 1.1 waypoints: valid against the GPX schema and
+     * the project's own for its namespace (../shared/gpx beside the
+     * checkout; skipped with a message where it is absent) */
+    char gpx[4300], wrap[4400], xsd[4200];
+    snprintf(gpx, sizeof gpx, "%s/stations.gpx", dir);
+    hyp_network_outputs out = {.gpx = gpx};
+    hyp_error err;
+    assert_int_equal(hyp_network_write(sv, r, &out, &err), HYP_OK);
+    snprintf(xsd, sizeof xsd, "%s/../shared/gpx/gpx-1.1.xsd", HYP_SOURCE_DIR);
+    struct stat sb;
+    if (stat(xsd, &sb) != 0)
+        print_message("schema check skipped: %s absent (the shared folder is not beside this checkout)\n", xsd);
+    else {
+        snprintf(wrap, sizeof wrap, "%s.wrap.xsd", gpx);
+        FILE *w = fopen(wrap, "w");
+        assert_non_null(w);
+        fprintf(w, "<xsd:schema xmlns:xsd=\"http://www.w3.org/2001/XMLSchema\">\n"
+                   "<xsd:import namespace=\"http://www.topografix.com/GPX/1/1\" schemaLocation=\"%s\"/>\n"
+                   "<xsd:import namespace=\"urn:hypsolev:gpx:1\" schemaLocation=\"%s/docs/hypsolev-gpx-1.xsd\"/>\n"
+                   "</xsd:schema>\n", xsd, HYP_SOURCE_DIR);
+        fclose(w);
+        xmlSchemaParserCtxtPtr pc = xmlSchemaNewParserCtxt(wrap);
+        xmlSchemaPtr schema = xmlSchemaParse(pc);
+        assert_non_null(schema);
+        xmlSchemaValidCtxtPtr vc = xmlSchemaNewValidCtxt(schema);
+        assert_int_equal(xmlSchemaValidateFile(vc, gpx, 0), 0);
+        xmlSchemaFreeValidCtxt(vc);
+        xmlSchemaFree(schema);
+        xmlSchemaFreeParserCtxt(pc);
+    }
     long s = hyp_benchmarks_find(&r->stations, booked);
     assert_true(s >= 0);
     double e = r->st[s].height_m - truth_of(t, booked);
