@@ -279,22 +279,26 @@ static size_t zone_changes(const hyp_zone *z, int64_t from_s, int64_t to_s, int6
     return n;
 }
 
-int32_t hyp_zone_offset_for_local(const hyp_zone *z, int64_t local_s)
+/* The offsets that read local_s: their count, 1 (ordinary), 2 or more
+ * (a clock set back: off[0] the largest offset, the earliest instant;
+ * off[1] the smallest, the latest) or 0 (a clock set forward skipped it:
+ * off[0] = off[1], the offset in force before the gap). */
+static int local_offsets(const hyp_zone *z, int64_t local_s, int32_t off2[2])
 {
-    if (!z || z->kind != 2)
-        return z && z->kind == 1 ? z->offset_s : 0;
+    if (!z || z->kind != 2) {
+        off2[0] = off2[1] = z && z->kind == 1 ? z->offset_s : 0;
+        return 1;
+    }
     /* The instant is local_s - offset with |offset| < 26 h (RFC 8536
      * section 3.2 bounds utoff to -24:59:59..+25:59:59), so only the
      * stretches of constant offset within 26 h of local_s matter. A
      * stretch [at[i], at[i+1]) with offset off[i] reads local_s when
      * local_s - off[i] falls inside it. Transitions and the footer rule
-     * are listed alike, so both get the same choice: of several readings
-     * (an overlap) the earliest instant, the largest offset; with none (a
-     * gap) the offset in force before the gap. */
+     * are listed alike, so both get the same choice. */
     const int64_t w_s = 26 * 3600, lim_s = (int64_t)1 << 50;
     local_s = local_s < -lim_s ? -lim_s : local_s > lim_s ? lim_s : local_s;
     int64_t at[MAX_CHANGES + 2];
-    int32_t off[MAX_CHANGES + 1], best = 0;
+    int32_t off[MAX_CHANGES + 1];
     at[0] = local_s - w_s;
     off[0] = offset_at_utc(z, at[0]);
     size_t n = zone_changes(z, at[0], local_s + w_s, at + 1, off + 1), m = 0;
@@ -309,17 +313,30 @@ int32_t hyp_zone_offset_for_local(const hyp_zone *z, int64_t local_s)
     int found = 0;
     for (size_t i = 0; i <= n; i++) {
         int64_t u = local_s - off[i];
-        if (u >= at[i] && u < at[i + 1] && (!found || off[i] > best)) {
-            best = off[i];
-            found = 1;
+        if (u >= at[i] && u < at[i + 1]) {
+            if (!found || off[i] > off2[0])
+                off2[0] = off[i];
+            if (!found || off[i] < off2[1])
+                off2[1] = off[i];
+            found++;
         }
     }
     if (found)
-        return best;
+        return found == 1 || off2[0] == off2[1] ? 1 : found;
+    off2[0] = off2[1] = off[0];
     for (size_t i = 1; i <= n; i++)   /* the change whose gap holds local_s */
-        if (at[i] + off[i - 1] <= local_s && local_s < at[i] + off[i])
-            return off[i - 1];
-    return off[0];
+        if (at[i] + off[i - 1] <= local_s && local_s < at[i] + off[i]) {
+            off2[0] = off2[1] = off[i - 1];
+            break;
+        }
+    return 0;
+}
+
+int32_t hyp_zone_offset_for_local(const hyp_zone *z, int64_t local_s)
+{
+    int32_t off[2];
+    local_offsets(z, local_s, off);
+    return off[0];   /* overlap: the earliest instant; gap: the offset before it */
 }
 
 static int digits(const char *s, int n, int *v)
@@ -360,6 +377,14 @@ static hyp_time_result parse_epoch(const char *s, double *time_s)
 
 hyp_time_result hyp_time_parse(const char *text, const hyp_zone *zone, double *time_s)
 {
+    return hyp_time_parse_zoned(text, zone, time_s, NULL);
+}
+
+hyp_time_result hyp_time_parse_zoned(const char *text, const hyp_zone *zone, double *time_s,
+                                     hyp_time_local *how)
+{
+    if (how)
+        memset(how, 0, sizeof *how);
     const char *s = text;
     while (*s == ' ' || *s == '\t')
         s++;
@@ -418,7 +443,17 @@ hyp_time_result hyp_time_parse(const char *text, const hyp_zone *zone, double *t
     if (!has_zone) {
         if (!zone || zone->kind == 0)
             return HYP_TIME_NOZONE;
-        off = hyp_zone_offset_for_local(zone, local);
+        int32_t cand[2];
+        int n = local_offsets(zone, local, cand);
+        off = cand[0];
+        if (how) {
+            how->zoned = 1;
+            how->offset_s = off;
+            how->repeated = n == 2;
+            how->skipped = n == 0;
+            how->second_offset_s = cand[1];
+            how->second_s = (double)(local - cand[1]) + frac;
+        }
     }
     *time_s = (double)(local - off) + frac;
     return HYP_TIME_OK;

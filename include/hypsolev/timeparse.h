@@ -88,6 +88,25 @@ typedef enum hyp_time_result {
  * refused). Leading and trailing blanks are ignored. */
 HYP_API hyp_time_result hyp_time_parse(const char *text, const hyp_zone *zone,
                                double *time_s);
+/* How a stamp without a zone of its own was read in the zone given. */
+typedef struct hyp_time_local {
+    int zoned;               /* 1: the stamp had no zone and was read in `zone` */
+    int32_t offset_s;        /* the UTC offset used (s east of UTC) */
+    int repeated;            /* 1: a wall-clock time that happens twice (the
+                                clock was set back): *time_s is the first
+                                occurrence, second_s the second */
+    int skipped;             /* 1: a wall-clock time that never happened (the
+                                clock was set forward over it): read with the
+                                offset before the change */
+    double second_s;         /* repeated: the second occurrence (s since the epoch) */
+    int32_t second_offset_s; /* repeated: its UTC offset */
+} hyp_time_local;
+
+/* As hyp_time_parse, and fills *how (may be NULL) for a stamp read in
+ * `zone`, so that a reader can place repeated wall-clock times by the
+ * stamps around them. */
+HYP_API hyp_time_result hyp_time_parse_zoned(const char *text, const hyp_zone *zone,
+                                     double *time_s, hyp_time_local *how);
 /* Formats time_s as "YYYY-MM-DDThh:mm:ss[.fff]Z" (milliseconds only when
  * not whole). buf needs 32 bytes. */
 HYP_API void hyp_time_format(double time_s, char *buf, size_t n);
