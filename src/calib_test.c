@@ -421,8 +421,12 @@ static void read_global(hyp_calib_test *ct, const hyp__adj_result *res)
                : res->global == HYP_ADJ_GLOBAL_HIGH ? HYP_GLOBAL_HIGH : HYP_GLOBAL_NONE;
 }
 
-/* Half the spread of the suspects' offsets (of every kept calibration
- * when fewer than two are suspect), Pa. */
+/* The widening when the test cannot tell which calibration is wrong, Pa:
+ * the range D of the suspects' offsets (of every kept calibration when
+ * fewer than two are suspect) over sqrt(2). The fit passes through the
+ * suspects, so at a suspect's time the error is 0 if it is right and D if
+ * it is the wrong one: D / sqrt(2) is the root mean square over the two
+ * cases, and two sigmas cover D. */
 static double suspect_spread(const hyp_correct_result *r)
 {
     double lo = INFINITY, hi = -INFINITY;
@@ -433,7 +437,7 @@ static double suspect_spread(const hyp_correct_result *r)
             continue;
         lo = fmin(lo, c->offset_pa), hi = fmax(hi, c->offset_pa);
     }
-    return hi > lo ? 0.5 * (hi - lo) : 0.0;
+    return hi > lo ? (hi - lo) / sqrt(2.0) : 0.0;
 }
 
 static void set_state(hyp_correct_result *r)

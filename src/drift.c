@@ -25,9 +25,9 @@
  * every height are what they were before the test existed, and the
  * budget's fit term keeps the covariance it was built on; the engine's job
  * is the test. When the test cannot tell which calibration is wrong, the
- * knots' covariance is widened by half the suspects' spread (fully
- * correlated: an unknown common offset), so the sigmas cover either
- * being right. */
+ * knots' covariance is widened by the suspects' range of offsets over
+ * sqrt(2) (fully correlated: an unknown common offset), so the sigmas
+ * cover either being right. */
 #include "correct_int.h"
 #include "calib_test.h"
 #include "svd_solve.h"
@@ -263,7 +263,8 @@ static void test_clear(hyp_correct_result *r)
 }
 
 /* The test cannot tell which calibration is wrong: every knot gets a
- * common offset uncertainty of half the suspects' spread. */
+ * common offset uncertainty (calib_test.c: the suspects' range over
+ * sqrt(2)). */
 static void widen(hyp_drift *d, double spread_pa)
 {
     if (!(spread_pa > 0))

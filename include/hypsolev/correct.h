@@ -226,8 +226,8 @@ typedef struct hyp_calib_test {
     size_t dof;
     double vtpv, s0_sq, s0_sq_lower, s0_sq_upper, alpha_global;
     hyp_global_test global;
-    double spread_pa;          /* UNRESOLVED: half the spread of the suspects'
-                                  offsets, added to the offset's sigma, Pa */
+    double spread_pa;          /* UNRESOLVED: the range of the suspects' offsets
+                                  over sqrt(2), added to the offset's sigma, Pa */
 } hyp_calib_test;
 
 /* The offset model fitted to the calibrations: offset(t) piecewise linear
