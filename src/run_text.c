@@ -361,7 +361,7 @@ void hyp_batch_summary_write(FILE *f, const hyp_run_info *r, size_t n, hyp_summa
     int json = fmt == HYP_SUMMARY_JSON;
     fputs(json ? "[\n" : "file,points,corrected,method,ties,median_sigma_m,exit_status,status\n", f);
     for (size_t i = 0; i < n; i++) {
-        int rc = r[i].started ? hyp_exit_status(r[i].status) : 1;
+        int rc = hyp_run_exit_status(&r[i]);
         int has_sigma = r[i].median_sigma_m == r[i].median_sigma_m;
         if (json) {
             fputs("  {\"file\": ", f);

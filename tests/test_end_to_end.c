@@ -174,6 +174,7 @@ static void run_survey_opts(const char *dir, const survey_opts *so, score *sc)
     sc->n_calibs = rp->n_calibs;
     sc->has_scale = rp->drift.has_scale;
     assert_calibs_clean(dir, rp);
+    assert_false(run->test_failed);
     truth tr;
     read_truth(tpath, &tr);
     assert_int_equal(tr.n, dp->count);
