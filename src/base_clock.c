@@ -42,7 +42,7 @@ static hyp_status collect(const hyp_series *rv, const hyp_correct_result *res, p
     size_t m = 0;   /* the co-located samples only */
     for (size_t k = 0, nw = 0; k < res->n_calibs && nw < 64; k++) {
         const hyp_calib *c = &res->calibs[k];
-        if (c->kind != HYP_CAL_BASE)
+        if (c->kind != HYP_CAL_BASE || c->rejected)   /* a rejected window: the rover was elsewhere */
             continue;
         for (size_t i = 0; i < rv->count; i++)
             m += res->status[i] == HYP_PT_OK && rv->time_s[i] >= c->start_s && rv->time_s[i] <= c->end_s;
@@ -55,7 +55,7 @@ static hyp_status collect(const hyp_series *rv, const hyp_correct_result *res, p
         return HYP_ERR_NOMEM;
     for (size_t k = 0; k < res->n_calibs && q->nwin < 64; k++) {
         const hyp_calib *c = &res->calibs[k];
-        if (c->kind != HYP_CAL_BASE)
+        if (c->kind != HYP_CAL_BASE || c->rejected)   /* a rejected window: the rover was elsewhere */
             continue;
         for (size_t i = 0; i < rv->count; i++)
             if (res->status[i] == HYP_PT_OK && rv->time_s[i] >= c->start_s && rv->time_s[i] <= c->end_s) {

@@ -219,7 +219,7 @@ static hyp_status estimate_noise(hyp__work *w)
         r->base_noise_pa = floor_pa;
     double ss = 0, nn = 0;
     for (size_t k = 0; k < r->n_calibs; k++)
-        if (r->calibs[k].kind == HYP_CAL_BASE && r->calibs[k].n > 1) {
+        if (r->calibs[k].kind == HYP_CAL_BASE && r->calibs[k].n > 1 && !r->calibs[k].rejected) {
             ss += r->calibs[k].scatter_pa * r->calibs[k].scatter_pa * (double)(r->calibs[k].n - 1);
             nn += (double)(r->calibs[k].n - 1);
         }
@@ -403,9 +403,11 @@ static hyp_status correct_once(const hyp_series *rover, const hyp_base *bases, s
         goto out;
     }
     w->tcol_scaled = res->drift.has_scale;
-    if (res->drift.kind >= HYP_DRIFT_CONSTANT) {
+    if (res->drift.kind >= HYP_DRIFT_CONSTANT) {   /* over the calibrations the fit used */
+        size_t n = res->n_calibs - res->calib_test.n_rejected;
         for (size_t k = 0; k < res->n_calibs; k++)
-            w->dz_ref_m += (res->calibs[k].known_m - w->base->height_m) / (double)res->n_calibs;
+            if (!res->calibs[k].rejected)
+                w->dz_ref_m += (res->calibs[k].known_m - w->base->height_m) / (double)n;
     }
     warn_uncalibrated(w);
     if (estimate_noise(w) || rapid_periods(w) || corrected_heights(w)) {

@@ -294,6 +294,7 @@ hyp_status hyp__survey_run_with(hyp_survey *sv, const char *rover, const hyp_out
             st = hyp_error_set(&r->error, HYP_ERR_USAGE, "%s: output would overwrite an input; choose another name", targets[k]);
     if (!st)
         st = correct_rover(sv, copts, r, threads, &r->error);
+    r->test_failed = !st && r->result.calib_test.failed;
     for (int k = 0; !st && k < 3; k++)
         st = check_dir(targets[k], &r->error);
     if (!st && out->dir && !out->overwrite && outputs_exist(&ps, r->error.message, sizeof r->error.message)) {
@@ -304,6 +305,7 @@ hyp_status hyp__survey_run_with(hyp_survey *sv, const char *rover, const hyp_out
         st = write_outputs(sv, r, &ps, threads, &r->error);
     r->status = st;
     if (st) {
+        r->test_failed = 0;
         r->error.status = st;
         if (ps.report[0] && !(sv->o.cancelled && sv->o.cancelled(sv->o.cancel_ctx)))
             failure_report(sv, r, ps.report);

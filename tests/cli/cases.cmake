@@ -1,5 +1,6 @@
 # CLI golden cases: name, expected exit status, stderr regex, arguments.
-# Exit status: 0 done, 1 an input could not be used, 2 usage error.
+# Exit status: 0 done, 1 an input could not be used, 2 usage error, 3 done
+# and written but a test of the data failed.
 set(B --base @DATA@/base.csv --base-height 812.4 --base-at 46.8,9.9)
 set(R @DATA@/rover.gpx)
 set(O -o @OUT@/out.gpx)
@@ -206,3 +207,26 @@ hyp_cli_case(reader_whitespace 0 "rover +3 samples \\(3 usable\\).*heights +3 of
 hyp_cli_case(reader_newline_in_time 1 "newline_in_time.gpx:5: <time> \"2026-06-18\\\\n07:00:00Z\" is not an ISO 8601 time" correct @DATA@/bad/newline_in_time.gpx ${B} ${O})
 # a base in Pa labelled hPa: one message that says which unit the values fit
 hyp_cli_case(reader_pa_labelled_hpa 1 "^hypsolev: error: [^\n]*pa_labelled_hpa.csv: 61 of 61 samples with a time and a pressure refused \\(100 %\\): 61 pressure outside 300-1100 hPa; no sample is usable; the values 92258 to 92270 read as hPa are out of range but fit Pa: is the unit label wrong\\?" correct ${R} --base @DATA@/bad/pa_labelled_hpa.csv --base-height 812.4 ${O})
+
+# The calibration test (issue 15). Exit status 3: the run completed and
+# wrote its outputs, but a test of its data failed.
+# A tie booked at the wrong time (BM-2 at 07:14, while the rover was still
+# climbing): rejected, and the table is byte for byte that of the same run
+# without the wrong line (ties_table.csv, written by the program before the
+# test existed: no rejection changes nothing on clean ties).
+set(HYP_CASE_INPUTS @DATA@/rover.gpx @DATA@/base.csv @DATA@/benchmarks.csv @DATA@/ties.csv @DATA@/ties_wrong_time.csv)
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/ties_table.csv)
+set(HYP_CASE_GOLDEN_OUT t.csv)
+hyp_cli_case(golden_ties_table 0 "every calibration agrees with the others" correct ${R} ${B} --benchmarks @DATA@/benchmarks.csv --ties @DATA@/ties.csv --table @OUT@/t.csv)
+hyp_cli_case(tie_wrong_time_rejected 3 "warning: calibration BM-2 at 2026-06-18T07:14:00Z: misclosure -127.445 m disagrees with the other calibrations \\(w -49.9, critical 3.29\\): rejected.*rejected: w -49.9 beyond 3.29.*test      FAILED: 1 calibration\\(s\\) rejected" correct ${R} ${B} --benchmarks @DATA@/benchmarks.csv --ties @DATA@/ties_wrong_time.csv --table @OUT@/t.csv)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+# Two calibrations that disagree, no third (BM-1 found at the start, BM-2
+# booked at 07:14): the test cannot tell which; both kept, the sigma
+# widened; exit 3, outputs written.
+hyp_cli_case(ties_disagree_cannot_tell 3 "calibration BM-1 at 2026-06-18T07:00:00Z: misclosure -3.366 m: w \\+42.8 beyond 3.29, but too few calibrations to tell.*test      FAILED: calibrations disagree .*too few remain to tell which is wrong: all kept, the offset's sigma widened by 9.57 hPa" correct ${R} --base @DATA@/base.csv --base-height 812.4 --benchmarks @DATA@/benchmarks.csv --ties @DATA@/tie_wrong_only.csv --table @OUT@/t.csv)
+# The batch summary's exit_status column follows.
+set(HYP_CASE_OUT "rover.gpx\",61,61,single base,4,1.007,3,\"written; calibration test failed: calibration rejected\"")
+hyp_cli_case(tie_wrong_time_summary 3 "rejected" correct ${R} ${B} --benchmarks @DATA@/benchmarks.csv --ties @DATA@/ties_wrong_time.csv --out-dir @OUT@ --summary -)
+set(HYP_CASE_OUT "")
+set(HYP_CASE_INPUTS "")

@@ -1,6 +1,7 @@
 # run_case.cmake - one CLI golden case: runs the program, checks the exit
 # status and that stderr matches a regular expression; checks that no input
-# changed and that a failing run leaves no output and no temporary file.
+# changed and that a failing run leaves no output and no temporary file
+# (exit status 3, a failed test of the data, writes its outputs).
 #   cmake -DEXE=... -DWORK=dir -DEXPECT_RC=n -DEXPECT_ERR=regex
 #         -DARGS=a;b;c [-DINPUTS=f1;f2] [-DGOLDEN=expected.csv -DGOLDEN_OUT=file]
 #         [-DPROJ_DB_ONLY=/path/proj.db] (run with every PROJ grid missing)
@@ -62,7 +63,11 @@ foreach(f IN LISTS INPUTS)
 endforeach()
 file(REMOVE_RECURSE "${WORK}/projdata")
 file(GLOB left "${WORK}/*")
-if(NOT EXPECT_RC STREQUAL "0" AND NOT EXPECT_RC STREQUAL "3" AND left)   # 3: ran, outputs written, a test failed
+# exit status 3: the run completed and wrote its outputs, but a test of
+# its data failed; any other failure leaves nothing behind
+if(EXPECT_RC STREQUAL "3" AND NOT left)
+  message(FATAL_ERROR "exit status 3 but no output written")
+elseif(NOT EXPECT_RC STREQUAL "0" AND NOT EXPECT_RC STREQUAL "3" AND left)
   message(FATAL_ERROR "a failing run left files behind: ${left}")
 endif()
 file(GLOB tmps "${WORK}/*hyp-tmp-*" "${WORK}/*.tmp-*")
