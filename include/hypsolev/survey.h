@@ -124,7 +124,8 @@ typedef struct hyp_base_used {
 struct hyp__rover_priv;
 
 /* Everything about one rover's run that the summary, the report and the
- * batch summary print. Valid until hyp_rover_run_free. */
+ * batch summary print. Valid until hyp_rover_run_free, and only while its
+ * survey lives: the bases' logs (bases[].log) are the survey's. */
 typedef struct hyp_rover_run {
     const char *path;          /* the rover file as given */
     char name[256];            /* file name without folder and extension */
