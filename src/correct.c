@@ -312,13 +312,9 @@ static void column_setup(hyp__work *w)
 static void warn_uncalibrated(hyp__work *w)
 {
     if (w->r->drift.kind == HYP_DRIFT_GNSS)
-        hyp_msgs_add(w->msgs, HYP_WARNING,
-                     "%s: no co-location, no tie and no --offset: the level is GNSS-anchored (the track's own GNSS heights, %zu samples worth %.0f independent ones), a lower grade than a tie",
-                     w->base->name, w->r->drift.gnss_n, w->r->drift.gnss_neff);
+        hyp_msgs_add_at(w->msgs, HYP_WARNING, "method", w->base->name, 0, "no co-location, no tie and no --offset: the level is GNSS-anchored (the track's own GNSS heights, %zu samples worth %.0f independent ones), a lower grade than a tie", w->r->drift.gnss_n, w->r->drift.gnss_neff);
     if (w->r->drift.kind == HYP_DRIFT_NONE)
-        hyp_msgs_add(w->msgs, HYP_WARNING,
-                     "%s: no co-location, no tie and no --offset: rover and base are taken to read alike, with a 1-sigma offset of %.0f Pa (about %.0f m) in every height",
-                     w->base->name, w->o->uncal_offset_sigma_pa, w->o->uncal_offset_sigma_pa / 12.0);
+        hyp_msgs_add_at(w->msgs, HYP_WARNING, "method", w->base->name, 0, "no co-location, no tie and no --offset: rover and base are taken to read alike, with a 1-sigma offset of %.0f Pa (about %.0f m) in every height", w->o->uncal_offset_sigma_pa, w->o->uncal_offset_sigma_pa / 12.0);
 }
 
 /* Every point's status (refused, outside the base log, gaps, two-base
@@ -477,7 +473,7 @@ hyp_status hyp_correct(const hyp_series *rover, const hyp_base *bases, size_t n_
         if (ok)
             b2.clock_offset_s = applied = est;
         else
-            hyp_msgs_add(msgs, HYP_WARNING, "%s: %s; clock offset left at %+.1f s", base->name, cerr.message, base->clock_offset_s);
+            hyp_msgs_add_at(msgs, HYP_WARNING, "method", base->name, 0, "%s; clock offset left at %+.1f s", cerr.message, base->clock_offset_s);
         st = correct_once(rover, &b2, 1, opts, res, msgs, err);
     }
     res->clock_est_ok = ok;

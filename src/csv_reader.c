@@ -231,8 +231,7 @@ static hyp_status read_rows(csv_state *cs, hyp__csv_lines *lr, hyp_series *out,
         if (st)
             return st;
         if (partial)
-            hyp_msgs_add(msgs, HYP_WARNING, "%s:%u: the last line is cut off (no end of line, too few fields); ignored",
-                         cs->path, lr->lineno);
+            hyp_msgs_add_at(msgs, HYP_WARNING, "sample", cs->path, lr->lineno, "the last line is cut off (no end of line, too few fields); ignored");
     }
     if (r == -1)
         return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: line longer than %u bytes; not a log", cs->path, lr->lineno + 1, HYP_CSV_LINE_MAX);

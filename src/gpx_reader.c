@@ -196,7 +196,7 @@ static void start_root(gpx_ctx *g, const xmlChar *local, const xmlChar *prefix, 
     } else
         L->version = v && strcmp(v, "1.0") == 0 ? 10 : 11;
     if (!uri && !v)
-        hyp_msgs_add(g->msgs, HYP_NOTE, "%s: <gpx> has neither namespace nor version; read as GPX 1.1", g->path);
+        hyp_msgs_add_at(g->msgs, HYP_NOTE, "sample", g->path, 0, "<gpx> has neither namespace nor version; read as GPX 1.1");
     L->has_namespace = uri != NULL;
     if (uri && !(g->gpx_uri = xmlStrdup(uri))) {
         fail(g, HYP_ERR_NOMEM, "out of memory");
@@ -963,8 +963,7 @@ hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts, hyp_gpx_doc
         st = hyp_error_set(err, HYP_ERR_NODATA, "%s: no <trkpt> in gpx/trk/trkseg or <rtept> in gpx/rte%s", path,
                            g.n_misplaced ? " (there are some elsewhere, which are not the track's points)" : "");
     else if (!st && g.n_misplaced)
-        hyp_msgs_add(msgs, HYP_NOTE, "%s: %zu <trkpt> or <rtept> elements outside gpx/trk/trkseg and gpx/rte are not read as points",
-                     path, g.n_misplaced);
+        hyp_msgs_add_at(msgs, HYP_NOTE, "sample", path, 0, "%zu <trkpt> or <rtept> elements outside gpx/trk/trkseg and gpx/rte are not read as points", g.n_misplaced);
     if (!st)
         st = resolve_units(&g);
     if (!st)
@@ -981,10 +980,10 @@ hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts, hyp_gpx_doc
                                "%s: no point has a pressure (looked for an element named \"%s\" in each point's extensions; --pressure-field sets the name)",
                                path, field_name(opts->pressure_field, "pressure"));
         else if (no_p)
-            hyp_msgs_add(msgs, HYP_WARNING, "%s: %zu of %zu points have no pressure and get no corrected height", path, no_p,
+            hyp_msgs_add_at(msgs, HYP_WARNING, "sample", path, 0, "%zu of %zu points have no pressure and get no corrected height", no_p,
                          doc->pts.count);
         if (!st && no_t)
-            hyp_msgs_add(msgs, HYP_WARNING, "%s: %zu of %zu points have no time and get no corrected height", path, no_t,
+            hyp_msgs_add_at(msgs, HYP_WARNING, "sample", path, 0, "%zu of %zu points have no time and get no corrected height", no_t,
                          doc->pts.count);
         if (!st)
             st = hyp__check_usable(path, &doc->pts, doc->pressure_unit, err);

@@ -204,8 +204,7 @@ hyp_status hyp__resolve_unit(const char *path, const char *field, hyp_quantity q
                 "%s: %s: no unit given and values %g to %g fit no unit (%s); give the unit with %s",
                 path, field, vmin, vmax, hyp_unit_choices(q), opt);
         }
-        hyp_msgs_add(msgs, HYP_NOTE, "%s: %s: no unit given; values %g to %g taken as %s (the only unit they fit; %s sets it)",
-                     path, field, vmin, vmax, hyp_unit_name(u), opt);
+        hyp_msgs_add_at(msgs, HYP_NOTE, "sample", path, 0, "%s: no unit given; values %g to %g taken as %s (the only unit they fit; %s sets it)", field, vmin, vmax, hyp_unit_name(u), opt);
     }
     for (size_t i = 0; i < n; i++)
         if (vals[i] == vals[i])
@@ -244,7 +243,7 @@ double hyp__screen_refuse(hyp__screen *sc, hyp__field f, const char *name, unsig
         return NAN;
     char q[64];
     hyp__quote(q, sizeof q, text, len);
-    hyp_msgs_add(sc->msgs, HYP_WARNING, "%s:%u: %s \"%s\" is %s; expected %s; %s", sc->path, line, name, q,
+    hyp_msgs_add_at(sc->msgs, HYP_WARNING, "sample", sc->path, line, "%s \"%s\" is %s; expected %s; %s", name, q,
                  r == 3 ? "not a finite number" : "out of range", field_rule[f].expected, field_rule[f].then);
     return NAN;
 }
@@ -259,7 +258,7 @@ void hyp__screen_totals(const hyp__screen *sc)
                                              "positions ignored as not finite"};
     for (int f = 0; f < HYP__F_COUNT; f++)
         if (sc->n[f] > WARN_CAP)
-            hyp_msgs_add(sc->msgs, HYP_WARNING, "%s: %zu %s in all", sc->path, sc->n[f], what[f]);
+            hyp_msgs_add_at(sc->msgs, HYP_WARNING, "sample", sc->path, 0, "%zu %s in all", sc->n[f], what[f]);
 }
 
 /* Counts of what hyp__check_series changed, for the totals. */
@@ -275,8 +274,7 @@ static void check_pressure(const char *path, hyp_series *s, size_t i, uint32_t l
         return;
     s->flag[i] = HYP_SAMPLE_PRESSURE_RANGE;
     if (c->p++ < WARN_CAP && !c->p_quiet)
-        hyp_msgs_add(msgs, HYP_WARNING, "%s:%u: pressure %.2f hPa is outside 300-1100 hPa; sample dropped",
-                     path, line, p / 100.0);
+        hyp_msgs_add_at(msgs, HYP_WARNING, "sample", path, line, "pressure %.2f hPa is outside 300-1100 hPa; sample dropped", p / 100.0);
 }
 
 static void check_temperature(const char *path, hyp_series *s, size_t i, uint32_t line, checks *c, hyp_msgs *msgs)
@@ -286,8 +284,7 @@ static void check_temperature(const char *path, hyp_series *s, size_t i, uint32_
         return;
     s->temp_k[i] = NAN;
     if (c->t++ < WARN_CAP)
-        hyp_msgs_add(msgs, HYP_WARNING, "%s:%u: temperature %.2f degC is outside -60..+60 degC; temperature ignored",
-                     path, line, t - 273.15);
+        hyp_msgs_add_at(msgs, HYP_WARNING, "sample", path, line, "temperature %.2f degC is outside -60..+60 degC; temperature ignored", t - 273.15);
 }
 
 static void check_position(const char *path, hyp_series *s, size_t i, uint32_t line, checks *c, hyp_msgs *msgs)
@@ -301,14 +298,12 @@ static void check_position(const char *path, hyp_series *s, size_t i, uint32_t l
     if (c->pos++ >= WARN_CAP)
         return;
     if (beyond)
-        hyp_msgs_add(msgs, HYP_WARNING, "%s:%u: position beyond +-214 degrees is not a latitude in -90..90 and longitude in -180..180 degrees; position ignored",
-                     path, line);
+        hyp_msgs_add_at(msgs, HYP_WARNING, "sample", path, line, "position beyond +-214 degrees is not a latitude in -90..90 and longitude in -180..180 degrees; position ignored");
     else if (la != la || lo != lo)
-        hyp_msgs_add(msgs, HYP_WARNING, "%s:%u: %s without %s; position ignored", path, line,
+        hyp_msgs_add_at(msgs, HYP_WARNING, "sample", path, line, "%s without %s; position ignored",
                      la == la ? "latitude" : "longitude", la == la ? "longitude" : "latitude");
     else
-        hyp_msgs_add(msgs, HYP_WARNING, "%s:%u: position %g, %g is not a latitude in -90..90 and longitude in -180..180 degrees; position ignored",
-                     path, line, la, lo);
+        hyp_msgs_add_at(msgs, HYP_WARNING, "sample", path, line, "position %g, %g is not a latitude in -90..90 and longitude in -180..180 degrees; position ignored", la, lo);
 }
 
 /* 1 when no sample that has a pressure has one in 300-1100 hPa. */
@@ -340,11 +335,11 @@ hyp_status hyp__check_series(const char *path, hyp_series *s, uint32_t **order,
         check_temperature(path, s, i, line, &c, msgs);
     }
     if (c.p > WARN_CAP && !c.p_quiet)
-        hyp_msgs_add(msgs, HYP_WARNING, "%s: %zu samples in all dropped for pressure out of range", path, c.p);
+        hyp_msgs_add_at(msgs, HYP_WARNING, "sample", path, 0, "%zu samples in all dropped for pressure out of range", c.p);
     if (c.t > WARN_CAP)
-        hyp_msgs_add(msgs, HYP_WARNING, "%s: %zu temperatures in all ignored as out of range", path, c.t);
+        hyp_msgs_add_at(msgs, HYP_WARNING, "sample", path, 0, "%zu temperatures in all ignored as out of range", c.t);
     if (c.pos > WARN_CAP)
-        hyp_msgs_add(msgs, HYP_WARNING, "%s: %zu positions in all ignored as out of range", path, c.pos);
+        hyp_msgs_add_at(msgs, HYP_WARNING, "sample", path, 0, "%zu positions in all ignored as out of range", c.pos);
     hyp_status st = hyp__check_order(path, s, order, msgs, err);
     s->has_temp = s->has_rh = s->has_position = 0;
     for (size_t i = 0; i < s->count; i++) {

@@ -64,25 +64,18 @@ void hyp__clock_notes(const hyp__clock *c, const char *path, hyp_msgs *msgs)
         char a[16], b[16];
         fmt_offset(a, sizeof a, c->change_from_s);
         fmt_offset(b, sizeof b, c->change_to_s);
-        hyp_msgs_add(msgs, HYP_NOTE, "%s:%u: the local times (read in %s) cross a clock change here, %s to %s%s",
-                     path, c->change_line, zone, a, b,
+        hyp_msgs_add_at(msgs, HYP_NOTE, "sample", path, c->change_line, "the local times (read in %s) cross a clock change here, %s to %s%s", zone, a, b,
                      c->n_changes > 1 ? " (and later ones)" : "");
     }
     if (c->n_second)
-        hyp_msgs_add(msgs, HYP_NOTE,
-                     "%s:%u: the clock was set back, so this wall-clock hour happened twice: %zu stamps from here on, "
-                     "after the log had passed their first occurrence, are read as the second (%zu as the first); no hour is lost",
-                     path, c->second_line, c->n_second, c->n_first);
+        hyp_msgs_add_at(msgs, HYP_NOTE, "sample", path, c->second_line, "the clock was set back, so this wall-clock hour happened twice: %zu stamps from here on, "
+                     "after the log had passed their first occurrence, are read as the second (%zu as the first); no hour is lost", c->n_second, c->n_first);
     else if (c->n_first)
-        hyp_msgs_add(msgs, HYP_NOTE,
-                     "%s: %zu stamps fall in an hour that happened twice in %s (the clock was set back); "
-                     "read as its first occurrence, as the log had not passed it",
-                     path, c->n_first, zone);
+        hyp_msgs_add_at(msgs, HYP_NOTE, "sample", path, 0, "%zu stamps fall in an hour that happened twice in %s (the clock was set back); "
+                     "read as its first occurrence, as the log had not passed it", c->n_first, zone);
     if (c->n_skipped)
-        hyp_msgs_add(msgs, HYP_WARNING,
-                     "%s:%u: %zu stamps fall in an hour that never happened in %s (the clock was set forward over it); "
-                     "read with the offset before the change: was the logger's clock not set forward?",
-                     path, c->skipped_line, c->n_skipped, zone);
+        hyp_msgs_add_at(msgs, HYP_WARNING, "sample", path, c->skipped_line, "%zu stamps fall in an hour that never happened in %s (the clock was set forward over it); "
+                     "read with the offset before the change: was the logger's clock not set forward?", c->n_skipped, zone);
 }
 
 /* --- time order --------------------------------------------------------- */
@@ -156,9 +149,7 @@ static void warn_outlier(const char *path, const hyp_series *s, size_t i, double
     hyp_time_format(s->time_s[i], t, sizeof t);
     hyp_time_format(a, ta, sizeof ta);
     hyp_time_format(b, tb, sizeof tb);
-    hyp_msgs_add(msgs, HYP_WARNING,
-                 "%s:%u: time %s is far out of line with the samples around it (%s and %s); sample dropped",
-                 path, hyp_series_line(s, i), t, ta, tb);
+    hyp_msgs_add_at(msgs, HYP_WARNING, "sample", path, hyp_series_line(s, i), "time %s is far out of line with the samples around it (%s and %s); sample dropped", t, ta, tb);
 }
 
 /* Flags the isolated outliers among the m usable samples ok[] (file
@@ -188,7 +179,7 @@ static size_t flag_outliers(const char *path, hyp_series *s, const uint32_t *ok,
         }
     }
     if (n > WARN_CAP)
-        hyp_msgs_add(msgs, HYP_WARNING, "%s: %zu samples in all dropped for a time far out of line", path, n);
+        hyp_msgs_add_at(msgs, HYP_WARNING, "sample", path, 0, "%zu samples in all dropped for a time far out of line", n);
     return n;
 }
 
@@ -246,10 +237,8 @@ static void note_sorted(const char *path, const struct hyp_time_back *b, size_t 
 {
     char t[40];
     hyp_time_format(b->time_s, t, sizeof t);
-    hyp_msgs_add(msgs, HYP_NOTE,
-                 "%s: %zu time%s back in the file (the first at line %u: %s, %.0f s before the sample above it); "
-                 "the samples are put in time order",
-                 path, n_back, n_back == 1 ? " goes" : "s go", b->line, t, b->back_s);
+    hyp_msgs_add_at(msgs, HYP_NOTE, "sample", path, 0, "%zu time%s back in the file (the first at line %u: %s, %.0f s before the sample above it); "
+                 "the samples are put in time order", n_back, n_back == 1 ? " goes" : "s go", b->line, t, b->back_s);
 }
 
 /* Refuses a usable sample whose time equals the usable one before it (in
@@ -265,15 +254,14 @@ static void flag_duplicates(const char *path, hyp_series *s, hyp_msgs *msgs)
             if (n++ < WARN_CAP) {
                 char t[40];
                 hyp_time_format(s->time_s[i], t, sizeof t);
-                hyp_msgs_add(msgs, HYP_NOTE, "%s:%u: time %s is the same as line %u's; sample dropped as a duplicate",
-                             path, hyp_series_line(s, i), t, hyp_series_line(s, prev));
+                hyp_msgs_add_at(msgs, HYP_NOTE, "sample", path, hyp_series_line(s, i), "time %s is the same as line %u's; sample dropped as a duplicate", t, hyp_series_line(s, prev));
             }
             continue;
         }
         prev = i;
     }
     if (n > WARN_CAP)
-        hyp_msgs_add(msgs, HYP_NOTE, "%s: %zu samples in all dropped as duplicates of the time before", path, n);
+        hyp_msgs_add_at(msgs, HYP_NOTE, "sample", path, 0, "%zu samples in all dropped as duplicates of the time before", n);
 }
 
 /* Flags the outliers among the usable samples. */

@@ -22,11 +22,22 @@
  * date -u -d 2026-06-18T06:50:00Z +%s) */
 #define T0 1781765400.0
 
+/* Messages of a level whose printed form ("file:line: text", as
+ * hyp_msgs_write composes it from the structured fields) holds needle. */
 static size_t count_msgs(const hyp_msgs *m, hyp_level level, const char *needle)
 {
     size_t n = 0;
-    for (size_t i = 0; i < m->count; i++)
-        n += m->items[i].level == level && (!needle || strstr(m->items[i].text, needle));
+    for (size_t i = 0; i < m->count; i++) {
+        const hyp_msg *it = &m->items[i];
+        char full[2400];
+        if (it->file && it->line)
+            snprintf(full, sizeof full, "%s:%u: %s", it->file, it->line, it->text);
+        else if (it->file)
+            snprintf(full, sizeof full, "%s: %s", it->file, it->text);
+        else
+            snprintf(full, sizeof full, "%s", it->text);
+        n += it->level == level && (!needle || strstr(full, needle));
+    }
     return n;
 }
 
