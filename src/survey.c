@@ -410,3 +410,16 @@ void hyp__survey_clean_dir(hyp_survey *sv, const char *target)
     if (!seen)
         hyp__stale_dir_remove(dir);
 }
+
+hyp_status hyp_inspect_file(const char *path, const hyp_read_opts *ro, FILE *out, hyp_msgs *msgs, hyp_error *err)
+{
+    hyp__log l;
+    hyp_status st = hyp__log_read(path, ro, &l, msgs, err);
+    hyp_inspection r;
+    if (!st && !(st = hyp_inspect(hyp__log_series(&l), NULL, &r, err))) {
+        hyp_inspection_write(out, path, l.punit, &r);
+        hyp_inspection_free(&r);
+    }
+    hyp__log_free(&l);
+    return st;
+}
