@@ -309,28 +309,32 @@ hyp_status hyp_survey_add_base_dir(hyp_survey *sv, const char *dir, hyp_msgs *ms
     return st;
 }
 
-/* The bases a rover uses: all that were added, or from a base folder those
- * whose logs cover at least 95 % of the rover's time span (common
- * practice, no source: a base that misses a few minutes at either end
- * still serves; the points outside it are flagged). */
+/* The bases a rover uses. From a base folder: the logs that cover at
+ * least 95 % of the rover's time span (common practice, no source: a base
+ * that misses a few minutes at either end still serves; the points outside
+ * it are flagged). Bases given one by one: all of them, but a log that does
+ * not overlap the rover's span at all (another day's) is left out, so each
+ * day's base serves the rovers of its day. */
 hyp_status hyp__select_bases(const hyp_survey *sv, const hyp_series *rv, size_t *sel, size_t *n, hyp_error *err)
 {
     *n = 0;
-    if (!sv->base_dir) {
-        for (size_t k = 0; k < sv->n_pool; k++)
-            sel[(*n)++] = k;
-        return *n ? HYP_OK : hyp_error_set(err, HYP_ERR_USAGE, "no base station given");
-    }
     double t0, t1;
     span_of(rv, 0.0, &t0, &t1);
     for (size_t k = 0; k < sv->n_pool && *n < HYP_MAX_BASES; k++) {
         const hyp__pool_base *b = &sv->pool[k];
         double cover = fmin(t1, b->t1_s) - fmax(t0, b->t0_s);
-        if (t1 > t0 ? cover >= 0.95 * (t1 - t0) : (t0 >= b->t0_s && t0 <= b->t1_s))
+        int keep = sv->base_dir ? (t1 > t0 ? cover >= 0.95 * (t1 - t0) : (t0 >= b->t0_s && t0 <= b->t1_s))
+                                : !(cover < 0) || !(t0 == t0);
+        if (keep)
             sel[(*n)++] = k;
     }
+    if (!sv->base_dir && !*n)   /* none overlaps: all, and the correction says what is outside */
+        for (size_t k = 0; k < sv->n_pool && *n < HYP_MAX_BASES; k++)
+            sel[(*n)++] = k;
     if (*n)
         return HYP_OK;
+    if (!sv->n_pool)
+        return hyp_error_set(err, HYP_ERR_USAGE, "no base station given");
     char x[40], y[40];
     hyp_time_format(t0, x, sizeof x);
     hyp_time_format(t1, y, sizeof y);
@@ -405,4 +409,17 @@ void hyp__survey_clean_dir(hyp_survey *sv, const char *target)
     pthread_mutex_unlock(&sv->lock);
     if (!seen)
         hyp__stale_dir_remove(dir);
+}
+
+hyp_status hyp_inspect_file(const char *path, const hyp_read_opts *ro, FILE *out, hyp_msgs *msgs, hyp_error *err)
+{
+    hyp__log l;
+    hyp_status st = hyp__log_read(path, ro, &l, msgs, err);
+    hyp_inspection r;
+    if (!st && !(st = hyp_inspect(hyp__log_series(&l), NULL, &r, err))) {
+        hyp_inspection_write(out, path, l.punit, &r);
+        hyp_inspection_free(&r);
+    }
+    hyp__log_free(&l);
+    return st;
 }

@@ -58,6 +58,11 @@ struct hyp__rover_priv {
 /* The bases a rover uses (indices into the pool). */
 hyp_status hyp__select_bases(const hyp_survey *sv, const hyp_series *rv, size_t *sel, size_t *n, hyp_error *err);
 
+/* hyp_survey_run with other correction options than the survey's (the
+ * network runs its rovers with the offset fixed at 0). */
+hyp_status hyp__survey_run_with(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
+                                const hyp_correct_opts *copts, hyp_rover_run **run, hyp_error *err);
+
 /* The three outputs of a rover (empty strings where none). */
 typedef struct hyp__rover_paths {
     char gpx[4096], table[4096], report[4096];

@@ -105,7 +105,8 @@ static hyp_status prepare_extras(const hyp_survey *sv, hyp_rover_run *r, const f
 }
 
 /* Read the rover, choose its bases, correct it, convert its heights. */
-static hyp_status correct_rover(hyp_survey *sv, hyp_rover_run *r, int threads, hyp_error *err)
+static hyp_status correct_rover(hyp_survey *sv, const hyp_correct_opts *copts, hyp_rover_run *r, int threads,
+                                hyp_error *err)
 {
     priv_t *p = r->priv;
     hyp_read_opts ro = sv->o.read;
@@ -145,7 +146,7 @@ static hyp_status correct_rover(hyp_survey *sv, hyp_rover_run *r, int threads, h
     const float *gnss_known = NULL;
     if ((st = prepare_extras(sv, r, &gnss_known, err)))
         return st;
-    hyp_correct_opts co = sv->copts;
+    hyp_correct_opts co = *copts;
     co.waypoints = p->rv.is_gpx ? &p->rv.doc.wpts : NULL;
     co.gnss_height_m = gnss_known;
     co.threads = threads;
@@ -271,6 +272,12 @@ static void failure_report(hyp_survey *sv, hyp_rover_run *r, const char *path)
 hyp_status hyp_survey_run(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
                           hyp_rover_run **run, hyp_error *err)
 {
+    return hyp__survey_run_with(sv, rover, out, threads, &sv->copts, run, err);
+}
+
+hyp_status hyp__survey_run_with(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
+                                const hyp_correct_opts *copts, hyp_rover_run **run, hyp_error *err)
+{
     hyp_outputs none = {0};
     if (!out)
         out = &none;
@@ -296,7 +303,8 @@ hyp_status hyp_survey_run(hyp_survey *sv, const char *rover, const hyp_outputs *
         if (targets[k][0] && strcmp(targets[k], "-") != 0 && hyp__survey_is_input(sv, targets[k], &rover, 1))
             st = hyp_error_set(&r->error, HYP_ERR_USAGE, "%s: output would overwrite an input; choose another name", targets[k]);
     if (!st)
-        st = correct_rover(sv, r, threads, &r->error);
+        st = correct_rover(sv, copts, r, threads, &r->error);
+    r->test_failed = !st && r->result.calib_test.failed;
     for (int k = 0; !st && k < 3; k++)
         st = check_dir(targets[k], &r->error);
     if (!st && out->dir && !out->overwrite && outputs_exist(&ps, r->error.message, sizeof r->error.message)) {
@@ -307,6 +315,7 @@ hyp_status hyp_survey_run(hyp_survey *sv, const char *rover, const hyp_outputs *
         st = write_outputs(sv, r, &ps, threads, &r->error);
     r->status = st;
     if (st) {
+        r->test_failed = 0;
         r->error.status = st;
         if (ps.report[0] && !(sv->o.cancelled && sv->o.cancelled(sv->o.cancel_ctx)))
             failure_report(sv, r, ps.report);

@@ -135,7 +135,8 @@ typedef struct hyp_base_used {
 struct hyp__rover_priv;
 
 /* Everything about one rover's run that the summary, the report and the
- * batch summary print. Valid until hyp_rover_run_free. */
+ * batch summary print. Valid until hyp_rover_run_free, and only while its
+ * survey lives: the bases' logs (bases[].log) are the survey's. */
 typedef struct hyp_rover_run {
     const char *path;          /* the rover file as given */
     char name[256];            /* file name without folder and extension */
@@ -159,6 +160,9 @@ typedef struct hyp_rover_run {
                                   output); a report asked for is written
                                   with them, all or none */
     struct hyp__rover_priv *priv;
+    int test_failed;           /* status HYP_OK, outputs written, but a test of
+                                  the data failed (result.calib_test): the
+                                  program's exit status 3 */
 } hyp_rover_run;
 
 HYP_API void hyp_rover_run_free(hyp_rover_run *r);
@@ -174,6 +178,8 @@ typedef struct hyp_run_info {
     char method[48];
     char message[1100];        /* "ok", "skipped: ...", the error, or
                                   "not started (interrupted)" */
+    int test_failed;           /* ran and wrote its outputs, but a test of its
+                                  data failed (hyp_rover_run.test_failed) */
 } hyp_run_info;
 
 /* The exit status the program gives for a status: 0 ok, 1 an input could
@@ -258,6 +264,19 @@ HYP_API void hyp_batch_summary_write(FILE *f, const hyp_run_info *infos, size_t 
  * renamed into place; refused when it names an input of the survey. */
 HYP_API hyp_status hyp_survey_write_summary(const hyp_survey *sv, const char *path, const hyp_run_info *infos,
                                             size_t n, hyp_error *err);
+
+/* The exit status of a run that completed and wrote its outputs, but
+ * where a statistical test of the data failed: a calibration rejected, or
+ * calibrations that disagree with too few to tell which is wrong. The
+ * outputs are the best estimate, their sigmas widened where the test
+ * could not decide; the summary and the report say what failed. */
+#define HYP_EXIT_TEST_FAILED 3
+
+/* The exit status of one rover of a batch: hyp_exit_status of its status
+ * (0, 1 input, 2 usage), HYP_EXIT_TEST_FAILED when it ran but a test
+ * failed, 1 when it was not started. The program exits with the worst
+ * over its rovers, in the order usage 2, input 1, test failed 3, ok 0. */
+HYP_API int hyp_run_exit_status(const hyp_run_info *r);
 
 #ifdef __cplusplus
 }
