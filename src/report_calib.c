@@ -93,13 +93,16 @@ static void offset_marks(hyp__svg *f, const hyp_rover_run *r)
     for (size_t k = 0; k < res->n_calibs; k++) {
         const hyp_calib *c = &res->calibs[k];
         double x = mid_time(c), y = c->offset_pa / 100.0, e = 2.0 * calib_offset_sigma_pa(c) / 100.0;
-        int base = c->kind == HYP_CAL_BASE;
-        hyp__svg_style cs = hyp__svg_style_nth(base ? 1 : 2, NULL);
-        cs.marker = base ? HYP__SVG_CIRCLE : HYP__SVG_TRIANGLE;
-        cs.label = base ? "co-location with the base, +-2 sigma" : "tie to a benchmark, +-2 sigma";
-        for (size_t j = 0; j < k; j++)   /* one legend entry a kind */
-            if ((res->calibs[j].kind == HYP_CAL_BASE) == base)
+        int base = c->kind == HYP_CAL_BASE, kind = c->rejected ? 2 : base;
+        hyp__svg_style cs = hyp__svg_style_nth(c->rejected ? 6 : base ? 1 : 2, NULL);
+        cs.marker = c->rejected ? HYP__SVG_CROSS : base ? HYP__SVG_CIRCLE : HYP__SVG_TRIANGLE;
+        cs.label = c->rejected ? "rejected by the calibration test" : base ? "co-location with the base, +-2 sigma"
+                                                                         : "tie to a benchmark, +-2 sigma";
+        for (size_t j = 0; j < k; j++) {   /* one legend entry a kind */
+            const hyp_calib *o = &res->calibs[j];
+            if ((o->rejected ? 2 : o->kind == HYP_CAL_BASE) == kind)
                 cs.label = NULL;
+        }
         hyp__svg_markers(f, &x, &y, &e, 1, &cs);
     }
 }
@@ -147,7 +150,7 @@ static hyp_status pa_model_figure(hyp__page *p, const hyp_rover_run *r, double t
                                 "&#177;2 sigma from the fit's covariance), constant before the first and after the last. "
                                 "Circles and triangles are the calibrations it was fitted to, at their mid time, "
                                 "&#177;2 sigma from their mean height's standard error and the known height's sigma "
-                                "through the sensitivity dh/dp there.");
+                                "through the sensitivity dh/dp there; crosses, any the calibration test rejected.");
     return st;
 }
 

@@ -156,21 +156,80 @@ static void method(hyp__page *p, const hyp_rover_run *r)
 
 /* ---- calibrations and fit ---------------------------------------------- */
 
+/* A calibration's part in the test: w and redundancy, and its verdict. */
+static void calib_test_cells(hyp__page *p, const hyp_calib *c, const hyp_calib_test *ct)
+{
+    if (ct->state == HYP_CALTEST_NONE)
+        hyp__page_out(p, "<td>not tested</td><td></td>");
+    else if (c->test_w == c->test_w)
+        hyp__page_out(p, "<td class=\"n\">%+.2f (r %.3f)</td>", c->test_w, c->test_redundancy);
+    else
+        hyp__page_out(p, "<td>not checked by the others</td>");
+    if (ct->state != HYP_CALTEST_NONE)
+        hyp__page_out(p, "<td%s>%s%t</td>", c->rejected || c->suspect ? " class=\"warning\"" : "",
+                      c->rejected ? "rejected: " : c->suspect ? "suspect: " : "agrees", c->test_note);
+}
+
 static void calib_table(hyp__page *p, const hyp_correct_result *res)
 {
-    static const char *const h[] = {"name", "kind", "found", "from", "to", "samples", "known height", "misclosure",
-                                    "residual", "offset"};
+    static const char *const h[] = {"name", "kind", "window (UTC)", "samples", "known height", "misclosure",
+                                    "residual", "offset", "w-test", "verdict"};
     if (!res->n_calibs)
         return;
     hyp__page_table(p, "Calibrations (misclosure: height before the fit minus known; residual: after)", h, 10);
     for (size_t k = 0; k < res->n_calibs; k++) {
         const hyp_calib *c = &res->calibs[k];
-        hyp__page_out(p, "<tr><td>%t</td><td>%s</td><td>%s</td><td class=\"t\">%T</td><td class=\"t\">%T</td><td class=\"n\">%z</td>"
+        char end[48];
+        hyp_time_format(c->end_s, end, sizeof end);
+        hyp__page_out(p, "<tr><td>%t</td><td>%s, %s</td><td>%T to %t</td><td class=\"n\">%z</td>"
                          "<td class=\"n\">%.3f m &#177; %.3f m</td><td class=\"n\">%+.3f m</td><td class=\"n\">%+.3f m</td>"
-                         "<td class=\"n\">%+.3f hPa</td></tr>\n",
-                      c->name, c->kind == HYP_CAL_BASE ? "co-location" : "tie", how_text(c->how), c->start_s, c->end_s,
-                      c->n, c->known_m, c->known_sigma_m, c->misclosure_m, c->residual_m, c->offset_pa / 100.0);
+                         "<td class=\"n\">%+.3f hPa</td>",
+                      c->name, c->kind == HYP_CAL_BASE ? "co-location" : "tie", how_text(c->how), c->start_s,
+                      strlen(end) > 11 ? end + 11 : end, c->n, c->known_m, c->known_sigma_m, c->misclosure_m, c->residual_m,
+                      c->offset_pa / 100.0);
+        calib_test_cells(p, c, &res->calib_test);
+        hyp__page_out(p, "</tr>\n");
     }
+    hyp__page_table_end(p);
+}
+
+static const char *global_text(hyp_global_test g)
+{
+    return g == HYP_GLOBAL_PASS  ? "passed"
+           : g == HYP_GLOBAL_LOW ? "below: the calibrations agree more closely than the test's priors require"
+                                 : "above: the calibrations scatter more than their sigmas allow";
+}
+
+/* The calibrations tested against each other: the verdict, the global test. */
+static void calib_test_table(hyp__page *p, const hyp_correct_result *res)
+{
+    const hyp_calib_test *ct = &res->calib_test;
+    hyp__page_table(p, "Calibration test (the calibrations against each other: w-test and data snooping)", NULL, 0);
+    switch (ct->state) {
+    case HYP_CALTEST_NONE: hyp__page_kv(p, "verdict", "not run: no calibration, or the offset is given"); break;
+    case HYP_CALTEST_UNTESTED:
+        hyp__page_kv(p, "verdict", "not tested: too few calibrations (%z) for any to be checked by another", res->n_calibs);
+        break;
+    case HYP_CALTEST_PASSED:
+        hyp__page_kv(p, "verdict", "every calibration agrees with the others (two-sided alpha %.4f: |w| at most %.2f)",
+                     ct->alpha_w, ct->w_crit);
+        break;
+    case HYP_CALTEST_REJECTED:
+        hyp__page_kv(p, "verdict", "<span class=\"warning\">FAILED: %z calibration(s) rejected (|w| beyond %.2f, two-sided "
+                                   "alpha %.4f) and the offset fitted without them (exit status 3)</span>",
+                     ct->n_rejected, ct->w_crit, ct->alpha_w);
+        break;
+    case HYP_CALTEST_UNRESOLVED:
+        hyp__page_kv(p, "verdict", "<span class=\"warning\">FAILED: calibrations disagree (|w| beyond %.2f, two-sided alpha "
+                                   "%.4f) and too few remain to tell which is wrong: all kept, the offset's sigma widened by "
+                                   "%.2f hPa (exit status 3)</span>",
+                     ct->w_crit, ct->alpha_w, ct->spread_pa / 100.0);
+        break;
+    }
+    if (ct->dof > 0 && ct->s0_sq == ct->s0_sq && ct->global != HYP_GLOBAL_NONE)
+        hyp__page_kv(p, "global test", "variance factor %.2f on %z degree(s) of freedom (bounds %.2f to %.2f, two-sided "
+                                       "alpha %.4f): %s",
+                     ct->s0_sq, ct->dof, ct->s0_sq_lower, ct->s0_sq_upper, ct->alpha_global, global_text(ct->global));
     hyp__page_table_end(p);
 }
 
@@ -315,6 +374,7 @@ static hyp_status body(hyp__page *p, const hyp_rover_run *r, hyp_error *err)
     if ((st = hyp__fig_offset(p, r, err)) || (st = hyp__fig_ties(p, r, err)))
         return st;
     calib_table(p, &r->result);
+    calib_test_table(p, &r->result);
     fit_table(p, &r->result.drift);
     hyp__page_section(p, "budget", "Error budget");
     if ((st = hyp__fig_budget(p, r, err)))
