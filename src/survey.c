@@ -257,6 +257,16 @@ static hyp_status pool_push(hyp_survey *sv, const hyp_base_spec *b, hyp_msgs *ms
     hyp_read_opts ro = sv->o.read;
     ro.zone = &z;
     ro.need_position = 0;
+    if (b->pressure_unit)
+        ro.pressure_unit = b->pressure_unit;
+    if (b->temperature_unit)
+        ro.temperature_unit = b->temperature_unit;
+    if (b->pressure_field)
+        ro.pressure_field = b->pressure_field;
+    if (b->temperature_field)
+        ro.temperature_field = b->temperature_field;
+    if (b->humidity_field)
+        ro.humidity_field = b->humidity_field;
     if (b->kind == HYP_BASE_QNH && !ro.pressure_unit)
         ro.pressure_unit = HYP_UNIT_HPA;   /* QNH is reported in hPa */
     st = hyp__log_read(pb->path, &ro, &pb->log, msgs, err);
