@@ -46,6 +46,15 @@ int hyp_exit_status(hyp_status s)
     return s == HYP_OK ? 0 : s == HYP_ERR_USAGE ? 2 : 1;
 }
 
+int hyp_run_exit_status(const hyp_run_info *r)
+{
+    if (!r->started)
+        return 1;
+    if (r->status)
+        return hyp_exit_status(r->status);
+    return r->test_failed ? HYP_EXIT_TEST_FAILED : 0;
+}
+
 /* ---- logs ---------------------------------------------------------- */
 
 const hyp_series *hyp__log_series(const hyp__log *l)
