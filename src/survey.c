@@ -46,6 +46,15 @@ int hyp_exit_status(hyp_status s)
     return s == HYP_OK ? 0 : s == HYP_ERR_USAGE ? 2 : 1;
 }
 
+int hyp_run_exit_status(const hyp_run_info *r)
+{
+    if (!r->started)
+        return 1;
+    if (r->status)
+        return hyp_exit_status(r->status);
+    return r->test_failed ? HYP_EXIT_TEST_FAILED : 0;
+}
+
 /* ---- logs ---------------------------------------------------------- */
 
 const hyp_series *hyp__log_series(const hyp__log *l)
@@ -257,6 +266,16 @@ static hyp_status pool_push(hyp_survey *sv, const hyp_base_spec *b, hyp_msgs *ms
     hyp_read_opts ro = sv->o.read;
     ro.zone = &z;
     ro.need_position = 0;
+    if (b->pressure_unit)
+        ro.pressure_unit = b->pressure_unit;
+    if (b->temperature_unit)
+        ro.temperature_unit = b->temperature_unit;
+    if (b->pressure_field)
+        ro.pressure_field = b->pressure_field;
+    if (b->temperature_field)
+        ro.temperature_field = b->temperature_field;
+    if (b->humidity_field)
+        ro.humidity_field = b->humidity_field;
     if (b->kind == HYP_BASE_QNH && !ro.pressure_unit)
         ro.pressure_unit = HYP_UNIT_HPA;   /* QNH is reported in hPa */
     st = hyp__log_read(pb->path, &ro, &pb->log, msgs, err);

@@ -158,15 +158,6 @@ static void fill_info(hyp_run_info *in, const hyp_rover_run *r, hyp_status st, c
         snprintf(in->message, sizeof in->message, "%s", r->status ? r->error.message : "ok");
 }
 
-int hyp_run_exit_status(const hyp_run_info *r)
-{
-    if (!r->started)
-        return 1;
-    if (r->status)
-        return hyp_exit_status(r->status);
-    return r->test_failed ? HYP_EXIT_TEST_FAILED : 0;
-}
-
 static void run_index(batch *b, size_t i)
 {
     hyp_rover_run *r = NULL;

@@ -46,6 +46,10 @@ typedef struct hyp_base_spec {
     hyp_base_kind kind;        /* station pressure, or a QNH series */
     double offset_pa;          /* the base reads this much high, Pa; NaN: unknown */
     double offset_sigma_pa;
+    /* How this log is read where it differs from the survey's reading
+     * options (hyp_survey_opts.read): HYP_UNIT_NONE and NULL take those. */
+    hyp_unit pressure_unit, temperature_unit;
+    const char *pressure_field, *temperature_field, *humidity_field;
 } hyp_base_spec;
 
 /* path and height; no position, clock offset 0, station pressure, offset
@@ -92,7 +96,9 @@ HYP_API void hyp_survey_opts_init(hyp_survey_opts *o);
 HYP_API hyp_status hyp_survey_opts_set(hyp_survey_opts *o, const char *name, const char *value, hyp_error *err);
 /* The same for a base: "base-height" (m), "base-at" (LAT,LON degrees),
  * "base-clock-offset" (s), "base-time-zone", "base-offset" and
- * "base-offset-sigma" (Pa), "base-qnh" (NULL). */
+ * "base-offset-sigma" (Pa), "base-qnh" (NULL), and how its log is read:
+ * "base-pressure-unit", "base-temperature-unit", "base-pressure-field",
+ * "base-temperature-field", "base-humidity-field". */
 HYP_API hyp_status hyp_base_spec_set(hyp_base_spec *b, const char *name, const char *value, hyp_error *err);
 
 /* What an HTML report says of the program that wrote it. */

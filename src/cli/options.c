@@ -16,7 +16,8 @@
 const struct option cli_common_options[] = {
     {"base", required_argument, 0, CLI_BASE}, BASE("base-height"), BASE("base-at"),
     {"base-clock-offset", required_argument, 0, CLI_CLOCK}, BASE("base-time-zone"), BASE("base-offset"),
-    BASE("base-offset-sigma"), {"base-qnh", no_argument, 0, CLI_BASE_SET}, {"colocate", required_argument, 0, CLI_COLOC},
+    BASE("base-offset-sigma"), {"base-qnh", no_argument, 0, CLI_BASE_SET}, BASE("base-pressure-unit"),
+    BASE("base-temperature-unit"), BASE("base-pressure-field"), BASE("base-temperature-field"), BASE("base-humidity-field"), {"colocate", required_argument, 0, CLI_COLOC},
     {"base-dir", required_argument, 0, CLI_BASE_DIR}, FLAG("no-auto-colocate"), FLAG("no-gnss-anchor"),
     SET("column-temp"), SET("pressure-unit"), SET("temperature-unit"), SET("pressure-field"), SET("temperature-field"),
     SET("humidity-field"), SET("time-zone"), SET("benchmarks"), SET("ties"), SET("gnss-heights"), SET("known-heights"),

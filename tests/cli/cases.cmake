@@ -230,6 +230,11 @@ set(HYP_CASE_OUT "rover.gpx\",61,61,single base,4,1.007,3,\"written; calibration
 hyp_cli_case(tie_wrong_time_summary 3 "rejected" correct ${R} ${B} --benchmarks @DATA@/benchmarks.csv --ties @DATA@/ties_wrong_time.csv --out-dir @OUT@ --summary -)
 set(HYP_CASE_OUT "")
 set(HYP_CASE_INPUTS "")
+# each base is read its own way: a base whose pressure column is "baro"
+# beside a rover whose element is "pressure"
+hyp_cli_case(base_own_pressure_field 0 "heights +61 of 61 corrected" correct ${R} --base @DATA@/base_baro_column.csv --base-height 812.4 --base-at 46.8,9.9 --base-pressure-field baro ${O})
+hyp_cli_case(base_own_pressure_field_missing 1 "base_baro_column.csv:2: header: no \"pressure\" column" correct ${R} --base @DATA@/base_baro_column.csv --base-height 812.4 ${O})
+hyp_cli_case(base_own_unit_bad 2 "--base-pressure-unit \"psi\": expected one of Pa, hPa" correct ${R} --base @DATA@/base.csv --base-height 812.4 --base-pressure-unit psi ${O})
 # the HTML report: written by its extension; --report-html is for --out-dir
 hyp_cli_case(report_html_quiet 0 "^$" correct ${R} ${B} ${O} --report @OUT@/r.html -q)
 hyp_cli_case(report_html_needs_dir 2 "--report-html names the reports of --out-dir" correct ${R} ${B} ${O} --report-html)
