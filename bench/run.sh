@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # Benchmark (not a test): hypsolev correct against xmllint --stream on one
-# large track, peak memory per point, and the batch speed-up of -j 2 over
-# -j 1. Prints the figures with the targets; every ratio comes from pairs
+# large track, peak memory per point, the cost of an HTML report, and the
+# batch speed-up of -j 2 over -j 1. Prints the figures with the targets; every ratio comes from pairs
 # of runs made back to back in this one run of the script (the median of
 # five pairs), as a noisy machine allows nothing finer.
 #   bench/run.sh [POINTS] [BUILD_DIR]     (default 1000000, build)
@@ -31,6 +31,18 @@ for k in 1 2 3 4 5; do
   ratios+=("$(awk -v h="$h_s" -v x="$x_s" 'BEGIN { printf "%.3f %.2f %.2f", h / x, h, x }')")
 done
 read -r ratio h_s x_s < <(printf '%s\n' "${ratios[@]}" | sort -n | sed -n 3p)
+# The HTML report's cost: the same run without and with --report x.html,
+# back to back, five pairs; the median pair's ratio is the figure.
+reps=()
+for k in 1 2 3 4 5; do
+  rm -f "$work/out.gpx" "$work/r.html"
+  read -r _ a_s < <(measure "$exe" "${run[@]}")
+  rm -f "$work/out.gpx"
+  read -r r_rss b_s < <(measure "$exe" "${run[@]}" --report "$work/r.html")
+  reps+=("$(awk -v a="$a_s" -v b="$b_s" -v m="$r_rss" 'BEGIN { printf "%.3f %.2f %.2f %d", b / a, a, b, m }')")
+done
+read -r rep_ratio rep_a rep_b rep_rss < <(printf '%s\n' "${reps[@]}" | sort -n | sed -n 3p)
+rep_size=$(stat -c %s "$work/r.html")
 # the fixed part of the memory: the same command on a 1000-point track
 "$work/gentrack" 1000 "$work/small.gpx" "$work/small.csv"
 small=(correct "$work/small.gpx" --base "$work/small.csv" --base-height 800 --offset 0 -o "$work/small-out.gpx" -q --no-gnss-anchor)
@@ -43,6 +55,10 @@ awk -v hs="$h_s" -v xs="$x_s" -v r="$ratio" -v n="$n" -v hr="$h_rss" -v sr="$s_r
   printf "points per second: %.0f\n", n / hs
   printf "peak RSS: %.1f MiB, %.0f bytes per point (target <= 80)\n", hr / 1024, hr * 1024 / n
   printf "  of which fixed (a 1000-point run): %.1f MiB; above it %.0f bytes per point\n", sr / 1024, (hr - sr) * 1024 / (n - 1000) }'
+printf 'report pairs (ratio, without s, with s, peak KiB with): %s | %s | %s | %s | %s\n' "${reps[@]}"
+awk -v r="$rep_ratio" -v a="$rep_a" -v b="$rep_b" -v z="$rep_size" -v m="$rep_rss" -v n="$n" 'BEGIN {
+  printf "--report x.html: %.2f s against %.2f s without, ratio %.3f (median of 5 pairs; target <= 1.10)\n", b, a, r
+  printf "  report %.2f MiB; peak RSS with it %.1f MiB, %.0f bytes per point\n", z / 1048576, m / 1024, m * 1024 / n }'
 # batch: 8 tracks of a tenth of the size each
 m=$((n / 10))
 mkdir -p "$work/many" "$work/o1" "$work/o2"

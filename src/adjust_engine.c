@@ -42,6 +42,7 @@ void hyp__adj_opts_default(hyp__adj_opts *opts)
     opts->r_min = 1e-6;
     opts->min_rcond = 1e-13;
     opts->max_work_bytes = (size_t)512 << 20;
+    opts->keep = NULL;
 }
 
 void hyp__adj_result_init(hyp__adj_result *res)
@@ -445,7 +446,7 @@ static void obs_stats(const hyp__adj_problem *pb, const hyp__adj_opts *opts, con
 {
     res->vtpv = 0;
     res->n_used = 0;
-    res->w_max = NAN;
+    res->w_max = res->w_max_free = NAN;
     for (size_t i = 0; i < pb->n_obs; i++) {
         const hyp__adj_obs *o = &pb->obs[i];
         double q;
@@ -470,6 +471,10 @@ static void obs_stats(const hyp__adj_problem *pb, const hyp__adj_opts *opts, con
         if (!(fabs(res->w[i]) <= res->w_max)) {
             res->w_max = fabs(res->w[i]);
             res->w_max_obs = i;
+        }
+        if (!(opts->keep && opts->keep[i]) && !(fabs(res->w[i]) <= res->w_max_free)) {
+            res->w_max_free = fabs(res->w[i]);
+            res->w_max_free_obs = i;
         }
     }
 }
@@ -591,11 +596,11 @@ static hyp_status push_rejection(hyp__adj_result *res, size_t i, size_t *alloc)
     return HYP_OK;
 }
 
-/* Why snooping stops before rejecting the observation with the largest |w|,
- * or HYP_ADJ_SNOOP_OFF to go on. */
+/* Why snooping stops before rejecting the observation with the largest |w|
+ * (among those it may reject), or HYP_ADJ_SNOOP_OFF to go on. */
 static hyp__adj_snoop_stop snoop_stop_reason(const hyp__adj_opts *opts, const hyp__adj_result *res)
 {
-    if (!(res->w_max > res->w_crit))
+    if (!(res->w_max_free > res->w_crit))
         return HYP_ADJ_SNOOP_CLEAN;
     if (opts->max_reject && res->n_rejections >= opts->max_reject)
         return HYP_ADJ_SNOOP_LIMIT;
@@ -632,7 +637,8 @@ static hyp_status reject_exact(const hyp__adj_problem *pb, const hyp__adj_opts *
 }
 
 /* One pass of Baarda's data snooping: reject the observation with the
- * largest |w| above the critical value, re-adjust, repeat (Baarda 1968;
+ * largest |w| above the critical value (never one opts->keep marks: a model's
+ * prior is not a candidate blunder), re-adjust, repeat (Baarda 1968;
  * Caspary). Rejecting an observation with r_i > 0 cannot make N singular
  * in exact arithmetic (N - p a^T a is singular only when p a Qxx a^T = 1,
  * i.e. r_i = 0). With `fast` the re-adjustments are downdates, and when no
@@ -655,7 +661,7 @@ static hyp_status snoop_pass(const hyp__adj_problem *pb, const hyp__adj_opts *op
             stale = 0;
             continue;
         }
-        size_t i = res->w_max_obs;
+        size_t i = res->w_max_free_obs;
         if (push_rejection(res, i, alloc))
             return hyp_error_set(err, HYP_ERR_NOMEM, "adjustment: out of memory recording a rejection");
         set_used(res, i, 0);

@@ -53,6 +53,10 @@ typedef struct hyp__adj_opts {
                            * number after scaling is below this (1e-13) */
     size_t max_work_bytes; /* cap on the work space, mainly the n^2 normal
                             * matrix (512 MiB: 8000 unknowns) */
+    const unsigned char *keep; /* NULL, or one flag per observation: nonzero,
+                            * data snooping never rejects it (a prior or a
+                            * pseudo-observation of a model); its w is
+                            * still computed and flagged (NULL) */
 } hyp__adj_opts;
 
 /* Bits of hyp__adj_result.flag, per observation. */
@@ -114,6 +118,9 @@ typedef struct hyp__adj_result {
     hyp__adj_rejection *rejections;
     size_t n_rejections;
     hyp__adj_snoop_stop snoop_stop;
+    double w_max_free;    /* largest |w| among the used observations snooping may
+                           * reject (not opts->keep), NaN when none: what it tests */
+    size_t w_max_free_obs;/* its observation */
 } hyp__adj_result;
 
 void hyp__adj_opts_default(hyp__adj_opts *opts);

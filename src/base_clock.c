@@ -3,9 +3,17 @@
 #include "base_clock.h"
 #include "base_view.h"
 #include "stats.h"
+#include "hypsolev/geo.h"
 
 #include <math.h>
+#include <stdio.h>
 #include <stdlib.h>
+#include <string.h>
+
+/* Whole and half hours: the clock errors of a logger set to local time, or
+ * to summer time, and written as UTC, up to 14 h either way. */
+#define HOURS_STEP_S 1800.0
+#define HOURS_STEPS 28
 
 typedef struct pts { size_t n; double *t, *p; int *win; int nwin; } pts;
 
@@ -34,7 +42,7 @@ static hyp_status collect(const hyp_series *rv, const hyp_correct_result *res, p
     size_t m = 0;   /* the co-located samples only */
     for (size_t k = 0, nw = 0; k < res->n_calibs && nw < 64; k++) {
         const hyp_calib *c = &res->calibs[k];
-        if (c->kind != HYP_CAL_BASE)
+        if (c->kind != HYP_CAL_BASE || c->rejected)   /* a rejected window: the rover was elsewhere */
             continue;
         for (size_t i = 0; i < rv->count; i++)
             m += res->status[i] == HYP_PT_OK && rv->time_s[i] >= c->start_s && rv->time_s[i] <= c->end_s;
@@ -47,7 +55,7 @@ static hyp_status collect(const hyp_series *rv, const hyp_correct_result *res, p
         return HYP_ERR_NOMEM;
     for (size_t k = 0; k < res->n_calibs && q->nwin < 64; k++) {
         const hyp_calib *c = &res->calibs[k];
-        if (c->kind != HYP_CAL_BASE)
+        if (c->kind != HYP_CAL_BASE || c->rejected)   /* a rejected window: the rover was elsewhere */
             continue;
         for (size_t i = 0; i < rv->count; i++)
             if (res->status[i] == HYP_PT_OK && rv->time_s[i] >= c->start_s && rv->time_s[i] <= c->end_s) {
@@ -169,5 +177,89 @@ out:
     free(q.win);
     free(resid);
     free(ss);
+    return st;
+}
+
+/* The rover's samples standing near the base's position, grouped into
+ * windows (gaps of two minutes or more split them) of at least min_s. */
+static hyp_status near_base(const hyp_series *rv, const hyp_base *base, double radius_m, double min_s, pts *q)
+{
+    q->t = malloc((rv->count ? rv->count : 1) * sizeof(double));
+    q->p = malloc((rv->count ? rv->count : 1) * sizeof(double));
+    q->win = malloc((rv->count ? rv->count : 1) * sizeof(int));
+    if (!q->t || !q->p || !q->win)
+        return HYP_ERR_NOMEM;
+    size_t start = 0;
+    for (size_t i = 0; i <= rv->count; i++) {
+        int near = i < rv->count && !rv->flag[i] &&
+                   hyp_geo_distance_m(hyp_series_lat(rv, i), hyp_series_lon(rv, i), base->lat_deg, base->lon_deg) <= radius_m;
+        int joins = near && q->n > start && rv->time_s[i] - q->t[q->n - 1] < 120.0;
+        if (!joins && q->n > start) {   /* close the window under way */
+            if (q->t[q->n - 1] - q->t[start] < min_s || q->nwin >= 64)
+                q->n = start;           /* too short (or too many): dropped */
+            else
+                q->nwin++;
+            start = q->n;
+        }
+        if (near) {
+            q->t[q->n] = rv->time_s[i];
+            q->p[q->n] = rv->pressure_pa[i];
+            q->win[q->n++] = q->nwin;
+        }
+    }
+    q->n = start;
+    return HYP_OK;
+}
+
+hyp_status hyp__base_clock_hours(const hyp_series *rover, const hyp_base *base, const hyp_correct_opts *o,
+                                 double *lag_s, char *others, size_t n_others, hyp_error *err)
+{
+    *lag_s = 0.0;
+    others[0] = '\0';
+    if (!(base->lat_deg == base->lat_deg) || !rover->has_position)
+        return HYP_OK;   /* no position: no co-location to line up */
+    pts q = {0};
+    hyp_base logged = *base;
+    logged.clock_offset_s = 0.0;
+    hyp__base_view bv;
+    double *resid = NULL, ss[2 * HOURS_STEPS + 1];
+    hyp_status st = hyp__base_view_make(&logged, &bv, err);
+    if (st)
+        return st;
+    if ((st = near_base(rover, base, o->coloc_radius_m, o->coloc_min_s, &q)) ||
+        !(resid = malloc((q.n ? q.n : 1) * sizeof *resid))) {
+        st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+        goto out;
+    }
+    /* The given clock covers the co-locations: nothing to say here (the
+     * fine estimate looks at seconds). It does not, and a whole or half
+     * hour shift does: the log's clock is off by it. A linear weather
+     * trend moves every shift alike, so the scatter of rover - base within
+     * the windows (the fine estimate's measure) only ranks the shifts that
+     * cover them; the others are named too. */
+    double given = q.n >= 8 ? scatter(&q, &bv, INFINITY, base->clock_offset_s, resid) : 0.0;
+    if (given == given)
+        goto out;   /* covered as given (or too little to tell) */
+    int best = -1;
+    for (int k = 0; k <= 2 * HOURS_STEPS; k++) {
+        ss[k] = scatter(&q, &bv, INFINITY, base->clock_offset_s + (k - HOURS_STEPS) * HOURS_STEP_S, resid);
+        if (ss[k] == ss[k] && (best < 0 || ss[k] < ss[best]))
+            best = k;
+    }
+    if (best < 0)
+        goto out;
+    *lag_s = (best - HOURS_STEPS) * HOURS_STEP_S;
+    for (int k = 0; k <= 2 * HOURS_STEPS; k++) {
+        size_t l = strlen(others);
+        int m = abs(k - HOURS_STEPS) * 30;
+        if (k != best && ss[k] == ss[k] && l + 24 < n_others)
+            snprintf(others + l, n_others - l, "%s%s%d h %02d min", l ? ", " : "", k > HOURS_STEPS ? "+" : "-", m / 60, m % 60);
+    }
+out:
+    hyp__base_view_free(&bv);
+    free(resid);
+    free(q.t);
+    free(q.p);
+    free(q.win);
     return st;
 }

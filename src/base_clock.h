@@ -20,4 +20,17 @@ hyp_status hyp__estimate_base_clock(const hyp_series *rover, const hyp_base *bas
                                     double max_lag_s, double max_gap_s, double *offset_s, double *sigma_s,
                                     hyp_error *err);
 
+/* Whether the base's clock is off from the rover's by whole or half hours
+ * (a log kept in local or summer time and marked as UTC, the classic
+ * logger blunder): the rover's samples standing near the base's position
+ * (within o->coloc_radius_m for o->coloc_min_s) fall outside the base log
+ * as its clock is given, but inside it when the log is shifted by a
+ * multiple of 30 min (up to 14 h). Then *lag_s gets the shift that lines
+ * them up best (s the base clock is ahead, beyond its given offset) and
+ * others (n_others bytes) the other shifts that would cover them, as text;
+ * else *lag_s is 0. Nothing is decided without the base's position or 8
+ * such samples. */
+hyp_status hyp__base_clock_hours(const hyp_series *rover, const hyp_base *base, const hyp_correct_opts *o,
+                                 double *lag_s, char *others, size_t n_others, hyp_error *err);
+
 #endif

@@ -1,6 +1,7 @@
 /* benchmark_reader.c - benchmark lists and explicit tie lists (CSV). */
 #include "csv_lex.h"
 #include "reader_common.h"
+#include "hypsolev/network.h"
 
 #include <errno.h>
 #include <math.h>
@@ -196,7 +197,8 @@ static hyp_status field_number(const table *t, int i, const char *what, double l
     return HYP_OK;
 }
 
-static hyp_status bm_row(table *t, const int *c, double default_sigma_m, hyp_benchmarks *out, hyp_error *err)
+static hyp_status bm_row(table *t, const int *c, double default_sigma_m, int need_height, hyp_benchmarks *out,
+                        hyp_error *err)
 {
     char name[64], note[256];
     field_text(t, c[0], name, sizeof name);
@@ -204,25 +206,28 @@ static hyp_status bm_row(table *t, const int *c, double default_sigma_m, hyp_ben
     if (!name[0])
         return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: name is empty", t->path, t->lr.lineno);
     if (hyp_benchmarks_find(out, name) >= 0)
-        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: benchmark \"%s\" is listed twice", t->path, t->lr.lineno, name);
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: %s \"%s\" is listed twice", t->path, t->lr.lineno,
+                             need_height ? "benchmark" : "station", name);
     double lat, lon, h, sig;
     hyp_status st = field_number(t, c[1], "lat", -90, 90, 1, &lat, err);
     if (!st) st = field_number(t, c[2], "lon", -180, 180, 1, &lon, err);
-    if (!st) st = field_number(t, c[3], "height", -500, 9000, 1, &h, err);
+    if (!st) st = field_number(t, c[3], "height", -500, 9000, need_height, &h, err);
     if (!st) st = field_number(t, c[4], "sigma", 0, 100, 0, &sig, err);
     if (st)
         return st;
     if (sig != sig)
         sig = default_sigma_m;
+    if (h != h)
+        sig = NAN;   /* a station to be determined has no sigma of its own */
     if (bm_push(out, name, note, lat, lon, h, sig))
         return hyp_error_set(err, HYP_ERR_NOMEM, "%s: out of memory", t->path);
     return HYP_OK;
 }
 
-hyp_status hyp_benchmarks_read(const char *path, double default_sigma_m, hyp_benchmarks *out,
-                               hyp_msgs *msgs, hyp_error *err)
+/* Benchmarks (height required) or stations (height optional). */
+static hyp_status marks_read(const char *path, double default_sigma_m, int need_height, hyp_benchmarks *out,
+                             hyp_error *err)
 {
-    (void)msgs;
     hyp_benchmarks_free(out);
     table t;
     hyp_status st = table_open(&t, path, err);
@@ -236,18 +241,98 @@ hyp_status hyp_benchmarks_read(const char *path, double default_sigma_m, hyp_ben
     if (r == 1) {
         for (int k = 0; k < 6; k++)
             c[k] = column(&t, names[k]);
-        for (int k = 0; k < 4 && !st; k++)
+        for (int k = 0; k < (need_height ? 4 : 3) && !st; k++)
             if (c[k] < 0)
-                st = hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: header: no \"%s\" column (expected name, lat, lon, height[, sigma, note])",
-                                   path, t.lr.lineno, names[k]);
+                st = hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: header: no \"%s\" column (expected name, lat, lon, %s)",
+                                   path, t.lr.lineno, names[k], need_height ? "height[, sigma, note]" : "[height, sigma, note]");
     }
     while (!st && (r = table_next(&t, err, &st)) == 1)
-        st = bm_row(&t, c, default_sigma_m, out, err);
+        st = bm_row(&t, c, default_sigma_m, need_height, out, err);
     if (!st && out->count == 0)
-        st = hyp_error_set(err, HYP_ERR_NODATA, "%s: no benchmark rows", path);
+        st = hyp_error_set(err, HYP_ERR_NODATA, "%s: no %s rows", path, need_height ? "benchmark" : "station");
     table_close(&t);
     if (st)
         hyp_benchmarks_free(out);
+    return st;
+}
+
+hyp_status hyp_benchmarks_read(const char *path, double default_sigma_m, hyp_benchmarks *out,
+                               hyp_msgs *msgs, hyp_error *err)
+{
+    (void)msgs;
+    return marks_read(path, default_sigma_m, 1, out, err);
+}
+
+hyp_status hyp_stations_read(const char *path, double default_sigma_m, hyp_benchmarks *out, hyp_msgs *msgs,
+                             hyp_error *err)
+{
+    (void)msgs;
+    return marks_read(path, default_sigma_m, 0, out, err);
+}
+
+static hyp_status book_row(table *t, const int *c, const hyp_zone *zone, const hyp_benchmarks *st,
+                           hyp_book_entry *e, hyp_error *err)
+{
+    char a[96], b[96];
+    memset(e, 0, sizeof *e);
+    field_text(t, c[0], e->station, sizeof e->station);
+    field_text(t, c[1], e->rover, sizeof e->rover);
+    field_text(t, c[2], a, sizeof a);
+    field_text(t, c[3], b, sizeof b);
+    e->line = t->lr.lineno;
+    if (!e->station[0])
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: station is empty", t->path, t->lr.lineno);
+    if (hyp_benchmarks_find(st, e->station) < 0)
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: station \"%s\" is not in the stations file", t->path,
+                             t->lr.lineno, e->station);
+    if (hyp_time_parse(a, zone, &e->start_s) != HYP_TIME_OK)
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: start \"%s\" is not a time with zone (ISO 8601)", t->path, t->lr.lineno, a);
+    if (hyp_time_parse(b, zone, &e->end_s) != HYP_TIME_OK)
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: end \"%s\" is not a time with zone (ISO 8601)", t->path, t->lr.lineno, b);
+    if (!(e->end_s > e->start_s))
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: end %s is not after start %s", t->path, t->lr.lineno, b, a);
+    return HYP_OK;
+}
+
+hyp_status hyp_fieldbook_read(const char *path, const hyp_zone *zone, const hyp_benchmarks *stations,
+                              hyp_book_entry **out, size_t *count, hyp_error *err)
+{
+    *out = NULL;
+    *count = 0;
+    table t;
+    hyp_status st = table_open(&t, path, err);
+    if (st)
+        return st;
+    int r = table_next(&t, err, &st);
+    int c[4] = {-1, -1, -1, -1};
+    static const char *names[4] = {"station", "rover", "start", "end"};
+    if (r == 0)
+        st = hyp_error_set(err, HYP_ERR_NODATA, "%s: empty file: no header row", path);
+    for (int k = 0; r == 1 && k < 4 && !st; k++)
+        if ((c[k] = column(&t, names[k])) < 0 && k != 1)
+            st = hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: header: no \"%s\" column (expected station, rover, start, end)",
+                               path, t.lr.lineno, names[k]);
+    size_t alloc = 0;
+    while (!st && (r = table_next(&t, err, &st)) == 1) {
+        if (*count == alloc) {
+            alloc = alloc ? 2 * alloc : 64;
+            hyp_book_entry *p = alloc > 1000000 ? NULL : realloc(*out, alloc * sizeof *p);
+            if (!p) {
+                st = hyp_error_set(err, HYP_ERR_NOMEM, "%s: out of memory", path);
+                break;
+            }
+            *out = p;
+        }
+        st = book_row(&t, c, zone, stations, &(*out)[*count], err);
+        if (!st)
+            (*count)++;
+    }
+    table_close(&t);
+    if (st) {
+        free(*out);
+        *out = NULL;
+        *count = 0;
+    }
     return st;
 }
 

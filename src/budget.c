@@ -53,7 +53,7 @@ static double separation_m(const hyp__work *w, size_t i)
     if (r->drift.kind != HYP_DRIFT_NONE && r->drift.kind != HYP_DRIFT_EXPLICIT)
         for (size_t k = 0; k < r->n_calibs; k++) {
             double d = hyp_geo_distance_m(la, lo, r->calibs[k].lat_deg, r->calibs[k].lon_deg);
-            if (d == d && d < best)
+            if (d == d && d < best && !r->calibs[k].rejected)   /* a rejected one calibrated nothing */
                 best = d;
         }
     if (best == INFINITY)

@@ -410,8 +410,7 @@ hyp_status hyp__find_calibrations(hyp__work *w, hyp_error *err)
             st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     }
     if (!st && o->auto_colocate && o->n_colocate == 0 && !base_pos && o->offset_pa != o->offset_pa)
-        hyp_msgs_add(w->msgs, HYP_WARNING, "%s: no base position (--base-at) or no rover positions: co-location cannot be found automatically",
-                     w->base->name);
+        hyp_msgs_add_at(w->msgs, HYP_WARNING, "calibration", w->base->name, 0, "no base position (--base-at) or no rover positions: co-location cannot be found automatically");
     if (!st && w->r->n_calibs) {
         dedup(w->r);
         qsort(w->r->calibs, w->r->n_calibs, sizeof *w->r->calibs, by_time);

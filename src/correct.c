@@ -219,7 +219,7 @@ static hyp_status estimate_noise(hyp__work *w)
         r->base_noise_pa = floor_pa;
     double ss = 0, nn = 0;
     for (size_t k = 0; k < r->n_calibs; k++)
-        if (r->calibs[k].kind == HYP_CAL_BASE && r->calibs[k].n > 1) {
+        if (r->calibs[k].kind == HYP_CAL_BASE && r->calibs[k].n > 1 && !r->calibs[k].rejected) {
             ss += r->calibs[k].scatter_pa * r->calibs[k].scatter_pa * (double)(r->calibs[k].n - 1);
             nn += (double)(r->calibs[k].n - 1);
         }
@@ -312,13 +312,9 @@ static void column_setup(hyp__work *w)
 static void warn_uncalibrated(hyp__work *w)
 {
     if (w->r->drift.kind == HYP_DRIFT_GNSS)
-        hyp_msgs_add(w->msgs, HYP_WARNING,
-                     "%s: no co-location, no tie and no --offset: the level is GNSS-anchored (the track's own GNSS heights, %zu samples worth %.0f independent ones), a lower grade than a tie",
-                     w->base->name, w->r->drift.gnss_n, w->r->drift.gnss_neff);
+        hyp_msgs_add_at(w->msgs, HYP_WARNING, "method", w->base->name, 0, "no co-location, no tie and no --offset: the level is GNSS-anchored (the track's own GNSS heights, %zu samples worth %.0f independent ones), a lower grade than a tie", w->r->drift.gnss_n, w->r->drift.gnss_neff);
     if (w->r->drift.kind == HYP_DRIFT_NONE)
-        hyp_msgs_add(w->msgs, HYP_WARNING,
-                     "%s: no co-location, no tie and no --offset: rover and base are taken to read alike, with a 1-sigma offset of %.0f Pa (about %.0f m) in every height",
-                     w->base->name, w->o->uncal_offset_sigma_pa, w->o->uncal_offset_sigma_pa / 12.0);
+        hyp_msgs_add_at(w->msgs, HYP_WARNING, "method", w->base->name, 0, "no co-location, no tie and no --offset: rover and base are taken to read alike, with a 1-sigma offset of %.0f Pa (about %.0f m) in every height", w->o->uncal_offset_sigma_pa, w->o->uncal_offset_sigma_pa / 12.0);
 }
 
 /* Every point's status (refused, outside the base log, gaps, two-base
@@ -403,9 +399,11 @@ static hyp_status correct_once(const hyp_series *rover, const hyp_base *bases, s
         goto out;
     }
     w->tcol_scaled = res->drift.has_scale;
-    if (res->drift.kind >= HYP_DRIFT_CONSTANT) {
+    if (res->drift.kind >= HYP_DRIFT_CONSTANT) {   /* over the calibrations the fit used */
+        size_t n = res->n_calibs - res->calib_test.n_rejected;
         for (size_t k = 0; k < res->n_calibs; k++)
-            w->dz_ref_m += (res->calibs[k].known_m - w->base->height_m) / (double)res->n_calibs;
+            if (!res->calibs[k].rejected)
+                w->dz_ref_m += (res->calibs[k].known_m - w->base->height_m) / (double)n;
     }
     warn_uncalibrated(w);
     if (estimate_noise(w) || rapid_periods(w) || corrected_heights(w)) {
@@ -439,6 +437,23 @@ hyp_status hyp_correct(const hyp_series *rover, const hyp_base *bases, size_t n_
         hyp_correct_opts_init(&dflt);
         opts = &dflt;
     }
+    for (size_t k = 0; k < n_bases; k++) {
+        double lag;
+        char others[400];
+        hyp_status cst = hyp__base_clock_hours(rover, &bases[k], opts, &lag, others, sizeof others, err);
+        if (cst)
+            return cst;
+        if (lag != 0.0) {
+            int m = (int)lround(fabs(lag) / 60.0);
+            return hyp_error_set(err, HYP_ERR_VALUE,
+                                 "%s: the base's clock looks %d h %02d min %s the rover's: the rover stood beside the "
+                                 "base at times the log does not cover until it is shifted so%s%s (a log kept in local "
+                                 "or summer time and marked as UTC?); give the base's zone (--base-time-zone) or its "
+                                 "clock offset (--base-clock-offset %+.0f)", bases[k].name, m / 60, m % 60,
+                                 lag > 0 ? "ahead of" : "behind", others[0] ? "; other shifts that would: " : "",
+                                 others, bases[k].clock_offset_s + lag);
+        }
+    }
     /* With an estimated clock the first pass only finds the co-locations;
      * its messages would repeat, so they are dropped. */
     int est_clock = opts->estimate_clock && n_bases == 1;
@@ -458,7 +473,7 @@ hyp_status hyp_correct(const hyp_series *rover, const hyp_base *bases, size_t n_
         if (ok)
             b2.clock_offset_s = applied = est;
         else
-            hyp_msgs_add(msgs, HYP_WARNING, "%s: %s; clock offset left at %+.1f s", base->name, cerr.message, base->clock_offset_s);
+            hyp_msgs_add_at(msgs, HYP_WARNING, "method", base->name, 0, "%s; clock offset left at %+.1f s", cerr.message, base->clock_offset_s);
         st = correct_once(rover, &b2, 1, opts, res, msgs, err);
     }
     res->clock_est_ok = ok;

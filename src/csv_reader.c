@@ -15,6 +15,8 @@
 
 enum col { C_TIME, C_PRES, C_TEMP, C_RH, C_LAT, C_LON, C_ELE, C_N };
 static const char *col_label[C_N] = {"time", "pressure", "temperature", "humidity", "lat", "lon", "ele"};
+static const hyp__field col_field[C_N] = {HYP__F_COUNT, HYP__F_PRESSURE, HYP__F_TEMPERATURE, HYP__F_HUMIDITY,
+                                          HYP__F_POSITION, HYP__F_POSITION, HYP__F_ELE};
 
 static int name_matches(const char *name, int col, const hyp_read_opts *o)
 {
@@ -47,6 +49,8 @@ typedef struct csv_state {
     hyp_unit file_unit[C_N];
     int ncols;
     hyp__csv_field *fields;
+    hyp__clock clock;
+    hyp__screen screen;
 } csv_state;
 
 static hyp_status parse_header(csv_state *cs, hyp__csv_lines *lr, hyp_error *err)
@@ -105,6 +109,25 @@ static const char *time_problem(hyp_time_result r)
     return "";
 }
 
+/* The time field of a row: NaN when blank. */
+static hyp_status parse_time(csv_state *cs, hyp__csv_lines *lr, const hyp__csv_field *f, double *t,
+                             hyp_error *err)
+{
+    char tb[128];
+    size_t l = f->len < sizeof tb - 1 ? f->len : sizeof tb - 1;
+    memcpy(tb, f->s, l);
+    tb[l] = '\0';
+    *t = NAN;
+    if (l == 0 || strspn(tb, " \t") == l)
+        return HYP_OK;
+    hyp_time_result r = hyp__clock_read(&cs->clock, tb, lr->lineno, t);
+    if (!r)
+        return HYP_OK;
+    char q[160];
+    hyp__quote(q, sizeof q, f->s, f->len);
+    return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: time \"%s\" %s", cs->path, lr->lineno, q, time_problem(r));
+}
+
 /* Parses one data row; returns HYP_OK, or an error for a malformed row.
  * *partial is set when the row has too few fields (a cut-off last line). */
 static hyp_status parse_row(csv_state *cs, hyp__csv_lines *lr, hyp_series *out,
@@ -121,6 +144,7 @@ static hyp_status parse_row(csv_state *cs, hyp__csv_lines *lr, hyp_series *out,
     if (n == -2)
         return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: more than %d fields", cs->path, lr->lineno, MAX_COLUMNS);
     double v[C_N];
+    int refused = 0;   /* bit c: the value of column c was refused */
     for (int c = 0; c < C_N; c++) {
         v[c] = NAN;
         int i = cs->idx[c];
@@ -138,26 +162,29 @@ static hyp_status parse_row(csv_state *cs, hyp__csv_lines *lr, hyp_series *out,
         }
         const hyp__csv_field *f = &cs->fields[i];
         if (c == C_TIME) {
-            char tb[128];
-            size_t l = f->len < sizeof tb - 1 ? f->len : sizeof tb - 1;
-            memcpy(tb, f->s, l);
-            tb[l] = '\0';
-            if (l == 0 || strspn(tb, " \t") == l) {
-                v[c] = NAN;
-                continue;
-            }
-            hyp_time_result r = hyp_time_parse(tb, cs->opts->zone, &v[c]);
-            if (r)
-                return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: time \"%s\" %s", cs->path, lr->lineno, tb, time_problem(r));
+            hyp_status st = parse_time(cs, lr, f, &v[c], err);
+            if (st)
+                return st;
             continue;
         }
-        if (!hyp__parse_number(f->s, f->len, cs->decimal_comma, &v[c])) {
-            int l = (int)(f->len > 40 ? 40 : f->len);
-            return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: %s \"%.*s\" is not a number",
-                                 cs->path, lr->lineno, col_label[c], l, f->s);
+        int r = hyp__parse_number(f->s, f->len, cs->decimal_comma, &v[c]);
+        if (!r) {
+            char q[64];
+            hyp__quote(q, sizeof q, f->s, f->len);
+            return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: %s \"%s\" is not a number",
+                                 cs->path, lr->lineno, col_label[c], q);
         }
+        if (hyp__value_ok(col_field[c], r, v[c]))
+            continue;
+        v[c] = hyp__screen_refuse(&cs->screen, col_field[c], col_label[c], lr->lineno, r, f->s, f->len);
+        if (r != 2)
+            refused |= 1 << c;
     }
+    if (refused & (1 << C_LAT | 1 << C_LON))
+        v[C_LAT] = v[C_LON] = NAN;   /* half a position is none (the warning is given) */
+    int bad_pressure = (refused >> C_PRES) & 1;
     hyp_sample_flag flag = v[C_TIME] != v[C_TIME] ? HYP_SAMPLE_NO_TIME
+                         : bad_pressure ? HYP_SAMPLE_BAD_VALUE
                          : v[C_PRES] != v[C_PRES] ? HYP_SAMPLE_NO_PRESSURE : HYP_SAMPLE_OK;
     if (hyp_series_push(out, v[C_TIME], v[C_PRES], v[C_TEMP], v[C_RH], v[C_LAT], v[C_LON],
                         v[C_ELE], lr->lineno, flag))
@@ -204,8 +231,7 @@ static hyp_status read_rows(csv_state *cs, hyp__csv_lines *lr, hyp_series *out,
         if (st)
             return st;
         if (partial)
-            hyp_msgs_add(msgs, HYP_WARNING, "%s:%u: the last line is cut off (no end of line, too few fields); ignored",
-                         cs->path, lr->lineno);
+            hyp_msgs_add_at(msgs, HYP_WARNING, "sample", cs->path, lr->lineno, "the last line is cut off (no end of line, too few fields); ignored");
     }
     if (r == -1)
         return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: line longer than %u bytes; not a log", cs->path, lr->lineno + 1, HYP_CSV_LINE_MAX);
@@ -227,7 +253,8 @@ hyp_status hyp_csv_read(const char *path, const hyp_read_opts *opts, hyp_series 
         opts = &defaults;
     }
     hyp_series_free(out);
-    csv_state cs = {.path = path, .opts = opts};
+    csv_state cs = {.path = path, .opts = opts, .screen = {.path = path, .msgs = msgs}};
+    hyp__clock_init(&cs.clock, opts->zone);
     hyp__csv_lines lr = {0};
     FILE *f = NULL;
     hyp_status st = open_checked(path, &f, err);
@@ -242,6 +269,8 @@ hyp_status hyp_csv_read(const char *path, const hyp_read_opts *opts, hyp_series 
     st = read_rows(&cs, &lr, out, msgs, err);
     if (st)
         goto out;
+    hyp__screen_totals(&cs.screen);
+    hyp__clock_notes(&cs.clock, path, msgs);
     if (out->count == 0) {
         st = hyp_error_set(err, HYP_ERR_NODATA, "%s: header but no data rows", path);
         goto out;
@@ -256,10 +285,13 @@ hyp_status hyp_csv_read(const char *path, const hyp_read_opts *opts, hyp_series 
         goto out;
     if (pressure_unit_found)
         *pressure_unit_found = pu;
-    hyp__check_series(path, out, msgs);
+    /* CSV outputs list the samples in the series' order, with their
+     * lines: no map back to the file's order is needed */
+    st = hyp__check_series(path, out, NULL, msgs, err);
+    if (st)
+        goto out;
     hyp_series_shrink(out);
-    if (hyp_series_count_flag(out, HYP_SAMPLE_OK) == 0)
-        st = hyp_error_set(err, HYP_ERR_NODATA, "%s: no usable sample (every row lacks a time or a valid pressure)", path);
+    st = hyp__check_usable(path, out, pu, err);
 out:
     free(cs.fields);
     free(lr.buf);

@@ -16,16 +16,34 @@
  * three or more calibrations. A fit whose column-scaled design has a
  * condition number above max_condition drops the scale, then knots, and says
  * so. With more observations than parameters the covariance is inflated by
- * the reduced chi-square when that exceeds 1. */
+ * the reduced chi-square when that exceeds 1.
+ *
+ * Before the fit the calibrations are tested against each other
+ * (calib_test.c, through the adjustment engine): a rejected one is left
+ * out of the fit. The estimate stays with this rule and the SVD rather
+ * than the test's model: with no rejection the offset, its covariance and
+ * every height are what they were before the test existed, and the
+ * budget's fit term keeps the covariance it was built on; the engine's job
+ * is the test. When the test cannot tell which calibration is wrong, the
+ * knots' covariance is widened by the suspects' range of offsets over
+ * sqrt(2) (fully correlated: an unknown common offset), so the sigmas
+ * cover either being right. */
 #include "correct_int.h"
+#include "calib_test.h"
 #include "svd_solve.h"
 
 #include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
 #define EPOCH_S 1200.0
-#define FLOOR_PA 1.0   /* unresolved micro-pressure changes, common practice, no source */
+
+/* The calibrations the fit uses (those the test did not reject). */
+typedef struct calset {
+    const hyp_calib *c;
+    size_t n;
+} calset;
 
 static double clampd(double x, double lo, double hi)
 {
@@ -86,12 +104,12 @@ static double mid(const hyp_calib *c)
 }
 
 /* Epoch times: calibrations (sorted by time) closer than EPOCH_S merge. */
-static size_t epochs(const hyp_correct_result *r, double *t)
+static size_t epochs(const calset *cs, double *t)
 {
     size_t e = 0, cnt = 0;
     double sum = 0, last = -INFINITY;
-    for (size_t k = 0; k < r->n_calibs; k++) {
-        double m = mid(&r->calibs[k]);
+    for (size_t k = 0; k < cs->n; k++) {
+        double m = mid(&cs->c[k]);
         if (m - last > EPOCH_S && cnt) {
             if (e < HYP_MAX_KNOTS)
                 t[e++] = sum / (double)cnt;
@@ -107,17 +125,10 @@ static size_t epochs(const hyp_correct_result *r, double *t)
     return e;
 }
 
-static double obs_sigma(const hyp_calib *c)
-{
-    double f = FLOOR_PA * c->sens_m_per_pa;
-    return sqrt(c->se_m * c->se_m + c->known_sigma_m * c->known_sigma_m + f * f);
-}
-
 /* One weighted fit with the given knots (and scale). */
-static hyp_status try_fit(hyp__work *w, hyp_drift *d, const double *knots, size_t nk, int scale)
+static hyp_status try_fit(hyp__work *w, const calset *cs, hyp_drift *d, const double *knots, size_t nk, int scale)
 {
-    const hyp_correct_result *r = w->r;
-    size_t m = r->n_calibs, p = nk + (size_t)scale;
+    size_t m = cs->n, p = nk + (size_t)scale;
     if (m < p || p > HYP_LSQ_MAXP)
         return HYP_ERR_VALUE;
     double a[64 * HYP_LSQ_MAXP], b[64];
@@ -127,8 +138,8 @@ static hyp_status try_fit(hyp__work *w, hyp_drift *d, const double *knots, size_
     trial.n_knots = nk;
     memcpy(trial.knot_s, knots, nk * sizeof *knots);
     for (size_t k = 0; k < m; k++) {
-        const hyp_calib *c = &r->calibs[k];
-        double s = obs_sigma(c), phi[HYP_MAX_KNOTS];
+        const hyp_calib *c = &cs->c[k];
+        double s = hyp__calib_sigma_m(c), phi[HYP_MAX_KNOTS];
         hyp__drift_offset(&trial, mid(c), phi);
         for (size_t j = 0; j < nk; j++)
             a[k * p + j] = c->sens_m_per_pa * phi[j] / s;
@@ -167,7 +178,7 @@ static void note(hyp_drift *d, const char *text)
 
 /* Fits with the scale if wanted, else (or if that is ill-conditioned)
  * without; 0 on success. */
-static int fit_kind(hyp__work *w, hyp_drift *d, const double *knots, size_t nk, int want_scale)
+static int fit_kind(hyp__work *w, const calset *cs, hyp_drift *d, const double *knots, size_t nk, int want_scale)
 {
     if (want_scale) {
         /* The scale is kept only when the ties determine it better than the
@@ -177,7 +188,7 @@ static int fit_kind(hyp__work *w, hyp_drift *d, const double *knots, size_t nk, 
          * trade one for the other. */
         double prior = w->tsig_k / 285.0;
         hyp_drift trial = *d;
-        if (try_fit(w, &trial, knots, nk, 1) == HYP_OK && trial.scale_sigma < prior) {
+        if (try_fit(w, cs, &trial, knots, nk, 1) == HYP_OK && trial.scale_sigma < prior) {
             *d = trial;
             return 0;
         }
@@ -186,37 +197,36 @@ static int fit_kind(hyp__work *w, hyp_drift *d, const double *knots, size_t nk, 
                  trial.condition, 100.0 * trial.scale_sigma, 100.0 * prior);
         note(d, buf);
     }
-    return try_fit(w, d, knots, nk, 0) == HYP_OK ? 0 : -1;
+    return try_fit(w, cs, d, knots, nk, 0) == HYP_OK ? 0 : -1;
 }
 
-static double height_span(const hyp_correct_result *r)
+static double height_span(const calset *cs)
 {
     double lo = INFINITY, hi = -INFINITY;
-    for (size_t k = 0; k < r->n_calibs; k++) {
-        lo = fmin(lo, r->calibs[k].known_m);
-        hi = fmax(hi, r->calibs[k].known_m);
+    for (size_t k = 0; k < cs->n; k++) {
+        lo = fmin(lo, cs->c[k].known_m);
+        hi = fmax(hi, cs->c[k].known_m);
     }
-    return r->n_calibs ? hi - lo : 0.0;
+    return cs->n ? hi - lo : 0.0;
 }
 
-static hyp_status fit_calibrated(hyp__work *w, hyp_drift *d)
+static hyp_status fit_calibrated(hyp__work *w, const calset *cs, hyp_drift *d)
 {
-    hyp_correct_result *r = w->r;
     double ep[HYP_MAX_KNOTS] = {0};
-    size_t e = epochs(r, ep);
-    d->t_lo_s = r->calibs[0].start_s;
-    d->t_hi_s = r->calibs[0].end_s;
-    for (size_t k = 0; k < r->n_calibs; k++)
-        d->t_hi_s = fmax(d->t_hi_s, r->calibs[k].end_s);
-    int want_scale = r->n_calibs >= 3 && height_span(r) >= w->o->scale_min_span_m;
+    size_t e = epochs(cs, ep);
+    d->t_lo_s = cs->c[0].start_s;
+    d->t_hi_s = cs->c[0].end_s;
+    for (size_t k = 0; k < cs->n; k++)
+        d->t_hi_s = fmax(d->t_hi_s, cs->c[k].end_s);
+    int want_scale = cs->n >= 3 && height_span(cs) >= w->o->scale_min_span_m;
     double line[2] = {ep[0], ep[e - 1]};
-    if (e >= 2 && fit_kind(w, d, line, 2, want_scale) == 0) {
+    if (e >= 2 && fit_kind(w, cs, d, line, 2, want_scale) == 0) {
         d->kind = HYP_DRIFT_LINEAR;
         note(d, "linear drift between the first and last calibration");
         if (e >= 3 && d->dof > 0 && d->chi2 / (double)d->dof > 4.0) {
             hyp_drift pw = *d;
             pw.note[0] = '\0';
-            if (fit_kind(w, &pw, ep, e, want_scale) == 0) {
+            if (fit_kind(w, cs, &pw, ep, e, want_scale) == 0) {
                 char buf[160];
                 snprintf(buf, sizeof buf, "straight line misfits (reduced chi-square %.1f): piecewise linear through %zu epochs",
                          d->chi2 / (double)d->dof, e);
@@ -230,7 +240,7 @@ static hyp_status fit_calibrated(hyp__work *w, hyp_drift *d)
     if (e >= 2)
         note(d, "drift not estimable (ill-conditioned): constant offset");
     double one = 0.5 * (d->t_lo_s + d->t_hi_s);
-    if (fit_kind(w, d, &one, 1, want_scale) == 0) {
+    if (fit_kind(w, cs, d, &one, 1, want_scale) == 0) {
         d->kind = HYP_DRIFT_CONSTANT;
         d->t_lo_s = d->t_hi_s = one;
         note(d, e >= 2 ? "constant offset" : "constant offset (calibrations within 20 minutes of each other)");
@@ -239,10 +249,63 @@ static hyp_status fit_calibrated(hyp__work *w, hyp_drift *d)
     return HYP_ERR_VALUE;
 }
 
+/* Every calibration untested, the test not run. */
+static void test_clear(hyp_correct_result *r)
+{
+    memset(&r->calib_test, 0, sizeof r->calib_test);
+    r->calib_test.s0_sq = r->calib_test.s0_sq_lower = r->calib_test.s0_sq_upper = NAN;
+    for (size_t k = 0; k < r->n_calibs; k++) {
+        hyp_calib *c = &r->calibs[k];
+        c->test_w = c->test_redundancy = NAN;
+        c->rejected = c->suspect = 0;
+        c->test_note[0] = '\0';
+    }
+}
+
+/* The test cannot tell which calibration is wrong: every knot gets a
+ * common offset uncertainty (calib_test.c: the suspects' range over
+ * sqrt(2)). */
+static void widen(hyp_drift *d, double spread_pa)
+{
+    if (!(spread_pa > 0))
+        return;
+    for (size_t j = 0; j < d->n_knots; j++)
+        for (size_t k = 0; k < d->n_knots; k++)
+            d->cov[j * d->p + k] += spread_pa * spread_pa;
+    char buf[160];
+    snprintf(buf, sizeof buf, "the calibrations disagree and the test cannot tell which is wrong: "
+             "sigma widened by %.2f hPa", spread_pa / 100.0);
+    note(d, buf);
+}
+
+/* The test, then the fit on the calibrations it kept. */
+static hyp_status fit_tested(hyp__work *w, hyp_drift *d, hyp_error *err)
+{
+    hyp_correct_result *r = w->r;
+    hyp_status st = hyp__calib_test(w, err);
+    if (st)
+        return st;
+    hyp_calib *kept = malloc(r->n_calibs * sizeof *kept);
+    if (!kept)
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    calset cs = {kept, 0};
+    for (size_t k = 0; k < r->n_calibs; k++)
+        if (!r->calibs[k].rejected)
+            kept[cs.n++] = r->calibs[k];
+    st = fit_calibrated(w, &cs, d);
+    free(kept);
+    if (st)
+        return hyp_error_set(err, HYP_ERR_NODATA, "the calibrations do not determine an offset (ill-conditioned fit)");
+    if (r->calib_test.state == HYP_CALTEST_UNRESOLVED)
+        widen(d, r->calib_test.spread_pa);
+    return HYP_OK;
+}
+
 hyp_status hyp__fit_drift(hyp__work *w, hyp_error *err)
 {
     hyp_drift *d = &w->r->drift;
     memset(d, 0, sizeof *d);
+    test_clear(w->r);
     d->n_knots = 1;
     d->p = 1;
     d->inflation = 1.0;
@@ -260,8 +323,9 @@ hyp_status hyp__fit_drift(hyp__work *w, hyp_error *err)
         note(d, "no calibration: offset taken as 0");
         return HYP_OK;
     }
-    if (fit_calibrated(w, d))
-        return hyp_error_set(err, HYP_ERR_NODATA, "the calibrations do not determine an offset (ill-conditioned fit)");
+    hyp_status st = fit_tested(w, d, err);
+    if (st)
+        return st;
     if (d->n_knots >= 2)
         d->rate_pa_per_s = (d->knot_pa[d->n_knots - 1] - d->knot_pa[0]) / (d->knot_s[d->n_knots - 1] - d->knot_s[0]);
     /* dz (1 + s) = dz Tv' / Tv: a scale s is a column temperature error of

@@ -30,7 +30,7 @@ enum capture { CAP_NONE, CAP_ELE, CAP_TIME, CAP_PRES, CAP_TEMP, CAP_RH, CAP_NAME
  * dictionary: libxml2 hands element names (and namespace names) over from
  * that dictionary, so a name matches when the pointer does. */
 enum name { N_METADATA, N_EXTENSIONS, N_TRKPT, N_RTEPT, N_WPT, N_ELE, N_TIME, N_NAME, N_GEOID,
-            N_PRES, N_TEMP, N_RH, N_HYP_NS, N_COUNT };
+            N_PRES, N_TEMP, N_RH, N_HYP_NS, N_TRK, N_TRKSEG, N_RTE, N_COUNT };
 
 typedef struct gpx_ctx {
     const char *path;
@@ -59,6 +59,13 @@ typedef struct gpx_ctx {
     unsigned pt_line;
     double lat, lon, ele, time_s, pres, temp, rh, geoid;
     int meta_depth, meta_ext_depth;
+    /* the open <trk> (depth 2), its <trkseg> (3), or <rte> (2): points are
+     * only the root's own, never elements of that name nested elsewhere */
+    int in_trk, in_seg, in_rte;
+    size_t n_misplaced;        /* trkpt/rtept elsewhere: not points */
+    hyp__clock clock;
+    hyp__screen screen;
+    int pres_bad;
     int pres_raw, temp_raw, got_pres, got_temp, got_rh, got_time;
     int64_t open_end, ele_beg, ele_end, ext_ins, anchor, prev_anchor;
     char name[TEXT_MAX + 1];
@@ -138,7 +145,8 @@ static int is_name(const gpx_ctx *g, const xmlChar *s, enum name k)
 static hyp_status intern_names(gpx_ctx *g)
 {
     static const char *fixed[N_COUNT] = {"metadata", "extensions", "trkpt", "rtept", "wpt", "ele", "time",
-                                         "name", "geoidheight", NULL, NULL, NULL, HYP_GPX_NS};
+                                         "name", "geoidheight", NULL, NULL, NULL, HYP_GPX_NS,
+                                         "trk", "trkseg", "rte"};
     xmlDictPtr d = g->ctxt->dict;
     for (int k = 0; k < N_COUNT; k++) {
         const char *n = fixed[k] ? fixed[k]
@@ -188,7 +196,7 @@ static void start_root(gpx_ctx *g, const xmlChar *local, const xmlChar *prefix, 
     } else
         L->version = v && strcmp(v, "1.0") == 0 ? 10 : 11;
     if (!uri && !v)
-        hyp_msgs_add(g->msgs, HYP_NOTE, "%s: <gpx> has neither namespace nor version; read as GPX 1.1", g->path);
+        hyp_msgs_add_at(g->msgs, HYP_NOTE, "sample", g->path, 0, "<gpx> has neither namespace nor version; read as GPX 1.1");
     L->has_namespace = uri != NULL;
     if (uri && !(g->gpx_uri = xmlStrdup(uri))) {
         fail(g, HYP_ERR_NOMEM, "out of memory");
@@ -246,6 +254,7 @@ static hyp_status grow_points(gpx_ctx *g)
     return HYP_OK;
 }
 
+/* A coordinate attribute; NaN (with a warning) when not finite. */
 static double parse_coord(gpx_ctx *g, const xmlChar **attrs, int nb_attr, const char *name, const char *elem)
 {
     char buf[64];
@@ -255,11 +264,15 @@ static double parse_coord(gpx_ctx *g, const xmlChar **attrs, int nb_attr, const 
         fail(g, HYP_ERR_FORMAT, "<%s> has no %s attribute", elem, name);
         return NAN;
     }
-    if (hyp__parse_number(v, strlen(v), 0, &x) != 1) {
-        fail(g, HYP_ERR_VALUE, "<%s> %s \"%s\" is not a number", elem, name, v);
-        return NAN;
-    }
-    return x;
+    size_t len = strlen(v);
+    int r = hyp__parse_number(v, len, 0, &x);
+    if (hyp__value_ok(HYP__F_POSITION, r, x))
+        return x;
+    if (r == 3 || r == 1)
+        return hyp__screen_refuse(&g->screen, HYP__F_POSITION, name, cur_line(g), r, v, len);
+    char q[80];
+    fail(g, HYP_ERR_VALUE, "<%s> %s \"%s\" is not a number", elem, name, hyp__quote(q, sizeof q, v, len));
+    return NAN;
 }
 
 static void start_point(gpx_ctx *g, const xmlChar *local, int nb_attr, const xmlChar **attrs, int wpt)
@@ -278,8 +291,10 @@ static void start_point(gpx_ctx *g, const xmlChar *local, int nb_attr, const xml
     g->lon = parse_coord(g, attrs, nb_attr, "lon", elem);
     if (g->status)
         return;
+    if (g->lat != g->lat || g->lon != g->lon)
+        g->lat = g->lon = NAN;   /* half a position is none (the warning is given) */
     g->ele = g->time_s = g->pres = g->temp = g->rh = g->geoid = NAN;
-    g->got_pres = g->got_temp = g->got_rh = g->got_time = 0;
+    g->got_pres = g->got_temp = g->got_rh = g->got_time = g->pres_bad = 0;
     g->ele_beg = g->ele_end = g->ext_ins = -1;
     g->name[0] = '\0';
     g->pt_selfclosed = g->ctxt->input->cur[0] == '/';
@@ -311,13 +326,38 @@ static void start_capture(gpx_ctx *g, int what, int nb_attr, const xmlChar **att
                 g->unit_parsed[c] = g->cap_unit;
                 g->unit_seen[c] = 1;
             }
+            char uq[80];
             if (!g->cap_unit)
-                fail(g, HYP_ERR_UNIT, "unit=\"%s\" on <%s> is unknown; expected one of %s", u,
+                fail(g, HYP_ERR_UNIT, "unit=\"%s\" on <%s> is unknown; expected one of %s", hyp__quote(uq, sizeof uq, u, strlen(u)),
                      what == CAP_PRES ? field_name(g->opts->pressure_field, "pressure")
                                       : field_name(g->opts->temperature_field, "temperature"),
                      hyp_unit_choices(q));
         }
     }
+}
+
+/* The root's own track, route and waypoint structure, at its depth:
+ * gpx/trk/trkseg/trkpt, gpx/rte/rtept and gpx/wpt (GPX 1.0 and 1.1 alike). */
+static void start_structure(gpx_ctx *g, const xmlChar *local, int nb_attr, const xmlChar **attrs)
+{
+    if (g->depth == 2) {
+        if (is_name(g, local, N_TRK))
+            g->in_trk = 1;
+        else if (is_name(g, local, N_RTE))
+            g->in_rte = 1;
+        else if (is_name(g, local, N_WPT))
+            start_point(g, local, nb_attr, attrs, 1);
+    } else if (g->depth == 3) {
+        if (g->in_trk && is_name(g, local, N_TRKSEG))
+            g->in_seg = 1;
+        else if (g->in_rte && is_name(g, local, N_RTEPT))
+            start_point(g, local, nb_attr, attrs, 0);
+    } else if (g->depth == 4 && g->in_seg && is_name(g, local, N_TRKPT)) {
+        start_point(g, local, nb_attr, attrs, 0);
+        return;
+    }
+    if (!g->in_pt && !g->in_wpt && (is_name(g, local, N_TRKPT) || is_name(g, local, N_RTEPT)))
+        g->n_misplaced++;
 }
 
 static void on_start(void *ctx, const xmlChar *local, const xmlChar *prefix, const xmlChar *uri,
@@ -353,10 +393,8 @@ static void on_start(void *ctx, const xmlChar *local, const xmlChar *prefix, con
     } else if (gpx && g->meta_depth && g->depth == 3 && is_name(g, local, N_EXTENSIONS))
         g->meta_ext_depth = 3;
     if (!g->in_pt && !g->in_wpt) {
-        if (gpx && g->depth >= 2 && (is_name(g, local, N_TRKPT) || is_name(g, local, N_RTEPT)))
-            start_point(g, local, nb_attr, attrs, 0);
-        else if (gpx && g->depth == 2 && is_name(g, local, N_WPT))
-            start_point(g, local, nb_attr, attrs, 1);
+        if (gpx)
+            start_structure(g, local, nb_attr, attrs);
         return;
     }
     if (g->cap)
@@ -418,6 +456,45 @@ static const char *cap_label(gpx_ctx *g, int cap)
     return "?";
 }
 
+static int xml_blank(char c)
+{
+    return c == ' ' || c == '\t' || c == '\r' || c == '\n';
+}
+
+/* The captured time: XML whitespace around it is not part of it
+ * (xsd:dateTime collapses whitespace). */
+static void end_time(gpx_ctx *g)
+{
+    char *t = g->text;
+    size_t n = g->text_len;
+    while (n && xml_blank(t[n - 1]))
+        t[--n] = '\0';
+    while (*t && xml_blank(*t))
+        t++;
+    hyp_time_result r = hyp__clock_read(&g->clock, t, cur_line(g), &g->time_s);
+    char q[160];
+    if (r)
+        hyp__quote(q, sizeof q, t, strlen(t));
+    if (r == HYP_TIME_NOZONE)
+        fail(g, HYP_ERR_VALUE, "<time> \"%s\" has no time zone; add Z or give the zone with --time-zone", q);
+    else if (r == HYP_TIME_RANGE)
+        fail(g, HYP_ERR_VALUE, "<time> \"%s\" is out of range (a date that does not exist, or before 1900 or after 2200)", q);
+    else if (r)
+        fail(g, HYP_ERR_VALUE, "<time> \"%s\" is not an ISO 8601 time (expected 2026-06-14T09:30:00Z)", q);
+    g->got_time = 1;
+}
+
+/* A number read from a field: in the file's unit where the element has no
+ * unit attribute (resolved for the whole file later), else in SI. */
+static double unit_value(gpx_ctx *g, double v, int *raw, hyp_unit *attr_unit)
+{
+    *raw = !g->cap_unit;
+    if (!g->cap_unit)
+        return v;
+    *attr_unit = g->cap_unit;
+    return v == v ? hyp_unit_to_si(g->cap_unit, v) : v;
+}
+
 static void end_capture(gpx_ctx *g)
 {
     int cap = g->cap;
@@ -432,41 +509,35 @@ static void end_capture(gpx_ctx *g)
         return;
     }
     if (cap == CAP_TIME) {
-        hyp_time_result r = hyp_time_parse(g->text, g->opts->zone, &g->time_s);
-        if (r == HYP_TIME_NOZONE)
-            fail(g, HYP_ERR_VALUE, "<time> \"%s\" has no time zone; add Z or give the zone with --time-zone", g->text);
-        else if (r == HYP_TIME_RANGE)
-            fail(g, HYP_ERR_VALUE, "<time> \"%s\" is out of range (a date that does not exist, or before 1900 or after 2200)", g->text);
-        else if (r)
-            fail(g, HYP_ERR_VALUE, "<time> \"%s\" is not an ISO 8601 time (expected 2026-06-14T09:30:00Z)", g->text);
-        g->got_time = 1;
+        end_time(g);
         return;
     }
     double v;
     int r = hyp__parse_number(g->text, g->text_len, 0, &v);
-    if (r != 1) {
-        fail(g, HYP_ERR_VALUE, "<%s> \"%.40s\" is %s; expected a number", cap_label(g, cap), g->text,
-             r == 2 ? "empty" : "not a number");
+    if (r == 0 || r == 2) {
+        char q[64];
+        fail(g, HYP_ERR_VALUE, "<%s> \"%s\" is %s; expected a number", cap_label(g, cap),
+             hyp__quote(q, sizeof q, g->text, g->text_len), r == 2 ? "empty" : "not a number");
         return;
     }
+    static const hyp__field field[] = {[CAP_ELE] = HYP__F_ELE, [CAP_PRES] = HYP__F_PRESSURE,
+                                       [CAP_TEMP] = HYP__F_TEMPERATURE, [CAP_RH] = HYP__F_HUMIDITY,
+                                       [CAP_GEOID] = HYP__F_GEOID};
+    if (!hyp__value_ok(field[cap], r, v))
+        v = hyp__screen_refuse(&g->screen, field[cap], cap_label(g, cap), cur_line(g), r, g->text, g->text_len);
     switch (cap) {
     case CAP_ELE:
-        g->ele = v;
+        g->ele = v;   /* NaN when refused: the splice writer still replaces it */
         g->ele_end = end_tag_start(g);
         break;
     case CAP_PRES:
         g->got_pres = 1;
-        g->pres_raw = !g->cap_unit;
-        g->pres = g->cap_unit ? hyp_unit_to_si(g->cap_unit, v) : v;
-        if (g->cap_unit)
-            g->p_attr_unit = g->cap_unit;
+        g->pres_bad = v != v;
+        g->pres = unit_value(g, v, &g->pres_raw, &g->p_attr_unit);
         break;
     case CAP_TEMP:
         g->got_temp = 1;
-        g->temp_raw = !g->cap_unit;
-        g->temp = g->cap_unit ? hyp_unit_to_si(g->cap_unit, v) : v;
-        if (g->cap_unit)
-            g->t_attr_unit = g->cap_unit;
+        g->temp = unit_value(g, v, &g->temp_raw, &g->t_attr_unit);
         break;
     case CAP_RH:
         g->got_rh = 1;
@@ -511,7 +582,7 @@ static void end_point(gpx_ctx *g)
     hyp_gpx_doc *d = g->doc;
     if (g->in_wpt) {
         g->in_wpt = 0;
-        if (push_waypoint(&d->wpts, g->name, g->got_time ? g->time_s : NAN, g->lat, g->lon))
+        if (g->lat == g->lat && push_waypoint(&d->wpts, g->name, g->got_time ? g->time_s : NAN, g->lat, g->lon))
             fail(g, HYP_ERR_NOMEM, "out of memory");
         return;
     }
@@ -565,7 +636,9 @@ static void end_point(gpx_ctx *g)
     d->has_geoidheight |= g->geoid == g->geoid;
     g->p_raw[i] = (uint8_t)(g->got_pres && g->pres_raw);
     g->t_raw[i] = (uint8_t)(g->got_temp && g->temp_raw);
-    hyp_sample_flag flag = !g->got_time ? HYP_SAMPLE_NO_TIME : !g->got_pres ? HYP_SAMPLE_NO_PRESSURE : HYP_SAMPLE_OK;
+    hyp_sample_flag flag = !g->got_time ? HYP_SAMPLE_NO_TIME
+                         : g->pres_bad ? HYP_SAMPLE_BAD_VALUE
+                         : !g->got_pres ? HYP_SAMPLE_NO_PRESSURE : HYP_SAMPLE_OK;
     if (hyp_series_push(&d->pts, g->time_s, g->pres, g->temp, g->rh, g->lat, g->lon, g->ele,
                         g->pt_line, flag))
         fail(g, HYP_ERR_NOMEM, "out of memory (or more points than a track may hold)");
@@ -599,6 +672,10 @@ static void on_end(void *ctx, const xmlChar *local, const xmlChar *prefix, const
             g->meta_depth = 0;
         } else if (g->depth == 1)
             g->doc->layout.root_close = end_tag_start(g);
+        if (g->depth == 2)
+            g->in_trk = g->in_rte = 0;
+        else if (g->depth == 3)
+            g->in_seg = 0;
     }
     g->depth--;
 }
@@ -713,6 +790,39 @@ static hyp_status resolve_units(gpx_ctx *g)
             return st;
         *q[k].out = used;
     }
+    return HYP_OK;
+}
+
+/* The series checks; where the points had to be put in time order, the
+ * geoid heights follow them and the layout keeps its file order through
+ * doc->pt_series. */
+static hyp_status check_points(gpx_ctx *g)
+{
+    hyp_gpx_doc *d = g->doc;
+    uint32_t *order = NULL;
+    hyp_status st = hyp__check_series(g->path, &d->pts, &order, g->msgs, g->err);
+    if (st || !order)
+        return st;
+    size_t n = d->pts.count;
+    double *gh = d->geoidheight_m ? malloc(n * sizeof *gh) : NULL;
+    uint32_t *inv = malloc(n * sizeof *inv);
+    if (!inv || (d->geoidheight_m && !gh)) {
+        free(order);
+        free(gh);
+        free(inv);
+        return hyp_error_set(g->err, HYP_ERR_NOMEM, "%s: out of memory", g->path);
+    }
+    for (size_t i = 0; i < n; i++) {
+        inv[order[i]] = (uint32_t)i;
+        if (gh)
+            gh[i] = d->geoidheight_m[order[i]];
+    }
+    if (gh) {
+        free(d->geoidheight_m);
+        d->geoidheight_m = gh;
+    }
+    d->pt_series = inv;
+    free(order);
     return HYP_OK;
 }
 
@@ -839,18 +949,28 @@ hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts, hyp_gpx_doc
     char *ibuf = malloc(IN_BUF);
     if (ibuf)
         setvbuf(f, ibuf, _IOFBF, IN_BUF);
-    gpx_ctx g = {.path = path, .opts = opts, .doc = doc, .msgs = msgs, .err = err};
+    gpx_ctx g = {.path = path, .opts = opts, .doc = doc, .msgs = msgs, .err = err,
+                 .screen = {.path = path, .msgs = msgs}};
+    hyp__clock_init(&g.clock, opts->zone);
     hyp_status st = parse_file(&g, f);
     fclose(f);
     free(ibuf);
+    if (!st) {
+        hyp__screen_totals(&g.screen);
+        hyp__clock_notes(&g.clock, path, msgs);
+    }
     if (!st && doc->pts.count == 0)
-        st = hyp_error_set(err, HYP_ERR_NODATA, "%s: no <trkpt> or <rtept> in the file", path);
+        st = hyp_error_set(err, HYP_ERR_NODATA, "%s: no <trkpt> in gpx/trk/trkseg or <rtept> in gpx/rte%s", path,
+                           g.n_misplaced ? " (there are some elsewhere, which are not the track's points)" : "");
+    else if (!st && g.n_misplaced)
+        hyp_msgs_add_at(msgs, HYP_NOTE, "sample", path, 0, "%zu <trkpt> or <rtept> elements outside gpx/trk/trkseg and gpx/rte are not read as points", g.n_misplaced);
     if (!st)
         st = resolve_units(&g);
+    if (!st)
+        st = check_points(&g);
     if (!st) {
         if (!doc->pts.has_temp)
             doc->temperature_unit = HYP_UNIT_NONE;
-        hyp__check_series(path, &doc->pts, msgs);
         size_t no_p = hyp_series_count_flag(&doc->pts, HYP_SAMPLE_NO_PRESSURE);
         size_t no_t = hyp_series_count_flag(&doc->pts, HYP_SAMPLE_NO_TIME);
         if (no_t == doc->pts.count)
@@ -860,11 +980,13 @@ hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts, hyp_gpx_doc
                                "%s: no point has a pressure (looked for an element named \"%s\" in each point's extensions; --pressure-field sets the name)",
                                path, field_name(opts->pressure_field, "pressure"));
         else if (no_p)
-            hyp_msgs_add(msgs, HYP_WARNING, "%s: %zu of %zu points have no pressure and get no corrected height", path, no_p,
+            hyp_msgs_add_at(msgs, HYP_WARNING, "sample", path, 0, "%zu of %zu points have no pressure and get no corrected height", no_p,
                          doc->pts.count);
         if (!st && no_t)
-            hyp_msgs_add(msgs, HYP_WARNING, "%s: %zu of %zu points have no time and get no corrected height", path, no_t,
+            hyp_msgs_add_at(msgs, HYP_WARNING, "sample", path, 0, "%zu of %zu points have no time and get no corrected height", no_t,
                          doc->pts.count);
+        if (!st)
+            st = hyp__check_usable(path, &doc->pts, doc->pressure_unit, err);
     }
     free(g.p_raw);
     free(g.t_raw);
@@ -880,7 +1002,7 @@ hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts, hyp_gpx_doc
         if ((q = realloc(L->pt_ele_beg, n * sizeof(uint16_t)))) L->pt_ele_beg = q;
         if ((q = realloc(L->pt_ele_len, n * sizeof(uint16_t)))) L->pt_ele_len = q;
         if ((q = realloc(L->pt_ext, n * sizeof(uint32_t)))) L->pt_ext = q;
-        if (doc->geoidheight_m && (q = realloc(doc->geoidheight_m, n * sizeof(double))))
+        if (doc->geoidheight_m && !doc->pt_series && (q = realloc(doc->geoidheight_m, n * sizeof(double))))
             doc->geoidheight_m = q;
     }
     if (st)
@@ -927,6 +1049,7 @@ void hyp_gpx_doc_free(hyp_gpx_doc *d)
     free(L->ele_far);
     free(L->pt_ext);
     free(d->geoidheight_m);
+    free(d->pt_series);
     for (size_t i = 0; i < d->wpts.count; i++)
         free(d->wpts.name[i]);
     free(d->wpts.name);

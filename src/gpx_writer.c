@@ -205,7 +205,9 @@ static hyp_status advance_error(hyp_error *err, const char *in, int rc, int64_t 
 static hyp_status layout_error(hyp_error *err, const char *in, int64_t off)
 {
     return hyp_error_set(err, HYP_ERR_INTERNAL,
-                         "%s: byte %lld is not where the reader placed it (was the file changed while being read?); nothing written",
+                         "%s: internal error: byte %lld is not where the GPX reader recorded it, so reader and writer "
+                         "disagree (a bug: please report it with this file, unless the file was changed since it was read); "
+                         "nothing written",
                          in, (long long)off);
 }
 
@@ -326,7 +328,8 @@ static hyp_status splice_range(src *s, sink *out, const char *in_path, const hyp
     for (size_t i = lo; i < hi; i++) {
         hyp_gpx_point P;
         hyp_gpx_point_next(L, i, &anchor, &P);
-        st = splice_point(s, out, in_path, doc, res, i, &P, err);
+        /* the layout is in file order; the series may be in time order */
+        st = splice_point(s, out, in_path, doc, res, doc->pt_series ? doc->pt_series[i] : i, &P, err);
         if (st)
             return st;
     }

@@ -166,10 +166,12 @@ static int gaps_and_clock(const hyp_series *s, const view *v, const hyp_inspect_
     for (size_t i = 1; i < v->n; i++)
         if (v->t[i] - v->t[i - 1] > lim && add(r, HYP_ISSUE_GAP, v->t[i - 1], v->t[i], v->t[i] - v->t[i - 1], v->line[i]))
             return -1;
-    for (size_t i = 0; i < s->count; i++) {
-        if (s->flag[i] != HYP_SAMPLE_TIME_ORDER || (i > 0 && s->flag[i - 1] == HYP_SAMPLE_TIME_ORDER))
-            continue;
-        if (add(r, HYP_ISSUE_CLOCK_JUMP, s->time_s[i], s->time_s[i], i > 0 ? s->time_s[i] - s->time_s[i - 1] : 0, hyp_series_line(s, i)))
+    /* where the file's time went back, as the reader recorded it before
+     * it put the samples in time order */
+    size_t nb = s->n_time_back < HYP_TIME_BACK_KEEP ? s->n_time_back : HYP_TIME_BACK_KEEP;
+    for (size_t k = 0; k < nb; k++) {
+        const struct hyp_time_back *b = &s->time_back[k];
+        if (add(r, HYP_ISSUE_CLOCK_JUMP, b->time_s, b->time_s, -b->back_s, b->line))
             return -1;
     }
     return 0;

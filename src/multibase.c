@@ -43,8 +43,7 @@ static void compare_bases(hyp__work *w)
                 s += d, ss += d * d, n++;
             }
             if (n < 3) {
-                hyp_msgs_add(w->msgs, HYP_WARNING, "%s: fewer than 3 samples in the bases' co-location window; not compared",
-                             w->bases[k].name);
+                hyp_msgs_add_at(w->msgs, HYP_WARNING, "method", w->bases[k].name, 0, "fewer than 3 samples in the bases' co-location window; not compared");
                 continue;
             }
             double mean = s / (double)n, sd = sqrt(fmax(0.0, (ss - s * s / (double)n) / (double)(n - 1)));

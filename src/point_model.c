@@ -187,6 +187,7 @@ hyp_point_status hyp__corrected_point(const hyp__work *w, size_t i, const hyp__i
     d->base_p_pa = in->pb;
     d->offset_pa = off;
     d->tcol_k = tv * (1.0 + dr->scale);
+    d->sens_m_per_pa = c;
     hyp__in bin = *in;
     if (w->method == HYP_METHOD_TWO_BASE)   /* the place in the bracket from the corrected height */
         bin.xfrac = *dz_out / (w->bases[w->upper].height_m - w->bases[w->ref].height_m);

@@ -58,6 +58,53 @@ static const char *how_text(hyp_calib_how h)
     return h == HYP_HOW_POSITION ? "found from positions" : h == HYP_HOW_WAYPOINT ? "waypoint" : "given";
 }
 
+/* A calibration's test: its w and redundancy, or why it has none. */
+static void calib_test_text(const hyp_calib *c, const hyp_calib_test *ct, char *buf, size_t n)
+{
+    if (ct->state == HYP_CALTEST_NONE)
+        buf[0] = '\0';
+    else if (c->test_w == c->test_w)
+        snprintf(buf, n, ", w %+.2f (redundancy %.3f)", c->test_w, c->test_redundancy);
+    else
+        snprintf(buf, n, ", not checked by the others");
+}
+
+/* The test's verdict and its global test. */
+static void print_calib_test(FILE *f, const hyp_correct_result *r)
+{
+    const hyp_calib_test *ct = &r->calib_test;
+    double c = 0;
+    for (size_t k = 0; k < r->n_calibs && c == 0; k++)
+        c = r->calibs[k].suspect ? r->calibs[k].sens_m_per_pa : 0;
+    switch (ct->state) {
+    case HYP_CALTEST_NONE:
+        fprintf(f, "  test      not run: the offset is given, the calibrations are only reported\n");
+        return;
+    case HYP_CALTEST_UNTESTED:
+        fprintf(f, "  test      the calibrations could not be tested: too few (%zu) for any to be checked by another\n",
+                r->n_calibs);
+        return;
+    case HYP_CALTEST_PASSED:
+        fprintf(f, "  test      every calibration agrees with the others (w-test, two-sided alpha %g: |w| at most %.2f)\n",
+                ct->alpha_w, ct->w_crit);
+        break;
+    case HYP_CALTEST_REJECTED:
+        fprintf(f, "  test      FAILED: %zu calibration(s) rejected (|w| beyond %.2f, two-sided alpha %g) and the offset fitted without them (exit status 3)\n",
+                ct->n_rejected, ct->w_crit, ct->alpha_w);
+        break;
+    case HYP_CALTEST_UNRESOLVED:
+        fprintf(f, "  test      FAILED: calibrations disagree (|w| beyond %.2f, two-sided alpha %g) and too few remain to tell which is wrong: all kept, the offset's sigma widened by %.2f hPa (about %.1f m) (exit status 3)\n",
+                ct->w_crit, ct->alpha_w, ct->spread_pa / 100.0, ct->spread_pa * c);
+        break;
+    }
+    if (ct->dof > 0 && ct->s0_sq == ct->s0_sq && ct->global != HYP_GLOBAL_NONE)
+        fprintf(f, "            variance factor %.2f on %zu degree(s) of freedom (bounds %.2f to %.2f, two-sided alpha %g): %s\n",
+                ct->s0_sq, ct->dof, ct->s0_sq_lower, ct->s0_sq_upper, ct->alpha_global,
+                ct->global == HYP_GLOBAL_PASS  ? "passed"
+                : ct->global == HYP_GLOBAL_LOW ? "below: the calibrations agree more closely than the test's generous priors require"
+                                               : "above: the calibrations scatter more than their sigmas allow");
+}
+
 static void print_calibrations(FILE *f, const hyp_correct_result *r)
 {
     if (!r->n_calibs)
@@ -65,13 +112,17 @@ static void print_calibrations(FILE *f, const hyp_correct_result *r)
     fprintf(f, "  ties      %zu calibration(s); misclosure = height before adjustment - known, residual = after\n", r->n_calibs);
     for (size_t k = 0; k < r->n_calibs; k++) {
         const hyp_calib *c = &r->calibs[k];
-        char a[40], b[40];
+        char a[40], b[40], t[80];
         hyp_time_format(c->start_s, a, sizeof a);
         hyp_time_format(c->end_s, b, sizeof b);
-        fprintf(f, "            %-10s %s to %s, %zu samples (%s): known %.3f m +- %.3f m, misclosure %+.3f m, residual %+.3f m, offset %+.3f hPa\n",
+        calib_test_text(c, &r->calib_test, t, sizeof t);
+        fprintf(f, "            %-10s %s to %s, %zu samples (%s): known %.3f m +- %.3f m, misclosure %+.3f m, residual %+.3f m, offset %+.3f hPa%s\n",
                 c->name, a, b + 11, c->n, how_text(c->how), c->known_m, c->known_sigma_m, c->misclosure_m,
-                c->residual_m, c->offset_pa / 100.0);
+                c->residual_m, c->offset_pa / 100.0, t);
+        if (c->rejected || c->suspect)
+            fprintf(f, "                       %s: %s\n", c->rejected ? "rejected" : "suspect", c->test_note);
     }
+    print_calib_test(f, r);
 }
 
 static void print_drift(FILE *f, const hyp_correct_result *r)
@@ -310,7 +361,7 @@ void hyp_batch_summary_write(FILE *f, const hyp_run_info *r, size_t n, hyp_summa
     int json = fmt == HYP_SUMMARY_JSON;
     fputs(json ? "[\n" : "file,points,corrected,method,ties,median_sigma_m,exit_status,status\n", f);
     for (size_t i = 0; i < n; i++) {
-        int rc = r[i].started ? hyp_exit_status(r[i].status) : 1;
+        int rc = hyp_run_exit_status(&r[i]);
         int has_sigma = r[i].median_sigma_m == r[i].median_sigma_m;
         if (json) {
             fputs("  {\"file\": ", f);

@@ -67,6 +67,30 @@ static hyp_status series_reserve(hyp_series *s, size_t n)
     return HYP_OK;
 }
 
+/* Records the line of sample i, which follows sample i - 1's. */
+static inline int put_line(hyp_series *s, size_t i, uint32_t line)
+{
+    if (i % 64 == 0) {
+        s->line_block[i / 64] = line;
+        s->line_step[i] = 0;
+    } else if (line >= s->last_line && line - s->last_line < 255) {
+        s->line_step[i] = (uint8_t)(line - s->last_line);
+    } else {
+        if (s->n_line_far == s->line_far_alloc) {
+            size_t a = s->line_far_alloc ? 2 * s->line_far_alloc : 64;
+            void *p = realloc(s->line_far, a * sizeof *s->line_far);
+            if (!p)
+                return -1;
+            s->line_far = p;
+            s->line_far_alloc = a;
+        }
+        s->line_far[s->n_line_far++] = (struct hyp_line_far){i, line};
+        s->line_step[i] = 255;
+    }
+    s->last_line = line;
+    return 0;
+}
+
 hyp_status hyp_series_push(hyp_series *s, double time_s, double pressure_pa,
                            double temp_k, double rh_pct, double lat_deg,
                            double lon_deg, double ele_m, uint32_t line,
@@ -83,26 +107,10 @@ hyp_status hyp_series_push(hyp_series *s, double time_s, double pressure_pa,
     s->lat_e7[i] = hyp_deg_e7(lat_deg);
     s->lon_e7[i] = hyp_deg_e7(lon_deg);
     s->ele_m[i] = (float)ele_m;
-    if (i % 64 == 0) {
-        s->line_block[i / 64] = line;
-        s->line_step[i] = 0;
-    } else if (line >= s->last_line && line - s->last_line < 255) {
-        s->line_step[i] = (uint8_t)(line - s->last_line);
-    } else {
-        if (s->n_line_far == s->line_far_alloc) {
-            size_t a = s->line_far_alloc ? 2 * s->line_far_alloc : 64;
-            void *p = realloc(s->line_far, a * sizeof *s->line_far);
-            if (!p) {
-                s->count--;
-                return HYP_ERR_NOMEM;
-            }
-            s->line_far = p;
-            s->line_far_alloc = a;
-        }
-        s->line_far[s->n_line_far++] = (struct hyp_line_far){i, line};
-        s->line_step[i] = 255;
+    if (put_line(s, i, line)) {
+        s->count--;
+        return HYP_ERR_NOMEM;
     }
-    s->last_line = line;
     s->flag[i] = (uint8_t)flag;
     if (temp_k == temp_k)
         s->has_temp = 1;
@@ -157,8 +165,9 @@ const char *hyp_sample_flag_text(hyp_sample_flag f)
     case HYP_SAMPLE_NO_TIME: return "no time stamp";
     case HYP_SAMPLE_NO_PRESSURE: return "no pressure";
     case HYP_SAMPLE_PRESSURE_RANGE: return "pressure outside 300-1100 hPa";
-    case HYP_SAMPLE_TIME_ORDER: return "time not after the previous sample";
-    case HYP_SAMPLE_BAD_VALUE: return "a value could not be read";
+    case HYP_SAMPLE_TIME_OUTLIER: return "time far out of line with the samples around it";
+    case HYP_SAMPLE_BAD_VALUE: return "pressure not a finite number in any unit's range";
+    case HYP_SAMPLE_TIME_DUPLICATE: return "time the same as another sample's";
     case HYP_SAMPLE_FLAG_COUNT: break;
     }
     return "unknown";
@@ -186,4 +195,56 @@ void hyp_series_shrink(hyp_series *s)
     shrink((void **)&s->line_block, s->count / 64 + 1, sizeof(uint32_t));
     shrink((void **)&s->flag, s->count, sizeof(uint8_t));
     s->alloc = s->count;
+}
+
+/* Gathers one array of `size`-byte elements through order: a new array,
+ * then the old one freed. */
+static int gather(void **p, const uint32_t *order, size_t n, size_t size)
+{
+    unsigned char *q = malloc(n ? n * size : 1), *old = *p;
+    if (!q)
+        return -1;
+    for (size_t i = 0; i < n; i++)
+        memcpy(q + i * size, old + (size_t)order[i] * size, size);
+    free(old);
+    *p = q;
+    return 0;
+}
+
+/* The lines are re-encoded in the new order: a sample whose line is not
+ * just after its predecessor's takes a line_far entry. */
+static hyp_status permute_lines(hyp_series *s, const uint32_t *order)
+{
+    uint32_t *line = malloc((s->count ? s->count : 1) * sizeof *line);
+    if (!line)
+        return HYP_ERR_NOMEM;
+    uint32_t l = 0;
+    for (size_t i = 0; i < s->count; i++)
+        line[i] = l = hyp_series_line_next(s, i, l);
+    s->n_line_far = 0;
+    s->last_line = 0;
+    hyp_status st = HYP_OK;
+    for (size_t i = 0; i < s->count && !st; i++)
+        if (put_line(s, i, line[order[i]]))
+            st = HYP_ERR_NOMEM;
+    free(line);
+    return st;
+}
+
+hyp_status hyp_series_permute(hyp_series *s, const uint32_t *order)
+{
+    size_t n = s->count;
+    if (permute_lines(s, order))
+        return HYP_ERR_NOMEM;
+    if (gather((void **)&s->time_s, order, n, sizeof(double)) ||
+        gather((void **)&s->pressure_pa, order, n, sizeof(float)) ||
+        gather((void **)&s->temp_k, order, n, sizeof(float)) ||
+        gather((void **)&s->rh_pct, order, n, sizeof(float)) ||
+        gather((void **)&s->lat_e7, order, n, sizeof(int32_t)) ||
+        gather((void **)&s->lon_e7, order, n, sizeof(int32_t)) ||
+        gather((void **)&s->ele_m, order, n, sizeof(float)) ||
+        gather((void **)&s->flag, order, n, sizeof(uint8_t)))
+        return HYP_ERR_NOMEM;
+    s->alloc = n;
+    return HYP_OK;
 }

@@ -46,6 +46,15 @@ int hyp_exit_status(hyp_status s)
     return s == HYP_OK ? 0 : s == HYP_ERR_USAGE ? 2 : 1;
 }
 
+int hyp_run_exit_status(const hyp_run_info *r)
+{
+    if (!r->started)
+        return 1;
+    if (r->status)
+        return hyp_exit_status(r->status);
+    return r->test_failed ? HYP_EXIT_TEST_FAILED : 0;
+}
+
 /* ---- logs ---------------------------------------------------------- */
 
 const hyp_series *hyp__log_series(const hyp__log *l)
@@ -257,6 +266,16 @@ static hyp_status pool_push(hyp_survey *sv, const hyp_base_spec *b, hyp_msgs *ms
     hyp_read_opts ro = sv->o.read;
     ro.zone = &z;
     ro.need_position = 0;
+    if (b->pressure_unit)
+        ro.pressure_unit = b->pressure_unit;
+    if (b->temperature_unit)
+        ro.temperature_unit = b->temperature_unit;
+    if (b->pressure_field)
+        ro.pressure_field = b->pressure_field;
+    if (b->temperature_field)
+        ro.temperature_field = b->temperature_field;
+    if (b->humidity_field)
+        ro.humidity_field = b->humidity_field;
     if (b->kind == HYP_BASE_QNH && !ro.pressure_unit)
         ro.pressure_unit = HYP_UNIT_HPA;   /* QNH is reported in hPa */
     st = hyp__log_read(pb->path, &ro, &pb->log, msgs, err);
@@ -309,28 +328,32 @@ hyp_status hyp_survey_add_base_dir(hyp_survey *sv, const char *dir, hyp_msgs *ms
     return st;
 }
 
-/* The bases a rover uses: all that were added, or from a base folder those
- * whose logs cover at least 95 % of the rover's time span (common
- * practice, no source: a base that misses a few minutes at either end
- * still serves; the points outside it are flagged). */
+/* The bases a rover uses. From a base folder: the logs that cover at
+ * least 95 % of the rover's time span (common practice, no source: a base
+ * that misses a few minutes at either end still serves; the points outside
+ * it are flagged). Bases given one by one: all of them, but a log that does
+ * not overlap the rover's span at all (another day's) is left out, so each
+ * day's base serves the rovers of its day. */
 hyp_status hyp__select_bases(const hyp_survey *sv, const hyp_series *rv, size_t *sel, size_t *n, hyp_error *err)
 {
     *n = 0;
-    if (!sv->base_dir) {
-        for (size_t k = 0; k < sv->n_pool; k++)
-            sel[(*n)++] = k;
-        return *n ? HYP_OK : hyp_error_set(err, HYP_ERR_USAGE, "no base station given");
-    }
     double t0, t1;
     span_of(rv, 0.0, &t0, &t1);
     for (size_t k = 0; k < sv->n_pool && *n < HYP_MAX_BASES; k++) {
         const hyp__pool_base *b = &sv->pool[k];
         double cover = fmin(t1, b->t1_s) - fmax(t0, b->t0_s);
-        if (t1 > t0 ? cover >= 0.95 * (t1 - t0) : (t0 >= b->t0_s && t0 <= b->t1_s))
+        int keep = sv->base_dir ? (t1 > t0 ? cover >= 0.95 * (t1 - t0) : (t0 >= b->t0_s && t0 <= b->t1_s))
+                                : !(cover < 0) || !(t0 == t0);
+        if (keep)
             sel[(*n)++] = k;
     }
+    if (!sv->base_dir && !*n)   /* none overlaps: all, and the correction says what is outside */
+        for (size_t k = 0; k < sv->n_pool && *n < HYP_MAX_BASES; k++)
+            sel[(*n)++] = k;
     if (*n)
         return HYP_OK;
+    if (!sv->n_pool)
+        return hyp_error_set(err, HYP_ERR_USAGE, "no base station given");
     char x[40], y[40];
     hyp_time_format(t0, x, sizeof x);
     hyp_time_format(t1, y, sizeof y);
@@ -365,7 +388,7 @@ void hyp__rover_paths_make(const hyp_outputs *out, const char *rover, hyp__rover
         if (!out->table)
             snprintf(p->table, sizeof p->table, "%s/%s.csv", out->dir, stem);
         if (!out->report)
-            snprintf(p->report, sizeof p->report, "%s/%s.report.txt", out->dir, stem);
+            snprintf(p->report, sizeof p->report, "%s/%s.report.%s", out->dir, stem, out->report_html ? "html" : "txt");
     }
 }
 
@@ -405,4 +428,17 @@ void hyp__survey_clean_dir(hyp_survey *sv, const char *target)
     pthread_mutex_unlock(&sv->lock);
     if (!seen)
         hyp__stale_dir_remove(dir);
+}
+
+hyp_status hyp_inspect_file(const char *path, const hyp_read_opts *ro, FILE *out, hyp_msgs *msgs, hyp_error *err)
+{
+    hyp__log l;
+    hyp_status st = hyp__log_read(path, ro, &l, msgs, err);
+    hyp_inspection r;
+    if (!st && !(st = hyp_inspect(hyp__log_series(&l), NULL, &r, err))) {
+        hyp_inspection_write(out, path, l.punit, &r);
+        hyp_inspection_free(&r);
+    }
+    hyp__log_free(&l);
+    return st;
 }

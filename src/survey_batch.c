@@ -147,8 +147,13 @@ static void fill_info(hyp_run_info *in, const hyp_rover_run *r, hyp_status st, c
         in->median_sigma_m = res->median_sigma_m;
         snprintf(in->method, sizeof in->method, "%s", hyp_method_name(res->method_used ? res->method_used : HYP_METHOD_SINGLE));
     }
+    in->test_failed = !r->status && !r->skipped && r->test_failed;
     if (r->skipped)
         snprintf(in->message, sizeof in->message, "skipped: %s", r->error.message);
+    else if (in->test_failed)
+        snprintf(in->message, sizeof in->message, "written; calibration test failed: %s",
+                 r->result.calib_test.state == HYP_CALTEST_REJECTED ? "calibration rejected"
+                                                                     : "calibrations disagree, cannot tell which");
     else
         snprintf(in->message, sizeof in->message, "%s", r->status ? r->error.message : "ok");
 }

@@ -50,10 +50,18 @@ struct hyp__rover_priv {
     float *own_known, *own_out;
     double *east, *north;
     char *paths[4];             /* owned strings behind run->written */
+    const hyp_survey *sv;       /* the survey it ran in (benchmarks and inputs
+                                   for the HTML report) */
+    const hyp_report_info *report_info;   /* the outputs' (NULL: none) */
 };
 
 /* The bases a rover uses (indices into the pool). */
 hyp_status hyp__select_bases(const hyp_survey *sv, const hyp_series *rv, size_t *sel, size_t *n, hyp_error *err);
+
+/* hyp_survey_run with other correction options than the survey's (the
+ * network runs its rovers with the offset fixed at 0). */
+hyp_status hyp__survey_run_with(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
+                                const hyp_correct_opts *copts, hyp_rover_run **run, hyp_error *err);
 
 /* The three outputs of a rover (empty strings where none). */
 typedef struct hyp__rover_paths {

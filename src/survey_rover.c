@@ -11,6 +11,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include <strings.h>
 #include <sys/stat.h>
 
 typedef struct hyp__rover_priv priv_t;
@@ -104,7 +105,8 @@ static hyp_status prepare_extras(const hyp_survey *sv, hyp_rover_run *r, const f
 }
 
 /* Read the rover, choose its bases, correct it, convert its heights. */
-static hyp_status correct_rover(hyp_survey *sv, hyp_rover_run *r, int threads, hyp_error *err)
+static hyp_status correct_rover(hyp_survey *sv, const hyp_correct_opts *copts, hyp_rover_run *r, int threads,
+                                hyp_error *err)
 {
     priv_t *p = r->priv;
     hyp_read_opts ro = sv->o.read;
@@ -144,7 +146,7 @@ static hyp_status correct_rover(hyp_survey *sv, hyp_rover_run *r, int threads, h
     const float *gnss_known = NULL;
     if ((st = prepare_extras(sv, r, &gnss_known, err)))
         return st;
-    hyp_correct_opts co = sv->copts;
+    hyp_correct_opts co = *copts;
     co.waypoints = p->rv.is_gpx ? &p->rv.doc.wpts : NULL;
     co.gnss_height_m = gnss_known;
     co.threads = threads;
@@ -196,12 +198,16 @@ static void note_written(hyp_rover_run *r, const char *path)
         free(c);
 }
 
-/* The report: the rover's whole text, as the summary prints it. */
+/* The report: HTML when its name ends in .html, else the rover's whole
+ * text, as the summary prints it. */
 static hyp_status stage_report(hyp__outset *set, const hyp_rover_run *r, const char *path, hyp_error *err)
 {
     hyp__outfile *o = hyp__outset_add(set, path, err);
     if (!o)
         return err->status;
+    size_t n = strlen(path);
+    if (n >= 5 && strcasecmp(path + n - 5, ".html") == 0)
+        return hyp_rover_run_write_html(o->f, r, r->priv->report_info, err);
     hyp_rover_run_write_text(o->f, r, HYP_TEXT_ALL);
     return HYP_OK;
 }
@@ -255,13 +261,22 @@ static void failure_report(hyp_survey *sv, hyp_rover_run *r, const char *path)
     hyp__outset set;
     hyp__outset_init(&set);
     hyp_error e;
-    if (stage_report(&set, r, path, &e) || hyp__outset_commit(&set, sv->o.cancelled, sv->o.cancel_ctx, &e))
+    hyp_status st = stage_report(&set, r, path, &e);
+    if (st)
+        hyp__outset_abort(&set);
+    if (st || hyp__outset_commit(&set, sv->o.cancelled, sv->o.cancel_ctx, &e))
         hyp_msgs_add_at(&r->msgs, HYP_WARNING, "output", path, 0, "the report of the failed run could not be written: %s",
                         e.message);
 }
 
 hyp_status hyp_survey_run(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
                           hyp_rover_run **run, hyp_error *err)
+{
+    return hyp__survey_run_with(sv, rover, out, threads, &sv->copts, run, err);
+}
+
+hyp_status hyp__survey_run_with(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
+                                const hyp_correct_opts *copts, hyp_rover_run **run, hyp_error *err)
 {
     hyp_outputs none = {0};
     if (!out)
@@ -273,6 +288,8 @@ hyp_status hyp_survey_run(hyp_survey *sv, const char *rover, const hyp_outputs *
     r->known_ref = sv->o.known_ref;
     r->out_ref = sv->o.out_ref;
     r->rapid_pa_per_s = sv->copts.rapid_pa_per_s;
+    r->priv->sv = sv;
+    r->priv->report_info = out->report_info;
     hyp__rover_paths ps;
     hyp__rover_paths_make(out, rover, &ps);
     const char *targets[3] = {ps.gpx, ps.table, ps.report};
@@ -286,7 +303,8 @@ hyp_status hyp_survey_run(hyp_survey *sv, const char *rover, const hyp_outputs *
         if (targets[k][0] && strcmp(targets[k], "-") != 0 && hyp__survey_is_input(sv, targets[k], &rover, 1))
             st = hyp_error_set(&r->error, HYP_ERR_USAGE, "%s: output would overwrite an input; choose another name", targets[k]);
     if (!st)
-        st = correct_rover(sv, r, threads, &r->error);
+        st = correct_rover(sv, copts, r, threads, &r->error);
+    r->test_failed = !st && r->result.calib_test.failed;
     for (int k = 0; !st && k < 3; k++)
         st = check_dir(targets[k], &r->error);
     if (!st && out->dir && !out->overwrite && outputs_exist(&ps, r->error.message, sizeof r->error.message)) {
@@ -297,6 +315,7 @@ hyp_status hyp_survey_run(hyp_survey *sv, const char *rover, const hyp_outputs *
         st = write_outputs(sv, r, &ps, threads, &r->error);
     r->status = st;
     if (st) {
+        r->test_failed = 0;
         r->error.status = st;
         if (ps.report[0] && !(sv->o.cancelled && sv->o.cancelled(sv->o.cancel_ctx)))
             failure_report(sv, r, ps.report);

@@ -165,6 +165,16 @@ hyp_status hyp_base_spec_set(hyp_base_spec *b, const char *name, const char *val
         b->kind = HYP_BASE_QNH;
         return HYP_OK;
     }
+    if (!strcmp(name, "base-pressure-unit"))
+        return set_unit(HYP_Q_PRESSURE, name, v, &b->pressure_unit, err);
+    if (!strcmp(name, "base-temperature-unit"))
+        return set_unit(HYP_Q_TEMPERATURE, name, v, &b->temperature_unit, err);
+    if (!strcmp(name, "base-pressure-field"))
+        return b->pressure_field = value, HYP_OK;
+    if (!strcmp(name, "base-temperature-field"))
+        return b->temperature_field = value, HYP_OK;
+    if (!strcmp(name, "base-humidity-field"))
+        return b->humidity_field = value, HYP_OK;
     if (strcmp(name, "base-at") != 0)
         return hyp_error_set(err, HYP_ERR_USAGE, "%s: no such base setting", name);
     char buf[128], *comma;

@@ -116,6 +116,55 @@ void hyp__decim_free(hyp__decim *d);
 hyp_status hyp__decimate(const double *x, const double *y, const double *also, size_t n,
                          double x_lo, double x_hi, int columns, hyp__decim *d, hyp_error *err);
 
+/* ---- streaming thinning (svg_thin.c) -------------------------------- */
+
+/* hyp__decimate for series that are not held as arrays of double (a float
+ * array, a value computed per point, a distance summed along a track):
+ * points are fed in order, one index at a time with its x and one y per
+ * series, and the thinner keeps every index hyp__decimate would keep of
+ * any of the series (with its x), and for each segment that ends the point
+ * that ended it (so the gap survives). Drawing the kept points (gathered
+ * into arrays) with hyp__svg_line or hyp__svg_band over the same range and
+ * columns then keeps exactly the points the whole series would: at most a
+ * few per pixel column and series, whatever the length. The two edges of
+ * a band must be non-finite together. */
+#define HYP__THIN_SERIES 4
+
+typedef struct hyp__thin_pt {
+    size_t i;         /* index of the point */
+    double x;         /* its x as given (so a caller need not recompute it) */
+} hyp__thin_pt;
+
+typedef struct hyp__thin_col {
+    hyp__thin_pt first, low, high, last;
+    double y_low, y_high;
+    long col;
+    int open;
+} hyp__thin_col;
+
+typedef struct hyp__thin {
+    size_t n_series;
+    double x_lo, scale, x_prev;
+    int columns;
+    hyp__thin_col c[HYP__THIN_SERIES];
+    hyp__thin_pt *pts;   /* kept points; after hyp__thin_end by increasing index, unique */
+    size_t n, alloc;
+    int oom;
+} hyp__thin;
+
+/* Range and columns as the figure's (hyp__svg_columns). HYP_ERR_USAGE for
+ * 0 or more than HYP__THIN_SERIES series, or a range as hyp__decimate
+ * refuses. */
+hyp_status hyp__thin_begin(hyp__thin *t, size_t n_series, double x_lo, double x_hi, int columns, hyp_error *err);
+/* Point i (increasing from call to call) at x with y[0 .. n_series-1]; a
+ * non-finite x ends every series' segment, a non-finite y its own.
+ * HYP_ERR_USAGE when a finite x is below the one before. */
+hyp_status hyp__thin_add(hyp__thin *t, size_t i, double x, const double *y, hyp_error *err);
+/* Closes the open columns; sorts the kept points by index. HYP_ERR_NOMEM when an
+ * allocation failed on the way. */
+hyp_status hyp__thin_end(hyp__thin *t, hyp_error *err);
+void hyp__thin_free(hyp__thin *t);
+
 /* ---- figures (svg.c, svg_marks.c, svg_legend.c) ---------------------- */
 
 typedef enum hyp__svg_marker {
@@ -157,6 +206,8 @@ typedef struct hyp__svg_style {
 hyp__svg_style hyp__svg_style_nth(int k, const char *label);
 
 #define HYP__SVG_LEGEND_MAX 16
+#define HYP__SVG_OCC_ROWS 12
+#define HYP__SVG_OCC_COLS 24
 #define HYP__SVG_TEXT_MAX 160   /* bytes kept of a legend or colour bar text */
 
 typedef struct hyp__svg_key {
@@ -184,6 +235,9 @@ typedef struct hyp__svg {
     int hatches;              /* bar hatch patterns defined */
     hyp__svg_key keys[HYP__SVG_LEGEND_MAX];
     int n_keys;
+    unsigned char occ[HYP__SVG_OCC_ROWS][HYP__SVG_OCC_COLS];   /* plot area cells
+                                 something was drawn in: the legend goes to
+                                 the corner that covers fewest of them */
     int has_cbar;             /* colour bar room and title */
     int cbar_set;             /* its range known */
     double cbar_lo, cbar_hi;
@@ -224,7 +278,12 @@ hyp_status hyp__svg_bars(hyp__svg *f, const double *x, size_t n_bars, const doub
 /* Text at a data position; anchor -1 start, 0 middle, 1 end. Not clipped. */
 hyp_status hyp__svg_text(hyp__svg *f, double x, double y, const char *text, int anchor);
 
-/* Closes the figure: frame, legend (two entries or more), colour bar.
+/* The pixel columns the figure's lines and bands are decimated to. */
+int hyp__svg_columns(const hyp__svg *f);
+
+/* Closes the figure: frame, legend (two entries or more, in the corner
+ * of the plot area that hides the fewest drawn marks: top right, top left,
+ * bottom right, bottom left on a tie), colour bar.
  * On any failure the buffer is cut back to where hyp__svg_begin found it. */
 hyp_status hyp__svg_end(hyp__svg *f);
 

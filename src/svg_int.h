@@ -37,6 +37,12 @@ void hyp__svg_marker_at(hyp__svg *f, hyp__svg_marker m, double px, double py, do
 /* A rect filled with colour and, for hatch 1..3, white hatching over it. */
 void hyp__svg_hatched_rect(hyp__svg *f, double x, double y, double w, double h, int colour, int hatch);
 
+/* Marks the plot area's cells under a point, a straight stroke or a
+ * rectangle (pixels) as drawn in, for the legend's placement. */
+void hyp__svg_occupy(hyp__svg *f, double px, double py);
+void hyp__svg_occupy_seg(hyp__svg *f, double x0, double y0, double x1, double y1);
+void hyp__svg_occupy_rect(hyp__svg *f, double x, double y, double w, double h);
+
 /* Copies at most HYP__SVG_TEXT_MAX - 1 bytes of s, never ending inside a
  * UTF-8 character. */
 void hyp__svg_copy_text(char dst[HYP__SVG_TEXT_MAX], const char *s);

@@ -30,7 +30,37 @@ static void key_swatch(hyp__svg *f, const hyp__svg_key *k, double x, double yc)
     }
 }
 
-/* A box at the top right of the plot area, one row a series, in the order
+/* Cells of the plot area a box at (x0, y0), w x h px, covers that hold
+ * something drawn. */
+static int covered(const hyp__svg *f, double x0, double y0, double w, double h)
+{
+    double cw = (f->right_px - f->left_px) / HYP__SVG_OCC_COLS, ch = (f->bottom_px - f->top_px) / HYP__SVG_OCC_ROWS;
+    int n = 0;
+    for (int r = 0; r < HYP__SVG_OCC_ROWS; r++)
+        for (int c = 0; c < HYP__SVG_OCC_COLS; c++) {
+            double cx = f->left_px + c * cw, cy = f->top_px + r * ch;
+            if (f->occ[r][c] && cx < x0 + w && cx + cw > x0 && cy < y0 + h && cy + ch > y0)
+                n++;
+        }
+    return n;
+}
+
+/* The corner whose box hides the fewest drawn cells; top right first on a
+ * tie, then top left, bottom right, bottom left. */
+static void legend_corner(const hyp__svg *f, double w, double h, double *x0, double *y0)
+{
+    double xs[2] = {f->right_px - w - 6, f->left_px + 6}, ys[2] = {f->top_px + 6, f->bottom_px - h - 6};
+    int best = -1;
+    *x0 = xs[0], *y0 = ys[0];
+    for (int k = 0; k < 4; k++) {
+        double x = xs[k % 2], y = ys[k / 2];
+        int n = covered(f, x, y, w, h);
+        if (best < 0 || n < best)
+            best = n, *x0 = x, *y0 = y;
+    }
+}
+
+/* A box in a corner of the plot area, one row a series, in the order
  * the series were drawn. */
 static void write_legend(hyp__svg *f)
 {
@@ -40,7 +70,8 @@ static void write_legend(hyp__svg *f)
         chars = n > chars ? n : chars;
     }
     double w = 8 + SWATCH_PX + 6 + CHAR_PX * (double)chars + 8, h = 6 + ROW_PX * f->n_keys + 2;
-    double x0 = f->right_px - w - 6, y0 = f->top_px + 6;
+    double x0, y0;
+    legend_corner(f, w, h, &x0, &y0);
     hyp__svg_out(f, "<g class=\"legend\"><rect x=\"%p\" y=\"%p\" width=\"%p\" height=\"%p\" fill=\"#ffffff\" "
                     "fill-opacity=\"0.85\" stroke=\"#999999\"/>\n",
                  x0, y0, w, h);

@@ -8,7 +8,7 @@
 #define BAND_OPACITY "0.25"
 #define MAX_PARTS 64
 
-static int columns_of(const hyp__svg *f)
+int hyp__svg_columns(const hyp__svg *f)
 {
     return (int)ceil(f->right_px - f->left_px);
 }
@@ -39,12 +39,16 @@ static void write_segment(hyp__svg *f, const double *x, const double *y, const h
         size_t i = d->idx[a];
         hyp__svg_out(f, "<circle cx=\"%p\" cy=\"%p\" r=\"%p\" fill=\"%s\" stroke=\"none\"/>\n", hyp__svg_px_x(f, x[i]),
                      hyp__svg_px_y(f, y[i]), width, colour);
+        hyp__svg_occupy(f, hyp__svg_px_x(f, x[i]), hyp__svg_px_y(f, y[i]));
         return;
     }
     hyp__svg_out(f, "<polyline points=\"");
     for (size_t k = a; k < b; k++) {
         size_t i = d->idx[k];
-        hyp__svg_out(f, k + 1 < b ? "%p,%p " : "%p,%p", hyp__svg_px_x(f, x[i]), hyp__svg_px_y(f, y[i]));
+        double px = hyp__svg_px_x(f, x[i]), py = hyp__svg_px_y(f, y[i]);
+        hyp__svg_out(f, k + 1 < b ? "%p,%p " : "%p,%p", px, py);
+        if (k > a)
+            hyp__svg_occupy_seg(f, hyp__svg_px_x(f, x[d->idx[k - 1]]), hyp__svg_px_y(f, y[d->idx[k - 1]]), px, py);
     }
     hyp__svg_out(f, "\"/>\n");
 }
@@ -57,7 +61,7 @@ hyp_status hyp__svg_line(hyp__svg *f, const double *x, const double *y, size_t n
     st = st ? st : &def;
     hyp__decim d;
     hyp__decim_init(&d);
-    hyp_status rc = hyp__decimate(x, y, NULL, n, f->x_lo, f->x_hi, columns_of(f), &d, f->err);
+    hyp_status rc = hyp__decimate(x, y, NULL, n, f->x_lo, f->x_hi, hyp__svg_columns(f), &d, f->err);
     if (rc) {
         hyp__decim_free(&d);
         return hyp__svg_fail(f, rc);
@@ -89,8 +93,11 @@ static void write_band_segment(hyp__svg *f, const double *x, const double *y_lo,
         return;
     }
     hyp__svg_out(f, "<polygon points=\"");
-    for (size_t k = a; k < b; k++)
-        hyp__svg_out(f, "%p,%p ", hyp__svg_px_x(f, x[up->idx[k]]), hyp__svg_px_y(f, y_hi[up->idx[k]]));
+    for (size_t k = a; k < b; k++) {
+        size_t i = up->idx[k];
+        hyp__svg_out(f, "%p,%p ", hyp__svg_px_x(f, x[i]), hyp__svg_px_y(f, y_hi[i]));
+        hyp__svg_occupy_seg(f, hyp__svg_px_x(f, x[i]), hyp__svg_px_y(f, y_hi[i]), hyp__svg_px_x(f, x[i]), hyp__svg_px_y(f, y_lo[i]));
+    }
     for (size_t k = e; k-- > c;)
         hyp__svg_out(f, k > c ? "%p,%p " : "%p,%p", hyp__svg_px_x(f, x[dn->idx[k]]), hyp__svg_px_y(f, y_lo[dn->idx[k]]));
     hyp__svg_out(f, "\"/>\n");
@@ -104,7 +111,7 @@ hyp_status hyp__svg_band(hyp__svg *f, const double *x, const double *y_lo, const
     hyp__decim up, dn;
     hyp__decim_init(&up);
     hyp__decim_init(&dn);
-    int cols = columns_of(f);
+    int cols = hyp__svg_columns(f);
     hyp_status rc = hyp__decimate(x, y_hi, y_lo, n, f->x_lo, f->x_hi, cols, &up, f->err);
     if (!rc)
         rc = hyp__decimate(x, y_lo, y_hi, n, f->x_lo, f->x_hi, cols, &dn, f->err);
@@ -157,6 +164,7 @@ static void error_bar(hyp__svg *f, double x, double y, double e, const char *col
     if (!(isfinite(e) && e > 0))
         return;
     double px = hyp__svg_px_x(f, x), y0 = hyp__svg_px_y(f, y - e), y1 = hyp__svg_px_y(f, y + e);
+    hyp__svg_occupy_seg(f, px, y0, px, y1);
     hyp__svg_out(f, "<path d=\"M%p %pV%pM%p %ph6M%p %ph6\" fill=\"none\" stroke=\"%s\" stroke-width=\"1\"/>", px, y0, y1,
                  px - 3, y0, px - 3, y1, colour);
 }
@@ -177,6 +185,7 @@ hyp_status hyp__svg_markers(hyp__svg *f, const double *x, const double *y, const
             continue;
         if (y_err)
             error_bar(f, x[i], y[i], y_err[i], colour);
+        hyp__svg_occupy(f, hyp__svg_px_x(f, x[i]), hyp__svg_px_y(f, y[i]));
         hyp__svg_marker_at(f, st->marker, hyp__svg_px_x(f, x[i]), hyp__svg_px_y(f, y[i]), size, colour, 0);
         hyp__svg_out(f, "\n");
     }
@@ -202,6 +211,7 @@ hyp_status hyp__svg_points_coloured(hyp__svg *f, const double *x, const double *
         double t = v_hi > v_lo ? (v[i] - v_lo) / (v_hi - v_lo) : 0.5;
         hyp__svg_seq_colour(isfinite(v[i]) ? t : NAN, col);   /* no value: hollow grey */
         hyp__svg_marker_at(f, m, hyp__svg_px_x(f, x[i]), hyp__svg_px_y(f, y[i]), 7, col, !isfinite(v[i]));
+        hyp__svg_occupy(f, hyp__svg_px_x(f, x[i]), hyp__svg_px_y(f, y[i]));
         hyp__svg_out(f, "\n");
     }
     hyp__svg_out(f, "</g>\n");
@@ -253,6 +263,7 @@ static void write_bar(hyp__svg *f, double x, const double *v, size_t n_parts, do
             continue;
         double y1 = hyp__svg_px_y(f, base + v[p]), y0 = hyp__svg_px_y(f, base);
         hyp__svg_hatched_rect(f, xl, y1, xr - xl, y0 - y1, (int)p, (int)(p % 4));
+        hyp__svg_occupy_rect(f, xl, y1, xr - xl, y0 - y1);
         base += v[p];
     }
     hyp__svg_out(f, "\n");
@@ -288,4 +299,33 @@ hyp_status hyp__svg_text(hyp__svg *f, double x, double y, const char *text, int 
                     "stroke-width=\"3\" paint-order=\"stroke\">%t</text>\n",
                  hyp__svg_px_x(f, x), hyp__svg_px_y(f, y), how[anchor < 0 ? 0 : anchor > 0 ? 2 : 1], text);
     return hyp__svg_settle(f);
+}
+
+/* ---- where marks were drawn, for the legend -------------------------- */
+
+void hyp__svg_occupy(hyp__svg *f, double px, double py)
+{
+    double w = f->right_px - f->left_px, h = f->bottom_px - f->top_px;
+    double cx = floor((px - f->left_px) / w * HYP__SVG_OCC_COLS), cy = floor((py - f->top_px) / h * HYP__SVG_OCC_ROWS);
+    if (cx >= 0 && cx < HYP__SVG_OCC_COLS && cy >= 0 && cy < HYP__SVG_OCC_ROWS)
+        f->occ[(int)cy][(int)cx] = 1;
+}
+
+/* Steps of at most half a cell along the stroke, so no cell it crosses is
+ * missed (a stroke leaving the plot area is cut at +-1e9 px: the cap on
+ * steps keeps that cheap). */
+void hyp__svg_occupy_seg(hyp__svg *f, double x0, double y0, double x1, double y1)
+{
+    double cw = (f->right_px - f->left_px) / HYP__SVG_OCC_COLS, ch = (f->bottom_px - f->top_px) / HYP__SVG_OCC_ROWS;
+    double steps = ceil(fmax(fabs(x1 - x0) / cw, fabs(y1 - y0) / ch) * 2);
+    steps = fmin(fmax(steps, 1), 4 * (HYP__SVG_OCC_COLS + HYP__SVG_OCC_ROWS));
+    for (double k = 0; k <= steps; k++)
+        hyp__svg_occupy(f, x0 + (x1 - x0) * k / steps, y0 + (y1 - y0) * k / steps);
+}
+
+void hyp__svg_occupy_rect(hyp__svg *f, double x, double y, double w, double h)
+{
+    double ch = (f->bottom_px - f->top_px) / HYP__SVG_OCC_ROWS;
+    for (double yy = y; yy <= y + h + ch / 2; yy += ch / 2)
+        hyp__svg_occupy_seg(f, x, fmin(yy, y + h), x + w, fmin(yy, y + h));
 }

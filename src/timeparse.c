@@ -1,6 +1,7 @@
 /* timeparse.c - ISO 8601 / RFC 3339 and epoch time stamps, fixed offsets and
  * tz database zones (TZif files, RFC 8536) for stamps without a zone. */
 #include "hypsolev/timeparse.h"
+#include "tzrule.h"
 
 #include <ctype.h>
 #include <errno.h>
@@ -10,16 +11,6 @@
 #include <string.h>
 
 /* H. Hinnant, "chrono-Compatible Low-Level Date Algorithms" (public domain). */
-int64_t hyp_days_from_civil(int64_t y, unsigned m, unsigned d)
-{
-    y -= m <= 2;
-    const int64_t era = (y >= 0 ? y : y - 399) / 400;
-    const unsigned yoe = (unsigned)(y - era * 400);
-    const unsigned doy = (153 * (m > 2 ? m - 3 : m + 9) + 2) / 5 + d - 1;
-    const unsigned doe = yoe * 365 + yoe / 4 - yoe / 100 + doy;
-    return era * 146097 + (int64_t)doe - 719468;
-}
-
 static void civil_from_days(int64_t z, int *y, unsigned *m, unsigned *d)
 {
     z += 719468;
@@ -87,7 +78,81 @@ static int64_t be64(const unsigned char *p)
     return (int64_t)((uint64_t)be32(p) << 32 | be32(p + 4));
 }
 
-/* Parses a TZif file (RFC 8536), version 2+ 64-bit block where present. */
+static hyp_status not_tzif(const hyp_zone *z, const char *path, hyp_error *err)
+{
+    return hyp_error_set(err, HYP_ERR_VALUE, "time zone \"%s\": %s is not a TZif file", z->name, path);
+}
+
+/* Length of the data block after the header at h (RFC 8536 section 3.1),
+ * with tsize-byte times; 0 when the counts are out of bounds or the block
+ * runs past the n bytes at h. */
+static size_t tzif_block_len(const unsigned char *h, size_t n, int tsize)
+{
+    if (n < 44)
+        return 0;
+    uint32_t isut = be32(h + 20), isstd = be32(h + 24), leap = be32(h + 28);
+    uint32_t timecnt = be32(h + 32), typecnt = be32(h + 36), charcnt = be32(h + 40);
+    if (typecnt == 0 || typecnt > 256 || timecnt > 4000 || charcnt > 4096 || leap > 1000 ||
+        isut > typecnt || isstd > typecnt)
+        return 0;
+    size_t len = timecnt * (size_t)tsize + timecnt + typecnt * 6u + charcnt +
+                 leap * (size_t)(tsize + 4) + isstd + isut;
+    return 44 + len <= n ? len : 0;
+}
+
+/* The transitions and their offsets from the block at h. */
+static hyp_status tzif_fill(hyp_zone *z, const char *path, const unsigned char *h, int tsize,
+                            hyp_error *err)
+{
+    uint32_t timecnt = be32(h + 32), typecnt = be32(h + 36);
+    const unsigned char *t = h + 44, *idx = t + timecnt * (size_t)tsize, *tt = idx + timecnt;
+    z->trans_s = malloc((timecnt ? timecnt : 1) * sizeof *z->trans_s);
+    z->trans_off_s = malloc((timecnt ? timecnt : 1) * sizeof *z->trans_off_s);
+    if (!z->trans_s || !z->trans_off_s)
+        return hyp_error_set(err, HYP_ERR_NOMEM, "time zone \"%s\": out of memory", z->name);
+    for (uint32_t i = 0; i < timecnt; i++) {
+        if (idx[i] >= typecnt)
+            return not_tzif(z, path, err);
+        z->trans_s[i] = tsize == 8 ? be64(t + 8 * i) : (int32_t)be32(t + 4 * i);
+        z->trans_off_s[i] = (int32_t)be32(tt + 6 * idx[i]);
+    }
+    z->first_off_s = (int32_t)be32(tt);   /* RFC 8536 3.2: type 0 */
+    z->count = timecnt;
+    return HYP_OK;
+}
+
+/* The footer of a version 2+ file (RFC 8536 section 3.3): a POSIX TZ
+ * string between newlines at buf + at, for instants after the last
+ * transition. An empty one leaves the last offset in force. v3: version 3
+ * or later, whose rule times may be signed and exceed 24 h. */
+static hyp_status tzif_footer(hyp_zone *z, const char *path, const unsigned char *buf,
+                              size_t n, size_t at, int v3, hyp_error *err)
+{
+    const unsigned char *nl = at + 1 < n ? memchr(buf + at + 1, '\n', n - at - 1) : NULL;
+    if (!nl || buf[at] != '\n')
+        return hyp_error_set(err, HYP_ERR_VALUE, "time zone \"%s\": %s: no footer after the data "
+                             "(expected a TZ string between newlines, RFC 8536 section 3.3)", z->name, path);
+    size_t len = (size_t)(nl - (buf + at + 1));
+    char tz[128];
+    if (len >= sizeof tz)
+        return hyp_error_set(err, HYP_ERR_VALUE, "time zone \"%s\": %s: footer TZ string of %zu bytes "
+                             "(expected at most %zu)", z->name, path, len, sizeof tz - 1);
+    for (size_t i = 0; i < len; i++)   /* shown in a message: printable ASCII only */
+        tz[i] = buf[at + 1 + i] >= 0x20 && buf[at + 1 + i] < 0x7f ? (char)buf[at + 1 + i] : '?';
+    tz[len] = '\0';
+    if (len == 0)
+        return HYP_OK;
+    const char *p = tz;
+    const char *why = hyp__tz_rule_parse(&z->rule, &p, v3);
+    if (why)
+        return hyp_error_set(err, HYP_ERR_VALUE, "time zone \"%s\": %s: footer TZ string \"%s\" at %s%s%s: %s",
+                             z->name, path, tz, *p ? "\"" : "its end", p, *p ? "\"" : "", why);
+    z->has_rule = 1;
+    return HYP_OK;
+}
+
+/* Parses a TZif file (RFC 8536): the version 1 block, or for versions 2+
+ * the 64-bit block after it and the footer. */
 static hyp_status tzif_load(hyp_zone *z, const char *path, hyp_error *err)
 {
     FILE *f = fopen(path, "rb");
@@ -96,44 +161,24 @@ static hyp_status tzif_load(hyp_zone *z, const char *path, hyp_error *err)
     unsigned char buf[1 << 16];
     size_t n = fread(buf, 1, sizeof buf, f);
     fclose(f);
-    hyp_status st = hyp_error_set(err, HYP_ERR_VALUE, "time zone \"%s\": %s is not a TZif file", z->name, path);
     if (n < 44 || memcmp(buf, "TZif", 4) != 0)
-        return st;
-    size_t off = 0;
-    int tsize = 4;
-    for (int pass = 0; pass < 2; pass++) {
-        if (off + 44 > n)
-            return st;
-        const unsigned char *h = buf + off;
-        uint32_t isut = be32(h + 20), isstd = be32(h + 24), leap = be32(h + 28);
-        uint32_t timecnt = be32(h + 32), typecnt = be32(h + 36), charcnt = be32(h + 40);
-        if (typecnt == 0 || typecnt > 256 || timecnt > 4000 || charcnt > 4096 || leap > 1000)
-            return st;
-        size_t len = timecnt * (size_t)tsize + timecnt + typecnt * 6u + charcnt +
-                     leap * (size_t)(tsize + 4) + isstd + isut;
-        if (off + 44 + len > n)
-            return st;
-        if (pass == 0 && buf[4] >= '2') {   /* skip the 32-bit block */
-            off += 44 + len;
-            tsize = 8;
-            continue;
-        }
-        const unsigned char *t = h + 44, *idx = t + timecnt * (size_t)tsize, *tt = idx + timecnt;
-        z->trans_s = malloc((timecnt ? timecnt : 1) * sizeof *z->trans_s);
-        z->trans_off_s = malloc((timecnt ? timecnt : 1) * sizeof *z->trans_off_s);
-        if (!z->trans_s || !z->trans_off_s)
-            return hyp_error_set(err, HYP_ERR_NOMEM, "time zone \"%s\": out of memory", z->name);
-        for (uint32_t i = 0; i < timecnt; i++) {
-            if (idx[i] >= typecnt)
-                return st;
-            z->trans_s[i] = tsize == 8 ? be64(t + 8 * i) : (int32_t)be32(t + 4 * i);
-            z->trans_off_s[i] = (int32_t)be32(tt + 6 * idx[i]);
-        }
-        z->first_off_s = (int32_t)be32(tt);   /* RFC 8536 3.2: type 0 */
-        z->count = timecnt;
+        return not_tzif(z, path, err);
+    /* a block holds at least one type, so a length of 0 means a bad one */
+    size_t off = 0, len = tzif_block_len(buf, n, 4);
+    int v2 = buf[4] >= '2', tsize = 4;
+    if (len && v2) {   /* skip the 32-bit block: RFC 8536 section 3.2 */
+        off = 44 + len;
+        tsize = 8;
+        len = tzif_block_len(buf + off, n - off, 8);
+    }
+    if (!len)
+        return not_tzif(z, path, err);
+    hyp_status st = tzif_fill(z, path, buf + off, tsize, err);
+    if (st == HYP_OK && v2)
+        st = tzif_footer(z, path, buf, n, off + 44 + len, buf[4] >= '3', err);
+    if (st == HYP_OK) {
         z->kind = 2;
         hyp_error_clear(err);
-        return HYP_OK;
     }
     return st;
 }
@@ -177,13 +222,9 @@ hyp_status hyp_zone_parse(hyp_zone *z, const char *text, const char *zoneinfo_di
     return st;
 }
 
-static int32_t offset_at_utc(const hyp_zone *z, int64_t utc_s)
+/* How many transitions are at or before utc_s. */
+static size_t trans_upto(const hyp_zone *z, int64_t utc_s)
 {
-    if (z->kind == 1)
-        return z->offset_s;
-    if (z->kind != 2)
-        return 0;
-    /* last transition at or before utc_s */
     size_t lo = 0, hi = z->count;
     while (lo < hi) {
         size_t mid = lo + (hi - lo) / 2;
@@ -192,23 +233,100 @@ static int32_t offset_at_utc(const hyp_zone *z, int64_t utc_s)
         else
             hi = mid;
     }
-    return lo == 0 ? z->first_off_s : z->trans_off_s[lo - 1];
+    return lo;
+}
+
+static int32_t offset_at_utc(const hyp_zone *z, int64_t utc_s)
+{
+    if (z->kind == 1)
+        return z->offset_s;
+    if (z->kind != 2)
+        return 0;
+    size_t k = trans_upto(z, utc_s);
+    /* RFC 8536 section 3.3: the footer rule after the last transition, and
+     * at all instants of a file without transitions */
+    if (k == z->count && z->has_rule && (k == 0 || utc_s > z->trans_s[k - 1]))
+        return hyp__tz_rule_offset(&z->rule, utc_s);
+    return k == 0 ? z->first_off_s : z->trans_off_s[k - 1];
+}
+
+#define MAX_CHANGES 16
+
+/* The changes of offset in (from_s, to_s]: the transitions, then the
+ * footer rule's changes after the last of them; ascending, at most
+ * MAX_CHANGES instants to at_s and the offsets from them on to off_s. */
+static size_t zone_changes(const hyp_zone *z, int64_t from_s, int64_t to_s, int64_t *at_s, int32_t *off_s)
+{
+    size_t n = 0;
+    for (size_t k = trans_upto(z, from_s); k < z->count && z->trans_s[k] <= to_s && n < MAX_CHANGES; k++) {
+        at_s[n] = z->trans_s[k];
+        off_s[n++] = z->trans_off_s[k];
+    }
+    if (z->has_rule) {
+        int64_t after_s = z->count && z->trans_s[z->count - 1] > from_s ? z->trans_s[z->count - 1] : from_s;
+        n += hyp__tz_rule_changes(&z->rule, after_s, to_s, at_s + n, off_s + n, MAX_CHANGES - n);
+    }
+    return n;
+}
+
+/* The offsets that read local_s: their count, 1 (ordinary), 2 or more
+ * (a clock set back: off[0] the largest offset, the earliest instant;
+ * off[1] the smallest, the latest) or 0 (a clock set forward skipped it:
+ * off[0] = off[1], the offset in force before the gap). */
+static int local_offsets(const hyp_zone *z, int64_t local_s, int32_t off2[2])
+{
+    if (!z || z->kind != 2) {
+        off2[0] = off2[1] = z && z->kind == 1 ? z->offset_s : 0;
+        return 1;
+    }
+    /* The instant is local_s - offset with |offset| < 26 h (RFC 8536
+     * section 3.2 bounds utoff to -24:59:59..+25:59:59), so only the
+     * stretches of constant offset within 26 h of local_s matter. A
+     * stretch [at[i], at[i+1]) with offset off[i] reads local_s when
+     * local_s - off[i] falls inside it. Transitions and the footer rule
+     * are listed alike, so both get the same choice. */
+    const int64_t w_s = 26 * 3600, lim_s = (int64_t)1 << 50;
+    local_s = local_s < -lim_s ? -lim_s : local_s > lim_s ? lim_s : local_s;
+    int64_t at[MAX_CHANGES + 2];
+    int32_t off[MAX_CHANGES + 1];
+    at[0] = local_s - w_s;
+    off[0] = offset_at_utc(z, at[0]);
+    size_t n = zone_changes(z, at[0], local_s + w_s, at + 1, off + 1), m = 0;
+    for (size_t i = 1; i <= n; i++) {   /* of changes at one instant, the last holds */
+        if (at[i] != at[m])
+            m++;
+        at[m] = at[i];
+        off[m] = off[i];
+    }
+    n = m;
+    at[n + 1] = local_s + w_s + 1;
+    int found = 0;
+    for (size_t i = 0; i <= n; i++) {
+        int64_t u = local_s - off[i];
+        if (u >= at[i] && u < at[i + 1]) {
+            if (!found || off[i] > off2[0])
+                off2[0] = off[i];
+            if (!found || off[i] < off2[1])
+                off2[1] = off[i];
+            found++;
+        }
+    }
+    if (found)
+        return found == 1 || off2[0] == off2[1] ? 1 : found;
+    off2[0] = off2[1] = off[0];
+    for (size_t i = 1; i <= n; i++)   /* the change whose gap holds local_s */
+        if (at[i] + off[i - 1] <= local_s && local_s < at[i] + off[i]) {
+            off2[0] = off2[1] = off[i - 1];
+            break;
+        }
+    return 0;
 }
 
 int32_t hyp_zone_offset_for_local(const hyp_zone *z, int64_t local_s)
 {
-    if (!z || z->kind != 2)
-        return z && z->kind == 1 ? z->offset_s : 0;
-    /* Offsets change at most a few times a year, so the offsets in force 12 h
-     * either side are the only candidates; keep those that map back. */
-    int32_t o1 = offset_at_utc(z, local_s - 43200), o2 = offset_at_utc(z, local_s + 43200);
-    int v1 = offset_at_utc(z, local_s - o1) == o1;
-    int v2 = offset_at_utc(z, local_s - o2) == o2;
-    if (v1 && v2)
-        return o1 > o2 ? o1 : o2;   /* overlap: the earlier instant */
-    if (v2)
-        return o2;
-    return o1;                      /* valid, or a gap: the offset before it */
+    int32_t off[2];
+    local_offsets(z, local_s, off);
+    return off[0];   /* overlap: the earliest instant; gap: the offset before it */
 }
 
 static int digits(const char *s, int n, int *v)
@@ -249,6 +367,14 @@ static hyp_time_result parse_epoch(const char *s, double *time_s)
 
 hyp_time_result hyp_time_parse(const char *text, const hyp_zone *zone, double *time_s)
 {
+    return hyp_time_parse_zoned(text, zone, time_s, NULL);
+}
+
+hyp_time_result hyp_time_parse_zoned(const char *text, const hyp_zone *zone, double *time_s,
+                                     hyp_time_local *how)
+{
+    if (how)
+        memset(how, 0, sizeof *how);
     const char *s = text;
     while (*s == ' ' || *s == '\t')
         s++;
@@ -307,7 +433,17 @@ hyp_time_result hyp_time_parse(const char *text, const hyp_zone *zone, double *t
     if (!has_zone) {
         if (!zone || zone->kind == 0)
             return HYP_TIME_NOZONE;
-        off = hyp_zone_offset_for_local(zone, local);
+        int32_t cand[2];
+        int n = local_offsets(zone, local, cand);
+        off = cand[0];
+        if (how) {
+            how->zoned = 1;
+            how->offset_s = off;
+            how->repeated = n == 2;
+            how->skipped = n == 0;
+            how->second_offset_s = cand[1];
+            how->second_s = (double)(local - cand[1]) + frac;
+        }
     }
     *time_s = (double)(local - off) + frac;
     return HYP_TIME_OK;

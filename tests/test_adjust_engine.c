@@ -660,6 +660,52 @@ static void test_bad_input(void **state)
     expect_error(&sum, NULL, HYP_ERR_VALUE, "observation #1: sigma inf");
 }
 
+/* Observations marked keep (a model's priors) are never rejected by
+ * snooping, though their w is computed and flagged. Three observations of
+ * one height, 0.0, 0.1 and 1.0 m with sigmas 0.1, 0.1 and 0.2 m; by hand
+ * (the weighted mean, Ghilani & Wolf, Adjustment Computations, the
+ * weighted mean and its residuals): p = 100, 100, 25, sum 225;
+ * x = (0 + 10 + 25) / 225 = 0.155556; v = x - l = 0.155556, 0.055556,
+ * -0.844444; r = 1 - p / 225 = 0.555556, 0.555556, 0.888889;
+ * w = v / (sigma sqrt(r)) = 2.08700, 0.745356, -4.47834. The third is
+ * beyond 3.29: rejected when it may be, kept and flagged when marked
+ * keep, the second largest (2.087) then being below the critical value. */
+static void test_snoop_keep(void **state)
+{
+    (void)state;
+    hyp__adj_term t[3] = {{0, 1.0}, {0, 1.0}, {0, 1.0}};
+    hyp__adj_obs obs[3] = {
+        {&t[0], 1, 0.0, 0.1, "a", 1},
+        {&t[1], 1, 0.1, 0.1, "b", 1},
+        {&t[2], 1, 1.0, 0.2, "c", 1},
+    };
+    unsigned char keep[3] = {0, 0, 0};
+    hyp__adj_problem pb = {1, NULL, 3, obs};
+    hyp__adj_opts o;
+    hyp__adj_opts_default(&o);
+    o.snoop = 1;
+    o.keep = keep;
+    hyp__adj_result res;
+    hyp__adj_result_init(&res);
+    hyp_error err;
+    assert_int_equal(hyp__adj_solve(&pb, &o, &res, &err), HYP_OK);
+    assert_int_equal(res.n_rejections, 1);
+    assert_int_equal(res.rejections[0].obs, 2);
+    assert_near(res.rejections[0].w, -4.47834, 1e-5);
+    keep[2] = 1;
+    assert_int_equal(hyp__adj_solve(&pb, &o, &res, &err), HYP_OK);
+    assert_int_equal(res.n_rejections, 0);
+    assert_int_equal(res.snoop_stop, HYP_ADJ_SNOOP_CLEAN);
+    assert_true(res.flag[2] & HYP_ADJ_OUTLIER);
+    assert_near(res.w_max, 4.47834, 1e-5);
+    assert_int_equal(res.w_max_obs, 2);
+    assert_near(res.w_max_free, 2.08700, 1e-5);
+    assert_int_equal(res.w_max_free_obs, 0);
+    assert_near(res.w[1], 0.745356, 1e-6);
+    assert_near(res.r[2], 0.888889, 1e-6);
+    hyp__adj_result_free(&res);
+}
+
 /* ---- a larger random network against its truth ---- */
 
 /* splitmix64 (Steele, Lea and Flood, "Fast splittable pseudorandom number
@@ -848,6 +894,7 @@ int main(void)
         cmocka_unit_test(test_bad_input),
         cmocka_unit_test(test_random_network),
         cmocka_unit_test(test_random_snoop),
+        cmocka_unit_test(test_snoop_keep),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

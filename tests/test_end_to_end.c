@@ -60,6 +60,31 @@ static double scenario_value(const char *dir, const char *key)
 
 typedef struct score { double rmse, bias, coverage, median_sigma, floor; size_t n, n_inside, n_calibs; int has_scale; } score;
 
+/* Clean data: the calibration test (docs/methods.md, "Testing the
+ * calibrations") rejects nothing and finds nothing suspect. At alpha 0.001
+ * a clean calibration fails by chance once in a thousand, so a failure here
+ * on a handful of simulated calibrations would say the test's model or its
+ * sigmas are wrong, not bad luck (common practice, no source). Returns the
+ * largest |w|, printed. */
+static double assert_calibs_clean(const char *what, const hyp_correct_result *r)
+{
+    double wmax = 0;
+    for (size_t k = 0; k < r->n_calibs; k++) {
+        const hyp_calib *c = &r->calibs[k];
+        if (c->rejected || c->suspect)
+            print_message("%s: calibration %s rejected or suspect: %s\n", what, c->name, c->test_note);
+        assert_false(c->rejected || c->suspect);
+        if (c->test_w == c->test_w)
+            wmax = fmax(wmax, fabs(c->test_w));
+    }
+    assert_false(r->calib_test.failed);
+    if (r->n_calibs >= 2 && r->drift.kind != HYP_DRIFT_EXPLICIT)
+        assert_int_equal(r->calib_test.state, HYP_CALTEST_PASSED);
+    print_message("%s: %zu calibrations, largest |w| %.2f, variance factor %.2f on %zu dof\n", what, r->n_calibs, wmax,
+                  r->calib_test.s0_sq, r->calib_test.dof);
+    return wmax;
+}
+
 static int cmp(const void *a, const void *b)
 {
     double x = *(const double *)a, y = *(const double *)b;
@@ -148,6 +173,8 @@ static void run_survey_opts(const char *dir, const survey_opts *so, score *sc)
     }
     sc->n_calibs = rp->n_calibs;
     sc->has_scale = rp->drift.has_scale;
+    assert_calibs_clean(dir, rp);
+    assert_false(run->test_failed);
     truth tr;
     read_truth(tpath, &tr);
     assert_int_equal(tr.n, dp->count);
@@ -346,6 +373,46 @@ static void test_clock_estimate(void **state)
  * the 5/25/50/75/95 % points of a 1 m sd (the anchoring's own floor, common
  * practice, no source), each with its own seed. Pooled coverage must lie in
  * 0.85-0.99 for each height reference. */
+/* A base log kept in local summer time and marked as UTC: its stamps run
+ * 1 h 30 min ahead here (a half-hour zone keeps the test honest about the
+ * 30 min steps). The rover's co-locations line up only with the shifted
+ * log: the run is refused with the offset named, and with that offset
+ * given it runs. The demo survey's own log (right clock) raises nothing. */
+static void test_base_clock_hours(void **state)
+{
+    (void)state;
+    hyp_gpx_doc d;
+    hyp_gpx_doc_init(&d);
+    hyp_series b;
+    hyp_series_init(&b);
+    hyp_error err;
+    const char *dir = HYP_SOURCE_DIR "/surveys/quenwick-tor";
+    char rover[4200], base[4200];
+    snprintf(rover, sizeof rover, "%s/rover.gpx", dir);
+    snprintf(base, sizeof base, "%s/base.csv", dir);
+    assert_int_equal(hyp_gpx_read(rover, NULL, &d, NULL, &err), HYP_OK);
+    assert_int_equal(hyp_csv_read(base, NULL, &b, NULL, NULL, &err), HYP_OK);
+    hyp_base hb;
+    hyp_base_init(&hb, &b, "base.csv", 812.4);
+    hb.lat_deg = 46.80, hb.lon_deg = 9.90;
+    hyp_correct_result r;
+    hyp_correct_result_init(&r);
+    assert_int_equal(hyp_correct(&d.pts, &hb, 1, NULL, &r, NULL, &err), HYP_OK);   /* right clock: no alarm */
+    hyp_correct_result_free(&r);
+    for (size_t i = 0; i < b.count; i++)
+        b.time_s[i] += 5400.0;
+    assert_int_equal(hyp_correct(&d.pts, &hb, 1, NULL, &r, NULL, &err), HYP_ERR_VALUE);
+    print_message("%s\n", err.message);
+    assert_non_null(strstr(err.message, "1 h 30 min ahead of"));
+    assert_non_null(strstr(err.message, "--base-clock-offset +5400"));
+    hb.clock_offset_s = 5400.0;   /* the offset the message names */
+    hyp_correct_result_init(&r);
+    assert_int_equal(hyp_correct(&d.pts, &hb, 1, NULL, &r, NULL, &err), HYP_OK);
+    hyp_correct_result_free(&r);
+    hyp_series_free(&b);
+    hyp_gpx_doc_free(&d);
+}
+
 static void test_gnss_anchor(void **state)
 {
     (void)state;
@@ -429,6 +496,7 @@ static void run_mb(const mb_case *mc)
     assert_int_equal(run->status, HYP_OK);
     const hyp_correct_result *r = &run->result;
     assert_int_equal(r->method_used, mc->expect);
+    assert_calibs_clean(dir, r);
     /* every method gives the same result to the bit on two threads (the
      * field method's plane fits then call LAPACK concurrently) */
     hyp_rover_run *run2;
@@ -488,6 +556,7 @@ int main(void)
         cmocka_unit_test(test_scenario_ties),
         cmocka_unit_test(test_scenarios_pooled),
         cmocka_unit_test(test_clock_estimate),
+        cmocka_unit_test(test_base_clock_hours),
         cmocka_unit_test(test_gnss_anchor),
         cmocka_unit_test(test_multibase),
     };

@@ -81,12 +81,13 @@ static char *expected_output(const char *in, size_t n, const hyp_gpx_doc *d, con
         w += sprintf(w, "<%s%sextensions>%s</%s%sextensions>", p, c, vr, p, c);
     }
     int64_t anchor = 0;
-    for (size_t i = 0; i < d->pts.count; i++) {
+    for (size_t j = 0; j < d->pts.count; j++) {
         char el[256];
         hyp_gpx_point P;
-        hyp_gpx_point_next(L, i, &anchor, &P);
+        hyp_gpx_point_next(L, j, &anchor, &P);
         if (P.open_end < 0)
             continue;   /* <trkpt .../>: no content to change (docs/formats.md) */
+        size_t i = d->pt_series ? d->pt_series[j] : j;   /* file point j is sample i */
         if (r->status[i] == HYP_PT_OK) {
             char ein[64] = "";
             if (!isnan(d->pts.ele_m[i]))
@@ -176,10 +177,11 @@ static void splice_file(const char *in_path, const char *out_path, const char *x
     char *in = slurp(in_path, &n);
     /* the layout points at the ele text the reader parsed */
     int64_t anchor = 0;
-    for (size_t i = 0; i < d.pts.count; i++) {
+    for (size_t j = 0; j < d.pts.count; j++) {
         hyp_gpx_point P;
-        hyp_gpx_point_next(&d.layout, i, &anchor, &P);
-        if (P.ele_beg >= 0)   /* ele_m is a float: 1e-4 m steps at these heights */
+        hyp_gpx_point_next(&d.layout, j, &anchor, &P);
+        size_t i = d.pt_series ? d.pt_series[j] : j;
+        if (P.ele_beg >= 0 && !isnan(d.pts.ele_m[i]))   /* ele_m is a float: 1e-4 m steps at these heights */
             assert_true(fabs(strtod(in + P.ele_beg, NULL) - d.pts.ele_m[i]) < 1e-4);
     }
     hyp_correct_result r;
@@ -283,6 +285,64 @@ static void test_splice_no_namespace(void **state)
     splice_case("no_namespace.gpx", NULL, NULL);
 }
 
+/* Inputs a user sent: whitespace around values (the ele text replaced
+ * whole, the rest byte for byte), a <gpx> nested in <metadata><time>
+ * (its point is not spliced), an <ele> of 1e39 (replaced by the height,
+ * no ele_in). */
+static void test_splice_user_files(void **state)
+{
+    (void)state;
+    static const char *names[] = {"whitespace.gpx", "nested_gpx.gpx", "ele_1e39.gpx"};
+    for (size_t k = 0; k < sizeof names / sizeof *names; k++) {
+        char in_path[4096], out_path[4096];
+        snprintf(in_path, sizeof in_path, "%s/tests/data/bad/%s", HYP_SOURCE_DIR, names[k]);
+        snprintf(out_path, sizeof out_path, "%s/out-%s", HYP_BINARY_DIR, names[k]);
+        splice_file(in_path, out_path, NULL, NULL, 1);   /* (their <pressure> is not schema-valid) */
+        remove(out_path);
+    }
+}
+
+/* A track written in reverse is read in time order; the output keeps the
+ * file's order, and each point gets its own height: checked here from
+ * each output point's own <time>, without the reader's map. */
+static void test_splice_reversed(void **state)
+{
+    (void)state;
+    const char *in_path = HYP_SOURCE_DIR "/tests/data/bad/reversed_track.gpx";
+    char out_path[4096];
+    snprintf(out_path, sizeof out_path, "%s/out-reversed_track.gpx", HYP_BINARY_DIR);
+    splice_file(in_path, out_path, NULL, NULL, 1);
+    hyp_gpx_doc d;
+    hyp_gpx_doc_init(&d);
+    hyp_error err;
+    assert_int_equal(hyp_gpx_read(in_path, NULL, &d, NULL, &err), HYP_OK);
+    hyp_correct_result r;
+    fake_result(&d, &r);   /* sample i (time order) gets 1000 + 0.125 i */
+    hyp_output_info info = {.vref = VREF};
+    assert_int_equal(hyp_gpx_write_spliced(in_path, &d, &r, &info, out_path, &err), HYP_OK);
+    size_t m, seen = 0;
+    char *got = slurp(out_path, &m);
+    const double t0 = 1781765400.0;   /* 2026-06-18T06:50:00Z, the first time (GNU date) */
+    for (char *p = strstr(got, "<trkpt"); p; p = strstr(p + 1, "<trkpt")) {
+        char *e = strstr(p, "<ele>"), *t = strstr(p, "<time>");
+        assert_non_null(e);
+        assert_non_null(t);
+        char ts[32];
+        memcpy(ts, t + 6, 20);
+        ts[20] = '\0';
+        double time_s;
+        assert_int_equal(hyp_time_parse(ts, NULL, &time_s), HYP_TIME_OK);
+        double i = (time_s - t0) / 30.0;   /* the points are 30 s apart */
+        assert_true(fabs(strtod(e + 5, NULL) - (1000.0 + 0.125 * i)) < 5e-4);
+        seen++;
+    }
+    assert_int_equal(seen, 120);
+    free(got);
+    remove(out_path);
+    hyp_correct_result_free(&r);
+    hyp_gpx_doc_free(&d);
+}
+
 /* What the reader finds in the varied 1.1 file. */
 static void test_read_values(void **state)
 {
@@ -358,6 +418,8 @@ int main(void)
         cmocka_unit_test(test_splice_v11_default_ns),
         cmocka_unit_test(test_splice_no_namespace),
         cmocka_unit_test(test_write_new),
+        cmocka_unit_test(test_splice_user_files),
+        cmocka_unit_test(test_splice_reversed),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

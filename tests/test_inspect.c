@@ -39,8 +39,10 @@ static void make(hyp_series *s, int planted)
         if (planted && i >= 900 && i < 950)
             p = 91700.0;                                    /* frozen for 25 minutes */
         hyp_sample_flag f = HYP_SAMPLE_OK;
-        if (planted && i == 1100)
-            t -= 3600.0, f = HYP_SAMPLE_TIME_ORDER;         /* the clock jumped back */
+        if (planted && i == 1100) {                         /* the clock jumped back, */
+            t -= 3600.0, f = HYP_SAMPLE_TIME_OUTLIER;       /* as a reader records it */
+            s->time_back[s->n_time_back++] = (struct hyp_time_back){t, 3630.0, (uint32_t)i + 2};
+        }
         hyp_series_push(s, t, p, 285.0, NAN, NAN, NAN, NAN, (uint32_t)i + 2, f);
     }
 }

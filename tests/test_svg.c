@@ -575,6 +575,96 @@ static void test_decimate(void **state)
     free(x), free(y);
 }
 
+/* The streaming thinner against hyp__decimate itself (the oracle): for each
+ * series, decimating the thinned points gives the very points, in the very
+ * segments, that decimating the whole series gives. */
+static void check_thin_series(const double *x, const double *y, size_t n, const hyp__thin *t, double lo, double hi,
+                              int cols)
+{
+    hyp__decim full, part;
+    hyp__decim_init(&full);
+    hyp__decim_init(&part);
+    hyp_error err;
+    assert_int_equal(hyp__decimate(x, y, NULL, n, lo, hi, cols, &full, &err), HYP_OK);
+    double *tx = malloc((t->n + 1) * sizeof *tx), *ty = malloc((t->n + 1) * sizeof *ty);
+    assert_non_null(tx), assert_non_null(ty);
+    for (size_t k = 0; k < t->n; k++) {
+        tx[k] = t->pts[k].x, ty[k] = y[t->pts[k].i];
+        assert_true(tx[k] == x[t->pts[k].i] || (isnan(tx[k]) && isnan(x[t->pts[k].i])));   /* x kept as given */
+    }
+    assert_int_equal(hyp__decimate(tx, ty, NULL, t->n, lo, hi, cols, &part, &err), HYP_OK);
+    assert_int_equal(part.n_seg, full.n_seg);
+    assert_int_equal(part.n_idx, full.n_idx);
+    for (size_t k = 0; k < full.n_idx; k++)
+        assert_int_equal(t->pts[part.idx[k]].i, full.idx[k]);
+    for (size_t s = 0; s < full.n_seg; s++)
+        assert_int_equal(part.seg_end[s], full.seg_end[s]);
+    free(tx), free(ty);
+    hyp__decim_free(&full);
+    hyp__decim_free(&part);
+}
+
+static void test_thin(void **state)
+{
+    (void)state;
+    enum { N = 100000, S = 3 };
+    double *x = malloc(N * sizeof *x), *y[S];
+    assert_non_null(x);
+    uint64_t r = 4242;
+    double t = 0, v[S] = {0, 0, 0};
+    for (int k = 0; k < S; k++)
+        assert_non_null(y[k] = malloc(N * sizeof *y[k]));
+    for (size_t i = 0; i < N; i++) {
+        t += (rng_next(&r) % 4) * 0.25;   /* uneven steps with repeats */
+        x[i] = t;
+        for (int k = 0; k < S; k++) {
+            v[k] += uniform(&r) - 0.5;
+            y[k][i] = v[k];
+        }
+        if (i % 997 == 5 || (i / 3000) % 9 == 4)
+            y[0][i] = NAN;            /* gaps of series 0 alone */
+        if (i % 53 == 0)
+            y[1][i] = y[1][i] * 1e3;  /* spikes */
+        if (i % 41 == 3)
+            y[2][i] = NAN, y[2][i + 2 < N ? i + 2 : i] = NAN;   /* points alone between gaps */
+    }
+    x[777] = NAN;   /* a gap of every series */
+    y[1][60000] = INFINITY;
+    int cols_list[3] = {640, 1, 97};
+    for (int c = 0; c < 3; c++) {
+        double lo = c == 2 ? x[N / 4] : x[0], hi = c == 2 ? x[N / 2] : x[N - 1];   /* c = 2: points outside the range */
+        hyp__thin th;
+        hyp_error err;
+        assert_int_equal(hyp__thin_begin(&th, S, lo, hi, cols_list[c], &err), HYP_OK);
+        for (size_t i = 0; i < N; i++) {
+            double yy[S] = {y[0][i], y[1][i], y[2][i]};
+            assert_int_equal(hyp__thin_add(&th, i, x[i], yy, &err), HYP_OK);
+        }
+        assert_int_equal(hyp__thin_end(&th, &err), HYP_OK);
+        for (size_t k = 1; k < th.n; k++)
+            assert_true(th.pts[k].i > th.pts[k - 1].i);
+        if (c == 0)   /* far fewer than the whole: at most 4 a column and series, and the gaps */
+            assert_true(th.n < N / 4);
+        for (int k = 0; k < S; k++)
+            check_thin_series(x, y[k], N, &th, lo, hi, cols_list[c]);
+        hyp__thin_free(&th);
+    }
+    /* refusals: x going back, too many series, an empty range */
+    hyp__thin th;
+    hyp_error err;
+    double yy[1] = {0};
+    assert_int_equal(hyp__thin_begin(&th, 1, 0, 10, 100, &err), HYP_OK);
+    assert_int_equal(hyp__thin_add(&th, 0, 5, yy, &err), HYP_OK);
+    assert_int_equal(hyp__thin_add(&th, 1, 4, yy, &err), HYP_ERR_USAGE);
+    assert_non_null(strstr(err.message, "point 1"));
+    hyp__thin_free(&th);
+    assert_int_equal(hyp__thin_begin(&th, HYP__THIN_SERIES + 1, 0, 10, 100, &err), HYP_ERR_USAGE);
+    assert_int_equal(hyp__thin_begin(&th, 1, 3, 3, 100, &err), HYP_ERR_USAGE);
+    for (int k = 0; k < S; k++)
+        free(y[k]);
+    free(x);
+}
+
 /* ---- whole figures ----------------------------------------------------- */
 
 static int xml_errors;
@@ -887,6 +977,53 @@ static void test_figure_data_match(void **state)
     hyp__buf_free(&b);
 }
 
+/* The legend goes to the corner that hides the fewest drawn marks: data
+ * filling the top right puts it top left; data along the top puts it at
+ * the bottom (right, the first of the tied bottom corners). */
+static void legend_at(const double *x, const double *y, size_t n, int want_left, int want_top)
+{
+    hyp__svg_spec spec = {
+        .id = "leg", .width_px = 600, .height_px = 400,
+        .x = {.title = "x [m]", .lo = 0, .hi = 100},
+        .y = {.title = "y [m]", .lo = 0, .hi = 100},
+    };
+    hyp__buf b;
+    hyp__buf_init(&b, 0);
+    hyp__svg f;
+    hyp_error err;
+    assert_int_equal(hyp__svg_begin(&f, &b, &spec, &err), HYP_OK);
+    hyp__svg_style s0 = hyp__svg_style_nth(0, "one"), s1 = hyp__svg_style_nth(1, "two");
+    assert_int_equal(hyp__svg_line(&f, x, y, n, &s0), HYP_OK);
+    assert_int_equal(hyp__svg_markers(&f, x, y, NULL, 1, &s1), HYP_OK);
+    double left = f.left_px, right = f.right_px, top = f.top_px, bottom = f.bottom_px;
+    assert_int_equal(hyp__svg_end(&f), HYP_OK);
+    xmlDocPtr doc = parse_svg(&b);
+    xmlXPathObjectPtr o = xpath(doc, "(//s:g[@class='legend']/s:rect)[1]");
+    assert_int_equal(o->nodesetval->nodeNr, 1);
+    xmlNodePtr r = o->nodesetval->nodeTab[0];
+    double cx = attr_num(r, "x") + attr_num(r, "width") / 2, cy = attr_num(r, "y") + attr_num(r, "height") / 2;
+    assert_int_equal(cx < (left + right) / 2, want_left);
+    assert_int_equal(cy < (top + bottom) / 2, want_top);
+    xmlXPathFreeObject(o);
+    xmlFreeDoc(doc);
+    hyp__buf_free(&b);
+}
+
+static void test_legend_place(void **state)
+{
+    (void)state;
+    enum { N = 400 };
+    double x[N], y[N];
+    for (int i = 0; i < N; i++)   /* a zigzag over the top right quarter */
+        x[i] = 50 + 50.0 * i / (N - 1), y[i] = i % 2 ? 100 : 50;
+    legend_at(x, y, N, 1, 1);
+    for (int i = 0; i < N; i++)   /* a zigzag along the top */
+        x[i] = 100.0 * i / (N - 1), y[i] = i % 2 ? 100 : 70;
+    legend_at(x, y, N, 0, 0);
+    double ex[2] = {0, 100}, ey[2] = {0, 0};   /* nothing at the top: the default top right */
+    legend_at(ex, ey, 2, 0, 1);
+}
+
 /* Failures leave nothing half-written: the buffer is cut back (the house
  * rule of STYLE.md and the preamble; curl's dynbuf refuses past its cap). */
 static void test_figure_failures(void **state)
@@ -966,10 +1103,12 @@ int main(void)
         cmocka_unit_test(test_ticks_degenerate),
         cmocka_unit_test(test_time_ticks),
         cmocka_unit_test(test_decimate),
+        cmocka_unit_test(test_thin),
         cmocka_unit_test(test_figure_well_formed),
         cmocka_unit_test(test_figure_plan),
         cmocka_unit_test(test_figure_data_match),
         cmocka_unit_test(test_figure_failures),
+        cmocka_unit_test(test_legend_place),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -162,6 +162,73 @@ static void test_time_tz_database(void **state)
     hyp_zone_free(&z);
 }
 
+/* After the file's last transition (2037 in Debian's tzdata) the footer
+ * rule "CET-1CEST,M3.5.0,M10.5.0/3" gives the offset. Expected values from
+ * `zdump -v -c 2040,2041 Europe/Vienna` (Debian libc-bin): CEST from
+ * 2040-03-25 01:00 UT, CET from 2040-10-28 01:00 UT; the epoch seconds
+ * from GNU date -u. */
+static void test_time_tz_footer_vienna(void **state)
+{
+    (void)state;
+    struct stat st;
+    if (stat("/usr/share/zoneinfo/Europe/Vienna", &st) != 0) {
+        print_message("skipped: /usr/share/zoneinfo/Europe/Vienna absent (install tzdata)\n");
+        skip();
+    }
+    hyp_zone z;
+    hyp_zone_init(&z);
+    hyp_error err;
+    assert_int_equal(hyp_zone_parse(&z, "Europe/Vienna", NULL, &err), HYP_OK);
+    double t;
+    /* the regression: read as CET (11:00Z) before the footer was used */
+    assert_int_equal(hyp_time_parse("2040-07-15T12:00:00", &z, &t), HYP_TIME_OK);
+    assert_near(t, 2225959200.0, 1e-9);   /* 2040-07-15T10:00:00Z, CEST */
+    assert_int_equal(hyp_time_parse("2040-01-15T12:00:00", &z, &t), HYP_TIME_OK);
+    assert_near(t, 2210238000.0, 1e-9);   /* 11:00Z, CET */
+    /* the rule's gap and overlap read as the transitions' are (timeparse.h):
+     * 02:30 on 2040-03-25 does not exist: the offset before the gap (+01) */
+    assert_int_equal(hyp_time_parse("2040-03-25T02:30:00", &z, &t), HYP_TIME_OK);
+    assert_near(t, 2216251800.0, 1e-9);   /* 01:30Z */
+    /* 02:30 on 2040-10-28 happens twice: the earlier, summer time (+02) */
+    assert_int_equal(hyp_time_parse("2040-10-28T02:30:00", &z, &t), HYP_TIME_OK);
+    assert_near(t, 2234997000.0, 1e-9);   /* 00:30Z */
+    hyp_zone_free(&z);
+}
+
+/* The zoned parser gives both instants of a repeated wall-clock time
+ * (Europe/Vienna, Directive 2000/84/EC: 2026-10-25 01:00 UTC, 03:00 CEST
+ * becomes 02:00 CET; instants from GNU date), and tells a skipped one. */
+static void test_time_parse_zoned(void **state)
+{
+    (void)state;
+    struct stat st;
+    if (stat("/usr/share/zoneinfo/Europe/Vienna", &st) != 0) {
+        print_message("skipped: /usr/share/zoneinfo/Europe/Vienna absent (install tzdata)\n");
+        skip();
+    }
+    hyp_zone z;
+    hyp_zone_init(&z);
+    hyp_error err;
+    assert_int_equal(hyp_zone_parse(&z, "Europe/Vienna", NULL, &err), HYP_OK);
+    double t;
+    hyp_time_local how;
+    assert_int_equal(hyp_time_parse_zoned("2026-10-25T02:30:00", &z, &t, &how), HYP_TIME_OK);
+    assert_true(how.zoned && how.repeated && !how.skipped);
+    assert_true(t == 1792888200.0);                /* 00:30Z (GNU date) */
+    assert_true(how.second_s == 1792891800.0);     /* 01:30Z */
+    assert_int_equal(how.offset_s, 7200);
+    assert_int_equal(how.second_offset_s, 3600);
+    assert_int_equal(hyp_time_parse_zoned("2026-03-29T02:30:00", &z, &t, &how), HYP_TIME_OK);
+    assert_true(how.skipped && !how.repeated);
+    assert_int_equal(hyp_time_parse_zoned("2026-06-18T07:00:00Z", &z, &t, &how), HYP_TIME_OK);
+    assert_false(how.zoned);
+    /* past the file's last transition, from the footer rule alike (zdump,
+     * as in test_time_tz_footer_vienna): 2040-10-28 02:30 is 00:30Z, then 01:30Z */
+    assert_int_equal(hyp_time_parse_zoned("2040-10-28T02:30:00", &z, &t, &how), HYP_TIME_OK);
+    assert_true(how.repeated && t == 2234997000.0 && how.second_s == 2235000600.0);
+    hyp_zone_free(&z);
+}
+
 static void test_time_format(void **state)
 {
     (void)state;
@@ -218,6 +285,8 @@ int main(void)
         cmocka_unit_test(test_time_bad),
         cmocka_unit_test(test_time_fixed_zone),
         cmocka_unit_test(test_time_tz_database),
+        cmocka_unit_test(test_time_tz_footer_vienna),
+        cmocka_unit_test(test_time_parse_zoned),
         cmocka_unit_test(test_time_format),
         cmocka_unit_test(test_fmt_fixed),
     };

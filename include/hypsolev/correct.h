@@ -175,10 +175,63 @@ typedef struct hyp_calib {
     double scatter_pa;         /* sample standard deviation of the pressure */
     double misclosure_m;       /* raw_m - known_m: before adjustment */
     double residual_m;         /* corrected - known_m: after the fit */
+    /* The test of the calibrations against each other (hyp_calib_test):
+     * this calibration's standardized residual w (N(0, 1) when it agrees
+     * with the others; NaN when nothing else checks it) and redundancy
+     * number (0: unchecked, 1: fully checked; NaN: not in the test), both
+     * from the adjustment that rejected it when it was rejected. */
+    double test_w;
+    double test_redundancy;
+    int rejected;              /* left out of the offset fit: |w| beyond the
+                                  critical value */
+    int suspect;               /* |w| beyond the critical value, kept: the test
+                                  cannot tell whether this one or another is wrong */
+    char test_note[200];       /* why rejected or suspect; "" otherwise */
     size_t pos_outliers;       /* isolated fixes farther than stationary_m from
                                   the window's median position, tolerated
                                   (found from positions; 0 otherwise) */
 } hyp_calib;
+
+/* The calibrations tested against each other before the offset is fitted
+ * (docs/methods.md, "Testing the calibrations"): a model of everything
+ * that may legitimately make them disagree (a drift with a random walk,
+ * a column scale, a horizontal gradient, each with its prior), adjusted
+ * by weighted least squares with Baarda's w-test and data snooping. */
+typedef enum hyp_calib_test_state {
+    HYP_CALTEST_NONE = 0,      /* nothing to test: no calibration, or --offset */
+    HYP_CALTEST_UNTESTED,      /* too few calibrations: none is checked by another */
+    HYP_CALTEST_PASSED,        /* every calibration agrees with the others */
+    HYP_CALTEST_REJECTED,      /* some disagreed and were left out of the fit;
+                                  the rest agree */
+    HYP_CALTEST_UNRESOLVED     /* some disagree and the test cannot tell which
+                                  (too few calibrations): all kept, the offset's
+                                  sigma widened to cover the disagreement */
+} hyp_calib_test_state;
+
+typedef enum hyp_global_test {
+    HYP_GLOBAL_NONE = 0,       /* no degree of freedom: no test */
+    HYP_GLOBAL_PASS,
+    HYP_GLOBAL_LOW,            /* the calibrations agree better than their sigmas say */
+    HYP_GLOBAL_HIGH            /* they scatter more than their sigmas allow */
+} hyp_global_test;
+
+typedef struct hyp_calib_test {
+    hyp_calib_test_state state;
+    int failed;                /* REJECTED or UNRESOLVED: a test of the data failed
+                                  (exit status 3 of the program) */
+    size_t n_tested;           /* calibrations with a w */
+    size_t n_rejected, n_suspect;
+    double alpha_w, w_crit;    /* two-sided significance of the w-test (0.001)
+                                  and its critical |w| (3.29) */
+    /* The global test of the final adjustment (rejections left out):
+     * variance factor s0^2 = v^T P v / dof and its two-sided bounds at
+     * alpha_global (NaN when dof is 0). */
+    size_t dof;
+    double vtpv, s0_sq, s0_sq_lower, s0_sq_upper, alpha_global;
+    hyp_global_test global;
+    double spread_pa;          /* UNRESOLVED: the range of the suspects' offsets
+                                  over sqrt(2), added to the offset's sigma, Pa */
+} hyp_calib_test;
 
 /* The offset model fitted to the calibrations: offset(t) piecewise linear
  * through knots (constant beyond the first and last), and optionally a
@@ -293,6 +346,7 @@ typedef struct hyp_correct_result {
     double base_tendency_pa_s; /* least-squares trend of base pressure */
     char method[240];          /* what was done, one line */
     struct hyp__work *priv;    /* what hyp_correct_point() needs; private */
+    hyp_calib_test calib_test; /* the calibrations tested against each other */
     /* GNSS-anchored: the mean square height above the base of the samples
      * the level was fitted to, m^2 (the column term's lapse part grows
      * away from it); 0 otherwise. */
@@ -315,6 +369,8 @@ typedef struct hyp_point_detail {
     double offset_pa;          /* rover offset applied, Pa */
     double tcol_k;             /* column mean virtual temperature used, K */
     double budget_m[HYP_B_COUNT];
+    double sens_m_per_pa;      /* the height gained per Pa the rover pressure
+                                  falls (-dh/dp), m/Pa */
 } hyp_point_detail;
 
 /* The details of point i of a result, recomputed from the inputs: the

@@ -41,5 +41,6 @@
 #include "hypsolev/inspect.h"
 #include "hypsolev/marks.h"
 #include "hypsolev/survey.h"
+#include "hypsolev/network.h"
 
 #endif

@@ -68,6 +68,11 @@ HYP_API void hyp_inspection_free(hyp_inspection *r);
  * span, interval, ranges, tendency and one line per problem, units on
  * every number. */
 HYP_API void hyp_inspection_write(FILE *f, const char *path, hyp_unit unit, const hyp_inspection *r);
+struct hyp_read_opts;
+/* Reads a log (GPX or CSV, chosen by its content), inspects it and writes
+ * the inspection to out; the reader's messages go to msgs. */
+HYP_API hyp_status hyp_inspect_file(const char *path, const struct hyp_read_opts *ro, FILE *out, hyp_msgs *msgs,
+                                    hyp_error *err);
 HYP_API hyp_status hyp_inspect(const hyp_series *s, const hyp_inspect_opts *o, hyp_inspection *out,
                        hyp_error *err);
 

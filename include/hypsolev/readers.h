@@ -89,11 +89,15 @@ HYP_API void hyp_gpx_point_next(const hyp_gpx_layout *L, size_t i, int64_t *anch
 
 
 typedef struct hyp_gpx_doc {
-    hyp_series pts;         /* one sample per trkpt/rtept, in file order */
+    hyp_series pts;         /* one sample per trkpt/rtept: in file order, or
+                               in time order where the file was not */
+    uint32_t *pt_series;    /* NULL: pts is in file order; else the file's
+                               point j (layout order) is pts sample
+                               pt_series[j] */
     hyp_gpx_layout layout;
     hyp_waypoints wpts;
     hyp_unit pressure_unit, temperature_unit;  /* as found or inferred */
-    double *geoidheight_m;  /* per point: <geoidheight> (m), NaN where absent;
+    double *geoidheight_m;  /* per sample of pts: <geoidheight> (m), NaN where absent;
                                NULL when no point has one */
     int has_geoidheight;
 } hyp_gpx_doc;

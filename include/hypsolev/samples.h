@@ -27,6 +27,7 @@ extern "C" {
  * before, the full number every 64 samples. */
 #define HYP_NO_POSITION INT32_MIN
 #define HYP_BAD_POSITION (INT32_MIN + 1)   /* given, but beyond +-214 degrees */
+#define HYP_TIME_BACK_KEEP 8
 
 typedef struct hyp_series {
     size_t count;
@@ -44,6 +45,12 @@ typedef struct hyp_series {
     struct hyp_line_far { size_t index; uint32_t line; } *line_far;  /* by index */
     uint32_t last_line;
     uint8_t *flag;     /* hyp_sample_flag: why a reader refused the sample */
+    /* Where the file's times went back (each run of steps back counted
+     * once, in file order, before the reader put the samples in time
+     * order): the first HYP_TIME_BACK_KEEP, and how many in all. */
+    size_t n_time_back;
+    struct hyp_time_back { double time_s, back_s; uint32_t line; } time_back[8];
+    int time_sorted;   /* 1: the reader reordered the samples by time */
     /* flags for the whole series */
     int has_temp;      /* at least one sample has a temperature */
     int has_rh;
@@ -51,14 +58,19 @@ typedef struct hyp_series {
 } hyp_series;
 
 /* A reader keeps every record (so that a GPX writer can map outputs back to
- * points) and marks those it refused; the core uses only HYP_SAMPLE_OK. */
+ * points) and marks those it refused; the core uses only HYP_SAMPLE_OK,
+ * and those are in strictly increasing time order (the reader sorts a
+ * file that is not; docs/formats.md). */
 typedef enum hyp_sample_flag {
     HYP_SAMPLE_OK = 0,
     HYP_SAMPLE_NO_TIME,          /* no time stamp */
     HYP_SAMPLE_NO_PRESSURE,      /* no pressure value */
     HYP_SAMPLE_PRESSURE_RANGE,   /* pressure outside 300-1100 hPa */
-    HYP_SAMPLE_TIME_ORDER,       /* time earlier than or equal to the previous */
-    HYP_SAMPLE_BAD_VALUE,        /* a field could not be read */
+    HYP_SAMPLE_TIME_OUTLIER,     /* time far out of line with the samples
+                                    before and after it in the file */
+    HYP_SAMPLE_BAD_VALUE,        /* pressure not a finite number in any
+                                    unit's range (nan, inf, 1e39) */
+    HYP_SAMPLE_TIME_DUPLICATE,   /* time the same as another sample's */
     HYP_SAMPLE_FLAG_COUNT
 } hyp_sample_flag;
 
@@ -91,6 +103,11 @@ HYP_API void hyp_series_free(hyp_series *s);
 HYP_API hyp_status hyp_series_push(hyp_series *s, double time_s, double pressure_pa,
                            double temp_k, double rh_pct, double lat_deg,
                            double lon_deg, double ele_m, uint32_t line, hyp_sample_flag flag);
+/* Reorders the samples: sample i becomes the old sample order[i] (order
+ * is a permutation of 0..count-1); lines and flags go along. Allocates
+ * one array at a time; after HYP_ERR_NOMEM the series is in no defined
+ * order and is only fit to be freed. */
+HYP_API hyp_status hyp_series_permute(hyp_series *s, const uint32_t *order);
 /* Gives back the growth slack of the arrays (count becomes the capacity). */
 HYP_API void hyp_series_shrink(hyp_series *s);
 /* Number of samples with flag f. */

@@ -46,6 +46,10 @@ typedef struct hyp_base_spec {
     hyp_base_kind kind;        /* station pressure, or a QNH series */
     double offset_pa;          /* the base reads this much high, Pa; NaN: unknown */
     double offset_sigma_pa;
+    /* How this log is read where it differs from the survey's reading
+     * options (hyp_survey_opts.read): HYP_UNIT_NONE and NULL take those. */
+    hyp_unit pressure_unit, temperature_unit;
+    const char *pressure_field, *temperature_field, *humidity_field;
 } hyp_base_spec;
 
 /* path and height; no position, clock offset 0, station pressure, offset
@@ -92,8 +96,17 @@ HYP_API void hyp_survey_opts_init(hyp_survey_opts *o);
 HYP_API hyp_status hyp_survey_opts_set(hyp_survey_opts *o, const char *name, const char *value, hyp_error *err);
 /* The same for a base: "base-height" (m), "base-at" (LAT,LON degrees),
  * "base-clock-offset" (s), "base-time-zone", "base-offset" and
- * "base-offset-sigma" (Pa), "base-qnh" (NULL). */
+ * "base-offset-sigma" (Pa), "base-qnh" (NULL), and how its log is read:
+ * "base-pressure-unit", "base-temperature-unit", "base-pressure-field",
+ * "base-temperature-field", "base-humidity-field". */
 HYP_API hyp_status hyp_base_spec_set(hyp_base_spec *b, const char *name, const char *value, hyp_error *err);
+
+/* What an HTML report says of the program that wrote it. */
+typedef struct hyp_report_info {
+    const char *tool;          /* name and version, e.g. "hypsolev 0.1.0";
+                                  NULL: the library's */
+    const char *command_line;  /* the full command as typed; NULL: not shown */
+} hyp_report_info;
 
 /* Where a rover's outputs go. Every output named is written through a
  * staging file, and all of a rover's outputs are renamed into place
@@ -101,11 +114,15 @@ HYP_API hyp_status hyp_base_spec_set(hyp_base_spec *b, const char *name, const c
 typedef struct hyp_outputs {
     const char *gpx;           /* corrected GPX (one rover only) */
     const char *table;         /* per-sample CSV; "-" is standard output */
-    const char *report;        /* the run's text report (one rover only) */
+    const char *report;        /* the run's report (one rover only): HTML when
+                                  the name ends in .html (any case), else text */
     const char *dir;           /* DIR/NAME.gpx, DIR/NAME.csv (unless table is
                                   given) and DIR/NAME.report.txt per rover */
     int overwrite;             /* with dir: replace existing outputs; else the
                                   rover is skipped */
+    int report_html;           /* with dir and no report: the report is
+                                  DIR/NAME.report.html in place of .txt */
+    const hyp_report_info *report_info;   /* shown in HTML reports; NULL: none */
 } hyp_outputs;
 
 /* No outputs, no overwrite (then name those wanted). */
@@ -124,7 +141,8 @@ typedef struct hyp_base_used {
 struct hyp__rover_priv;
 
 /* Everything about one rover's run that the summary, the report and the
- * batch summary print. Valid until hyp_rover_run_free. */
+ * batch summary print. Valid until hyp_rover_run_free, and only while its
+ * survey lives: the bases' logs (bases[].log) are the survey's. */
 typedef struct hyp_rover_run {
     const char *path;          /* the rover file as given */
     char name[256];            /* file name without folder and extension */
@@ -148,6 +166,9 @@ typedef struct hyp_rover_run {
                                   output); a report asked for is written
                                   with them, all or none */
     struct hyp__rover_priv *priv;
+    int test_failed;           /* status HYP_OK, outputs written, but a test of
+                                  the data failed (result.calib_test): the
+                                  program's exit status 3 */
 } hyp_rover_run;
 
 HYP_API void hyp_rover_run_free(hyp_rover_run *r);
@@ -163,6 +184,8 @@ typedef struct hyp_run_info {
     char method[48];
     char message[1100];        /* "ok", "skipped: ...", the error, or
                                   "not started (interrupted)" */
+    int test_failed;           /* ran and wrote its outputs, but a test of its
+                                  data failed (hyp_rover_run.test_failed) */
 } hyp_run_info;
 
 /* The exit status the program gives for a status: 0 ok, 1 an input could
@@ -222,6 +245,18 @@ typedef enum hyp_text_parts {
 /* Writes a rover's messages, its error or skip, and its summary (units on
  * every number, the cautions last) as text. */
 HYP_API void hyp_rover_run_write_text(FILE *f, const hyp_rover_run *r, unsigned parts);
+/* Writes a rover's report as one self-contained HTML page: figures
+ * (inline SVG: heights against time and distance with their 2-sigma band,
+ * base pressure and tendency, the offset model, the ties, the error
+ * budget, a plan coloured by sigma) and tables (inputs, method, the
+ * calibrations and fit, warnings, vertical reference, tool and command
+ * line, cautions). Inline CSS, no script, nothing fetched; long tracks are
+ * drawn thinned per pixel column with every extreme kept. A failed run
+ * gets its error and messages. info may be NULL. The survey the run came
+ * from must still exist. HYP_ERR_NOMEM, or HYP_ERR_IO when f refuses the
+ * page; nothing is written to f unless the whole page was built. */
+HYP_API hyp_status hyp_rover_run_write_html(FILE *f, const hyp_rover_run *r, const hyp_report_info *info,
+                                            hyp_error *err);
 /* Messages as "hypsolev: warning: TEXT" lines, those of level >= min. */
 HYP_API void hyp_msgs_write(FILE *f, const hyp_msgs *m, hyp_level min);
 
@@ -235,6 +270,19 @@ HYP_API void hyp_batch_summary_write(FILE *f, const hyp_run_info *infos, size_t 
  * renamed into place; refused when it names an input of the survey. */
 HYP_API hyp_status hyp_survey_write_summary(const hyp_survey *sv, const char *path, const hyp_run_info *infos,
                                             size_t n, hyp_error *err);
+
+/* The exit status of a run that completed and wrote its outputs, but
+ * where a statistical test of the data failed: a calibration rejected, or
+ * calibrations that disagree with too few to tell which is wrong. The
+ * outputs are the best estimate, their sigmas widened where the test
+ * could not decide; the summary and the report say what failed. */
+#define HYP_EXIT_TEST_FAILED 3
+
+/* The exit status of one rover of a batch: hyp_exit_status of its status
+ * (0, 1 input, 2 usage), HYP_EXIT_TEST_FAILED when it ran but a test
+ * failed, 1 when it was not started. The program exits with the worst
+ * over its rovers, in the order usage 2, input 1, test failed 3, ok 0. */
+HYP_API int hyp_run_exit_status(const hyp_run_info *r);
 
 #ifdef __cplusplus
 }

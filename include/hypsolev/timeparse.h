@@ -13,8 +13,35 @@
 extern "C" {
 #endif
 
+/* The day (and local time) of one change of a POSIX TZ rule
+ * (POSIX.1-2017 section 8.3, TZ). */
+typedef struct hyp_tz_date {
+    char kind;         /* 'J': day 1-365, Feb 29 never counted ("J60" is
+                          Mar 1); 'D': day 0-365 counting Feb 29 (POSIX's
+                          plain "n"); 'M': weekday of a week of a month */
+    int8_t month;      /* 'M': 1-12 */
+    int8_t week;       /* 'M': 1-5, 5 being the last such weekday */
+    int8_t wday;       /* 'M': 0 Sunday to 6 Saturday */
+    int16_t day;       /* 'J': 1-365, 'D': 0-365 */
+    int32_t time_s;    /* local time of the change after that day's 00:00 (s):
+                          0-24 h, or -167..167 h in TZif version 3+ (RFC 8536
+                          section 3.3.1); POSIX's default 02:00 */
+} hyp_tz_date;
+
+/* A POSIX TZ rule such as "CET-1CEST,M3.5.0,M10.5.0/3": the footer of a
+ * TZif file version 2+ (RFC 8536 section 3.3). Offsets are stored east of
+ * UTC, the opposite of POSIX's sign ("CET-1" is +3600 s). */
+typedef struct hyp_tz_rule {
+    int32_t std_off_s;  /* standard time, s east of UTC */
+    int32_t dst_off_s;  /* daylight-saving time, s east of UTC */
+    int has_dst;        /* 0: std_off_s all year */
+    hyp_tz_date start;  /* change to DST, in standard local time */
+    hyp_tz_date end;    /* change back, in daylight-saving local time */
+} hyp_tz_rule;
+
 /* A time zone for stamps without one: none (such stamps are refused), a
- * fixed offset, or a zone of the tz database with its transitions. */
+ * fixed offset, or a zone of the tz database with its transitions and, for
+ * instants after the last one, the rule of the file's footer. */
 typedef struct hyp_zone {
     int kind;              /* 0 none, 1 fixed offset, 2 tz database */
     int32_t offset_s;      /* kind 1: seconds east of UTC */
@@ -23,18 +50,28 @@ typedef struct hyp_zone {
     int64_t *trans_s;      /* UTC instants of the transitions, ascending */
     int32_t *trans_off_s;  /* offset in force from each transition on */
     int32_t first_off_s;   /* offset before the first transition */
+    int has_rule;          /* kind 2: a version 2+ file with a non-empty
+                              footer; 0: the last offset stays in force */
+    hyp_tz_rule rule;      /* offsets after the last transition (at all
+                              instants when count is 0) */
 } hyp_zone;
 
 HYP_API void hyp_zone_init(hyp_zone *z);
 HYP_API void hyp_zone_free(hyp_zone *z);
 /* Parses "+HH:MM", "-HHMM", "UTC", "Z" or a tz database name such as
- * "Europe/Vienna" (read from zoneinfo_dir, or /usr/share/zoneinfo when
- * NULL). HYP_ERR_VALUE with a message when it cannot. */
+ * "Europe/Vienna" (a TZif file, RFC 8536, read from zoneinfo_dir, or
+ * /usr/share/zoneinfo when NULL; versions 2+ with their footer rule).
+ * HYP_ERR_VALUE with a message naming the file and what was wrong when it
+ * cannot (no such zone, not TZif, a malformed footer). */
 HYP_API hyp_status hyp_zone_parse(hyp_zone *z, const char *text,
                           const char *zoneinfo_dir, hyp_error *err);
 /* UTC offset (s) in force for a local wall-clock time (seconds since the
- * epoch as if the wall clock were UTC). In a DST overlap the earlier
- * (summer) offset is taken; in a gap the offset before the gap. */
+ * epoch as if the wall clock were UTC), from the transitions or, after the
+ * last one, the footer rule alike. A local time that occurs twice (an
+ * overlap, when clocks go back) takes the earlier instant, the larger
+ * offset (usually summer time); one that does not occur (a gap, when clocks go
+ * forward) takes the offset in force before the gap, so 02:30 in a gap
+ * from 02:00 to 03:00 reads as 03:30 after it. */
 HYP_API int32_t hyp_zone_offset_for_local(const hyp_zone *z, int64_t local_s);
 
 typedef enum hyp_time_result {
@@ -51,6 +88,25 @@ typedef enum hyp_time_result {
  * refused). Leading and trailing blanks are ignored. */
 HYP_API hyp_time_result hyp_time_parse(const char *text, const hyp_zone *zone,
                                double *time_s);
+/* How a stamp without a zone of its own was read in the zone given. */
+typedef struct hyp_time_local {
+    int zoned;               /* 1: the stamp had no zone and was read in `zone` */
+    int32_t offset_s;        /* the UTC offset used (s east of UTC) */
+    int repeated;            /* 1: a wall-clock time that happens twice (the
+                                clock was set back): *time_s is the first
+                                occurrence, second_s the second */
+    int skipped;             /* 1: a wall-clock time that never happened (the
+                                clock was set forward over it): read with the
+                                offset before the change */
+    double second_s;         /* repeated: the second occurrence (s since the epoch) */
+    int32_t second_offset_s; /* repeated: its UTC offset */
+} hyp_time_local;
+
+/* As hyp_time_parse, and fills *how (may be NULL) for a stamp read in
+ * `zone`, so that a reader can place repeated wall-clock times by the
+ * stamps around them. */
+HYP_API hyp_time_result hyp_time_parse_zoned(const char *text, const hyp_zone *zone,
+                                     double *time_s, hyp_time_local *how);
 /* Formats time_s as "YYYY-MM-DDThh:mm:ss[.fff]Z" (milliseconds only when
  * not whole). buf needs 32 bytes. */
 HYP_API void hyp_time_format(double time_s, char *buf, size_t n);

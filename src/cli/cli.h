@@ -9,12 +9,22 @@
 #define EXIT_INPUT 1   /* an input could not be used */
 #define EXIT_USAGE 2   /* the command line is wrong */
 
+#include <getopt.h>
+#include "hypsolev/hypsolev.h"
+
+#define EXIT_TEST 3    /* ran, but a statistical test failed */
+
 int cmd_correct(int argc, char **argv);
+int cmd_adjust(int argc, char **argv);
+void cli_adjust_help(void);
 int cmd_inspect(int argc, char **argv);
 void cli_correct_help(void);
 void cli_print_safety(void);
 /* "option ... is unknown" or "... needs a value"; returns EXIT_USAGE. */
 int cli_bad_option(const char *cmd, const char *arg, int optopt, int missing);
+
+/* Usage message of a command ("hypsolev CMD: ..." and the --help hint). */
+int cli_usage(const char *cmd, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
 
 /* Rover files: folders become their .gpx and .csv files, quoted patterns
  * their matches (sorted, so runs repeat), plain files stay as given. */
@@ -25,6 +35,31 @@ typedef struct cli_files {
 int cli_files_add(cli_files *f, const char *path);
 int cli_files_expand(cli_files *f, const char *cmd);
 void cli_files_free(cli_files *f);
+
+/* The options correct and adjust share (options.c). Codes from CLI_SET to
+ * CLI_OWN are the common table's; a command's own start at CLI_OWN. */
+#define CLI_MAX_WINDOWS 64
+enum { CLI_SET = 256, CLI_BASE_SET, CLI_BASE, CLI_CLOCK, CLI_COLOC, CLI_BASE_DIR, CLI_OWN = 300 };
+typedef struct cli_common {
+    const char *cmd;
+    hyp_survey_opts so;
+    hyp_base_spec bases[HYP_MAX_BASES];
+    int n_bases;
+    const char *base_dir;
+    const char *colocate[CLI_MAX_WINDOWS];
+    int jobs, quiet;
+    cli_files rovers;
+} cli_common;
+void cli_common_init(cli_common *c, const char *cmd);
+int cli_common_option(cli_common *c, int code, const char *name, const char *arg);
+/* Parses argv: common options here, the command's own (table `own`,
+ * codes from CLI_OWN) through fn; then expands the rovers. 0, -1 after
+ * --help (fn returns -1), or the exit status of a usage error. */
+int cli_parse(cli_common *c, int argc, char **argv, const struct option *own, int (*fn)(void *, int, const char *),
+              void *ctx);
+hyp_status cli_open_survey(cli_common *c, hyp_survey **sv, hyp_error *err);
+/* Prints a failure of the survey (usage or error); returns the exit status. */
+int cli_fail(const cli_common *c, hyp_status st, const hyp_error *err);
 
 /* SIGINT, SIGTERM and SIGHUP set a flag the library polls: no output is
  * renamed into place after it. */

@@ -28,37 +28,13 @@ static int inspect_one(const char *path, const hyp_read_opts *ro)
     hyp_msgs m;
     hyp_msgs_init(&m);
     hyp_error err;
-    hyp_series s;
-    hyp_series_init(&s);
-    hyp_gpx_doc d;
-    hyp_gpx_doc_init(&d);
-    hyp_unit pu = HYP_UNIT_NONE;
-    hyp_status st;
-    const hyp_series *ser = &s;
-    if (hyp_file_is_xml(path) == 1) {
-        st = hyp_gpx_read(path, ro, &d, &m, &err);
-        ser = &d.pts;
-        pu = d.pressure_unit;
-    } else
-        st = hyp_csv_read(path, ro, &s, &pu, &m, &err);
+    hyp_status st = hyp_inspect_file(path, ro, stdout, &m, &err);
     hyp_msgs_write(stderr, &m, HYP_NOTE);
-    hyp_inspection r;
-    if (!st)
-        st = hyp_inspect(ser, NULL, &r, &err);
-    if (st) {
+    hyp_msgs_free(&m);
+    if (st)
         fprintf(stderr, "hypsolev: error: %s%s%s\n", strstr(err.message, path) ? "" : path, strstr(err.message, path) ? "" : ": ",
                 err.message);
-        hyp_series_free(&s);
-        hyp_gpx_doc_free(&d);
-        hyp_msgs_free(&m);
-        return EXIT_INPUT;
-    }
-    hyp_inspection_write(stdout, path, pu, &r);
-    hyp_inspection_free(&r);
-    hyp_series_free(&s);
-    hyp_gpx_doc_free(&d);
-    hyp_msgs_free(&m);
-    return 0;
+    return st ? EXIT_INPUT : 0;
 }
 
 int cmd_inspect(int argc, char **argv)

@@ -13,6 +13,7 @@ static void usage(FILE *f)
           "\n"
           "commands:\n"
           "  correct   correct rover tracks against a base station's pressure log\n"
+          "  adjust    station heights from a whole survey, adjusted and tested as a network\n"
           "  inspect   check pressure logs: gaps, spikes, steps, flat lines, tendency\n"
           "\n"
           "  hypsolev correct --help    options of a command\n"
@@ -37,6 +38,8 @@ int main(int argc, char **argv)
     }
     if (strcmp(argv[1], "correct") == 0)
         return cmd_correct(argc - 1, argv + 1);
+    if (strcmp(argv[1], "adjust") == 0)
+        return cmd_adjust(argc - 1, argv + 1);
     if (strcmp(argv[1], "inspect") == 0)
         return cmd_inspect(argc - 1, argv + 1);
     fprintf(stderr, "hypsolev: unknown command \"%s\"\n", argv[1]);

@@ -1,6 +1,7 @@
 # run_case.cmake - one CLI golden case: runs the program, checks the exit
 # status and that stderr matches a regular expression; checks that no input
-# changed and that a failing run leaves no output and no temporary file.
+# changed and that a failing run leaves no output and no temporary file
+# (exit status 3, a failed test of the data, writes its outputs).
 #   cmake -DEXE=... -DWORK=dir -DEXPECT_RC=n -DEXPECT_ERR=regex
 #         -DARGS=a;b;c [-DINPUTS=f1;f2] [-DGOLDEN=expected.csv -DGOLDEN_OUT=file]
 #         [-DPROJ_DB_ONLY=/path/proj.db] (run with every PROJ grid missing)
@@ -62,7 +63,11 @@ foreach(f IN LISTS INPUTS)
 endforeach()
 file(REMOVE_RECURSE "${WORK}/projdata")
 file(GLOB left "${WORK}/*")
-if(NOT EXPECT_RC STREQUAL "0" AND left)
+# exit status 3: the run completed and wrote its outputs, but a test of
+# its data failed; any other failure leaves nothing behind
+if(EXPECT_RC STREQUAL "3" AND NOT left)
+  message(FATAL_ERROR "exit status 3 but no output written")
+elseif(NOT EXPECT_RC STREQUAL "0" AND NOT EXPECT_RC STREQUAL "3" AND left)
   message(FATAL_ERROR "a failing run left files behind: ${left}")
 endif()
 file(GLOB tmps "${WORK}/*hyp-tmp-*" "${WORK}/*.tmp-*")
@@ -76,3 +81,20 @@ if(GOLDEN)
     message(FATAL_ERROR "${GOLDEN_OUT} differs from ${GOLDEN}")
   endif()
 endif()
+# No number shown to a user is ever nan or inf: not on stdout or stderr,
+# not in any output file. A text the input holds, quoted in a message
+# ("nan" as found), is the file's own: a double quote before it is allowed.
+set(nanre "(^|[^A-Za-z0-9_\"])[-+]?([Nn][Aa][Nn]|[Ii][Nn][Ff]([Ii][Nn][Ii][Tt][Yy])?)([^A-Za-z0-9_]|$)")
+if(out MATCHES "${nanre}")
+  message(FATAL_ERROR "stdout shows a non-finite number: \"${CMAKE_MATCH_0}\"\n--- stdout:\n${out}")
+endif()
+if(err MATCHES "${nanre}")
+  message(FATAL_ERROR "stderr shows a non-finite number: \"${CMAKE_MATCH_0}\"")
+endif()
+file(GLOB_RECURSE outputs "${WORK}/*")
+foreach(f IN LISTS outputs)
+  file(READ "${f}" body)
+  if(body MATCHES "${nanre}")
+    message(FATAL_ERROR "${f} shows a non-finite number: \"${CMAKE_MATCH_0}\"")
+  endif()
+endforeach()

@@ -48,7 +48,7 @@ needs() {
     fail "find_package(hypsolev) project did not configure: $(tail -20 "$work/cmake.log")"
 "$cmake" --build "$work/cmake-build" >>"$work/cmake.log" 2>&1 || fail "CMake client did not build: $(tail -20 "$work/cmake.log")"
 needs "$work/cmake-build/consumer" libhypsolev.so.0 || fail "CMake client does not load libhypsolev.so.0"
-ldd "$work/cmake-build/consumer" | grep -q "libhypsolev.so.0 => $libdir/" || fail "CMake client loads another libhypsolev: $(ldd "$work/cmake-build/consumer" | grep hypsolev)"
+ldd "$work/cmake-build/consumer" | grep "libhypsolev.so.0 => $libdir/" > /dev/null || fail "CMake client loads another libhypsolev: $(ldd "$work/cmake-build/consumer" | grep hypsolev)"
 run find_package "$work/cmake-build/consumer"
 
 if ! command -v pkg-config >/dev/null; then

@@ -13,9 +13,9 @@ opts_of() {
     grep -oE '\{"[a-z][a-z0-9-]*", *(required|no|optional)_argument|\b(SET|FLAG|BASE)\("[a-z][a-z0-9-]*"\)' "$@" |
         sed -E 's/^[^"]*"([^"]*)".*/--\1/'
 }
-correct=$(opts_of "$src/src/cli/cmd_correct.c" | sort -u)
+correct=$(opts_of "$src/src/cli/cmd_correct.c" "$src/src/cli/options.c" | sort -u)
 # a pattern that stopped matching would make the check pass on nothing
-[ "$(wc -l <<<"$correct")" -ge 20 ] || { echo "man_options: found only: $correct in cmd_correct.c; has its longopts table changed shape?" >&2; exit 1; }
+[ "$(wc -l <<<"$correct")" -ge 20 ] || { echo "man_options: found only: $correct in cmd_correct.c and options.c; have the option tables changed shape?" >&2; exit 1; }
 program=$( { echo "$correct"
              opts_of "$src"/src/cli/*.c
              grep -ohE '"--[a-z][a-z0-9-]*"' "$src/src/cli/main.c" | tr -d '"'; } | sort -u)

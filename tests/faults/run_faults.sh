@@ -91,5 +91,28 @@ stale=$(ls "$work" | grep 'hyp-tmp-' | grep -v "hyp-tmp-$live-abcdef" || true)
 [ -f "$work/k.gpx.hyp-tmp-$live-abcdef" ] || bad "a living process's staging file was removed"
 [ -f "$work/k.gpx.notours" ] || bad "a file not of our pattern was removed"
 echo "the next run removed the stale staging files of killed runs, and nothing else"
+# 4. allocation failures with the HTML report (its page, figures and
+#    thinning allocate on their own): the same rules
+hargs=("${args[@]/out.txt/out.html}")
+hreset() { reset; echo old > "$work/out.html"; }
+hreset
+total=$(HYP_FAIL_COUNT=1 LD_PRELOAD=$shim "$exe" "${hargs[@]}" 2>&1 >/dev/null | sed -n 's/^allocations: //p')
+step=$(( ${total:-150} / 150 + 1 ))
+n_fail=0
+for ((n = 1; n <= ${total:-0}; n += step)); do
+  hreset
+  HYP_FAIL_MALLOC_AT=$n LD_PRELOAD=$shim "$exe" "${hargs[@]}" 2> "$work/err"
+  rc=$?
+  if [ $rc -gt 2 ]; then bad "HTML report, allocation $n of $total: exit $rc: $(head -c 300 "$work/err")"; continue; fi
+  if [ $rc -ne 0 ]; then
+    n_fail=$((n_fail + 1))
+    grep -q . "$work/err" || bad "HTML report, allocation $n: exit $rc without a message"
+    [ "$(cat "$work/out.html")" = old ] || bad "HTML report, allocation $n: previous report changed"
+    check_failed_run "HTML report, allocation $n"
+  elif ! grep -q '</html>' "$work/out.html"; then
+    bad "HTML report, allocation $n: exit 0 with an incomplete page"
+  fi
+done
+echo "HTML report allocation failures: $total allocations, every ${step}th failed in turn, $n_fail runs refused cleanly"
 echo "faults: $((fails == 0 ? 1 : 0)) passed, $((fails == 0 ? 0 : 1)) failed"
 [ $fails -eq 0 ]

@@ -19,7 +19,13 @@
  *
  * Writes OUTDIR/rover.gpx, OUTDIR/base.csv, OUTDIR/truth.csv and
  * OUTDIR/scenario.txt (the parameters), and OUTDIR/benchmarks.csv where the
- * scenario has benchmarks. Everything is invented. */
+ * scenario has benchmarks. Everything is invented.
+ *
+ *   hypsim network|network-hard OUTDIR [--seed N] [--days D] [--rovers R]
+ *          [--stations S] [--dt S] [--mislabel] [--open-tracks]
+ *
+ * A whole multi-day, multi-rover survey of stations in the same atmosphere
+ * (network.c, which documents its files). */
 #define _DEFAULT_SOURCE
 #include <math.h>
 #include <stddef.h>
@@ -31,55 +37,7 @@
 
 #include <proj.h>
 
-typedef struct stop { double frac, dur_s; const char *name; int waypoint; } stop;
-
-typedef struct scenario {
-    const char *name;
-    double lat0, lon0, base_h;      /* base position and height (m) */
-    double top_h, route_km;         /* highest point, one-way length */
-    double t0;                      /* start, Unix s */
-    double coloc_s, rest_s;         /* standing at the start, at the top */
-    double walk_speed;              /* m/s horizontally */
-    double rover_dt, base_dt;       /* sampling, s */
-    /* atmosphere */
-    double slp_pa, trend_pa_h;      /* sea-level pressure and its trend */
-    double grad_pa_km_e, grad_pa_km_n; /* horizontal gradient of it */
-    double t_sl_k, lapse_k_km, diurnal_k; /* sea-level temp, lapse, diurnal amplitude */
-    double rh_sl, rh_lapse_km;      /* humidity at sea level (%), change per km */
-    /* sensors */
-    double rover_off_pa, rover_drift_pa_h, rover_noise_pa, rover_q_pa;
-    double base_off_pa, base_noise_pa, base_q_pa;
-    double body_warming_k;          /* rover thermometer warming while walking */
-    double gnss_sd_m, gnss_tau_s;   /* correlated GNSS height error */
-    /* later additions (zero in the first scenarios) */
-    int n_stops;                    /* stops on the way up, at benchmarks */
-    stop stops[4];
-    double th_east_km, th_north_km, th_h; /* trailhead from the base, km; its height */
-    int th_is_benchmark;            /* write the trailhead as benchmark TH */
-    double base_clock_s;            /* base logger clock ahead of true time */
-    double front_pa, front_kmh, front_dir_deg, front_t_s, front_km; /* a moving pressure step */
-    double micro_pa, micro_tau_s;   /* small pressure waves seen alike everywhere nearby */
-    /* more bases: position from the main base (km), height, instrument
-     * offset; coloc_first: the logger starts beside the main base (from 2 h
-     * to 1.5 h before the start) and is then carried to its site */
-    int n_extra;
-    struct xbase { double east_km, north_km, h, off_pa; int coloc_first; } extra[3];
-    double inv_dt_k, inv_depth_m, inv_end_s;   /* a morning inversion above the main base */
-    double grad_rot_deg_h;          /* the gradient turns this fast */
-    int no_rover_temp;              /* the rover logs no temperature */
-    double qnh_east_km, qnh_north_km, qnh_h, qnh_dt_s; /* a weather station's QNH series */
-    /* the coverage tests' additions (zero: as before) */
-    double front_trough_pa_h;       /* a trough moving with the front: the
-                                       pressure falls this fast ahead of it
-                                       and rises this fast behind it */
-    double base_temp_bias_k;        /* the base thermometer's error as a
-                                       measure of the air (siting, radiation) */
-    double pos_noise_m, pos_tau_s;  /* per-axis position noise (0: 2 m white)
-                                       and its correlation time (0: white) */
-    double pos_spike_s;             /* a 50 m position spike every this many s */
-    double coloc_offset_m;          /* standing this far east of the trailhead
-                                       when at the start (co-location) */
-} scenario;
+#include "sim.h"
 
 static const scenario scenarios[] = {
     {"demo", 46.80, 9.90, 812.4, 1968.0, 7.5, 1781766000.0 /* 2026-06-18T07:00Z */,
@@ -169,14 +127,21 @@ static const scenario scenarios[] = {
 
 /* --- deterministic random numbers: xorshift64* and Box-Muller --- */
 static uint64_t rng_state = 88172645463325252ULL;
-static double urand(void)
+
+/* Mixes a seed into the generator (what --seed does). */
+void sim_seed(uint64_t seed)
+{
+    rng_state ^= seed * 0x9E3779B97F4A7C15ULL;
+}
+
+double urand(void)
 {
     rng_state ^= rng_state >> 12;
     rng_state ^= rng_state << 25;
     rng_state ^= rng_state >> 27;
     return (double)((rng_state * 2685821657736338717ULL) >> 11) * (1.0 / 9007199254740992.0);
 }
-static double nrand(void)
+double nrand(void)
 {
     double u = urand(), v = urand();
     if (u < 1e-300)
@@ -193,7 +158,7 @@ static double sim_gravity(double lat_deg, double z)
     return 9.780327 * (1.0 + 0.0053024 * s * s - 0.0000058 * s2 * s2) - 3.086e-6 * z;
 }
 
-static double air_temp(const scenario *sc, double z, double t)
+double air_temp(const scenario *sc, double z, double t)
 {
     double hour = fmod((t / 3600.0), 24.0);
     double diurnal = sc->diurnal_k * sin(2.0 * M_PI * (hour - 9.0) / 24.0);
@@ -209,7 +174,7 @@ static double air_temp(const scenario *sc, double z, double t)
     return sc->t_sl_k + diurnal + sc->lapse_k_km * z / 1000.0 + inv;
 }
 
-static double air_rh(const scenario *sc, double z)
+double air_rh(const scenario *sc, double z)
 {
     double rh = sc->rh_sl + sc->rh_lapse_km * z / 1000.0;
     return rh < 5 ? 5 : rh > 100 ? 100 : rh;
@@ -292,7 +257,7 @@ static double micro_at(const scenario *sc, double t)
     return micro[i] + (x - i) * (micro[i + 1] - micro[i]);
 }
 
-static double true_pressure(const scenario *sc, double lat, double east_km, double north_km, double z, double t)
+double true_pressure(const scenario *sc, double lat, double east_km, double north_km, double z, double t)
 {
     double p = sea_level_pressure(sc, east_km, north_km, t) + micro_at(sc, t);
     int n = (int)ceil(fabs(z) / 5.0);
@@ -398,7 +363,7 @@ static double stop_mid_time(const scenario *sc, int k)
     return t + 0.5 * sc->stops[k].dur_s;
 }
 
-static void iso(double t, char *buf, size_t n)
+void iso(double t, char *buf, size_t n)
 {
     time_t s = (time_t)floor(t);
     struct tm tm;
@@ -406,7 +371,7 @@ static void iso(double t, char *buf, size_t n)
     strftime(buf, n, "%Y-%m-%dT%H:%M:%SZ", &tm);
 }
 
-static double quant(double v, double q)
+double quant(double v, double q)
 {
     return q > 0 ? q * floor(v / q + 0.5) : v;
 }
@@ -425,7 +390,7 @@ static double gnss_ref_shift(double lat, double lon)
     return c.xyz.z;   /* ellipsoidal height of a point on the geoid: N */
 }
 
-static FILE *open_out(const char *dir, const char *name)
+FILE *open_out(const char *dir, const char *name)
 {
     char path[4096];
     snprintf(path, sizeof path, "%s/%s", dir, name);
@@ -435,7 +400,7 @@ static FILE *open_out(const char *dir, const char *name)
     return f;
 }
 
-static void latlon(const scenario *sc, double east_km, double north_km, double *lat, double *lon)
+void latlon(const scenario *sc, double east_km, double north_km, double *lat, double *lon)
 {
     *lat = sc->lat0 + north_km / 111.2;
     *lon = sc->lon0 + east_km / (111.2 * cos(sc->lat0 * M_PI / 180.0));
@@ -671,8 +636,12 @@ static int set_option(scenario *sc, const char *name, double v)
 
 int main(int argc, char **argv)
 {
+    if (argc >= 2 && (strcmp(argv[1], "network") == 0 || strcmp(argv[1], "network-hard") == 0))
+        return sim_network_main(argc - 1, argv + 1);   /* a whole station survey: network.c */
     if (argc < 3) {
-        fprintf(stderr, "usage: hypsim SCENARIO OUTDIR [--seed N]\n");
+        fprintf(stderr, "usage: hypsim SCENARIO OUTDIR [--seed N]\n"
+                        "       hypsim network|network-hard OUTDIR [--seed N] [--days D] [--rovers R]\n"
+                        "              [--stations S] [--dt S] [--mislabel] [--open-tracks]\n");
         return 2;
     }
     const scenario *sc = NULL;

@@ -1,0 +1,44 @@
+/* cmd_adjust_help.c - the help text of "hypsolev adjust". */
+#include "cli.h"
+
+#include <stdio.h>
+
+void cli_adjust_help(void)
+{
+    fputs(
+"usage: hypsolev adjust ROVER [ROVER...] --stations FILE [--base FILE --base-height M ...]\n"
+"                       [--occupations FILE] -o STATIONS.csv [options]\n"
+"\n"
+"Station heights from a whole survey: every occupation of a station by a rover\n"
+"observes its height; the rovers' offsets and drifts (one each per track) and the\n"
+"station heights are adjusted together by weighted least squares and tested\n"
+"(global test of the variance factor, Baarda's w-test with data snooping).\n"
+"\n"
+"inputs:\n"
+"  --stations FILE          CSV: name, lat, lon, optional height [m] and sigma [m];\n"
+"                           a station with a height is control\n"
+"  --control-sigma M        sigma of control heights that give none (default 0.02 m)\n"
+"  --occupations FILE       field book, CSV: station, rover (track file name without\n"
+"                           extension; optional with one rover), start, end\n"
+"  --occupation-radius M    occupations found in the tracks: within M of a station\n"
+"                           (default 15 m)\n"
+"  --occupation-min S       ... for at least S seconds (default 180 s)\n"
+"  --no-find-occupations    only the field book and waypoints\n"
+"                           GPX waypoints named like a station are occupations too\n"
+"  bases, units, zones, column temperature, datums: the options of correct\n"
+"  (hypsolev correct --help), with the same names and meaning\n"
+"\n"
+"outputs (at least one; all written or none):\n"
+"  -o, --output FILE        stations: height, sigma (m), occupations used and\n"
+"                           rejected, largest |w|, the sigma in mGal (free-air,\n"
+"                           Bouguer)\n"
+"  --gpx FILE               the stations as GPX waypoints\n"
+"  --residuals FILE         one row per observation: residual, w, redundancy, flag\n"
+"  --report FILE            the summary as a text file\n"
+"  -q, --quiet              no summary, warnings only\n"
+"\n"
+"exit status: 0 the adjustment passed its tests, 1 an input could not be used,\n"
+"2 usage error, 3 it ran but the global test failed or an occupation was rejected.\n"
+"\n", stdout);
+    cli_print_safety();
+}

@@ -1,0 +1,150 @@
+/* options.c - the options `correct` and `adjust` share: the bases, every
+ * setting of the survey (handed to the library by name), the rovers, the
+ * threads; and opening the survey they describe. */
+#define _GNU_SOURCE
+#include "cli.h"
+
+#include <math.h>
+#include <stdarg.h>
+#include <stdlib.h>
+#include <string.h>
+
+#define SET(name) {name, required_argument, 0, CLI_SET}
+#define FLAG(name) {name, no_argument, 0, CLI_SET}
+#define BASE(name) {name, required_argument, 0, CLI_BASE_SET}
+
+const struct option cli_common_options[] = {
+    {"base", required_argument, 0, CLI_BASE}, BASE("base-height"), BASE("base-at"),
+    {"base-clock-offset", required_argument, 0, CLI_CLOCK}, BASE("base-time-zone"), BASE("base-offset"),
+    BASE("base-offset-sigma"), {"base-qnh", no_argument, 0, CLI_BASE_SET}, BASE("base-pressure-unit"),
+    BASE("base-temperature-unit"), BASE("base-pressure-field"), BASE("base-temperature-field"), BASE("base-humidity-field"), {"colocate", required_argument, 0, CLI_COLOC},
+    {"base-dir", required_argument, 0, CLI_BASE_DIR}, FLAG("no-auto-colocate"), FLAG("no-gnss-anchor"),
+    SET("column-temp"), SET("pressure-unit"), SET("temperature-unit"), SET("pressure-field"), SET("temperature-field"),
+    SET("humidity-field"), SET("time-zone"), SET("benchmarks"), SET("ties"), SET("gnss-heights"), SET("known-heights"),
+    SET("height-crs"), SET("crs"), SET("bases-colocated"), SET("method"), SET("offset"), SET("offset-sigma"),
+    SET("colocate-radius"), SET("colocate-min"), SET("max-gap"), SET("humidity"), SET("lapse-rate"), SET("tie-radius"),
+    SET("tie-min"), SET("smooth"), SET("gradient-sigma"), SET("clock-sigma"), SET("column-temp-sigma"),
+    SET("lapse-sigma"), SET("benchmark-sigma"), {"quiet", no_argument, 0, 'q'}, {"jobs", required_argument, 0, 'j'},
+    {0, 0, 0, 0},
+};
+
+int cli_usage(const char *cmd, const char *fmt, ...)
+{
+    va_list ap;
+    va_start(ap, fmt);
+    fprintf(stderr, "hypsolev %s: ", cmd);
+    vfprintf(stderr, fmt, ap);
+    va_end(ap);
+    fprintf(stderr, "\n(hypsolev %s --help lists the options)\n", cmd);
+    return EXIT_USAGE;
+}
+
+void cli_common_init(cli_common *c, const char *cmd)
+{
+    memset(c, 0, sizeof *c);
+    c->cmd = cmd;
+    hyp_survey_opts_init(&c->so);
+    c->so.colocate = c->colocate;
+    c->so.cancelled = cli_cancelled_cb;
+}
+
+/* A setting the library refused: its message under the option's name. */
+static int setting(const cli_common *c, hyp_status st, const hyp_error *err)
+{
+    return st ? cli_usage(c->cmd, "--%s", err->message) : 0;
+}
+
+int cli_common_option(cli_common *c, int code, const char *name, const char *arg)
+{
+    hyp_error err;
+    hyp_base_spec *b = c->n_bases ? &c->bases[c->n_bases - 1] : NULL;
+    char *end;
+    switch (code) {
+    case CLI_SET: return setting(c, hyp_survey_opts_set(&c->so, name, arg, &err), &err);
+    case CLI_BASE_SET:
+    case CLI_CLOCK:
+        if (!b) {
+            fprintf(stderr, "hypsolev %s: --%s must follow the --base it applies to\n", c->cmd, name);
+            return EXIT_USAGE;
+        }
+        if (code == CLI_CLOCK && !strcmp(arg, "auto"))
+            return c->so.correct.estimate_clock = 1, 0;
+        return setting(c, hyp_base_spec_set(b, name, arg, &err), &err);
+    case CLI_BASE:
+        if (c->n_bases == HYP_MAX_BASES)
+            return cli_usage(c->cmd, "more than %d bases", HYP_MAX_BASES);
+        hyp_base_spec_init(&c->bases[c->n_bases++], arg, NAN);
+        return 0;
+    case CLI_COLOC:
+        if (c->so.n_colocate == CLI_MAX_WINDOWS)
+            return cli_usage(c->cmd, "more than %d --colocate windows", CLI_MAX_WINDOWS);
+        c->colocate[c->so.n_colocate++] = arg;
+        return 0;
+    case CLI_BASE_DIR: c->base_dir = arg; return 0;
+    case 'q': c->quiet = 1; return 0;
+    case 'j':
+        c->jobs = (int)strtol(arg, &end, 10);
+        return *end || c->jobs < 1 || c->jobs > 256 ? cli_usage(c->cmd, "--jobs \"%s\": expected a whole number from 1 to 256", arg) : 0;
+    }
+    return EXIT_USAGE;
+}
+
+/* The command's table: its own options, then the common ones. */
+static struct option table[128];
+
+int cli_parse(cli_common *c, int argc, char **argv, const struct option *own, int (*fn)(void *, int, const char *),
+              void *ctx)
+{
+    size_t n = 0;
+    for (const struct option *o = own; o->name && n < 127; o++)
+        table[n++] = *o;
+    for (const struct option *o = cli_common_options; o->name && n < 127; o++)
+        table[n++] = *o;
+    table[n] = (struct option){0, 0, 0, 0};
+    opterr = 0;
+    optind = 1;
+    int code, idx = -1;
+    /* "-" first: positional arguments come in order as 1, so the per-base
+     * options keep their place after their --base */
+    while ((code = getopt_long(argc, argv, "-:o:qj:", table, &idx)) != -1) {
+        int r;
+        if (code == 1)
+            r = cli_files_add(&c->rovers, optarg);
+        else if (code == '?' || code == ':')
+            return cli_bad_option(c->cmd, argv[optind - 1], optopt, code == ':');
+        else if (code >= CLI_SET && code < CLI_OWN)
+            r = cli_common_option(c, code, idx >= 0 ? table[idx].name : "", optarg);
+        else if (code == 'q' || code == 'j')
+            r = cli_common_option(c, code, "", optarg);
+        else
+            r = fn(ctx, code, optarg);
+        if (r)
+            return r;
+        idx = -1;
+    }
+    if (!c->rovers.n)
+        return cli_usage(c->cmd, "no rover file given");
+    return cli_files_expand(&c->rovers, c->cmd);
+}
+
+hyp_status cli_open_survey(cli_common *c, hyp_survey **sv, hyp_error *err)
+{
+    hyp_msgs m;
+    hyp_msgs_init(&m);
+    hyp_status st = hyp_survey_new(sv, &c->so, &m, err);
+    for (int k = 0; !st && k < c->n_bases; k++)
+        st = hyp_survey_add_base(*sv, &c->bases[k], &m, err);
+    if (!st && c->base_dir)
+        st = hyp_survey_add_base_dir(*sv, c->base_dir, &m, err);
+    hyp_msgs_write(stderr, &m, c->quiet ? HYP_WARNING : HYP_NOTE);
+    hyp_msgs_free(&m);
+    return st;
+}
+
+int cli_fail(const cli_common *c, hyp_status st, const hyp_error *err)
+{
+    if (st == HYP_ERR_USAGE)
+        return cli_usage(c->cmd, "%s", err->message);
+    fprintf(stderr, "hypsolev: error: %s\n", err->message);
+    return hyp_exit_status(st);
+}
