@@ -341,7 +341,8 @@ int hyp__estimate_base_offset(hyp__work *w)
         return 0;
     describe(r, src, var);
     apply(w, d, sqrt(var));
-    hyp_msgs_add(w->msgs, HYP_NOTE, "%s: offset relative to %s estimated at %+.1f Pa +- %.1f Pa from %s",
-                 w->bases[w->upper].name, w->bases[w->ref].name, d, sqrt(var), r->base_offset_how);
+    hyp_msgs_add_at(w->msgs, HYP_NOTE, "method", w->bases[w->upper].name, 0,
+                    "never compared with %s side by side: its offset relative to it estimated at %+.1f Pa +- %.1f Pa from %s",
+                    w->bases[w->ref].name, d, sqrt(var), r->base_offset_how);
     return 1;
 }

@@ -91,7 +91,8 @@ static double base_p_at(const hyp__base_view *b, size_t k, double x)
 }
 
 /* The calibration whose offset the model applies at t most (the nearest in
- * time), NULL when the level comes from no calibration at a place. */
+ * time of those the fit used), NULL when the level comes from no
+ * calibration at a place. */
 static const hyp_calib *calib_at(const hyp__work *w, double t)
 {
     const hyp_correct_result *r = w->r;
@@ -102,7 +103,7 @@ static const hyp_calib *calib_at(const hyp__work *w, double t)
     for (size_t k = 0; k < r->n_calibs; k++) {
         const hyp_calib *c = &r->calibs[k];
         double d = fabs(0.5 * (c->start_s + c->end_s) - t);
-        if (c->lat_deg == c->lat_deg && d < bd)
+        if (c->lat_deg == c->lat_deg && d < bd && !c->rejected)
             bd = d, best = c;
     }
     return best;
@@ -199,12 +200,13 @@ static double level_dz2(const hyp__work *w)
         return r->level_dz2_m2;
     if (r->drift.kind < HYP_DRIFT_CONSTANT || !r->n_calibs)
         return 0.0;
-    double s = 0.0;
-    for (size_t k = 0; k < r->n_calibs; k++) {
-        double d = r->calibs[k].known_m - w->base->height_m;
-        s += d * d;
-    }
-    return s / (double)r->n_calibs;
+    double s = 0.0, n = 0.0;
+    for (size_t k = 0; k < r->n_calibs; k++)
+        if (!r->calibs[k].rejected) {   /* over the calibrations the fit used, as dz_ref */
+            double d = r->calibs[k].known_m - w->base->height_m;
+            s += d * d, n++;
+        }
+    return n > 0 ? s / n : 0.0;
 }
 
 /* Column term of a single-base height dz above the base. A column whose
