@@ -92,8 +92,10 @@ static double fit2(const double *c, const double *u, const double *v, size_t K1,
  *   c_k = a (phi^k - B(phi)) + b (delta_k0 - 1/m),
  * a the autoregressive part's variance, b the white part's, B the
  * autoregressive variance of the mean per unit a; the mean's variance is
- * then a B + b / m. The correlation time comes from a grid (0.3 bins to 4
- * series lengths, geometric), the one with the least residual. */
+ * then a B + b / m. The correlation time comes from a grid (0.3 bins to
+ * the series' length, geometric), the one with the least residual: a
+ * correlation longer than the series is a bias of it that no series can
+ * show, and the grid does not pretend to. */
 double hyp__mean_var_factor(const double *r, size_t n, double *tau_samples)
 {
     if (tau_samples)
@@ -105,7 +107,7 @@ double hyp__mean_var_factor(const double *r, size_t n, double *tau_samples)
     autocov(y, m, c, K);
     double best = INFINITY, var_mean = c[0] / (double)m, tau_best = 0.0;
     for (int g = 0; g < N_TAU; g++) {
-        double lam = 0.3 * pow(4.0 * (double)m / 0.3, (double)g / (N_TAU - 1));
+        double lam = 0.3 * pow((double)m / 0.3, (double)g / (N_TAU - 1));
         double phi = exp(-1.0 / lam), B = ar1_mean_var(phi, m), pk = 1.0;
         for (size_t k = 0; k <= K; k++, pk *= phi) {
             u[k] = pk - B;

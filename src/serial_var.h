@@ -10,8 +10,8 @@
 /* The variance of the mean of r[0..n) over s^2 / n (s^2 its sample
  * variance): 1 for independent values, n for values that all move
  * together. The series (taken as evenly spaced) is modelled as white noise
- * plus a first-order autoregressive part whose correlation time is chosen
- * from a grid by least squares on the sample autocovariances, each
+ * plus a first-order autoregressive part whose correlation time (at most
+ * the series' length) is chosen from a grid by least squares on the sample autocovariances, each
  * corrected for the mean the sample removed (see serial_var.c). Never
  * below 1. *tau_samples (may be NULL) gets the correlation time in
  * samples (0 when only white noise fits). NaN for n < 12. */
