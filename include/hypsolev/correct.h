@@ -102,7 +102,9 @@ typedef struct hyp_correct_opts {
     size_t n_ties;
     double tie_radius_m;       /* automatic ties: within this of a benchmark, default 30 m */
     double tie_min_s;          /* ... stationary at least this long, default 60 s */
-    double stationary_m;       /* spread of positions that counts as standing still, default 15 m */
+    double stationary_m;       /* standing still: fixes within this of the window's
+                                  median position, default 15 m (isolated
+                                  excursions of at most 15 s tolerated) */
     /* Drift and column calibration. */
     double scale_min_span_m;   /* estimate a column scale when ties span this, default 200 m */
     double max_condition;      /* refuse fits whose scaled design is worse, default 1e6 */
@@ -110,8 +112,14 @@ typedef struct hyp_correct_opts {
                                   (2 Pa)^2 per hour (common practice, no source) */
     /* Error budget. */
     double smooth_s;           /* centred moving average of rover pressure, s (0: none) */
-    double gradient_sigma_pa_per_m; /* horizontal pressure gradient, default 1 hPa/100 km */
-    double front_speed_m_s;    /* speed of moving pressure patterns, default 30 km/h */
+    double gradient_sigma_pa_per_m; /* horizontal pressure gradient, default 1 hPa/100 km
+                                  (synoptic scale: 10 hPa over 1000 km) */
+    /* Speed of moving pressure patterns (fronts, troughs), default 20 km/h:
+     * the slow end of frontal speeds (from memory, 20-50 km/h), since a
+     * slower pattern with the same tendency has the steeper gradient. The
+     * horizontal term reads the base's log over the time such a pattern
+     * takes to cross the rover's distance (docs/methods.md, section 4). */
+    double front_speed_m_s;
     double clock_sigma_s;      /* uncertainty of the base clock after correction, default 2 s */
     double rh_sigma_pct;       /* of a measured humidity, default 5 % */
     double rapid_pa_per_s;     /* tendency flagged as rapid, default 1 hPa/h */
@@ -124,7 +132,12 @@ typedef struct hyp_correct_opts {
      * used for the level when there is no calibration and no --offset. */
     const float *gnss_height_m;
     int gnss_anchor;           /* default 1 */
-    double gnss_bias_sigma_m;  /* default 1 m (common practice, no source) */
+    /* A bias shared by a whole track's GNSS heights, added to the level's
+     * sigma, m; default 0: no published figure gives the part of GNSS
+     * height error that lasts a whole track (the level's own sigma comes
+     * from the errors' correlation as the track shows it). Set it from
+     * what is known of the receiver. */
+    double gnss_bias_sigma_m;
     /* Several bases. */
     hyp_method method;         /* default HYP_METHOD_AUTO */
     hyp_window base_colocate;  /* base loggers side by side (true time); start NaN: none */
