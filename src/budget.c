@@ -122,31 +122,44 @@ static const hyp_calib *calib_at(const hyp__work *w, double t)
  * variance (Pa^2). For a steady tendency dp/dt it is
  * (dp/dt d / v)^2 / 2, d the rover-calibration distance: the mean of
  * cos^2 over the directions. */
+/* East and north (m) of (lat, lon) from (lat0, lon0) on the local plane
+ * (equirectangular, mean Earth radius 6371008.8 m, IUGG: under 0.1 % over
+ * the few tens of kilometres a budget term needs). */
+static void plane_en(double lat0, double lon0, double lat, double lon, double *e, double *n)
+{
+    const double r = 6371008.8, rad = PI / 180.0;
+    *n = (lat - lat0) * rad * r;
+    *e = (lon - lon0) * rad * r * cos(0.5 * (lat + lat0) * rad);
+}
+
 static double moving_var(const hyp__work *w, size_t i, const hyp__in *in, double v)
 {
     const hyp_base *b = &w->bases[w->method == HYP_METHOD_SINGLE ? 0 : w->ref];
     double t = w->rv->time_s[i], la = hyp_series_lat(w->rv, i), lo = hyp_series_lon(w->rv, i);
-    double dr, ar, dc = 0.0, ac = 0.0, tc = t;
-    if (hyp_geo_inverse(b->lat_deg, b->lon_deg, la, lo, &dr, &ar) != 0 || dr != dr)
+    double er, nr, ec = 0.0, nc = 0.0, tc = t;
+    if (b->lat_deg != b->lat_deg)
         return NAN;
+    plane_en(b->lat_deg, b->lon_deg, la, lo, &er, &nr);
     const hyp_calib *c = calib_at(w, t);
-    if (c && (hyp_geo_inverse(b->lat_deg, b->lon_deg, c->lat_deg, c->lon_deg, &dc, &ac) != 0 || dc != dc))
-        return NAN;
-    if (c)
+    if (c) {
+        plane_en(b->lat_deg, b->lon_deg, c->lat_deg, c->lon_deg, &ec, &nc);
         tc = 0.5 * (c->start_s + c->end_s);
+    }
+    int cal = c && hypot(ec, nc) > 0.0;
     const hyp__base_view *bv = &w->bv;
     size_t k = in->hint;
     double p0 = base_p_at(bv, k, t), pc0 = base_p_at(bv, k, tc), ss = 0.0;
+    /* directions 45 degrees apart: (sin, cos) of j pi / 4 */
+    static const double sn[8] = {0, 0.70710678118654752, 1, 0.70710678118654752, 0, -0.70710678118654752, -1, -0.70710678118654752};
     for (int j = 0; j < 8; j++) {
-        double th = (double)j * PI / 4.0;
-        double sr = dr * cos(ar * PI / 180.0 - th), sc = dc * cos(ac * PI / 180.0 - th);
-        double e = base_p_at(bv, k, t - sr / v) - p0;
-        if (c && dc > 0.0)
-            e -= base_p_at(bv, k, tc - sc / v) - pc0;
+        double ue = sn[j], un = sn[(j + 2) % 8];   /* the unit vector of motion */
+        double e = base_p_at(bv, k, t - (er * ue + nr * un) / v) - p0;
+        if (cal)
+            e -= base_p_at(bv, k, tc - (ec * ue + nc * un) / v) - pc0;
         ss += e * e;
     }
     double bn = w->r->base_noise_pa;
-    return fmax(0.0, ss / 8.0 - (c && dc > 0.0 ? 4.0 : 2.0) * bn * bn);
+    return fmax(0.0, ss / 8.0 - (cal ? 4.0 : 2.0) * bn * bn);
 }
 
 /* Horizontal term (Pa): a gradient that stays put, G over the distance
