@@ -11,6 +11,7 @@
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
+#include <strings.h>
 
 static const char *kind_name(hyp_obs_kind k)
 {
@@ -298,7 +299,13 @@ hyp_status hyp_network_write(const hyp_survey *sv, const hyp_network_result *r, 
             write_gpx(o->f, r);
         else if (k == 2)
             write_obs_csv(o->f, r);
-        else {
+        else if (strlen(paths[k]) > 5 && !strcasecmp(paths[k] + strlen(paths[k]) - 5, ".html")) {
+            hyp_status hs = hyp_network_write_html(o->f, r, out->report_info, err);
+            if (hs) {
+                hyp__outset_abort(&set);
+                return hs;
+            }
+        } else {
             hyp_msgs_write(o->f, &r->msgs, HYP_NOTE);
             hyp_network_write_text(o->f, r);
         }

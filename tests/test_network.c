@@ -16,6 +16,7 @@
 #include <glob.h>
 #include <sys/stat.h>
 #include <libxml/xmlschemas.h>
+#include <libxml/parser.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -321,6 +322,27 @@ static void test_mislabelled_booking(void **state)
     double e = r->st[s].height_m - truth_of(t, booked);
     print_message("%s (booked wrongly once): error %+.3f m, sigma %.3f m\n", booked, e, r->st[s].sigma_m);
     assert_true(fabs(e) <= 2.0 * r->st[s].sigma_m || (r->st[s].control && fabs(e) < 0.05));
+    /* the HTML report: well-formed XML (strict parser), figures, nothing
+     * fetched, no nan/inf; the rejected line is in its table */
+    char *html = NULL;
+    size_t len = 0;
+    FILE *mf = open_memstream(&html, &len);
+    assert_int_equal(hyp_network_write_html(mf, r, NULL, &err), HYP_OK);
+    fclose(mf);
+    xmlDocPtr doc = xmlReadMemory(html, (int)len, "report.html", NULL, XML_PARSE_NONET | XML_PARSE_NOERROR | XML_PARSE_NOWARNING);
+    assert_non_null(doc);
+    xmlFreeDoc(doc);
+    size_t svgs = 0;
+    for (const char *q = html; (q = strstr(q, "<svg ")); q++)
+        svgs++;
+    print_message("network report: %zu bytes, %zu figures\n", len, svgs);
+    assert_true(svgs >= 5);
+    assert_null(strstr(html, "nan"));
+    assert_null(strstr(html, "inf<"));
+    assert_null(strstr(html, "src="));
+    assert_null(strstr(html, "https:"));
+    assert_non_null(strstr(html, "rejected: |w| beyond 3.29"));
+    free(html);
     globfree(&g);
     hyp_network_result_free(r);
     hyp_survey_free(sv);

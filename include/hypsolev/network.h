@@ -157,7 +157,9 @@ typedef struct hyp_network_outputs {
     const char *stations_csv;   /* one row per station */
     const char *gpx;            /* the stations as GPX 1.1 waypoints */
     const char *residuals_csv;  /* one row per observation */
-    const char *report;         /* the summary as text */
+    const char *report;         /* the report: HTML with figures when the name ends
+                                   in .html (any case), else the summary as text */
+    const hyp_report_info *report_info;   /* tool and command line for HTML; may be NULL */
 } hyp_network_outputs;
 
 HYP_API hyp_status hyp_network_write(const hyp_survey *sv, const hyp_network_result *r,
@@ -166,6 +168,12 @@ HYP_API hyp_status hyp_network_write(const hyp_survey *sv, const hyp_network_res
  * (rovers, stations, field book, the survey's bases): HYP_ERR_USAGE. */
 HYP_API hyp_status hyp_network_check_outputs(const hyp_survey *sv, const hyp_network_opts *o, const char *const *rovers,
                                              size_t n, const hyp_network_outputs *out, hyp_error *err);
+/* The report as one self-contained HTML page: the network in plan, the
+ * stations' sigmas, the standardized residuals per track, the repeat
+ * occupations, the tracks' offsets and drifts, and the tables. Nothing is
+ * written unless the whole page was built. */
+HYP_API hyp_status hyp_network_write_html(FILE *f, const hyp_network_result *r, const hyp_report_info *info,
+                                          hyp_error *err);
 /* The summary as text: counts, the tests, rejections, per track the offset
  * and drift, repeat differences, the cautions. */
 HYP_API void hyp_network_write_text(FILE *f, const hyp_network_result *r);

@@ -58,6 +58,7 @@ int cli_common_option(cli_common *c, int code, const char *name, const char *arg
 int cli_parse(cli_common *c, int argc, char **argv, const struct option *own, int (*fn)(void *, int, const char *),
               void *ctx);
 hyp_status cli_open_survey(cli_common *c, hyp_survey **sv, hyp_error *err);
+char *cli_join_command(int argc, char **argv);
 /* Prints a failure of the survey (usage or error); returns the exit status. */
 int cli_fail(const cli_common *c, hyp_status st, const hyp_error *err);
 

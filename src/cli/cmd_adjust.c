@@ -9,6 +9,8 @@
 
 typedef struct args {
     cli_common c;
+    hyp_report_info report_info;
+    char *command_line;
     hyp_network_opts no;
     hyp_network_outputs out;
 } args;
@@ -89,6 +91,10 @@ int cmd_adjust(int argc, char **argv)
     memset(&a, 0, sizeof a);
     cli_common_init(&a.c, "adjust");
     hyp_network_opts_init(&a.no);
+    a.command_line = cli_join_command(argc, argv);
+    a.report_info.tool = "hypsolev " HYPSOLEV_VERSION;
+    a.report_info.command_line = a.command_line;
+    a.out.report_info = &a.report_info;
     int rc = cli_parse(&a.c, argc, argv, own, own_option, &a);
     if (!rc && !a.no.stations_path)
         rc = cli_usage("adjust", "no --stations FILE given: the stations to determine and the control marks");
@@ -97,5 +103,6 @@ int cmd_adjust(int argc, char **argv)
     if (!rc)
         rc = run(&a);
     cli_files_free(&a.c.rovers);
+    free(a.command_line);
     return rc < 0 ? 0 : rc;
 }

@@ -48,31 +48,6 @@ static int own_option(void *ctx, int code, const char *arg)
 /* The command as typed, for the HTML report: words joined by spaces, a
  * word with anything but [A-Za-z0-9_./:,=+@%-] in it single-quoted as a
  * POSIX shell would need it. */
-static char *join_command(int argc, char **argv)
-{
-    size_t n = sizeof "hypsolev";
-    for (int i = 0; i < argc; i++)
-        n += 4 * strlen(argv[i]) + 3;
-    char *s = malloc(n), *p = s;
-    if (!s)
-        return NULL;
-    p += sprintf(p, "hypsolev");
-    for (int i = 0; i < argc; i++) {
-        const char *w = argv[i];
-        int plain = *w && strspn(w, "ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789_./:,=+@%-") == strlen(w);
-        *p++ = ' ';
-        if (plain) {
-            p += sprintf(p, "%s", w);
-            continue;
-        }
-        *p++ = '\'';
-        for (; *w; w++)
-            p += *w == '\'' ? sprintf(p, "'\\''") : sprintf(p, "%c", *w);
-        *p++ = '\'';
-    }
-    *p = '\0';
-    return s;
-}
 
 /* --report-html names the reports of --out-dir only. */
 static int check_report_html(const args *a)
@@ -150,7 +125,7 @@ int cmd_correct(int argc, char **argv)
     args a;
     memset(&a, 0, sizeof a);
     cli_common_init(&a.c, "correct");
-    a.command_line = join_command(argc, argv);
+    a.command_line = cli_join_command(argc, argv);
     a.report_info.tool = "hypsolev " HYPSOLEV_VERSION;
     a.report_info.command_line = a.command_line;
     a.out.report_info = &a.report_info;

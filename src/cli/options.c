@@ -148,3 +148,31 @@ int cli_fail(const cli_common *c, hyp_status st, const hyp_error *err)
     fprintf(stderr, "hypsolev: error: %s\n", err->message);
     return hyp_exit_status(st);
 }
+
+/* The command line as typed, quoted for a shell where a word needs it
+ * (for the reports). NULL when out of memory. */
+char *cli_join_command(int argc, char **argv)
+{
+    size_t n = sizeof "hypsolev";
+    for (int i = 0; i < argc; i++)
+        n += 4 * strlen(argv[i]) + 3;
+    char *s = malloc(n), *p = s;
+    if (!s)
+        return NULL;
+    p += sprintf(p, "hypsolev");
+    for (int i = 0; i < argc; i++) {
+        const char *w = argv[i];
+        int plain = *w && strspn(w, "ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789_./:,=+@%-") == strlen(w);
+        *p++ = ' ';
+        if (plain) {
+            p += sprintf(p, "%s", w);
+            continue;
+        }
+        *p++ = '\'';
+        for (; *w; w++)
+            p += *w == '\'' ? sprintf(p, "'\\''") : sprintf(p, "%c", *w);
+        *p++ = '\'';
+    }
+    *p = '\0';
+    return s;
+}

@@ -77,7 +77,14 @@ for sig in INT HUP; do
   "$exe" correct "$work/many" --base-dir "$work/bases" --out-dir "$work/out2" --overwrite -j 2 -q \
       --summary "$work/sum-$sig.csv" 2> "$work/stderr3" &
   pid=$!
-  sleep 0.3
+  # signal part-way: once the first rover's outputs are in place (a loaded
+  # or sanitized run starts slowly; a fixed sleep could land before the
+  # program has begun), or after 30 s at the latest
+  for _ in $(seq 1 300); do
+    [ "$(ls "$work/out2" | grep -c '\.report\.txt$')" -ge 1 ] && break
+    kill -0 $pid 2>/dev/null || break
+    sleep 0.1
+  done
   kill -$sig $pid
   wait $pid
   rc=$?

@@ -24,6 +24,12 @@ fail() { echo "report_browser: FAIL: $*"; exit 1; }
   --base surveys/ulmbrae-two-base/base2.csv --base-height 1745 --base-at 46.831475,9.961743 \
   --bases-colocated 2026-06-18T05:00:00Z/2026-06-18T05:29:00Z --out-dir "$work/results" --report-html -q 2> /dev/null
 
+# The station network demo (Skelvorn Moor README's command) with an HTML report.
+sk=surveys/skelvorn-moor
+"$exe" adjust $sk/ra-day1.gpx $sk/rb-day1.gpx $sk/ra-day2.gpx $sk/rb-day2.gpx --stations $sk/stations.csv \
+  --base-dir $sk --occupations $sk/fieldbook.csv -o "$work/results/skelvorn.csv" \
+  --report "$work/results/skelvorn-moor.html" -q
+
 # No network, no profile, nothing but the page; a fresh profile each run.
 browse() {   # browse PAGE OUT_STDOUT OUT_STDERR ARGS...
   local page=$1 out=$2 err=$3 prof
@@ -35,7 +41,7 @@ browse() {   # browse PAGE OUT_STDOUT OUT_STDERR ARGS...
   rm -rf "$prof"
 }
 
-for page in "$work/results/quenwick-tor.html" "$work/results/rover.report.html"; do
+for page in "$work/results/quenwick-tor.html" "$work/results/rover.report.html" "$work/results/skelvorn-moor.html"; do
   [ -s "$page" ] || fail "$page was not written"
   name=$(basename "$page" .html)
   # console messages (errors, warnings, logs) come out as INFO:CONSOLE lines
