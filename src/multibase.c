@@ -62,7 +62,7 @@ static void compare_bases(hyp__work *w)
             if (r->base_offset_sigma_pa[k] != r->base_offset_sigma_pa[k])
                 r->base_offset_sigma_pa[k] = w->o->uncal_offset_sigma_pa;
         hyp_msgs_add(w->msgs, HYP_WARNING,
-                     "the bases were never compared (no --bases-colocated window and no --base-offset): each base's instrument offset (1-sigma %.0f Pa, common practice) goes into the heights",
+                     "the bases were never compared (no --bases-colocated window and no --base-offset): with two bases the upper one's offset is estimated from what the survey observes (a note says from what), else each base's instrument offset (1-sigma %.0f Pa, common practice) goes into the heights",
                      w->o->uncal_offset_sigma_pa);
     }
     for (size_t k = 0; k < w->nb; k++)
