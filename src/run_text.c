@@ -222,6 +222,8 @@ static void print_method(FILE *f, const hyp_rover_run *run)
     if (r->method_why[0])
         fprintf(f, "            chosen: %s%s\n", r->method_why,
                 run->n_bases > 1 && !r->bases_compared ? "; the bases were never compared" : "");
+    if (r->base_offset_how[0])
+        fprintf(f, "            base offset fixed by: %s\n", r->base_offset_how);
     if (r->method_used == HYP_METHOD_TWO_BASE) {
         fprintf(f, "            column mean virtual temperature the bases imply %.2f degC", r->implied_tcol_k - 273.15);
         if (r->thermo_tcol_k == r->thermo_tcol_k)
