@@ -270,9 +270,65 @@ hyp_status hyp_stations_read(const char *path, double default_sigma_m, hyp_bench
     return marks_read(path, default_sigma_m, 0, out, err);
 }
 
-static hyp_status book_row(table *t, const int *c, const hyp_zone *zone, const hyp_benchmarks *st,
-                           hyp_book_entry *e, hyp_error *err)
+/* What a row reader needs besides the table: the zone of times without
+ * one and the marks its names must be among. */
+typedef struct rows_ctx {
+    const hyp_zone *zone;
+    const hyp_benchmarks *marks;
+} rows_ctx;
+
+typedef hyp_status (*row_fn)(table *t, const int *c, const rows_ctx *x, void *elem, hyp_error *err);
+
+/* A CSV of rows of one kind: the header's columns found by name (those in
+ * `optional` bits may be missing), each row read by fn into a growing
+ * array of elem-byte elements (at most max); *out is allocated. */
+static hyp_status read_rows(const char *path, const char *const *names, int n_names, unsigned optional,
+                            const char *expected, size_t elem, size_t max, row_fn fn, const rows_ctx *x, void **out,
+                            size_t *count, hyp_error *err)
 {
+    *out = NULL;
+    *count = 0;
+    table t;
+    hyp_status st = table_open(&t, path, err);
+    if (st)
+        return st;
+    int r = table_next(&t, err, &st);
+    int c[8];
+    if (r == 0)
+        st = hyp_error_set(err, HYP_ERR_NODATA, "%s: empty file: no header row", path);
+    for (int k = 0; r == 1 && k < n_names && !st; k++)
+        if ((c[k] = column(&t, names[k])) < 0 && !(optional >> k & 1u))
+            st = hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: header: no \"%s\" column (expected %s)", path, t.lr.lineno,
+                               names[k], expected);
+    size_t alloc = 0;
+    while (!st && (r = table_next(&t, err, &st)) == 1) {
+        if (*count == alloc) {
+            alloc = alloc ? 2 * alloc : 64;
+            void *p = alloc > max ? NULL : realloc(*out, alloc * elem);
+            if (!p) {
+                st = hyp_error_set(err, HYP_ERR_NOMEM, "%s: out of memory", path);
+                break;
+            }
+            *out = p;
+        }
+        st = fn(&t, c, x, (char *)*out + *count * elem, err);
+        if (!st)
+            (*count)++;
+    }
+    table_close(&t);
+    if (st) {
+        free(*out);
+        *out = NULL;
+        *count = 0;
+    }
+    return st;
+}
+
+static hyp_status book_row(table *t, const int *c, const rows_ctx *x, void *elem, hyp_error *err)
+{
+    hyp_book_entry *e = elem;
+    const hyp_zone *zone = x->zone;
+    const hyp_benchmarks *st = x->marks;
     char a[96], b[96];
     memset(e, 0, sizeof *e);
     field_text(t, c[0], e->station, sizeof e->station);
@@ -297,48 +353,20 @@ static hyp_status book_row(table *t, const int *c, const hyp_zone *zone, const h
 hyp_status hyp_fieldbook_read(const char *path, const hyp_zone *zone, const hyp_benchmarks *stations,
                               hyp_book_entry **out, size_t *count, hyp_error *err)
 {
-    *out = NULL;
-    *count = 0;
-    table t;
-    hyp_status st = table_open(&t, path, err);
-    if (st)
-        return st;
-    int r = table_next(&t, err, &st);
-    int c[4] = {-1, -1, -1, -1};
-    static const char *names[4] = {"station", "rover", "start", "end"};
-    if (r == 0)
-        st = hyp_error_set(err, HYP_ERR_NODATA, "%s: empty file: no header row", path);
-    for (int k = 0; r == 1 && k < 4 && !st; k++)
-        if ((c[k] = column(&t, names[k])) < 0 && k != 1)
-            st = hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: header: no \"%s\" column (expected station, rover, start, end)",
-                               path, t.lr.lineno, names[k]);
-    size_t alloc = 0;
-    while (!st && (r = table_next(&t, err, &st)) == 1) {
-        if (*count == alloc) {
-            alloc = alloc ? 2 * alloc : 64;
-            hyp_book_entry *p = alloc > 1000000 ? NULL : realloc(*out, alloc * sizeof *p);
-            if (!p) {
-                st = hyp_error_set(err, HYP_ERR_NOMEM, "%s: out of memory", path);
-                break;
-            }
-            *out = p;
-        }
-        st = book_row(&t, c, zone, stations, &(*out)[*count], err);
-        if (!st)
-            (*count)++;
-    }
-    table_close(&t);
-    if (st) {
-        free(*out);
-        *out = NULL;
-        *count = 0;
-    }
+    static const char *const names[4] = {"station", "rover", "start", "end"};
+    rows_ctx x = {zone, stations};
+    void *rows;
+    hyp_status st = read_rows(path, names, 4, 1u << 1, "station, rover, start, end", sizeof **out, 1000000, book_row,
+                              &x, &rows, count, err);
+    *out = rows;
     return st;
 }
 
-static hyp_status tie_row(table *t, const int *c, const hyp_zone *zone, const hyp_benchmarks *bm,
-                          hyp_tie_spec *ts, hyp_error *err)
+static hyp_status tie_row(table *t, const int *c, const rows_ctx *x, void *elem, hyp_error *err)
 {
+    hyp_tie_spec *ts = elem;
+    const hyp_zone *zone = x->zone;
+    const hyp_benchmarks *bm = x->marks;
     char a[96], b[96];
     field_text(t, c[0], ts->name, sizeof ts->name);
     field_text(t, c[1], a, sizeof a);
@@ -361,42 +389,12 @@ static hyp_status tie_row(table *t, const int *c, const hyp_zone *zone, const hy
 hyp_status hyp_ties_read(const char *path, const hyp_zone *zone, const hyp_benchmarks *benchmarks,
                          hyp_tie_spec **out, size_t *count, hyp_error *err)
 {
-    *out = NULL;
-    *count = 0;
-    table t;
-    hyp_status st = table_open(&t, path, err);
-    if (st)
-        return st;
-    int r = table_next(&t, err, &st);
-    int c[3] = {-1, -1, -1};
-    static const char *names[3] = {"name", "start", "end"};
-    if (r == 0)
-        st = hyp_error_set(err, HYP_ERR_NODATA, "%s: empty file: no header row", path);
-    for (int k = 0; r == 1 && k < 3 && !st; k++)
-        if ((c[k] = column(&t, names[k])) < 0)
-            st = hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: header: no \"%s\" column (expected name, start, end)",
-                               path, t.lr.lineno, names[k]);
-    size_t alloc = 0;
-    while (!st && (r = table_next(&t, err, &st)) == 1) {
-        if (*count == alloc) {
-            alloc = alloc ? 2 * alloc : 16;
-            hyp_tie_spec *p = alloc > 100000 ? NULL : realloc(*out, alloc * sizeof *p);
-            if (!p) {
-                st = hyp_error_set(err, HYP_ERR_NOMEM, "%s: out of memory", path);
-                break;
-            }
-            *out = p;
-        }
-        st = tie_row(&t, c, zone, benchmarks, &(*out)[*count], err);
-        if (!st)
-            (*count)++;
-    }
-    table_close(&t);
-    if (st) {
-        free(*out);
-        *out = NULL;
-        *count = 0;
-    }
+    static const char *const names[3] = {"name", "start", "end"};
+    rows_ctx x = {zone, benchmarks};
+    void *rows;
+    hyp_status st = read_rows(path, names, 3, 0, "name, start, end", sizeof **out, 100000, tie_row, &x, &rows, count,
+                              err);
+    *out = rows;
     return st;
 }
 
