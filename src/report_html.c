@@ -393,28 +393,36 @@ static void failed(hyp__page *p, const hyp_rover_run *r)
                   r->error.message);
 }
 
-hyp_status hyp_rover_run_write_html(FILE *f, const hyp_rover_run *r, const hyp_report_info *info, hyp_error *err)
+hyp_status hyp__rover_html_build(hyp__page *p, const hyp_rover_run *r, const hyp_report_info *info, hyp_error *err)
 {
     char title[600], tool[64];
     snprintf(title, sizeof title, "hypsolev report: %s", r->name[0] ? r->name : "run");
     snprintf(tool, sizeof tool, "hypsolev %s (library)", HYPSOLEV_VERSION);
-    hyp__page p;
-    hyp__page_init(&p, 0);
-    hyp__page_begin(&p, title);
-    hyp__page_out(&p, "<h1>Barometric heights: %t</h1>\n<p>Rover <code>%t</code>, corrected by <code>hypsolev correct</code>.</p>\n",
+    hyp__page_begin(p, title);
+    hyp__page_out(p, "<h1>Barometric heights: %t</h1>\n<p>Rover <code>%t</code>, corrected by <code>hypsolev correct</code>.</p>\n",
                   r->name, r->path ? r->path : "");
     hyp_status st = HYP_OK;
     if (r->status || r->skipped || !r->rover)
-        failed(&p, r);
+        failed(p, r);
     else
-        st = body(&p, r, err);
+        st = body(p, r, err);
     if (!st)
-        messages(&p, r);
+        messages(p, r);
     if (!st) {
-        hyp__page_colophon(&p, info && info->tool ? info->tool : tool, info ? info->command_line : NULL);
-        hyp__page_end(&p);
-        st = hyp__page_write(&p, f, err);
+        hyp__page_colophon(p, info && info->tool ? info->tool : tool, info ? info->command_line : NULL);
+        hyp__page_end(p);
+        st = hyp__page_status(p, err);
     }
+    return st;
+}
+
+hyp_status hyp_rover_run_write_html(FILE *f, const hyp_rover_run *r, const hyp_report_info *info, hyp_error *err)
+{
+    hyp__page p;
+    hyp__page_init(&p, 0);
+    hyp_status st = hyp__rover_html_build(&p, r, info, err);
+    if (!st)
+        st = hyp__page_write(&p, f, err);
     hyp__page_free(&p);
     return st;
 }

@@ -17,6 +17,9 @@
 /* Each figure function writes one <figure> with its caption, or a note
  * saying why there is none; it fails only when memory does. */
 /* Heights against time, then against distance along the track. */
+/* The whole page of a rover's report into p (hyp__page_init'ed), not yet
+ * written: the survey draws it in a thread of its own. */
+hyp_status hyp__rover_html_build(hyp__page *p, const hyp_rover_run *r, const hyp_report_info *info, hyp_error *err);
 hyp_status hyp__fig_heights(hyp__page *p, const hyp_rover_run *r, hyp_error *err);
 hyp_status hyp__fig_base_pressure(hyp__page *p, const hyp_rover_run *r, hyp_error *err);
 hyp_status hyp__fig_tendency(hyp__page *p, const hyp_rover_run *r, hyp_error *err);

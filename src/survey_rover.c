@@ -7,8 +7,11 @@
 #include "hypsolev/writers.h"
 #include "output_set.h"
 #include "writers_int.h"
+#include "report_html.h"
+#include "report_page.h"
 
 #include <math.h>
+#include <pthread.h>
 #include <stdlib.h>
 #include <string.h>
 #include <strings.h>
@@ -212,6 +215,29 @@ static hyp_status stage_report(hyp__outset *set, const hyp_rover_run *r, const c
     return HYP_OK;
 }
 
+/* An HTML report drawn in a thread of its own while the GPX and the table
+ * are written (its figures walk the whole track: on a long one that is
+ * most of its cost); into memory, then copied into its staging file. */
+typedef struct html_job {
+    const hyp_rover_run *r;
+    hyp__page page;
+    hyp_status st;
+    hyp_error err;
+} html_job;
+
+static void *html_thread(void *arg)
+{
+    html_job *j = arg;
+    j->st = hyp__rover_html_build(&j->page, j->r, j->r->priv->report_info, &j->err);
+    return NULL;
+}
+
+static int is_html(const char *path)
+{
+    size_t n = strlen(path);
+    return n >= 5 && strcasecmp(path + n - 5, ".html") == 0;
+}
+
 /* The GPX and the table, staged; the report beside them; one commit. */
 static hyp_status write_outputs(hyp_survey *sv, hyp_rover_run *r, const hyp__rover_paths *ps, int threads,
                                 hyp_error *err)
@@ -222,22 +248,38 @@ static hyp_status write_outputs(hyp_survey *sv, hyp_rover_run *r, const hyp__rov
     hyp__outset set;
     hyp__outset_init(&set);
     hyp_status st = HYP_OK;
+    /* the report lists what is written: named before it is drawn */
+    if (ps->gpx[0])
+        note_written(r, ps->gpx);
+    if (ps->table[0])
+        note_written(r, ps->table);
+    html_job job = {.r = r};
+    hyp__page_init(&job.page, 0);
+    pthread_t tid;
+    int threaded = ps->report[0] && is_html(ps->report) && threads >= 2 &&
+                   pthread_create(&tid, NULL, html_thread, &job) == 0;
     if (ps->gpx[0]) {
         hyp__outfile *o = hyp__outset_add(&set, ps->gpx, err);
         st = !o ? err->status
              : p->rv.is_gpx ? hyp__gpx_splice_to(r->path, &p->rv.doc, &r->result, &info, o, err)
                             : hyp__gpx_new_to(&p->rv.csv, &r->result, &info, r->name, o, err);
-        if (!st)
-            note_written(r, ps->gpx);
     }
     if (!st && ps->table[0]) {
         hyp__outfile *o = hyp__outset_add(&set, ps->table, err);
         st = !o ? err->status : hyp__table_to(r->rover, &r->result, &info, o, err);
-        if (!st)
-            note_written(r, ps->table);
     }
-    if (!st && ps->report[0])
+    if (threaded) {
+        pthread_join(tid, NULL);
+        hyp__outfile *o = st ? NULL : hyp__outset_add(&set, ps->report, err);
+        if (!st && !o)
+            st = err->status;
+        if (!st && job.st)
+            st = hyp_error_set(err, job.st, "%s", job.err.message);
+        if (!st)
+            st = hyp__page_write(&job.page, o->f, err);
+    } else if (!st && ps->report[0])
         st = stage_report(&set, r, ps->report, err);
+    hyp__page_free(&job.page);
     if (!st)
         st = hyp__outset_commit(&set, sv->o.cancelled, sv->o.cancel_ctx, err);
     else
