@@ -12,6 +12,7 @@
 #include <setjmp.h>
 #include <stdint.h>
 #include <cmocka.h>
+#include "sim_files.h"
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -241,33 +242,7 @@ static void test_two_and_one(void **state)
 
 /* ---- the simulator's days ------------------------------------------- */
 
-typedef struct truth { size_t n; double *t, *h; } truth;
 
-static void read_truth(const char *dir, truth *tr)
-{
-    char path[4200], line[512];
-    snprintf(path, sizeof path, "%s/truth.csv", dir);
-    FILE *f = fopen(path, "r");
-    assert_non_null(f);
-    size_t cap = 1024;
-    tr->n = 0;
-    tr->t = malloc(cap * sizeof(double));
-    tr->h = malloc(cap * sizeof(double));
-    assert_non_null(fgets(line, sizeof line, f));   /* header */
-    while (fgets(line, sizeof line, f)) {
-        char *c1 = strchr(line, ','), *c2 = c1 ? strchr(c1 + 1, ',') : NULL, *c3 = c2 ? strchr(c2 + 1, ',') : NULL;
-        assert_non_null(c3);
-        *c1 = '\0';
-        if (tr->n == cap) {
-            cap *= 2;
-            tr->t = realloc(tr->t, cap * sizeof(double));
-            tr->h = realloc(tr->h, cap * sizeof(double));
-        }
-        assert_int_equal(hyp_time_parse(line, NULL, &tr->t[tr->n]), HYP_TIME_OK);
-        tr->h[tr->n++] = strtod(c3 + 1, NULL);
-    }
-    fclose(f);
-}
 
 /* The middle of the rover's rest on the summit (the highest true height)
  * from the simulator's truth, s. */
@@ -384,7 +359,9 @@ static void test_sim_wrong_tie_rejected(void **state)
     char dir[4200], ties[4300], msg[1100];
     simulate("ties", dir, sizeof dir);
     truth tr;
-    read_truth(dir, &tr);
+    char tpath[4200];
+    snprintf(tpath, sizeof tpath, "%s/truth.csv", dir);
+    read_truth(tpath, &tr);
     double ts = summit_time(&tr), t0 = ts - 120.0, t1 = ts + 120.0;
     const char *names[1] = {"BM-LOW"};
     snprintf(ties, sizeof ties, "%s/ties_wrong_time.csv", dir);
@@ -453,7 +430,9 @@ static void test_sim_two_disagree(void **state)
     char dir[4200], ties[4300], msg[1100];
     simulate("warm", dir, sizeof dir);
     truth tr;
-    read_truth(dir, &tr);
+    char tpath[4200];
+    snprintf(tpath, sizeof tpath, "%s/truth.csv", dir);
+    read_truth(tpath, &tr);
     double ts = summit_time(&tr);
     double t0[2] = {T0 + 120.0, ts - 120.0}, t1[2] = {T0 + 720.0, ts + 120.0};
     const char *names[2] = {"base", "base"};

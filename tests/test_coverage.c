@@ -33,6 +33,7 @@
 #include <setjmp.h>
 #include <stdint.h>
 #include <cmocka.h>
+#include "sim_files.h"
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -67,43 +68,17 @@ typedef struct tally {
     char how[200];           /* the last day's base offset constraint, if any */
 } tally;
 
-static double scenario_value(const char *dir, const char *key)
-{
-    char path[4200], k[64], line[256];
-    snprintf(path, sizeof path, "%s/scenario.txt", dir);
-    FILE *f = fopen(path, "r");
-    assert_non_null(f);
-    double v, found = NAN;
-    while (fgets(line, sizeof line, f))
-        if (sscanf(line, "%63s %lf", k, &v) == 2 && strcmp(k, key) == 0)
-            found = v;
-    fclose(f);
-    assert_false(isnan(found));
-    return found;
-}
 
-/* truth.csv: time,lat,lon,height_m,pressure_pa */
-static double *read_truth(const char *dir, size_t n)
+/* The true heights of DIR/truth.csv, one per rover point (n of them). */
+static double *truth_heights(const char *dir, size_t n)
 {
-    char path[4200], line[512];
+    char path[4200];
     snprintf(path, sizeof path, "%s/truth.csv", dir);
-    FILE *f = fopen(path, "r");
-    assert_non_null(f);
-    double *h = malloc(n * sizeof *h);
-    assert_non_null(h);
-    size_t i = 0;
-    assert_non_null(fgets(line, sizeof line, f));
-    while (fgets(line, sizeof line, f)) {
-        char *c = line;
-        for (int k = 0; k < 3 && c; k++)
-            c = strchr(c + 1, ',');
-        assert_non_null(c);
-        assert_true(i < n);
-        h[i++] = strtod(c + 1, NULL);
-    }
-    fclose(f);
-    assert_int_equal(i, n);
-    return h;
+    truth tr;
+    read_truth(path, &tr);
+    assert_int_equal(tr.n, n);
+    free(tr.t);
+    return tr.h;
 }
 
 static void add_base(hyp_survey *sv, const char *dir, const char *file, const char *prefix, double clock_s)
@@ -158,7 +133,7 @@ static void run_day(const char *tag, int k, const day *d, tally *t)
         print_message("%s\n", run->error.message);
     assert_int_equal(run->status, HYP_OK);
     const hyp_correct_result *r = &run->result;
-    double *h = read_truth(dir, r->count);
+    double *h = truth_heights(dir, r->count);
     double n = 0, in = 0, ss = 0;
     for (size_t i = 0; i < r->count; i++)
         if (r->status[i] == HYP_PT_OK) {
