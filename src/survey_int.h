@@ -55,6 +55,10 @@ struct hyp__rover_priv {
     const hyp_report_info *report_info;   /* the outputs' (NULL: none) */
 };
 
+/* How the rover at `rover` (a path as given) is read: the survey's
+ * reading options, its zone, positions wanted. */
+void hyp__rover_read_opts(const hyp_survey *sv, const char *rover, hyp_read_opts *ro);
+
 /* The bases a rover uses (indices into the pool). */
 hyp_status hyp__select_bases(const hyp_survey *sv, const hyp_series *rv, size_t *sel, size_t *n, hyp_error *err);
 

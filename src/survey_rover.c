@@ -107,14 +107,21 @@ static hyp_status prepare_extras(const hyp_survey *sv, hyp_rover_run *r, const f
     return HYP_OK;
 }
 
+void hyp__rover_read_opts(const hyp_survey *sv, const char *rover, hyp_read_opts *ro)
+{
+    (void)rover;
+    *ro = sv->o.read;
+    ro->zone = &sv->rover_zone;
+    ro->need_position = 1;
+}
+
 /* Read the rover, choose its bases, correct it, convert its heights. */
 static hyp_status correct_rover(hyp_survey *sv, const hyp_correct_opts *copts, hyp_rover_run *r, int threads,
                                 hyp_error *err)
 {
     priv_t *p = r->priv;
-    hyp_read_opts ro = sv->o.read;
-    ro.zone = &sv->rover_zone;
-    ro.need_position = 1;
+    hyp_read_opts ro;
+    hyp__rover_read_opts(sv, r->path, &ro);
     hyp_status st = hyp_geo_open(&p->geo, err);
     if (!st)
         st = hyp__log_read(r->path, &ro, &p->rv, &r->msgs, err);
