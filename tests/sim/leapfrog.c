@@ -16,9 +16,10 @@
  *       side on BM-TOLVE. --index-error adds PA (Pa) to rb's offset and
  *       changes nothing else (the same random numbers are drawn).
  *   hypsim loop OUTDIR [--seed N] [--singular]
- *       one instrument ra walks BM-MIRKAL, LP01, LP02, LP01, LP03, BM-DENHOW,
- *       LP03, LP04, LP05, LP04, LP06, BM-MIRKAL: six stations, three of
- *       them occupied twice, two known marks. --singular writes
+ *       one instrument ra walks BM-MIRKAL, LP01, LP02, LP01, LP03, LP02,
+ *       BM-DENHOW, LP03, LP04, LP05, LP04, LP06, LP05, LP06, BM-MIRKAL: six
+ *       stations, each occupied twice with other stations in between, and
+ *       two known marks, one of them at both ends. --singular writes
  *       stations.csv with no height at all (no known mark: a design that
  *       cannot fix any height) and changes nothing else.
  *
@@ -245,7 +246,7 @@ static void plan_leapfrog(lf_survey *s)
 }
 
 /* The loop's route (station indices; 0 and 1 are the known marks). */
-static const int loop_route[] = {0, 2, 3, 2, 4, 1, 4, 5, 6, 5, 7, 0};
+static const int loop_route[] = {0, 2, 3, 2, 4, 3, 1, 4, 5, 6, 5, 7, 6, 7, 0};
 
 static void plan_loop(lf_survey *s)
 {

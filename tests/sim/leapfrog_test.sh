@@ -249,7 +249,7 @@ check_folder "$work/l" loop
 check_heights "$work/l" loop
 # the loop: one instrument, two known marks, stations occupied twice
 awk -F, 'FNR > 1 { c[$1]++ } END { for (x in c) if (x ~ /^LP/ && c[x] == 2) rep++
-  if (rep != 3) { print "FAIL: loop: " rep + 0 " stations occupied twice, expected 3"; exit 1 }
+  if (rep != 6) { print "FAIL: loop: " rep + 0 " stations occupied twice, expected 6"; exit 1 }
   print "loop: " rep " stations occupied twice" }' "$work/l/fieldbook.csv" || fails=$((fails + 1))
 
 if [ -n "$xsd" ] && [ -f "$xsd/gpx-1.1.xsd" ] && command -v xmllint > /dev/null; then
