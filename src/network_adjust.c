@@ -86,8 +86,8 @@ static hyp_status build(const hyp__net *N, const unsigned char *occupied, layout
     L->su = malloc((S ? S : 1) * sizeof *L->su);
     L->ka = malloc((K ? K : 1) * sizeof *L->ka);
     L->names = calloc(S + 2 * K + N->n_nodes + 1, sizeof *L->names);
-    L->terms = malloc((6 * M + 1) * sizeof *L->terms);
-    L->rows = malloc((M + 1) * sizeof *L->rows);
+    L->terms = malloc((6 * (M + K * K) + 1) * sizeof *L->terms);   /* K x K: index differences (below) */
+    L->rows = malloc((M + K * K + 1) * sizeof *L->rows);
     L->row_obs = malloc((M + 1) * sizeof *L->row_obs);
     if (!L->su || !L->ka || !L->names || !L->terms || !L->rows || !L->row_obs)
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
@@ -329,7 +329,21 @@ hyp_status hyp__net_adjust(hyp__net *N, hyp_error *err)
     ao.alpha_w = N->o->alpha_w;
     ao.alpha_global = N->o->alpha_global;
     ao.snoop = 1;
-    hyp__adj_problem pb = {L.n_unknowns, (const char *const *)L.names, L.n_rows, L.rows};
+    /* rows left out of the adjustment, for their sigma only: the index
+     * difference of two raw rovers never compared side by side */
+    size_t K = r->n_tracks, extra = 0;
+    for (size_t k = 0; !st && N->pair_link && k < K; k++)
+        for (size_t m = k + 1; m < K; m++) {
+            unsigned char l = N->pair_link[k * K + m];
+            if (!(l & 1) || (l & 2) || L.ka[k] == SIZE_MAX || L.ka[m] == SIZE_MAX)
+                continue;
+            size_t row = L.n_rows + extra++;
+            hyp__adj_term *t = &L.terms[6 * row];
+            t[0] = (hyp__adj_term){L.ka[k], 1.0};
+            t[1] = (hyp__adj_term){L.ka[m], -1.0};
+            L.rows[row] = (hyp__adj_obs){t, 2, 0.0, 1.0, NULL, 0};
+        }
+    hyp__adj_problem pb = {L.n_unknowns, (const char *const *)L.names, L.n_rows + extra, L.rows};
     hyp__adj_result a;
     hyp__adj_result_init(&a);
     hyp_error e;
@@ -340,6 +354,17 @@ hyp_status hyp__net_adjust(hyp__net *N, hyp_error *err)
     if (!st) {
         fill(N, &L, &a);
         station_counts(N);
+        for (size_t q = 0; q < extra && N->pair_sigma; q++) {
+            const hyp__adj_term *t = L.rows[L.n_rows + q].terms;
+            size_t k = SIZE_MAX, m = SIZE_MAX;
+            for (size_t j = 0; j < K; j++) {
+                k = L.ka[j] == t[0].unknown ? j : k;
+                m = L.ka[j] == t[1].unknown ? j : m;
+            }
+            double sg = a.sigma_adj[L.n_rows + q] * (r->scaled && a.s0_sq == a.s0_sq ? sqrt(a.s0_sq) : 1.0);
+            if (k != SIZE_MAX && m != SIZE_MAX)
+                N->pair_sigma[k * K + m] = N->pair_sigma[m * K + k] = sg;
+        }
     }
     hyp__adj_result_free(&a);
     layout_free(&L, S + 2 * r->n_tracks + N->n_nodes + 1);

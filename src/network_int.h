@@ -38,6 +38,8 @@ typedef struct hyp__net {
     unsigned char *pair_link;  /* per pair of tracks (K x K): 1 a leg, 2 side by side too */
     double *pair_c_sum;        /* ... the sum of their legs' sensitivities (m/Pa) */
     size_t *pair_c_n;
+    double *pair_sigma;        /* ... the adjusted index difference's sigma (Pa) when
+                                  they were never side by side (NaN: none) */
 } hyp__net;
 
 hyp_network_obs *hyp__net_push(hyp__net *N, hyp_obs_kind kind, double c, double dt_h);

@@ -383,7 +383,10 @@ hyp_status hyp__net_raw_observations(hyp__net *N, hyp_error *err)
     N->pair_link = calloc(K * K, 1);
     N->pair_c_sum = calloc(K * K, sizeof *N->pair_c_sum);
     N->pair_c_n = calloc(K * K, sizeof *N->pair_c_n);
-    if (!N->pair_link || !N->pair_c_sum || !N->pair_c_n)
+    N->pair_sigma = malloc(K * K * sizeof *N->pair_sigma);
+    for (size_t i = 0; N->pair_sigma && i < K * K; i++)
+        N->pair_sigma[i] = NAN;
+    if (!N->pair_link || !N->pair_c_sum || !N->pair_c_n || !N->pair_sigma)
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     hyp_status st = legs(N, err);
     for (size_t k = 0; !st && k < K; k++) {
@@ -438,9 +441,9 @@ void hyp__net_raw_after(hyp__net *N)
             const hyp_network_track *a = &r->tracks[k], *b = &r->tracks[m];
             size_t cn = N->pair_c_n[k * K + m] + N->pair_c_n[m * K + k];
             double c = cn ? (N->pair_c_sum[k * K + m] + N->pair_c_sum[m * K + k]) / (double)cn : NAN;
-            /* the index difference's sigma, its correlation left out (an
-             * upper bound when the two are correlated positively) */
-            double s = sqrt(a->offset_sigma_pa * a->offset_sigma_pa + b->offset_sigma_pa * b->offset_sigma_pa);
+            /* the index difference's sigma from the adjustment (what the
+             * control and the legs' closure leave of it) */
+            double s = N->pair_sigma ? N->pair_sigma[k * K + m] : NAN;
             if (s == s && c == c)
                 hyp_msgs_add(&r->msgs, HYP_WARNING,
                              "rovers %s and %s were never side by side: their index difference rests on the control "
@@ -485,4 +488,5 @@ void hyp__net_raw_free(hyp__net *N)
     free(N->pair_link);
     free(N->pair_c_sum);
     free(N->pair_c_n);
+    free(N->pair_sigma);
 }
