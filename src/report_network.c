@@ -262,14 +262,15 @@ static void tables(hyp__page *p, const hyp_network_result *r)
     hyp__page_kv(p, "result", "%s", r->tests_failed ? "a test failed (exit status 3)" : "every test passed");
     hyp__page_table_end(p);
     static const char *const sh[] = {"#", "station", "height [m]", "sigma [m]", "used", "rejected", "control", "max |w|",
-                                     "free-air [mGal]", "Bouguer [mGal]"};
+                                     "free-air [mGal]", "Bouguer [mGal]", "method"};
     hyp__page_section(p, "stations", "Stations");
-    hyp__page_table(p, NULL, sh, 10);
+    hyp__page_table(p, NULL, sh, 11);
     for (size_t s = 0; s < r->stations.count; s++) {
         const hyp_network_station *t = &r->st[s];
         hyp__page_out(p, "<tr><td>%z</td><td>%t</td><td>%.3f</td><td>%.3f</td><td>%z</td><td>%z</td><td>%s</td><td>%.2f</td>"
-                         "<td>%.3f</td><td>%.3f</td></tr>\n", s + 1, r->stations.name[s], t->height_m, t->sigma_m, t->used,
-                      t->rejected, t->control ? "yes" : "no", t->max_abs_w, t->free_air_mgal, t->bouguer_mgal);
+                         "<td>%.3f</td><td>%.3f</td><td>%t</td></tr>\n", s + 1, r->stations.name[s], t->height_m, t->sigma_m,
+                      t->used, t->rejected, t->control ? "yes" : "no", t->max_abs_w, t->free_air_mgal, t->bouguer_mgal,
+                      t->method);
     }
     hyp__page_table_end(p);
     static const char *const th[] = {"#", "track", "occupations", "co-locations", "offset [hPa]", "sigma [hPa]",
@@ -291,7 +292,8 @@ static void tables(hyp__page *p, const hyp_network_result *r)
         if (!o->rejected && !(o->used && o->flag[0]))
             continue;
         hyp__page_out(p, "<tr><td>%t</td><td>%t</td><td>%T</td><td>%+.2f</td><td>%+.3f</td><td>%t</td></tr>\n",
-                      o->kind == HYP_OBS_OCCUPATION || o->kind == HYP_OBS_CONTROL ? r->stations.name[o->station] : "",
+                      o->kind == HYP_OBS_OCCUPATION || o->kind == HYP_OBS_CONTROL || o->kind == HYP_OBS_LEAPFROG ||
+                      o->kind == HYP_OBS_SIDE_BY_SIDE || o->kind == HYP_OBS_LOOP ? r->stations.name[o->station] : "",
                       o->kind != HYP_OBS_CONTROL ? r->tracks[o->track].name : "", o->start_s, o->w, o->residual_m, o->flag);
     }
     hyp__page_table_end(p);
