@@ -280,12 +280,14 @@ adjust() {
 }
 
 # The stations of an adjustment's CSV beside the truth, by the header's
-# names: "name error_m sigma_m" per determined (not control) station.
+# names: "name error_m sigma_m method" per determined (not control)
+# station (method "-" where the column is absent).
 errors() {   # stations.csv truth.csv
   awk -F, 'NR == FNR { if (FNR > 1) h[$1] = $2; next }
     FNR == 1 { for (i = 1; i <= NF; i++) col[$i] = i; next }
     { gsub(/"/, "", $col["name"]) }
-    $col["control"] == "no" && $col["height"] != "" { printf "%s %.4f %s\n", $col["name"], $col["height"] - h[$col["name"]], $col["sigma"] }' "$2" "$1"
+    $col["control"] == "no" && $col["height"] != "" { m = "method" in col ? $col["method"] : "-"
+      printf "%s %.4f %s %s\n", $col["name"], $col["height"] - h[$col["name"]], $col["sigma"], m }' "$2" "$1"
 }
 
 mkdir -p "$work/adj"
@@ -309,10 +311,14 @@ for seed in 1 2 3 4 5 6; do
     errors "$work/adj/$k-$seed.csv" "$work/$k$seed/truth.csv" | sed "s/^/$seed /" >> "$work/adj/$k.err"
   done
 done
+# Each station's method (the stations CSV's last column) must name the
+# survey's kind: "leapfrog" or "loop".
 score() {   # file label n_expected rmse_max
   awk -v what="$2" -v n_exp="$3" -v rmax="$4" '
-    { e = $3; s += e * e; n++; if (e < 0) e = -e; if (e <= 2 * $4) c++; if (e > worst) worst = e }
+    { e = $3; s += e * e; n++; if (e < 0) e = -e; if (e <= 2 * $4) c++; if (e > worst) worst = e
+      if ($5 != what) { printf "FAIL: %s: seed %s station %s: method \"%s\"\n", what, $1, $2, $5; bad = 1 } }
     END {
+      if (bad) exit 1
       if (n != n_exp) { printf "FAIL: %s: %d stations determined, expected %d\n", what, n, n_exp; exit 1 }
       rms = sqrt(s / n); cov = c / n
       printf "%s: %d stations over 6 seeds: RMSE %.3f m (bound %.2f m), largest error %.3f m, %.0f %% within 2 sigma (bound 80 %%)\n", what, n, rms, rmax, worst, 100 * cov
