@@ -501,7 +501,8 @@ void hyp__net_raw_after(hyp__net *N)
 void hyp__net_raw_free(hyp__net *N)
 {
     for (size_t k = 0; N->raw && k < N->r->n_tracks; k++)
-        hyp__log_free(&N->raw[k]);
+        if (N->r->tracks[k].raw)   /* the others' logs were freed when they took the base path */
+            hyp__log_free(&N->raw[k]);
     free(N->raw);
     free(N->ro);
     free(N->pair_link);
