@@ -297,10 +297,11 @@ static hyp_status legs(hyp__net *N, hyp_error *err)
     return HYP_OK;
 }
 
-/* A loop: H_s - c w_j = r_j per occupation, r_j the standard-atmosphere
- * height of the mean pressure (USSA 1976: 101325 Pa at 0 m, the
- * hypsometric equation with its lapse rate), c = Rd T / (g0 p) its
- * sensitivity (USSA 1976 hydrostatic equation); w_{j+1} - w_j = 0 with
+/* A loop: H_s - c w_j = r_j per occupation, r_j the height of the mean
+ * pressure above the level of 101325 Pa by the hypsometric equation
+ * (Wallace and Hobbs eq. 3.29; the standard atmosphere's column, USSA
+ * 1976, when the rover has no thermometer), c = Rd T / (g p) its
+ * sensitivity (the hydrostatic equation); w_{j+1} - w_j = 0 with
  * sigma q sqrt(dt) (the weather as a random walk in pressure). */
 static hyp_status loop(hyp__net *N, size_t k, hyp_error *err)
 {
@@ -319,6 +320,24 @@ static hyp_status loop(hyp__net *N, size_t k, hyp_error *err)
             continue;
         double hgp = hyp_isa_height_gp_m(u->p_pa), r = hyp_geometric_from_geopotential_m(hgp);
         double c = HYP_RD_J_KG_K * hyp_isa_temperature_k(hgp) / (HYP_G0_M_S2 * u->p_pa);
+        if (u->temp_k == u->temp_k && r == r) {
+            /* with a thermometer: the column from 0 m up to the station at
+             * its measured (virtual) temperature, the survey's lapse rate
+             * below it, the logarithmic layer mean (section 3), normal
+             * gravity at mid-column; else the temperature's departure from
+             * the standard atmosphere would scale every height difference
+             * and pass for weather */
+            double rh = u->rh_pct == u->rh_pct ? u->rh_pct : N->sv->copts.default_rh_pct;
+            double tv = hyp_virtual_temperature_k(u->temp_k, rh, u->p_pa);
+            if (!(tv == tv))
+                tv = u->temp_k;
+            double tm = hyp_layer_mean_temperature_k(tv, tv - N->sv->copts.lapse_k_per_m * r);
+            double g = hyp_gravity_at_height_m_s2(bm->lat_deg[u->station], 0.5 * r);
+            if (tm > 0 && g > 0) {
+                r = HYP_RD_J_KG_K * tm / g * log(HYP_P0_PA / u->p_pa);
+                c = HYP_RD_J_KG_K * tv / (g * u->p_pa);
+            }
+        }
         if (!(r == r) || !(c > 0))
             continue;
         size_t node = N->n_nodes++;
@@ -482,7 +501,8 @@ void hyp__net_raw_after(hyp__net *N)
 void hyp__net_raw_free(hyp__net *N)
 {
     for (size_t k = 0; N->raw && k < N->r->n_tracks; k++)
-        hyp__log_free(&N->raw[k]);
+        if (N->r->tracks[k].raw)   /* the others' logs were freed when they took the base path */
+            hyp__log_free(&N->raw[k]);
     free(N->raw);
     free(N->ro);
     free(N->pair_link);

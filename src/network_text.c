@@ -180,11 +180,12 @@ static void text_tests(FILE *f, const hyp_network_result *r)
         else if (o->kind == HYP_OBS_COLOCATION)
             fprintf(f, "            co-location of %s from %s (with the base", r->tracks[o->track].name, a);
         else if (o->kind == HYP_OBS_LEAPFROG || o->kind == HYP_OBS_SIDE_BY_SIDE)
-            fprintf(f, "            %s %s by %s - %s by %s from %s (", kind_name(o->kind), r->stations.name[o->station],
+            fprintf(f, "            %s %s by %s - %s by %s from %s (%s", kind_name(o->kind), r->stations.name[o->station],
                     r->tracks[o->track].name, o->station2 != SIZE_MAX ? r->stations.name[o->station2] : "",
-                    r->tracks[o->track2].name, a);
+                    r->tracks[o->track2].name, a, source_name(o->source));
         else if (o->kind == HYP_OBS_LOOP)
-            fprintf(f, "            loop: %s by %s from %s (", r->stations.name[o->station], r->tracks[o->track].name, a);
+            fprintf(f, "            loop: %s by %s from %s (%s", r->stations.name[o->station], r->tracks[o->track].name, a,
+                    source_name(o->source));
         else if (o->kind == HYP_OBS_WEATHER_STEP)
             fprintf(f, "            weather step of %s from %s (%.0f Pa", r->tracks[o->track].name, a, o->sigma_m);
         else if (o->kind == HYP_OBS_INDEX_PRIOR)

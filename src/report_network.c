@@ -208,7 +208,7 @@ static hyp_status fig_tracks(hyp__page *p, const hyp_network_result *r, hyp_erro
     if (fb_alloc(&a, r->n_tracks) || fb_alloc(&d, r->n_tracks))
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     for (size_t k = 0; k < r->n_tracks; k++) {
-        if (r->tracks[k].status)
+        if (r->tracks[k].status || r->tracks[k].raw == 2)   /* a loop has no offset of its own */
             continue;
         a.x[a.n] = (double)(k + 1), a.y[a.n] = r->tracks[k].offset_pa / 100.0, a.e[a.n++] = 0.02 * r->tracks[k].offset_sigma_pa;
         d.x[d.n] = (double)(k + 1), d.y[d.n] = r->tracks[k].drift_pa_per_h / 100.0, d.e[d.n++] = 0.02 * r->tracks[k].drift_sigma_pa_per_h;
@@ -279,6 +279,12 @@ static void tables(hyp__page *p, const hyp_network_result *r)
     hyp__page_table(p, NULL, th, 8);
     for (size_t k = 0; k < r->n_tracks; k++) {
         const hyp_network_track *t = &r->tracks[k];
+        if (t->raw == 2) {   /* a loop: the weather nodes take its index */
+            hyp__page_out(p, "<tr><td>%z</td><td>%t</td><td>%z</td><td>%z</td><td colspan=\"4\">loop without a base: "
+                             "the weather (with the index) solved at each occupation</td></tr>\n", k + 1, t->name,
+                          t->occupations, t->colocations);
+            continue;
+        }
         hyp__page_out(p, "<tr><td>%z</td><td>%t</td><td>%z</td><td>%z</td><td>%+.3f</td><td>%.3f</td><td>%+.3f</td>"
                          "<td>%.3f</td></tr>\n", k + 1, t->name, t->occupations, t->colocations, t->offset_pa / 100.0,
                       t->offset_sigma_pa / 100.0, t->drift_pa_per_h / 100.0, t->drift_sigma_pa_per_h / 100.0);

@@ -474,6 +474,85 @@ static void test_loop_weak_design_warned(void **state)
     hyp_network_result_free(res);
 }
 
+/* ---- a mixed survey ---------------------------------------------------
+ * A base on S0 from 08:00 to 09:30 covers rover "early" (S0, S1, S2, S0);
+ * from 10:00 rovers "ra" and "rb", which no base covers, leapfrog from S2
+ * to S4 (side by side on S2 and S4). S0 and S4 are control. One
+ * adjustment: S1 from the base, S3 from the legs, S2 from both. */
+static void test_mixed_survey(void **state)
+{
+    (void)state;
+    double h[5] = {600.0, 633.0, 671.0, 702.0, 745.0};
+    int known[5] = {1, 0, 0, 0, 1};
+    write_stations(5, h, known);
+    lcg = 4242u;
+    plan base = {1, {0}, {T0_S}, {T0_S + 5400}};
+    write_rover("base", &base, h, 0.0, 0.0);
+    plan p[3];
+    memset(p, 0, sizeof p);
+    static const int seq[] = {0, 1, 2, 0};
+    for (int j = 0; j < 4; j++)
+        p[0].st[j] = seq[j], p[0].t0[j] = T0_S + j * 1200.0, p[0].t1[j] = T0_S + j * 1200.0 + 600.0;
+    p[0].n = 4;
+    double t = T0_S + 7200.0;   /* 10:00 */
+    p[1] = (plan){2, {2, 4}, {t, t + 1800}, {t + 1500, t + 3300}};
+    p[2] = (plan){3, {2, 3, 4}, {t, t + 900, t + 2700}, {t + 600, t + 2400, t + 3300}};
+    write_rover("early", &p[0], h, 40.0, 0.0);
+    write_rover("ra", &p[1], h, 70.0, 0.0);
+    write_rover("rb", &p[2], h, -30.0, 0.0);
+    const char *names[3] = {"early", "ra", "rb"};
+    write_book(p, names, 3);
+
+    char paths[3][700], bpath[700], stations[700], book[700];
+    const char *pp[3];
+    for (int r = 0; r < 3; r++) {
+        snprintf(paths[r], sizeof paths[r], "%s/%s.csv", dir, names[r]);
+        pp[r] = paths[r];
+    }
+    snprintf(bpath, sizeof bpath, "%s/base.csv", dir);
+    snprintf(stations, sizeof stations, "%s/stations.csv", dir);
+    snprintf(book, sizeof book, "%s/book.csv", dir);
+    hyp_survey_opts so;
+    hyp_survey_opts_init(&so);
+    hyp_survey *sv = NULL;
+    hyp_msgs m;
+    hyp_msgs_init(&m);
+    hyp_error err;
+    assert_int_equal(hyp_survey_new(&sv, &so, &m, &err), HYP_OK);
+    hyp_base_spec b;
+    hyp_base_spec_init(&b, bpath, h[0]);
+    b.lat_deg = LAT, b.lon_deg = station_lon(0);
+    if (hyp_survey_add_base(sv, &b, &m, &err))
+        fail_msg("%s", err.message);
+    hyp_network_opts no;
+    hyp_network_opts_init(&no);
+    no.stations_path = stations;
+    no.fieldbook_path = book;
+    no.auto_occupations = 0;
+    hyp_network_result *res = NULL;
+    if (hyp_network_run(sv, &no, pp, 3, &res, &err)) {
+        if (res)
+            hyp_msgs_write(stderr, &res->msgs, HYP_NOTE);
+        fail_msg("%s", err.message);
+    }
+    print_message("mixed: S1 %.3f +- %.3f m (%s, made 633), S2 %.3f +- %.3f m (%s, made 671), S3 %.3f +- %.3f m (%s, "
+                  "made 702); tracks raw: %d %d %d\n", res->st[1].height_m, res->st[1].sigma_m, res->st[1].method,
+                  res->st[2].height_m, res->st[2].sigma_m, res->st[2].method, res->st[3].height_m, res->st[3].sigma_m,
+                  res->st[3].method, res->tracks[0].raw, res->tracks[1].raw, res->tracks[2].raw);
+    assert_int_equal(res->tracks[0].raw, 0);
+    assert_int_equal(res->tracks[1].raw, 1);
+    assert_int_equal(res->tracks[2].raw, 1);
+    assert_string_equal(res->st[1].method, "base");
+    assert_string_equal(res->st[2].method, "mixed");
+    assert_string_equal(res->st[3].method, "leapfrog");
+    for (int s = 1; s <= 3; s++)   /* within 2 sigma, and 0.5 m (this test's own regression bound) */
+        assert_true(fabs(res->st[s].height_m - h[s]) <= fmax(2 * res->st[s].sigma_m, 0.05) &&
+                    fabs(res->st[s].height_m - h[s]) < 0.5);
+    hyp_network_result_free(res);
+    hyp_survey_free(sv);
+    hyp_msgs_free(&m);
+}
+
 static int setup(void **state)
 {
     (void)state;
@@ -492,6 +571,7 @@ int main(void)
         cmocka_unit_test(test_loop_solves),
         cmocka_unit_test(test_loop_without_known_mark_refused),
         cmocka_unit_test(test_loop_weak_design_warned),
+        cmocka_unit_test(test_mixed_survey),
     };
     return cmocka_run_group_tests(tests, setup, NULL);
 }
