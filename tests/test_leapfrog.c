@@ -380,6 +380,42 @@ static void test_index_error_does_not_accumulate(void **state)
     hyp_network_result_free(r1);
 }
 
+/* A third rover out on its own in the afternoon (S0, S1, S0): it overlaps
+ * neither, is named in a warning and reduced as a loop; S1 then has a
+ * leapfrog and a loop height: mixed. */
+static void test_rover_alone_named(void **state)
+{
+    (void)state;
+    for (int i = 0; i < NS; i++)
+        H[i] = 520.0 + 40.0 * i + 7.0 * sin(1.3 * i);
+    int known[NS] = {0};
+    known[0] = known[NS - 1] = 1;
+    write_stations(NS, H, known);
+    plan p[3];
+    traverse_plans(&p[0], &p[1]);
+    memset(&p[2], 0, sizeof p[2]);
+    static const int seq[] = {0, 1, 0};
+    for (int j = 0; j < 3; j++)
+        p[2].st[j] = seq[j], p[2].t0[j] = T0_S + 18000.0 + j * 1200.0, p[2].t1[j] = T0_S + 18000.0 + j * 1200.0 + 600.0;
+    p[2].n = 3;
+    const char *names[3] = {"inst-a", "inst-b", "late"};
+    lcg = 999u;
+    write_rover("inst-a", &p[0], H, 80.0, 5.0);
+    write_rover("inst-b", &p[1], H, -50.0, 0.0);
+    write_rover("late", &p[2], H, 20.0, 0.0);
+    write_book(p, names, 3);
+    hyp_network_result *res = NULL;
+    hyp_error err;
+    if (run(names, 3, &res, &err))
+        fail_msg("%s", err.message);
+    print_message("alone: S1 %.3f +- %.3f m (%s)\n", res->st[1].height_m, res->st[1].sigma_m, res->st[1].method);
+    assert_true(has_msg(res, "rover late never stood on a station while another rover"));
+    assert_int_equal(res->tracks[2].raw, 2);
+    assert_int_equal(res->tracks[0].raw, 1);
+    assert_string_equal(res->st[1].method, "mixed");
+    hyp_network_result_free(res);
+}
+
 /* ---- loops ----------------------------------------------------------- */
 
 /* One instrument: S0 (known), S1, S2, S1 again, S3 (known), S0 again;
@@ -568,6 +604,7 @@ int main(void)
         cmocka_unit_test(test_leg_by_hand),
         cmocka_unit_test(test_traverse),
         cmocka_unit_test(test_index_error_does_not_accumulate),
+        cmocka_unit_test(test_rover_alone_named),
         cmocka_unit_test(test_loop_solves),
         cmocka_unit_test(test_loop_without_known_mark_refused),
         cmocka_unit_test(test_loop_weak_design_warned),
