@@ -167,7 +167,9 @@ typedef struct hyp_network_result {
 
 /* Runs every rover of the survey (bases, units, zones and the rest as the
  * survey's options say: the same as `correct`), finds the occupations,
- * adjusts the network and tests it. *res is set (free it) unless out of
+ * adjusts the network and tests it. A rover no base covers is read raw:
+ * with others at once it gives leapfrog legs, alone a loop (the weather
+ * solved; it needs an occupied control station, else HYP_ERR_NODATA). *res is set (free it) unless out of
  * memory, on an error too (its messages say what came before; its heights
  * are then not filled); on HYP_OK its tests_failed says whether the tests
  * passed. */
