@@ -326,16 +326,13 @@ score() {   # file label n_expected rmse_max
       if (cov < 0.8) { printf "FAIL: %s: 2-sigma coverage %.2f under 0.80\n", what, cov; exit 1 }
     }' "$1"
 }
-# The bounds: the RMSE measured here (seeds 1-6, leapfrog-core a2e0862
-# merged) with about 20-30 % margin. Leapfrog: 1.01 m measured, of which
-# seed 6 alone makes most: its last side-by-side comparison (residual
-# 0.04 m, redundancy about 0) is rejected by the w-test, and rb's stations
-# then drift up to 4.4 m (exit 3); seeds 1-5 alone give 0.33 m. Loop:
-# 0.55 m measured (largest error 1.28 m). Both within or near the
-# yardstick above. The 2-sigma coverage bound 0.8: for 60 and 36 stations
-# an honest 0.95 falls under it with a probability far below 1 %
-# (binomial; the choice of 0.8 is common practice, no source).
-LF_RMSE_MAX=1.2   # measured 1.01 m
+# The bounds: the RMSE measured here (seeds 1-6, leapfrog-core 745ee01
+# merged) with about 25 % margin: leapfrog 0.32 m (largest error 0.63 m),
+# loop 0.55 m (largest error 1.28 m); both well within the yardstick
+# above. The 2-sigma coverage bound 0.8: for 60 and 36 stations an honest
+# 0.95 falls under it with a probability far below 1 % (binomial; the
+# choice of 0.8 is common practice, no source).
+LF_RMSE_MAX=0.4   # measured 0.32 m
 LP_RMSE_MAX=0.7   # measured 0.55 m
 score "$work/adj/lf.err" "leapfrog" 60 $LF_RMSE_MAX || fails=$((fails + 1))
 score "$work/adj/lp.err" "loop" 36 $LP_RMSE_MAX || fails=$((fails + 1))
