@@ -27,6 +27,8 @@ void hyp_network_opts_init(hyp_network_opts *o)
     o->alpha_w = 0.001;
     o->alpha_global = 0.05;
     o->drift_prior_pa_per_h = 10.0;
+    o->min_common_s = 120.0;
+    o->weather_walk_hpa_sqrt_h = 0.6;
 }
 
 void hyp_network_result_free(hyp_network_result *r)
@@ -158,6 +160,31 @@ hyp_status hyp__net_occupation(hyp__net *N, size_t k, const hyp_rover_run *run, 
 static hyp_status run_track(hyp__net *N, size_t k, int threads, hyp_error *err)
 {
     hyp_network_track *t = &N->r->tracks[k];
+    /* read first: a rover no base covers is read raw (network_raw.c); a
+     * covered one is read again by the correction, which reports what the
+     * reader says, so this reading's messages are kept only for a raw one */
+    hyp_read_opts rdo;
+    hyp__rover_read_opts(N->sv, t->path, &rdo);
+    hyp_msgs rm;
+    hyp_msgs_init(&rm);
+    hyp_error re;
+    hyp_status rst = hyp__log_read(t->path, &rdo, &N->raw[k], &rm, &re);
+    if (!rst && !hyp__net_covered(N->sv, hyp__log_series(&N->raw[k]))) {
+        for (size_t i = 0; i < rm.count; i++)
+            hyp_msgs_add_at(&N->r->msgs, rm.items[i].level, rm.items[i].code, rm.items[i].file, rm.items[i].line, "%s",
+                            rm.items[i].text);
+        hyp_msgs_free(&rm);
+        return hyp__net_raw_track(N, k, err);
+    }
+    hyp_msgs_free(&rm);
+    hyp__log_free(&N->raw[k]);
+    memset(&N->raw[k], 0, sizeof N->raw[k]);
+    if (rst && !N->sv->n_pool) {   /* no base to try: the reader's error is the track's */
+        t->status = rst;
+        snprintf(t->error, sizeof t->error, "%s", re.message);
+        hyp_msgs_add_at(&N->r->msgs, HYP_WARNING, "input", t->path, 0, "not used: %s", re.message);
+        return HYP_OK;
+    }
     hyp_correct_opts co = N->sv->copts;
     co.offset_pa = 0.0;
     co.offset_sigma_pa = 0.0;
@@ -191,7 +218,9 @@ static hyp_status run_track(hyp__net *N, size_t k, int threads, hyp_error *err)
     size_t nw = 0;
     st = colocations(N, k, run, err);
     if (!st)
-        st = hyp__net_windows(N, k, run, &w, &nw, err);
+        st = hyp__net_windows(N, k, s, ((const struct hyp__rover_priv *)run->priv)->rv.is_gpx
+                                           ? &((const struct hyp__rover_priv *)run->priv)->rv.doc.wpts : NULL,
+                              &w, &nw, err);
     for (size_t j = 0; !st && j < nw; j++)
         st = hyp__net_occupation(N, k, run, &w[j], err);
     free(w);
@@ -215,6 +244,8 @@ static hyp_status open_result(hyp__net *N, const char *const *rovers, size_t n, 
     if (!(r->st = calloc(r->stations.count, sizeof *r->st)) || !(r->tracks = calloc(n ? n : 1, sizeof *r->tracks)))
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     r->n_tracks = n;
+    if (!(N->raw = calloc(n ? n : 1, sizeof *N->raw)))
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     for (size_t k = 0; k < n; k++) {
         r->tracks[k].path = rovers[k];
         hyp__stem(rovers[k], r->tracks[k].name, sizeof r->tracks[k].name);
@@ -249,8 +280,12 @@ static hyp_status check_inputs(hyp__net *N, hyp_error *err)
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     for (size_t i = 0; i < r->n_obs; i++) {
         const hyp_network_obs *o = &r->obs[i];
-        if (o->kind == HYP_OBS_OCCUPATION && !o->flag[0])
+        if ((o->kind == HYP_OBS_OCCUPATION || o->kind == HYP_OBS_LEAPFROG || o->kind == HYP_OBS_SIDE_BY_SIDE ||
+             o->kind == HYP_OBS_LOOP) && !o->flag[0]) {
             occ[o->station] = 1;
+            if (o->station2 != SIZE_MAX)
+                occ[o->station2] = 1;
+        }
         colocs += o->kind == HYP_OBS_COLOCATION;
     }
     for (size_t s = 0; s < r->stations.count; s++) {
@@ -260,6 +295,14 @@ static hyp_status check_inputs(hyp__net *N, hyp_error *err)
         control += occ[s] && r->stations.height_m[s] == r->stations.height_m[s];
     }
     free(occ);
+    size_t loops = 0;
+    for (size_t k = 0; k < r->n_tracks; k++)
+        loops += r->tracks[k].raw == 2;
+    if (!control && !colocs && loops)
+        return hyp_error_set(err, HYP_ERR_NODATA, "a loop without a base needs a known mark: none of the stations the "
+                             "rovers occupied has a height in %s, so the weather and the heights cannot be told apart "
+                             "(give a control height for at least one occupied station, better two, or a base)",
+                             N->o->stations_path);
     if (!control && !colocs)
         return hyp_error_set(err, HYP_ERR_NODATA, "no occupied control station and no co-location with a base: "
                              "nothing fixes the heights (give control heights in %s, or --base-at for co-locations)",
@@ -317,9 +360,13 @@ hyp_status hyp_network_run(hyp_survey *sv, const hyp_network_opts *o, const char
     for (size_t k = 0; !st && k < n; k++)
         st = run_track(&N, k, threads, err);
     if (!st)
+        st = hyp__net_raw_observations(&N, err);
+    if (!st)
         st = check_inputs(&N, err);
     if (!st)
         st = hyp__net_adjust(&N, err);
+    if (!st)
+        hyp__net_raw_after(&N);
     if (!st)
         st = convert_heights(&N, err);
     for (size_t s = 0; !st && s < N.r->stations.count; s++) {
@@ -330,6 +377,10 @@ hyp_status hyp_network_run(hyp_survey *sv, const hyp_network_opts *o, const char
     free(N.book_matched);
     free(N.coef);
     free(N.dt_h);
+    free(N.coef2);
+    free(N.dt2_h);
+    free(N.node);
+    hyp__net_raw_free(&N);
     *res = N.r;   /* on an error too: its messages say what came before */
     return st;
 }

@@ -31,7 +31,7 @@ static hyp_status add_constraints(hyp__net *N, const unsigned char *occupied, hy
         o->sigma_m = r->stations.sigma_m[s] > 0 ? r->stations.sigma_m[s] : N->o->control_sigma_m;
     }
     for (size_t k = 0; k < r->n_tracks; k++) {
-        if (r->tracks[k].status)
+        if (r->tracks[k].status || r->tracks[k].raw == 2)   /* a loop's weather takes its drift */
             continue;
         hyp_network_obs *o = hyp__net_push(N, HYP_OBS_DRIFT_PRIOR, 0.0, 0.0);
         if (!o)
@@ -50,6 +50,7 @@ static int usable(const hyp_network_obs *o)
 /* The engine's problem: unknown indices, names, rows. */
 typedef struct layout {
     size_t *su, *ka;            /* station -> unknown, track -> offset unknown (drift: +1) */
+    size_t w0;                  /* first loop weather node's unknown */
     char **names;
     hyp__adj_term *terms;
     hyp__adj_obs *rows;
@@ -84,9 +85,9 @@ static hyp_status build(const hyp__net *N, const unsigned char *occupied, layout
     size_t S = r->stations.count, K = r->n_tracks, M = r->n_obs, j = 0;
     L->su = malloc((S ? S : 1) * sizeof *L->su);
     L->ka = malloc((K ? K : 1) * sizeof *L->ka);
-    L->names = calloc(S + 2 * K + 1, sizeof *L->names);
-    L->terms = malloc((3 * M + 1) * sizeof *L->terms);
-    L->rows = malloc((M + 1) * sizeof *L->rows);
+    L->names = calloc(S + 2 * K + N->n_nodes + 1, sizeof *L->names);
+    L->terms = malloc((6 * (M + K * K) + 1) * sizeof *L->terms);   /* K x K: index differences (below) */
+    L->rows = malloc((M + K * K + 1) * sizeof *L->rows);
     L->row_obs = malloc((M + 1) * sizeof *L->row_obs);
     if (!L->su || !L->ka || !L->names || !L->terms || !L->rows || !L->row_obs)
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
@@ -96,17 +97,30 @@ static hyp_status build(const hyp__net *N, const unsigned char *occupied, layout
             return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     }
     for (size_t k = 0; k < K; k++) {
-        L->ka[k] = r->tracks[k].status ? SIZE_MAX : j;
-        if (!r->tracks[k].status && (name_unknown(L, j++, r->tracks[k].name, " offset") ||
+        int own = !r->tracks[k].status && r->tracks[k].raw != 2;   /* a loop has weather nodes instead */
+        L->ka[k] = own ? j : SIZE_MAX;
+        if (own && (name_unknown(L, j++, r->tracks[k].name, " offset") ||
                                      name_unknown(L, j++, r->tracks[k].name, " drift")))
             return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     }
+    L->w0 = j;
+    for (size_t i = 0; i < M; i++)   /* a loop occupation names its node */
+        if (r->obs[i].kind == HYP_OBS_LOOP && N->node[i] != SIZE_MAX && !L->names[j + N->node[i]]) {
+            char b[64];
+            snprintf(b, sizeof b, " weather at %s", r->stations.name[r->obs[i].station]);
+            if (name_unknown(L, j + N->node[i], r->tracks[r->obs[i].track].name, b))
+                return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+        }
+    for (size_t q = 0; q < N->n_nodes; q++)
+        if (!L->names[j + q] && name_unknown(L, j + q, "weather", " node"))
+            return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    j += N->n_nodes;
     L->n_unknowns = j;
     for (size_t i = 0; i < M; i++) {
         const hyp_network_obs *o = &r->obs[i];
         if (!usable(o))
             continue;
-        hyp__adj_term *t = &L->terms[3 * L->n_rows];
+        hyp__adj_term *t = &L->terms[6 * L->n_rows];
         size_t nt = 0;
         double c = N->coef[i], dt = N->dt_h[i];
         if (o->kind == HYP_OBS_OCCUPATION || o->kind == HYP_OBS_CONTROL)
@@ -117,6 +131,29 @@ static hyp_status build(const hyp__net *N, const unsigned char *occupied, layout
         }
         if (o->kind == HYP_OBS_DRIFT_PRIOR)
             t[nt++] = (hyp__adj_term){L->ka[o->track] + 1, 1.0};
+        /* leapfrog (network_raw.c): H_A - H_B - c_A (a_k + b_k dt_k) + c_B (a_m + b_m dt_m) = r;
+         * side by side on one station: the same without the heights */
+        if (o->kind == HYP_OBS_LEAPFROG || o->kind == HYP_OBS_SIDE_BY_SIDE) {
+            if (o->station2 != o->station) {
+                t[nt++] = (hyp__adj_term){L->su[o->station], 1.0};
+                t[nt++] = (hyp__adj_term){L->su[o->station2], -1.0};
+            }
+            double c2 = N->coef2[i], dt2 = N->dt2_h[i];
+            t[nt++] = (hyp__adj_term){L->ka[o->track], -c};
+            t[nt++] = (hyp__adj_term){L->ka[o->track] + 1, -c * dt};
+            t[nt++] = (hyp__adj_term){L->ka[o->track2], c2};
+            t[nt++] = (hyp__adj_term){L->ka[o->track2] + 1, c2 * dt2};
+        }
+        if (o->kind == HYP_OBS_LOOP) {   /* H_s - c w_j = r */
+            t[nt++] = (hyp__adj_term){L->su[o->station], 1.0};
+            t[nt++] = (hyp__adj_term){L->w0 + N->node[i], -c};
+        }
+        if (o->kind == HYP_OBS_WEATHER_STEP) {   /* w_{j+1} - w_j = 0 */
+            t[nt++] = (hyp__adj_term){L->w0 + N->node[i] + 1, 1.0};
+            t[nt++] = (hyp__adj_term){L->w0 + N->node[i], -1.0};
+        }
+        if (o->kind == HYP_OBS_INDEX_PRIOR)
+            t[nt++] = (hyp__adj_term){L->ka[o->track], 1.0};
         L->rows[L->n_rows] = (hyp__adj_obs){t, nt, o->observed_m, o->sigma_m, NULL, 1};
         L->row_obs[L->n_rows++] = i;
     }
@@ -193,13 +230,19 @@ static void station_counts(hyp__net *N)
     hyp_network_result *r = N->r;
     for (size_t i = 0; i < r->n_obs; i++) {
         const hyp_network_obs *o = &r->obs[i];
-        if (o->kind != HYP_OBS_OCCUPATION)
+        if (o->kind != HYP_OBS_OCCUPATION && o->kind != HYP_OBS_LEAPFROG && o->kind != HYP_OBS_LOOP &&
+            !(o->kind == HYP_OBS_SIDE_BY_SIDE && o->station2 != o->station))
             continue;
-        hyp_network_station *t = &r->st[o->station];
-        t->rejected += o->rejected != 0;
-        t->used += o->used != 0;
-        if (o->w == o->w && !(fabs(o->w) <= t->max_abs_w))
-            t->max_abs_w = fabs(o->w);
+        for (int e = 0; e < 2; e++) {   /* a leapfrog leg counts at both its stations */
+            size_t sx = e ? o->station2 : o->station;
+            if (sx == SIZE_MAX)
+                continue;
+            hyp_network_station *t = &r->st[sx];
+            t->rejected += o->rejected != 0;
+            t->used += o->used != 0;
+            if (o->w == o->w && !(fabs(o->w) <= t->max_abs_w))
+                t->max_abs_w = fabs(o->w);
+        }
     }
     for (size_t s = 0; s < r->stations.count; s++)
         if (r->st[s].rejected && !r->st[s].used && !r->st[s].control) {
@@ -269,8 +312,12 @@ hyp_status hyp__net_adjust(hyp__net *N, hyp_error *err)
     if (!occupied)
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     for (size_t i = 0; i < r->n_obs; i++)
-        if (r->obs[i].kind == HYP_OBS_OCCUPATION && usable(&r->obs[i]))
+        if ((r->obs[i].kind == HYP_OBS_OCCUPATION || r->obs[i].kind == HYP_OBS_LEAPFROG ||
+             r->obs[i].kind == HYP_OBS_SIDE_BY_SIDE || r->obs[i].kind == HYP_OBS_LOOP) && usable(&r->obs[i])) {
             occupied[r->obs[i].station] = 1;
+            if (r->obs[i].station2 != SIZE_MAX)
+                occupied[r->obs[i].station2] = 1;
+        }
     hyp_status st = add_constraints(N, occupied, err);
     layout L = {0};
     if (!st)
@@ -282,7 +329,21 @@ hyp_status hyp__net_adjust(hyp__net *N, hyp_error *err)
     ao.alpha_w = N->o->alpha_w;
     ao.alpha_global = N->o->alpha_global;
     ao.snoop = 1;
-    hyp__adj_problem pb = {L.n_unknowns, (const char *const *)L.names, L.n_rows, L.rows};
+    /* rows left out of the adjustment, for their sigma only: the index
+     * difference of two raw rovers never compared side by side */
+    size_t K = r->n_tracks, extra = 0;
+    for (size_t k = 0; !st && N->pair_link && k < K; k++)
+        for (size_t m = k + 1; m < K; m++) {
+            unsigned char l = N->pair_link[k * K + m];
+            if (!(l & 1) || (l & 2) || L.ka[k] == SIZE_MAX || L.ka[m] == SIZE_MAX)
+                continue;
+            size_t row = L.n_rows + extra++;
+            hyp__adj_term *t = &L.terms[6 * row];
+            t[0] = (hyp__adj_term){L.ka[k], 1.0};
+            t[1] = (hyp__adj_term){L.ka[m], -1.0};
+            L.rows[row] = (hyp__adj_obs){t, 2, 0.0, 1.0, NULL, 0};
+        }
+    hyp__adj_problem pb = {L.n_unknowns, (const char *const *)L.names, L.n_rows + extra, L.rows};
     hyp__adj_result a;
     hyp__adj_result_init(&a);
     hyp_error e;
@@ -293,9 +354,20 @@ hyp_status hyp__net_adjust(hyp__net *N, hyp_error *err)
     if (!st) {
         fill(N, &L, &a);
         station_counts(N);
+        for (size_t q = 0; q < extra && N->pair_sigma; q++) {
+            const hyp__adj_term *t = L.rows[L.n_rows + q].terms;
+            size_t k = SIZE_MAX, m = SIZE_MAX;
+            for (size_t j = 0; j < K; j++) {
+                k = L.ka[j] == t[0].unknown ? j : k;
+                m = L.ka[j] == t[1].unknown ? j : m;
+            }
+            double sg = a.sigma_adj[L.n_rows + q] * (r->scaled && a.s0_sq == a.s0_sq ? sqrt(a.s0_sq) : 1.0);
+            if (k != SIZE_MAX && m != SIZE_MAX)
+                N->pair_sigma[k * K + m] = N->pair_sigma[m * K + k] = sg;
+        }
     }
     hyp__adj_result_free(&a);
-    layout_free(&L, S + 2 * r->n_tracks + 1);
+    layout_free(&L, S + 2 * r->n_tracks + N->n_nodes + 1);
     free(occupied);
     return st;
 }

@@ -27,14 +27,42 @@ typedef struct hyp__net {
     double *coef;          /* per observation: the sensitivity c (m/Pa) */
     double *dt_h;          /* per observation: hours since its track's start */
     double q_pa2_per_s;    /* random-walk drift, Pa^2/s */
+    /* surveys without a base (network_raw.c) */
+    double *coef2;         /* per observation: the second instrument's c (m/Pa) */
+    double *dt2_h;         /* ... and its hours since its track's start */
+    size_t *node;          /* per observation: loop weather node (SIZE_MAX: none) */
+    hyp__log *raw;         /* per track: the log read without a base */
+    struct hyp__rawocc *ro;/* occupations of the raw tracks */
+    size_t n_ro, ro_alloc;
+    size_t n_nodes;        /* loop weather nodes */
+    unsigned char *pair_link;  /* per pair of tracks (K x K): 1 a leg, 2 side by side too */
+    double *pair_c_sum;        /* ... the sum of their legs' sensitivities (m/Pa) */
+    size_t *pair_c_n;
+    double *pair_sigma;        /* ... the adjusted index difference's sigma (Pa) when
+                                  they were never side by side (NaN: none) */
 } hyp__net;
 
 hyp_network_obs *hyp__net_push(hyp__net *N, hyp_obs_kind kind, double c, double dt_h);
 hyp_status hyp__net_occupation(hyp__net *N, size_t k, const hyp_rover_run *run, const hyp__window *win,
                                hyp_error *err);
-/* The windows of track k (book, waypoints, found), merged, into *out. */
-hyp_status hyp__net_windows(hyp__net *N, size_t k, const hyp_rover_run *run, hyp__window **out, size_t *n,
-                            hyp_error *err);
+/* The windows of track k (book, waypoints, found), merged, into *out:
+ * from its samples s and its GPX waypoints wp (NULL: none). */
+hyp_status hyp__net_windows(hyp__net *N, size_t k, const hyp_series *s, const hyp_waypoints *wp, hyp__window **out,
+                            size_t *n, hyp_error *err);
+
+/* Surveys without a base (network_raw.c). */
+/* 1 when a base log of the survey covers part of the rover's time. */
+int hyp__net_covered(const hyp_survey *sv, const hyp_series *s);
+/* Track k read without a base (N->raw[k] holds its log): its occupations. */
+hyp_status hyp__net_raw_track(hyp__net *N, size_t k, hyp_error *err);
+/* After all tracks: leapfrog and side-by-side observations between the
+ * raw tracks' occupations, loops for raw tracks overlapping none, the index
+ * priors, and the warnings about the design. */
+hyp_status hyp__net_raw_observations(hyp__net *N, hyp_error *err);
+/* After the adjustment: the warnings that need its sigmas, and each
+ * station's method. */
+void hyp__net_raw_after(hyp__net *N);
+void hyp__net_raw_free(hyp__net *N);
 /* Builds the adjustment from the observations, solves and tests it, and
  * fills the stations, tracks and observations of the result. */
 hyp_status hyp__net_adjust(hyp__net *N, hyp_error *err);

@@ -173,12 +173,10 @@ static int merge_one(hyp__net *N, const hyp_network_track *t, winlist *out, cons
     return win_add(out, w->station, w->source, w->t0, w->t1, w->line);
 }
 
-static int waypoint_windows(const hyp__net *N, const hyp_rover_run *run, winlist *out)
+static int waypoint_windows(const hyp__net *N, const hyp_waypoints *wp, winlist *out)
 {
-    const struct hyp__rover_priv *p = run->priv;
-    if (!p->rv.is_gpx)
+    if (!wp)
         return 0;
-    const hyp_waypoints *wp = &p->rv.doc.wpts;
     double half = 0.5 * N->o->waypoint_window_s;
     for (size_t i = 0; i < wp->count; i++) {
         long s = wp->name[i] ? hyp_benchmarks_find(&N->r->stations, wp->name[i]) : -1;
@@ -195,8 +193,8 @@ static int cmp_win(const void *a, const void *b)
     return (x > y) - (x < y);
 }
 
-hyp_status hyp__net_windows(hyp__net *N, size_t k, const hyp_rover_run *run, hyp__window **wout, size_t *nout,
-                            hyp_error *err)
+hyp_status hyp__net_windows(hyp__net *N, size_t k, const hyp_series *s, const hyp_waypoints *wp, hyp__window **wout,
+                            size_t *nout, hyp_error *err)
 {
     winlist out = {0}, found = {0}, wpts = {0};
     const hyp_benchmarks *st = &N->r->stations;
@@ -206,7 +204,7 @@ hyp_status hyp__net_windows(hyp__net *N, size_t k, const hyp_rover_run *run, hyp
         for (size_t i = 0; i < st->count; i++)
             nr.by_lat[i] = i;
         qsort_r(nr.by_lat, st->count, sizeof *nr.by_lat, cmp_lat, (void *)st);
-        if ((N->o->auto_occupations && found_windows(N, run->rover, &nr, &found)) || waypoint_windows(N, run, &wpts))
+        if ((N->o->auto_occupations && found_windows(N, s, &nr, &found)) || waypoint_windows(N, wp, &wpts))
             rc = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     }
     for (size_t j = 0; !rc && j < found.n; j++)

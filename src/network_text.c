@@ -16,7 +16,22 @@
 static const char *kind_name(hyp_obs_kind k)
 {
     return k == HYP_OBS_OCCUPATION ? "occupation" : k == HYP_OBS_COLOCATION ? "co-location"
-         : k == HYP_OBS_CONTROL ? "control" : "drift prior";
+         : k == HYP_OBS_CONTROL ? "control" : k == HYP_OBS_DRIFT_PRIOR ? "drift prior"
+         : k == HYP_OBS_LEAPFROG ? "leapfrog" : k == HYP_OBS_SIDE_BY_SIDE ? "side by side"
+         : k == HYP_OBS_LOOP ? "loop" : k == HYP_OBS_WEATHER_STEP ? "weather step" : "index prior";
+}
+
+/* The unit of an observation's value, sigma and residual. */
+static const char *kind_unit(hyp_obs_kind k)
+{
+    return k == HYP_OBS_DRIFT_PRIOR ? "Pa/h" : k == HYP_OBS_WEATHER_STEP || k == HYP_OBS_INDEX_PRIOR ? "Pa" : "m";
+}
+
+/* Observations with a station and a window (the others: control, priors). */
+static int has_station(hyp_obs_kind k)
+{
+    return k == HYP_OBS_OCCUPATION || k == HYP_OBS_CONTROL || k == HYP_OBS_LEAPFROG || k == HYP_OBS_SIDE_BY_SIDE ||
+           k == HYP_OBS_LOOP;
 }
 
 static const char *source_name(hyp_occ_source s)
@@ -45,7 +60,7 @@ static void csv_text(FILE *f, const char *s)
 static void write_stations_csv(FILE *f, const hyp_network_result *r)
 {
     fputs("name,lat,lon,height,sigma,occupations_used,occupations_rejected,control,max_abs_w,"
-          "free_air_sigma_mgal,bouguer_sigma_mgal,vertical_ref\n", f);
+          "free_air_sigma_mgal,bouguer_sigma_mgal,vertical_ref,method\n", f);
     for (size_t s = 0; s < r->stations.count; s++) {
         const hyp_network_station *t = &r->st[s];
         csv_text(f, r->stations.name[s]);
@@ -59,28 +74,30 @@ static void write_stations_csv(FILE *f, const hyp_network_result *r)
         num(f, t->free_air_mgal, 3);
         fputc(',', f);
         num(f, t->bouguer_mgal, 3);
-        fprintf(f, ",%s\n", hyp_vref_name(r->out_ref));
+        fprintf(f, ",%s,%s\n", hyp_vref_name(r->out_ref), t->method);
     }
 }
 
 static void write_obs_csv(FILE *f, const hyp_network_result *r)
 {
     fputs("kind,station,rover,start,end,samples,source,observed,sigma,residual,standardized_residual,redundancy,"
-          "fieldbook_line,flag\n", f);
+          "fieldbook_line,flag,station2,rover2\n", f);
     for (size_t i = 0; i < r->n_obs; i++) {
         const hyp_network_obs *o = &r->obs[i];
         char a[40] = "", b[40] = "";
-        if (o->kind == HYP_OBS_OCCUPATION || o->kind == HYP_OBS_COLOCATION) {
+        if (o->kind != HYP_OBS_CONTROL && o->kind != HYP_OBS_DRIFT_PRIOR && o->kind != HYP_OBS_INDEX_PRIOR) {
             hyp_time_format(o->start_s, a, sizeof a);
             hyp_time_format(o->end_s, b, sizeof b);
         }
         fprintf(f, "%s,", kind_name(o->kind));
-        if (o->kind == HYP_OBS_OCCUPATION || o->kind == HYP_OBS_CONTROL)
+        if (has_station(o->kind))
             csv_text(f, r->stations.name[o->station]);
         fputc(',', f);
         if (o->kind != HYP_OBS_CONTROL)
             csv_text(f, r->tracks[o->track].name);
-        fprintf(f, ",%s,%s,%zu,%s,", a, b, o->samples, o->kind == HYP_OBS_OCCUPATION ? source_name(o->source) : "");
+        fprintf(f, ",%s,%s,%zu,%s,", a, b, o->samples,
+                o->kind == HYP_OBS_OCCUPATION || o->kind == HYP_OBS_LEAPFROG || o->kind == HYP_OBS_SIDE_BY_SIDE ||
+                o->kind == HYP_OBS_LOOP ? source_name(o->source) : "");
         num(f, o->observed_m, 3);
         fputc(',', f);
         num(f, o->sigma_m, 3);
@@ -95,6 +112,13 @@ static void write_obs_csv(FILE *f, const hyp_network_result *r)
             fprintf(f, "%u", o->line);
         fputc(',', f);
         csv_text(f, o->flag);
+        fputc(',', f);
+        if ((o->kind == HYP_OBS_LEAPFROG || o->kind == HYP_OBS_SIDE_BY_SIDE) && o->station2 != SIZE_MAX) {
+            csv_text(f, r->stations.name[o->station2]);
+            fputc(',', f);
+            csv_text(f, r->tracks[o->track2].name);
+        } else
+            fputc(',', f);
         fputc('\n', f);
     }
 }
@@ -155,13 +179,24 @@ static void text_tests(FILE *f, const hyp_network_result *r)
             fprintf(f, "            control height of %s (%.3f m", r->stations.name[o->station], o->observed_m);
         else if (o->kind == HYP_OBS_COLOCATION)
             fprintf(f, "            co-location of %s from %s (with the base", r->tracks[o->track].name, a);
+        else if (o->kind == HYP_OBS_LEAPFROG || o->kind == HYP_OBS_SIDE_BY_SIDE)
+            fprintf(f, "            %s %s by %s - %s by %s from %s (%s", kind_name(o->kind), r->stations.name[o->station],
+                    r->tracks[o->track].name, o->station2 != SIZE_MAX ? r->stations.name[o->station2] : "",
+                    r->tracks[o->track2].name, a, source_name(o->source));
+        else if (o->kind == HYP_OBS_LOOP)
+            fprintf(f, "            loop: %s by %s from %s (%s", r->stations.name[o->station], r->tracks[o->track].name, a,
+                    source_name(o->source));
+        else if (o->kind == HYP_OBS_WEATHER_STEP)
+            fprintf(f, "            weather step of %s from %s (%.0f Pa", r->tracks[o->track].name, a, o->sigma_m);
+        else if (o->kind == HYP_OBS_INDEX_PRIOR)
+            fprintf(f, "            index prior of %s (%.0f Pa", r->tracks[o->track].name, o->sigma_m);
         else
             fprintf(f, "            drift prior of %s (%.0f Pa/h", r->tracks[o->track].name, o->sigma_m);
         if (o->line)
             fprintf(f, ", line %u", o->line);
         fprintf(f, "): ");
         if (o->w == o->w)
-            fprintf(f, "w %+.2f, residual %+.3f %s; ", o->w, o->residual_m, o->kind == HYP_OBS_DRIFT_PRIOR ? "Pa/h" : "m");
+            fprintf(f, "w %+.2f, residual %+.3f %s; ", o->w, o->residual_m, kind_unit(o->kind));
         fprintf(f, "%s\n", o->flag);
     }
     if (beside)
@@ -179,6 +214,17 @@ static void text_tracks(FILE *f, const hyp_network_result *r)
         }
         char a[40];
         hyp_time_format(t->t0_s, a, sizeof a);
+        if (t->raw == 2) {
+            fprintf(f, "  track     %s: loop without a base, %zu occupations; the weather (with the index) solved at "
+                       "each\n", t->name, t->occupations);
+            continue;
+        }
+        if (t->raw == 1)
+            fprintf(f, "  track     %s: leapfrog without a base, %zu occupations in legs; index at %s %+.3f hPa +- "
+                       "%.3f hPa, drift %+.3f hPa/h +- %.3f hPa/h\n", t->name, t->occupations, a, t->offset_pa / 100.0,
+                    t->offset_sigma_pa / 100.0, t->drift_pa_per_h / 100.0, t->drift_sigma_pa_per_h / 100.0);
+        if (t->raw)
+            continue;
         fprintf(f, "  track     %s: %zu occupations, %zu co-locations; offset at %s %+.3f hPa +- %.3f hPa, "
                    "drift %+.3f hPa/h +- %.3f hPa/h\n", t->name, t->occupations, t->colocations, a, t->offset_pa / 100.0,
                 t->offset_sigma_pa / 100.0, t->drift_pa_per_h / 100.0, t->drift_sigma_pa_per_h / 100.0);
@@ -220,8 +266,8 @@ void hyp_network_write_text(FILE *f, const hyp_network_result *r)
     text_tests(f, r);
     text_tracks(f, r);
     text_repeats(f, r);
-    fprintf(f, "  stations  %-12s %10s %8s %5s %5s %7s %9s %9s\n", "name", "height m", "sigma m", "used", "rej.",
-            "max |w|", "FA mGal", "BG mGal");
+    fprintf(f, "  stations  %-12s %10s %8s %5s %5s %7s %9s %9s  %s\n", "name", "height m", "sigma m", "used", "rej.",
+            "max |w|", "FA mGal", "BG mGal", "method");
     for (size_t s = 0; s < r->stations.count; s++) {
         const hyp_network_station *t = &r->st[s];
         if (!(t->height_m == t->height_m))
@@ -232,7 +278,7 @@ void hyp_network_write_text(FILE *f, const hyp_network_result *r)
             fprintf(f, " %7.2f", t->max_abs_w);
         else
             fprintf(f, " %7s", "-");
-        fprintf(f, " %9.3f %9.3f%s\n", t->free_air_mgal, t->bouguer_mgal, t->control ? "  control" : "");
+        fprintf(f, " %9.3f %9.3f  %s\n", t->free_air_mgal, t->bouguer_mgal, t->method);
     }
     fprintf(f, "            FA, BG: the sigma as a free-air (0.3086 mGal/m) and a Bouguer slab (0.1119 mGal/m at\n"
                "            2670 kg/m3) reduction error\n");

@@ -208,7 +208,7 @@ static hyp_status fig_tracks(hyp__page *p, const hyp_network_result *r, hyp_erro
     if (fb_alloc(&a, r->n_tracks) || fb_alloc(&d, r->n_tracks))
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     for (size_t k = 0; k < r->n_tracks; k++) {
-        if (r->tracks[k].status)
+        if (r->tracks[k].status || r->tracks[k].raw == 2)   /* a loop has no offset of its own */
             continue;
         a.x[a.n] = (double)(k + 1), a.y[a.n] = r->tracks[k].offset_pa / 100.0, a.e[a.n++] = 0.02 * r->tracks[k].offset_sigma_pa;
         d.x[d.n] = (double)(k + 1), d.y[d.n] = r->tracks[k].drift_pa_per_h / 100.0, d.e[d.n++] = 0.02 * r->tracks[k].drift_sigma_pa_per_h;
@@ -262,14 +262,15 @@ static void tables(hyp__page *p, const hyp_network_result *r)
     hyp__page_kv(p, "result", "%s", r->tests_failed ? "a test failed (exit status 3)" : "every test passed");
     hyp__page_table_end(p);
     static const char *const sh[] = {"#", "station", "height [m]", "sigma [m]", "used", "rejected", "control", "max |w|",
-                                     "free-air [mGal]", "Bouguer [mGal]"};
+                                     "free-air [mGal]", "Bouguer [mGal]", "method"};
     hyp__page_section(p, "stations", "Stations");
-    hyp__page_table(p, NULL, sh, 10);
+    hyp__page_table(p, NULL, sh, 11);
     for (size_t s = 0; s < r->stations.count; s++) {
         const hyp_network_station *t = &r->st[s];
         hyp__page_out(p, "<tr><td>%z</td><td>%t</td><td>%.3f</td><td>%.3f</td><td>%z</td><td>%z</td><td>%s</td><td>%.2f</td>"
-                         "<td>%.3f</td><td>%.3f</td></tr>\n", s + 1, r->stations.name[s], t->height_m, t->sigma_m, t->used,
-                      t->rejected, t->control ? "yes" : "no", t->max_abs_w, t->free_air_mgal, t->bouguer_mgal);
+                         "<td>%.3f</td><td>%.3f</td><td>%t</td></tr>\n", s + 1, r->stations.name[s], t->height_m, t->sigma_m,
+                      t->used, t->rejected, t->control ? "yes" : "no", t->max_abs_w, t->free_air_mgal, t->bouguer_mgal,
+                      t->method);
     }
     hyp__page_table_end(p);
     static const char *const th[] = {"#", "track", "occupations", "co-locations", "offset [hPa]", "sigma [hPa]",
@@ -278,6 +279,12 @@ static void tables(hyp__page *p, const hyp_network_result *r)
     hyp__page_table(p, NULL, th, 8);
     for (size_t k = 0; k < r->n_tracks; k++) {
         const hyp_network_track *t = &r->tracks[k];
+        if (t->raw == 2) {   /* a loop: the weather nodes take its index */
+            hyp__page_out(p, "<tr><td>%z</td><td>%t</td><td>%z</td><td>%z</td><td colspan=\"4\">loop without a base: "
+                             "the weather (with the index) solved at each occupation</td></tr>\n", k + 1, t->name,
+                          t->occupations, t->colocations);
+            continue;
+        }
         hyp__page_out(p, "<tr><td>%z</td><td>%t</td><td>%z</td><td>%z</td><td>%+.3f</td><td>%.3f</td><td>%+.3f</td>"
                          "<td>%.3f</td></tr>\n", k + 1, t->name, t->occupations, t->colocations, t->offset_pa / 100.0,
                       t->offset_sigma_pa / 100.0, t->drift_pa_per_h / 100.0, t->drift_sigma_pa_per_h / 100.0);
@@ -291,7 +298,8 @@ static void tables(hyp__page *p, const hyp_network_result *r)
         if (!o->rejected && !(o->used && o->flag[0]))
             continue;
         hyp__page_out(p, "<tr><td>%t</td><td>%t</td><td>%T</td><td>%+.2f</td><td>%+.3f</td><td>%t</td></tr>\n",
-                      o->kind == HYP_OBS_OCCUPATION || o->kind == HYP_OBS_CONTROL ? r->stations.name[o->station] : "",
+                      o->kind == HYP_OBS_OCCUPATION || o->kind == HYP_OBS_CONTROL || o->kind == HYP_OBS_LEAPFROG ||
+                      o->kind == HYP_OBS_SIDE_BY_SIDE || o->kind == HYP_OBS_LOOP ? r->stations.name[o->station] : "",
                       o->kind != HYP_OBS_CONTROL ? r->tracks[o->track].name : "", o->start_s, o->w, o->residual_m, o->flag);
     }
     hyp__page_table_end(p);

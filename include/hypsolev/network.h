@@ -60,6 +60,14 @@ typedef struct hyp_network_opts {
                                        data, default 10 Pa/h (a weak constraint that
                                        keeps a track with one calibration solvable;
                                        common practice, no source) */
+    /* Surveys without a base (rovers no base log covers; docs/methods.md,
+     * "Surveys without a base"): */
+    double min_common_s;            /* leapfrog: two occupations by different
+                                       instruments give an observation when they
+                                       overlap at least this long, default 120 s */
+    double weather_walk_hpa_sqrt_h; /* loop: the weather's pressure as a random
+                                       walk, 1 sigma in hPa per sqrt(hour), default
+                                       0.6 (docs/methods.md says from where) */
 } hyp_network_opts;
 
 HYP_API void hyp_network_opts_init(hyp_network_opts *o);
@@ -72,7 +80,16 @@ typedef enum hyp_obs_kind {
     HYP_OBS_OCCUPATION = 0,   /* a rover on a station */
     HYP_OBS_COLOCATION = 1,   /* a rover beside a base: its offset */
     HYP_OBS_CONTROL = 2,      /* a control station's published height */
-    HYP_OBS_DRIFT_PRIOR = 3   /* a track's drift before the data */
+    HYP_OBS_DRIFT_PRIOR = 3,  /* a track's drift before the data */
+    HYP_OBS_LEAPFROG = 4,     /* two instruments at once on two stations: H(station)
+                                 - H(station2), m */
+    HYP_OBS_SIDE_BY_SIDE = 5, /* two instruments at once on one station (or within
+                                 a few metres): their index difference, as m */
+    HYP_OBS_LOOP = 6,         /* one rover, no base: H(station) - c w, m (w: the
+                                 weather node of the occupation) */
+    HYP_OBS_WEATHER_STEP = 7, /* loop: w(next) - w = 0, Pa */
+    HYP_OBS_INDEX_PRIOR = 8   /* a rover read without a base: its index before the
+                                 data (0, wide), Pa */
 } hyp_obs_kind;
 
 typedef struct hyp_network_obs {
@@ -96,6 +113,9 @@ typedef struct hyp_network_obs {
     int rejected;             /* taken out by data snooping */
     char flag[160];           /* "" or why it was rejected or left out */
     unsigned line;            /* field book line (0: none) */
+    size_t station2;          /* leapfrog, side by side: the second instrument's
+                                 station (SIZE_MAX: none) */
+    size_t track2;            /* leapfrog, side by side: the second instrument */
 } hyp_network_obs;
 
 typedef struct hyp_network_station {
@@ -106,6 +126,8 @@ typedef struct hyp_network_station {
     double max_abs_w;         /* largest |w| of its occupations (NaN: none) */
     double free_air_mgal;     /* sigma as a free-air reduction error, mGal */
     double bouguer_mgal;      /* sigma as a Bouguer slab error, mGal */
+    char method[16];          /* what gave its height: "base", "leapfrog", "loop",
+                                 "control", "mixed" or "" (not determined) */
 } hyp_network_station;
 
 typedef struct hyp_network_track {
@@ -118,6 +140,7 @@ typedef struct hyp_network_track {
     size_t occupations, colocations;
     hyp_status status;        /* HYP_OK, or why the track could not be used */
     char error[1024];
+    int raw;                  /* read without a base: 1 leapfrog, 2 loop */
 } hyp_network_track;
 
 typedef struct hyp_network_result {
@@ -144,7 +167,9 @@ typedef struct hyp_network_result {
 
 /* Runs every rover of the survey (bases, units, zones and the rest as the
  * survey's options say: the same as `correct`), finds the occupations,
- * adjusts the network and tests it. *res is set (free it) unless out of
+ * adjusts the network and tests it. A rover no base covers is read raw:
+ * with others at once it gives leapfrog legs, alone a loop (the weather
+ * solved; it needs an occupied control station, else HYP_ERR_NODATA). *res is set (free it) unless out of
  * memory, on an error too (its messages say what came before; its heights
  * are then not filled); on HYP_OK its tests_failed says whether the tests
  * passed. */

@@ -16,7 +16,7 @@ typedef struct args {
 } args;
 
 enum { O_STATIONS = CLI_OWN, O_BOOK, O_GPX, O_RESIDUALS, O_REPORT, O_HELP, O_RADIUS, O_MIN, O_CONTROL_SIGMA,
-       O_NO_FIND };
+       O_NO_FIND, O_MIN_COMMON, O_WEATHER_WALK };
 
 static const struct option own[] = {
     {"stations", required_argument, 0, O_STATIONS}, {"occupations", required_argument, 0, O_BOOK},
@@ -24,7 +24,8 @@ static const struct option own[] = {
     {"residuals", required_argument, 0, O_RESIDUALS}, {"report", required_argument, 0, O_REPORT},
     {"occupation-radius", required_argument, 0, O_RADIUS}, {"occupation-min", required_argument, 0, O_MIN},
     {"control-sigma", required_argument, 0, O_CONTROL_SIGMA}, {"no-find-occupations", no_argument, 0, O_NO_FIND},
-    {"help", no_argument, 0, O_HELP}, {0, 0, 0, 0},
+    {"help", no_argument, 0, O_HELP}, {"min-common", required_argument, 0, O_MIN_COMMON},
+    {"weather-walk", required_argument, 0, O_WEATHER_WALK}, {0, 0, 0, 0},
 };
 
 static int number(const char *opt, const char *text, double lo, double hi, double *v)
@@ -52,6 +53,8 @@ static int own_option(void *ctx, int code, const char *arg)
     case O_RADIUS: return number("--occupation-radius", arg, 1, 1000, &a->no.occ_radius_m);
     case O_MIN: return number("--occupation-min", arg, 10, 86400, &a->no.occ_min_s);
     case O_CONTROL_SIGMA: return number("--control-sigma", arg, 0.0001, 100, &a->no.control_sigma_m);
+    case O_MIN_COMMON: return number("--min-common", arg, 10, 86400, &a->no.min_common_s);
+    case O_WEATHER_WALK: return number("--weather-walk", arg, 0.01, 20, &a->no.weather_walk_hpa_sqrt_h);
     }
     return EXIT_USAGE;
 }

@@ -239,3 +239,10 @@ hyp_cli_case(base_own_unit_bad 2 "--base-pressure-unit \"psi\": expected one of 
 hyp_cli_case(report_html_quiet 0 "^$" correct ${R} ${B} ${O} --report @OUT@/r.html -q)
 hyp_cli_case(report_html_needs_dir 2 "--report-html names the reports of --out-dir" correct ${R} ${B} ${O} --report-html)
 hyp_cli_case(report_html_unwritable 1 "r.HTML: cannot write: the directory does not exist" correct ${R} ${B} ${O} --report @OUT@/no/dir/r.HTML)
+# adjust without a base (issue 13): one rover alone is a loop; with no
+# known mark it is refused, saying what is missing; with one mark and no
+# repeat it is solved with a warning; the new options' ranges.
+hyp_cli_case(adjust_loop_no_known_mark 1 "a loop without a base needs a known mark: none of the stations the rovers occupied has a height" adjust @DATA@/rover.gpx --stations @DATA@/adjust/stations_nocontrol.csv --occupations @DATA@/adjust/book.csv -o @OUT@/st.csv)
+hyp_cli_case(adjust_loop_one_mark_warned 0 "loop rover: no station occupied twice and 1 known mark: the weather cannot be told apart from the heights.*BM-1 .* control" adjust @DATA@/rover.gpx --stations @DATA@/benchmarks.csv -o @OUT@/st.csv)
+hyp_cli_case(adjust_min_common_bad 2 "--min-common \"5\": expected a number from 10 to 86400" adjust @DATA@/rover.gpx --stations @DATA@/benchmarks.csv -o @OUT@/st.csv --min-common 5)
+hyp_cli_case(adjust_weather_walk_bad 2 "--weather-walk \"nan\": expected a number from 0.01 to 20" adjust @DATA@/rover.gpx --stations @DATA@/benchmarks.csv -o @OUT@/st.csv --weather-walk nan)
