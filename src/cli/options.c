@@ -13,7 +13,6 @@
 #define SET(name) {name, required_argument, 0, CLI_SET}
 #define FLAG(name) {name, no_argument, 0, CLI_SET}
 #define BASE(name) {name, required_argument, 0, CLI_BASE_SET}
-#define ROVER(name) {name, required_argument, 0, CLI_ROVER_SET}
 
 const struct option cli_common_options[] = {
     {"base", required_argument, 0, CLI_BASE}, BASE("base-height"), BASE("base-at"),
@@ -27,9 +26,12 @@ const struct option cli_common_options[] = {
     SET("colocate-radius"), SET("colocate-min"), SET("max-gap"), SET("humidity"), SET("lapse-rate"), SET("tie-radius"),
     SET("tie-min"), SET("smooth"), SET("gradient-sigma"), SET("clock-sigma"), SET("column-temp-sigma"),
     SET("lapse-sigma"), SET("benchmark-sigma"), {"quiet", no_argument, 0, 'q'}, {"jobs", required_argument, 0, 'j'},
-    {"rover", required_argument, 0, CLI_ROVER}, ROVER("rover-pressure-unit"), ROVER("rover-temperature-unit"),
-    ROVER("rover-pressure-field"), ROVER("rover-temperature-field"), ROVER("rover-humidity-field"),
-    ROVER("rover-time-zone"), ROVER("rover-clock-offset"),
+    {"rover", required_argument, 0, CLI_ROVER}, {"rover-pressure-unit", required_argument, 0, CLI_ROVER_SET},
+    {"rover-temperature-unit", required_argument, 0, CLI_ROVER_SET},
+    {"rover-pressure-field", required_argument, 0, CLI_ROVER_SET},
+    {"rover-temperature-field", required_argument, 0, CLI_ROVER_SET},
+    {"rover-humidity-field", required_argument, 0, CLI_ROVER_SET},
+    {"rover-time-zone", required_argument, 0, CLI_ROVER_SET}, {"rover-clock-offset", required_argument, 0, CLI_ROVER_SET},
     {0, 0, 0, 0},
 };
 
