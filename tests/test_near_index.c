@@ -1,13 +1,15 @@
 /* test_near_index.c - the benchmark matcher's index (near_index.c) finds
  * exactly the samples an exhaustive scan with the same geodesic finds, on
  * random sets about ordinary places, the poles and the antimeridian
- * (issue 15: matching 10 000 benchmarks took 31 s). */
+ * (issue 15: matching 10 000 benchmarks took 31 s); and a long benchmark
+ * list is read with its names checked for duplicates per row. */
 #include <stdarg.h>
 #include <stddef.h>
 #include <setjmp.h>
 #include <stdint.h>
 #include <cmocka.h>
 #include <math.h>
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -151,11 +153,46 @@ static void test_known_pair(void **state)
     hyp__near_index_free(&ix);
 }
 
+/* 20 000 benchmarks: every name found again, and a name repeated in
+ * another case refused at its own line, as bench_duplicate.csv's is
+ * (cli_bench_duplicate). */
+static void test_many_benchmarks(void **state)
+{
+    (void)state;
+    const char *path = HYP_BINARY_DIR "/near_index_bm.csv";
+    for (int dup = 0; dup < 2; dup++) {
+        FILE *f = fopen(path, "w");
+        assert_non_null(f);
+        fputs("name,lat,lon,height\n", f);
+        for (int k = 0; k < 20000; k++)
+            fprintf(f, "BM-%d,46.%04d,9.9,%d\n", k, k % 10000, 800 + k % 500);
+        if (dup)
+            fputs("bm-12345,46.8,9.9,800\n", f);   /* line 20002 */
+        assert_int_equal(fclose(f), 0);
+        hyp_benchmarks b;
+        hyp_benchmarks_init(&b);
+        hyp_error err;
+        hyp_status st = hyp_benchmarks_read(path, 0.01, &b, NULL, &err);
+        if (dup) {
+            assert_int_equal(st, HYP_ERR_VALUE);
+            assert_non_null(strstr(err.message, "near_index_bm.csv:20002: benchmark \"bm-12345\" is listed twice"));
+            continue;
+        }
+        assert_int_equal(st, HYP_OK);
+        assert_int_equal(b.count, 20000);
+        assert_int_equal(hyp_benchmarks_find(&b, "bm-19999"), 19999);
+        assert_int_equal(hyp_benchmarks_find(&b, "BM-0"), 0);
+        hyp_benchmarks_free(&b);
+    }
+    remove(path);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(test_same_as_exhaustive),
         cmocka_unit_test(test_known_pair),
+        cmocka_unit_test(test_many_benchmarks),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
