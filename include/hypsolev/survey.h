@@ -62,7 +62,9 @@ typedef struct hyp_survey_opts {
                                   threads are set by the run from the fields
                                   below */
     hyp_read_opts read;        /* how logs are read (its zone is ignored:
-                                  rover_time_zone and each base's own) */
+                                  rover_time_zone and each base's own); the
+                                  default of every rover and base without
+                                  its own (hyp_rover_spec, hyp_base_spec) */
     const char *rover_time_zone;      /* NULL: stamps must carry a zone */
     const char *const *colocate;      /* "START/END" windows, ISO 8601 */
     size_t n_colocate;
