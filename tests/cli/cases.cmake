@@ -272,3 +272,13 @@ hyp_cli_case(rover_given_twice 2 "--rover .*rover_own/rover.gpx is also given as
 hyp_cli_case(rover_in_folder 2 "--rover .*rover.gpx is also given as a rover" correct @DATA@/rover_own --rover ${RO} ${B} --out-dir @OUT@)
 hyp_cli_case(rover_is_folder 2 "--rover .*rover_own: a folder; --rover names one rover file" correct --rover @DATA@/rover_own ${B} ${O})
 set(HYP_CASE_INPUTS "")
+# three rovers in one batch, each read its own way (the local-time CSV by
+# the survey's --time-zone, the default): all three tables equal
+# golden_table's (checked here for rover_own/rover.gpx's)
+set(HYP_CASE_INPUTS @DATA@/rover_own/rover.gpx @DATA@/rover_own/clock_ahead.gpx @DATA@/rover_local.csv @DATA@/base.csv)
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT rover.csv)
+hyp_cli_case(rover_own_batch 0 "^$" correct --rover @DATA@/rover_own/clock_ahead.gpx --rover-clock-offset 3600 @DATA@/rover_local.csv --time-zone Europe/Vienna --rover ${RO} --rover-pressure-field baro --rover-pressure-unit Pa ${B} --out-dir @OUT@ -q -j 2)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+set(HYP_CASE_INPUTS "")
