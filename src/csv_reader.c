@@ -103,7 +103,7 @@ static const char *time_problem(hyp_time_result r)
     switch (r) {
     case HYP_TIME_SYNTAX: return "is not a time; expected ISO 8601 (2026-06-14T09:30:00Z) or Unix epoch seconds";
     case HYP_TIME_RANGE: return "is out of range (a date that does not exist, or before 1900 or after 2200)";
-    case HYP_TIME_NOZONE: return "has no time zone; add Z or an offset, or give the zone with --time-zone (rover) or --base-time-zone";
+    case HYP_TIME_NOZONE: return "has no time zone; add Z or an offset, or give the zone with --time-zone or --rover-time-zone (rover) or --base-time-zone";
     case HYP_TIME_OK: break;
     }
     return "";

@@ -476,7 +476,7 @@ static void end_time(gpx_ctx *g)
     if (r)
         hyp__quote(q, sizeof q, t, strlen(t));
     if (r == HYP_TIME_NOZONE)
-        fail(g, HYP_ERR_VALUE, "<time> \"%s\" has no time zone; add Z or give the zone with --time-zone", q);
+        fail(g, HYP_ERR_VALUE, "<time> \"%s\" has no time zone; add Z or give the zone with --time-zone or --rover-time-zone", q);
     else if (r == HYP_TIME_RANGE)
         fail(g, HYP_ERR_VALUE, "<time> \"%s\" is out of range (a date that does not exist, or before 1900 or after 2200)", q);
     else if (r)
@@ -977,7 +977,7 @@ hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts, hyp_gpx_doc
             st = hyp_error_set(err, HYP_ERR_NODATA, "%s: no point has a <time>; a barometric track needs times", path);
         else if (no_p + no_t >= doc->pts.count)
             st = hyp_error_set(err, HYP_ERR_NODATA,
-                               "%s: no point has a pressure (looked for an element named \"%s\" in each point's extensions; --pressure-field sets the name)",
+                               "%s: no point has a pressure (looked for an element named \"%s\" in each point's extensions; --pressure-field, or --rover-pressure-field for one rover, sets the name)",
                                path, field_name(opts->pressure_field, "pressure"));
         else if (no_p)
             hyp_msgs_add_at(msgs, HYP_WARNING, "sample", path, 0, "%zu of %zu points have no pressure and get no corrected height", no_p,

@@ -211,6 +211,7 @@ void hyp_survey_free(hyp_survey *sv)
     for (size_t k = 0; k < sv->n_cleaned; k++)
         free(sv->cleaned[k]);
     free(sv->cleaned);
+    hyp__rover_own_free(sv);
     pthread_mutex_destroy(&sv->lock);
     free(sv);
 }

@@ -42,6 +42,8 @@ struct hyp_survey {
     pthread_mutex_t lock;       /* the list below */
     char **cleaned;             /* directories cleared of stale staging files */
     size_t n_cleaned;
+    struct hyp__rover_own *rover_own;   /* rovers' own reading options */
+    size_t n_rover_own;
 };
 
 struct hyp__rover_priv {
@@ -58,6 +60,19 @@ struct hyp__rover_priv {
 /* How the rover at `rover` (a path as given) is read: the survey's
  * reading options, its zone, positions wanted. */
 void hyp__rover_read_opts(const hyp_survey *sv, const char *rover, hyp_read_opts *ro);
+
+/* A rover's own reading options (survey_rover_spec.c): the spec with
+ * an owned path, its zone parsed. */
+typedef struct hyp__rover_own {
+    hyp_rover_spec spec;
+    char *path;
+    hyp_zone zone;
+} hyp__rover_own;
+/* The rover's own options, NULL when it has none. */
+const hyp__rover_own *hyp__rover_own_find(const hyp_survey *sv, const char *rover);
+void hyp__rover_own_free(hyp_survey *sv);
+/* Moves a rover read with its own clock offset to true time. */
+void hyp__rover_clock_apply(const hyp__rover_own *own, hyp__log *l);
 
 /* The bases a rover uses (indices into the pool). */
 hyp_status hyp__select_bases(const hyp_survey *sv, const hyp_series *rv, size_t *sel, size_t *n, hyp_error *err);

@@ -109,10 +109,26 @@ static hyp_status prepare_extras(const hyp_survey *sv, hyp_rover_run *r, const f
 
 void hyp__rover_read_opts(const hyp_survey *sv, const char *rover, hyp_read_opts *ro)
 {
-    (void)rover;
+    const hyp__rover_own *own = hyp__rover_own_find(sv, rover);
     *ro = sv->o.read;
     ro->zone = &sv->rover_zone;
     ro->need_position = 1;
+    if (!own)
+        return;
+    /* the rover's own settings where it has them, else the survey's */
+    const hyp_rover_spec *r = &own->spec;
+    if (r->pressure_unit)
+        ro->pressure_unit = r->pressure_unit;
+    if (r->temperature_unit)
+        ro->temperature_unit = r->temperature_unit;
+    if (r->pressure_field)
+        ro->pressure_field = r->pressure_field;
+    if (r->temperature_field)
+        ro->temperature_field = r->temperature_field;
+    if (r->humidity_field)
+        ro->humidity_field = r->humidity_field;
+    if (r->time_zone)
+        ro->zone = &own->zone;
 }
 
 /* Read the rover, choose its bases, correct it, convert its heights. */
@@ -127,6 +143,7 @@ static hyp_status correct_rover(hyp_survey *sv, const hyp_correct_opts *copts, h
         st = hyp__log_read(r->path, &ro, &p->rv, &r->msgs, err);
     if (st)
         return st;
+    hyp__rover_clock_apply(hyp__rover_own_find(sv, r->path), &p->rv);
     r->rover = hyp__log_series(&p->rv);
     r->rover_pressure_unit = p->rv.punit;
     size_t sel[HYP_MAX_BASES], nb = 0;

@@ -187,3 +187,25 @@ hyp_status hyp_base_spec_set(hyp_base_spec *b, const char *name, const char *val
         return HYP_ERR_USAGE;
     return HYP_OK;
 }
+
+hyp_status hyp_rover_spec_set(hyp_rover_spec *r, const char *name, const char *value, hyp_error *err)
+{
+    const char *v = value ? value : "";
+    if (!strcmp(name, "rover-pressure-unit"))
+        return set_unit(HYP_Q_PRESSURE, name, v, &r->pressure_unit, err);
+    if (!strcmp(name, "rover-temperature-unit"))
+        return set_unit(HYP_Q_TEMPERATURE, name, v, &r->temperature_unit, err);
+    if (!strcmp(name, "rover-clock-offset"))
+        return number(name, v, -86400, 86400, &r->clock_offset_s, err);
+    const char **text = !strcmp(name, "rover-pressure-field")      ? &r->pressure_field
+                        : !strcmp(name, "rover-temperature-field") ? &r->temperature_field
+                        : !strcmp(name, "rover-humidity-field")    ? &r->humidity_field
+                        : !strcmp(name, "rover-time-zone")         ? &r->time_zone
+                                                                   : NULL;
+    if (!text)
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s: no such rover setting", name);
+    if (!value || !value[0])
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s \"\": expected a name", name);
+    *text = value;
+    return HYP_OK;
+}

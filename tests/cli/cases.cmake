@@ -246,3 +246,46 @@ hyp_cli_case(adjust_loop_no_known_mark 1 "a loop without a base needs a known ma
 hyp_cli_case(adjust_loop_one_mark_warned 0 "loop rover: no station occupied twice and 1 known mark: the weather cannot be told apart from the heights.*BM-1 .* control" adjust @DATA@/rover.gpx --stations @DATA@/benchmarks.csv -o @OUT@/st.csv)
 hyp_cli_case(adjust_min_common_bad 2 "--min-common \"5\": expected a number from 10 to 86400" adjust @DATA@/rover.gpx --stations @DATA@/benchmarks.csv -o @OUT@/st.csv --min-common 5)
 hyp_cli_case(adjust_weather_walk_bad 2 "--weather-walk \"nan\": expected a number from 0.01 to 20" adjust @DATA@/rover.gpx --stations @DATA@/benchmarks.csv -o @OUT@/st.csv --weather-walk nan)
+# each rover is read its own way (issue 15): rover_own/rover.gpx is
+# rover.gpx with its pressure in Pa in <x:baro> (no unit attribute), beside
+# base.csv's "pressure [hPa]" column; read with --rover's own options it
+# gives the very table of rover.gpx read as it is (golden_table's). The
+# survey's --pressure-field and --pressure-unit stay the default of every
+# rover and base, so given for the rover alone they break the base.
+set(RO @DATA@/rover_own/rover.gpx)
+set(HYP_CASE_INPUTS @DATA@/rover_own/rover.gpx @DATA@/base.csv)
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT t.csv)
+hyp_cli_case(rover_own_field_unit 0 "wrote" correct --rover ${RO} --rover-pressure-field baro --rover-pressure-unit Pa ${B} --table @OUT@/t.csv)
+# clock_ahead.gpx is rover.gpx with every time an hour later (a logger
+# clock one hour ahead): its own clock offset brings it back to true time
+hyp_cli_case(rover_own_clock_offset 0 "wrote" correct --rover @DATA@/rover_own/clock_ahead.gpx --rover-clock-offset 3600 ${B} --table @OUT@/t.csv)
+# the local-time CSV of golden_csv_rover_local_time with its own zone
+hyp_cli_case(rover_own_time_zone 0 "wrote" correct --rover @DATA@/rover_local.csv --rover-time-zone Europe/Vienna ${B} --table @OUT@/t.csv -o @OUT@/t.gpx)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+hyp_cli_case(rover_own_global_default 1 "base.csv:2: header: no \"baro\" column" correct ${RO} --pressure-field baro --pressure-unit Pa ${B} ${O})
+hyp_cli_case(rover_own_clock_not_given 1 "clock_ahead.gpx: .*base.csv: the base's clock looks 1 h 00 min behind the rover's" correct @DATA@/rover_own/clock_ahead.gpx ${B} ${O})
+hyp_cli_case(rover_own_adjust 0 "lies outside the track rover \\(2026-06-18T07:00:00Z to 2026-06-18T07:30:00Z\\)" adjust --rover ${RO} --rover-pressure-field baro --rover-pressure-unit Pa ${B} --stations @DATA@/benchmarks.csv -o @OUT@/st.csv --occupations @DATA@/adjust/book_outside.csv)
+hyp_cli_case(rover_own_adjust_not_given 1 "rover.gpx: no point has a pressure" adjust ${RO} ${B} --stations @DATA@/benchmarks.csv -o @OUT@/st.csv --occupations @DATA@/adjust/book_outside.csv)
+# usage errors name the option and what was expected
+hyp_cli_case(rover_option_without_rover 2 "--rover-pressure-unit must follow the --rover it applies to" correct ${R} --rover-pressure-unit Pa ${B} ${O})
+hyp_cli_case(rover_bad_pressure_unit 2 "--rover-pressure-unit \"bar\": expected one of Pa, hPa, mbar, kPa, inHg, mmHg" correct --rover ${RO} --rover-pressure-unit bar ${B} ${O})
+hyp_cli_case(rover_bad_temperature_unit 2 "--rover-temperature-unit \"R\": expected one of degC, K, degF" correct --rover ${RO} --rover-temperature-unit R ${B} ${O})
+hyp_cli_case(rover_bad_clock_offset 2 "--rover-clock-offset \"1e9\": expected a number from -86400 to 86400" correct --rover ${RO} --rover-clock-offset 1e9 ${B} ${O})
+hyp_cli_case(rover_bad_time_zone 2 "--rover-time-zone \\(of --rover .*rover.gpx\\): " correct --rover ${RO} --rover-time-zone Mars/Olympus ${B} ${O})
+hyp_cli_case(rover_also_positional 2 "--rover .*rover_own/rover.gpx is also given as a rover \\(or twice\\)" correct ${RO} --rover ${RO} --rover-pressure-field baro ${B} ${O})
+hyp_cli_case(rover_given_twice 2 "--rover .*rover_own/rover.gpx is also given as a rover \\(or twice\\)" correct --rover ${RO} --rover ${RO} ${B} ${O})
+hyp_cli_case(rover_in_folder 2 "--rover .*rover.gpx is also given as a rover" correct @DATA@/rover_own --rover ${RO} ${B} --out-dir @OUT@)
+hyp_cli_case(rover_is_folder 2 "--rover .*rover_own: a folder; --rover names one rover file" correct --rover @DATA@/rover_own ${B} ${O})
+set(HYP_CASE_INPUTS "")
+# three rovers in one batch, each read its own way (the local-time CSV by
+# the survey's --time-zone, the default): all three tables equal
+# golden_table's (checked here for rover_own/rover.gpx's)
+set(HYP_CASE_INPUTS @DATA@/rover_own/rover.gpx @DATA@/rover_own/clock_ahead.gpx @DATA@/rover_local.csv @DATA@/base.csv)
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT rover.csv)
+hyp_cli_case(rover_own_batch 0 "^$" correct --rover @DATA@/rover_own/clock_ahead.gpx --rover-clock-offset 3600 @DATA@/rover_local.csv --time-zone Europe/Vienna --rover ${RO} --rover-pressure-field baro --rover-pressure-unit Pa ${B} --out-dir @OUT@ -q -j 2)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+set(HYP_CASE_INPUTS "")
