@@ -80,6 +80,8 @@ void cli_correct_help(void)
 "  --temperature-field NAME (default temperature)\n"
 "  --humidity-field NAME    (default humidity)\n"
 "  --time-zone Z            zone of rover times that carry none\n"
+"  --baro-altitude FIELD    rover GPX stores a barometric altitude (m) in ele or\n"
+"                           in the extension element FIELD, not a pressure\n"
 "\n"
 "batch:\n"
 "  ROVER may be a folder (its .gpx and .csv files) or a quoted pattern\n"
