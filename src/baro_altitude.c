@@ -183,7 +183,7 @@ hyp_status hyp__baro_join(hyp_series *s, const char *path, hyp__baro *b, hyp_msg
         char t[32];
         hyp_time_format(p->time_s, t, sizeof t);
         hyp_msgs_add_at(msgs, HYP_NOTE, "sample", path, p->line,
-                        "barometric altitude re-set at %s: a step of %+.1f m (+-%.1f m) not matched by the motion; "
+                        "barometric altitude re-set at %s: a step of %+.1f m (+-%.2f m) not matched by the motion; "
                         "the later altitudes are joined to the earlier ones",
                         t, p->size_m, p->sigma_m);
     }
