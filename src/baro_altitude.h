@@ -15,6 +15,11 @@
  * re-setting). */
 #define HYP__BARO_VMAX_M_S 5.0
 
+/* The 1-sigma additive offset of a recorder's pressure sensor, Pa, which
+ * the rescaling by the reference takes for part of the reference (common
+ * practice, no source: consumer barometers are sold as +-1 hPa). */
+#define HYP__BARO_SENSOR_SIGMA_PA 100.0
+
 typedef struct hyp__baro {
     double quant_m;            /* step of the stored altitudes, m; 0: finer than 1 mm */
     double quant_pa;           /* its 1-sigma uniform noise q / sqrt(12), in Pa */

@@ -297,7 +297,9 @@ double hyp__budget(const hyp__work *w, size_t i, const hyp__in *in, double dz, d
         }
     }
     if (w->o->n_baro_steps)
-        b[HYP_B_NOISE] = hypot(b[HYP_B_NOISE], c * baro_join_pa(w, i));
+        b[HYP_B_FIT] = hypot(b[HYP_B_FIT], c * baro_join_pa(w, i));
+    if (w->o->baro_offset_sigma_pa > 0)   /* docs/methods.md, "Barometric-altitude tracks" */
+        b[HYP_B_FIT] = hypot(b[HYP_B_FIT], fabs(dz) * w->o->baro_offset_sigma_pa / w->rv->pressure_pa[i]);
     b[HYP_B_RH] = rh_term(w, i, in, dz, tv);
     b[HYP_B_INTERP] = c * rate * in->dt_base / sqrt(12.0);
     b[HYP_B_CLOCK] = c * rate * o->clock_sigma_s;

@@ -135,7 +135,7 @@ static hyp_status join_altitudes(hyp_rover_run *r, hyp_error *err)
  * the second correction only the sensor's own offset to calibrate, so the
  * offset no longer varies with height as p / ref (docs/methods.md). Its
  * messages are the second's; the first's are dropped. */
-static hyp_status baro_reference(hyp_rover_run *r, const hyp_base *bases, size_t nb, const hyp_correct_opts *co,
+static hyp_status baro_reference(hyp_rover_run *r, const hyp_base *bases, size_t nb, hyp_correct_opts *co,
                                  hyp_error *err)
 {
     priv_t *p = r->priv;
@@ -147,6 +147,8 @@ static hyp_status baro_reference(hyp_rover_run *r, const hyp_base *bases, size_t
         return st;
     if (r->result.drift.kind != HYP_DRIFT_NONE)
         hyp__baro_rescale(&p->rv.doc.pts, &r->result, p->baro, r->path, &r->msgs);
+    if (p->baro->ref_pa == p->baro->ref_pa)
+        co->baro_offset_sigma_pa = HYP__BARO_SENSOR_SIGMA_PA;
     hyp_correct_result_free(&r->result);
     hyp_correct_result_init(&r->result);
     return HYP_OK;

@@ -157,6 +157,11 @@ typedef struct hyp_correct_opts {
     double rover_quant_pa;
     const struct hyp_baro_step *baro_steps;
     size_t n_baro_steps;
+    /* ... and whose pressures were rescaled by the reference a first
+     * correction found: the 1-sigma of the recorder's own additive
+     * offset (Pa), which that rescaling turns into a scale error of
+     * sigma / p on the height above the base (0: none). */
+    double baro_offset_sigma_pa;
 } hyp_correct_opts;
 
 /* A re-setting of a barometric-altitude recorder's reference: between the
