@@ -33,7 +33,10 @@ static double find_quant(const hyp_series *s)
             if (!s->flag[i]) {
                 double a = alt_of(s, i) / q[k];
                 n++;
-                bad += fabs(a - nearbyint(a)) * q[k] > 0.002;
+                if (fabs(a - nearbyint(a)) * q[k] > 0.002) {
+                    bad = 1;
+                    break;
+                }
             }
         if (n >= 10 && bad == 0)
             return q[k];

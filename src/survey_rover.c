@@ -135,17 +135,24 @@ static hyp_status join_altitudes(hyp_rover_run *r, hyp_error *err)
  * the second correction only the sensor's own offset to calibrate, so the
  * offset no longer varies with height as p / ref (docs/methods.md). Its
  * messages are the second's; the first's are dropped. */
-static hyp_status baro_reference(hyp_rover_run *r, const hyp_base *bases, size_t nb, hyp_correct_opts *co,
+static hyp_status baro_reference(const hyp_survey *sv, hyp_rover_run *r, const hyp_base *bases, size_t nb,
+                                 hyp_correct_opts *co,
                                  hyp_error *err)
 {
     priv_t *p = r->priv;
     hyp_msgs first;
     hyp_msgs_init(&first);
-    hyp_status st = hyp_correct(r->rover, bases, nb, co, &r->result, &first, err);
+    /* the survey's own offset: the network holds it at 0 in *co to solve
+     * it, but the reference is the recorder's and is found as in correct */
+    hyp_correct_opts c1 = *co;
+    c1.offset_pa = sv->copts.offset_pa;
+    c1.offset_sigma_pa = sv->copts.offset_sigma_pa;
+    hyp_status st = hyp_correct(r->rover, bases, nb, &c1, &r->result, &first, err);
     hyp_msgs_free(&first);
     if (st)
         return st;
-    if (r->result.drift.kind != HYP_DRIFT_NONE)
+    hyp_drift_kind k = r->result.drift.kind;   /* calibrated, not given (--offset, or the network's 0) */
+    if (k == HYP_DRIFT_CONSTANT || k == HYP_DRIFT_LINEAR || k == HYP_DRIFT_PIECEWISE || k == HYP_DRIFT_GNSS)
         hyp__baro_rescale(&p->rv.doc.pts, &r->result, p->baro, r->path, &r->msgs);
     if (p->baro->ref_pa == p->baro->ref_pa)
         co->baro_offset_sigma_pa = HYP__BARO_SENSOR_SIGMA_PA;
@@ -206,7 +213,7 @@ static hyp_status correct_rover(hyp_survey *sv, const hyp_correct_opts *copts, h
         co.baro_steps = p->baro->steps;
         co.n_baro_steps = p->baro->n_steps;
     }
-    if (p->baro && (st = baro_reference(r, bases, nb, &co, err)))
+    if (p->baro && (st = baro_reference(sv, r, bases, nb, &co, err)))
         return st;
     st = hyp_correct(r->rover, bases, nb, &co, &r->result, &r->msgs, err);
     if (!st)
