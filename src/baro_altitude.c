@@ -17,6 +17,11 @@
 
 #define FIT_N 5   /* samples on each side of a step for its size */
 
+/* A step the GNSS heights make too, within this, is motion (a cable car),
+ * not a re-setting: twice a GNSS height's error of about 10 m between two
+ * fixes (common practice, no source). */
+#define GNSS_STEP_M 20.0
+
 static double alt_of(const hyp_series *s, size_t i)
 {
     return hyp_baro_altitude_from_pressure_m(s->pressure_pa[i], HYP_P0_PA);
@@ -108,7 +113,8 @@ static hyp_status refuse(const hyp_series *s, const char *path, size_t i, double
 
 /* Finds the steps: sample i (usable) whose altitude differs from the
  * usable sample before by more than the vertical speed bound allows over
- * their interval, beyond twice the quantisation and 1 m. */
+ * their interval, beyond twice the quantisation and 1 m, unless both
+ * samples have GNSS heights that moved as much (GNSS_STEP_M). */
 static hyp_status find_steps(const hyp_series *s, const char *path, hyp__baro *b, size_t *at, hyp_error *err)
 {
     size_t prev = SIZE_MAX;
@@ -118,7 +124,9 @@ static hyp_status find_steps(const hyp_series *s, const char *path, hyp__baro *b
         if (prev != SIZE_MAX) {
             double dt = s->time_s[i] - s->time_s[prev];
             double a0 = alt_of(s, prev), a1 = alt_of(s, i);
-            if (fabs(a1 - a0) > HYP__BARO_VMAX_M_S * dt + 2.0 * b->quant_m + 1.0) {
+            double g0 = s->ele_m[prev], g1 = s->ele_m[i];   /* GNSS heights (NaN: none) */
+            int moved = g0 == g0 && g1 == g1 && fabs((a1 - a0) - (g1 - g0)) <= GNSS_STEP_M + 2.0 * b->quant_m;
+            if (fabs(a1 - a0) > HYP__BARO_VMAX_M_S * dt + 2.0 * b->quant_m + 1.0 && !moved) {
                 if (b->n_steps == HYP__BARO_MAX_STEPS)
                     return refuse(s, path, i, a0, a1,
                                   "more than 64 re-settings (steps faster than 5 m/s); expected a barometric altitude track "

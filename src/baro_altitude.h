@@ -32,7 +32,8 @@ typedef struct hyp__baro {
 /* The pressures of s were made from barometric altitudes with the
  * reference 1013.25 hPa (the GPX reader does it). Finds the altitudes'
  * quantisation, finds the re-settings (a step between two samples larger
- * than HYP__BARO_VMAX_M_S allows, beyond the quantisation and 1 m), and
+ * than HYP__BARO_VMAX_M_S allows, beyond the quantisation and 1 m, that
+ * GNSS heights, where both samples have them, do not make too), and
  * rescales each later segment to join the one before (the recorder's
  * reference is then one unknown, which the offset calibrates). Refuses,
  * naming the line, re-settings that no sea-level pressure could make.

@@ -271,6 +271,33 @@ static void test_step_refused(void **state)
     hyp_msgs_free(&msgs);
 }
 
+/* A 300 m step in 10 s that the GNSS heights make too (a cable car) is
+ * motion: no re-setting, nothing rescaled. The same step with GNSS heights
+ * that stay put is one. */
+static void test_gnss_motion_not_resetting(void **state)
+{
+    (void)state;
+    for (int gnss_moves = 1; gnss_moves >= 0; gnss_moves--) {
+        hyp_series s;
+        hyp_series_init(&s);
+        for (int i = 0; i < 40; i++) {
+            double a = 1000.0 + (i >= 20 ? 300.0 : 0.0), g = gnss_moves ? a + 47.0 + (i % 3) * 4.0 : 1047.0;
+            assert_int_equal(hyp_series_push(&s, 1.0e9 + 10.0 * i, hyp_baro_altitude_to_pressure_pa(a, HYP_P0_PA), NAN,
+                                             NAN, 46.8, 9.9, g, (uint32_t)(10 + i), HYP_SAMPLE_OK), HYP_OK);
+        }
+        float p39 = s.pressure_pa[39];
+        hyp__baro b;
+        hyp_msgs msgs;
+        hyp_msgs_init(&msgs);
+        hyp_error err;
+        assert_int_equal(hyp__baro_join(&s, "t.gpx", &b, &msgs, &err), HYP_OK);
+        assert_int_equal(b.n_steps, gnss_moves ? 0 : 1);
+        assert_true(gnss_moves ? s.pressure_pa[39] == p39 : s.pressure_pa[39] != p39);
+        hyp_series_free(&s);
+        hyp_msgs_free(&msgs);
+    }
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -278,6 +305,7 @@ int main(void)
         cmocka_unit_test(test_ele_against_raw),
         cmocka_unit_test(test_extension_against_raw),
         cmocka_unit_test(test_step_refused),
+        cmocka_unit_test(test_gnss_motion_not_resetting),
     };
     return cmocka_run_group_tests(tests, setup, NULL);
 }
