@@ -298,6 +298,104 @@ static void test_gnss_motion_not_resetting(void **state)
     }
 }
 
+/* Writes a track of the demo network survey as a recorder storing its
+ * altitude, rounded to 1 m, in <lg:altitude> for the reference ref_hpa
+ * (the <ele> GNSS heights kept). */
+static void network_track_as_altitudes(const char *in, const char *out, double ref_hpa)
+{
+    size_t n;
+    char *src = slurp(in, &n);
+    FILE *f = fopen(out, "wb");
+    assert_non_null(f);
+    const char *s = src, *ps;
+    static const char open_tag[] = "<lg:pressure unit=\"hPa\">", close_tag[] = "</lg:pressure>";
+    while ((ps = strstr(s, open_tag))) {
+        fwrite(s, 1, (size_t)(ps - s), f);
+        const char *pv = ps + strlen(open_tag);
+        fprintf(f, "<lg:altitude>%.0f</lg:altitude>", nearbyint(altimeter_m(strtod(pv, NULL), ref_hpa)));
+        s = strstr(pv, close_tag) + strlen(close_tag);
+    }
+    fputs(s, f);
+    fclose(f);
+    free(src);
+}
+
+static hyp_network_result *adjust(const char *dir, const char *field, const char *const *tracks)
+{
+    hyp_survey_opts o;
+    hyp_survey_opts_init(&o);
+    hyp_error err;
+    if (field)
+        assert_int_equal(hyp_survey_opts_set(&o, "baro-altitude", field, &err), HYP_OK);
+    hyp_survey *sv;
+    hyp_msgs m;
+    hyp_msgs_init(&m);
+    assert_int_equal(hyp_survey_new(&sv, &o, &m, &err), HYP_OK);
+    assert_int_equal(hyp_survey_add_base_dir(sv, dir, &m, &err), HYP_OK);
+    hyp_network_opts no;
+    hyp_network_opts_init(&no);
+    char stations[4200], fb[4200];
+    snprintf(stations, sizeof stations, "%s/stations.csv", dir);
+    snprintf(fb, sizeof fb, "%s/fieldbook.csv", dir);
+    no.stations_path = stations;
+    no.fieldbook_path = fb;
+    hyp_network_result *r = NULL;
+    hyp_status st = hyp_network_run(sv, &no, tracks, 4, &r, &err);
+    if (st)
+        fail_msg("%s", err.message);
+    hyp_survey_free(sv);
+    hyp_msgs_free(&m);
+    return r;
+}
+
+/* `adjust` with --baro-altitude: the committed Skelvorn Moor survey
+ * (surveys/skelvorn-moor, the simulator's network) with each track's
+ * pressures stored as altitudes for a different reference (1018, 1008,
+ * 1013.25 and 1020 hPa, the test's choice). Every station within 2 sigma
+ * of the truth (truth.csv) and of the raw-pressure adjustment, every test
+ * of the network passed. */
+static void test_adjust(void **state)
+{
+    (void)state;
+    const char *dir = HYP_SOURCE_DIR "/surveys/skelvorn-moor";
+    static const char *names[4] = {"ra-day1", "rb-day1", "ra-day2", "rb-day2"};
+    static const double ref[4] = {1018.0, 1008.0, 1013.25, 1020.0};
+    char raw[4][4200], alt[4][4200];
+    const char *rawp[4], *altp[4];
+    for (int k = 0; k < 4; k++) {
+        snprintf(raw[k], sizeof raw[k], "%s/%s.gpx", dir, names[k]);
+        snprintf(alt[k], sizeof alt[k], "%s/%s.gpx", SIM_DIR, names[k]);
+        network_track_as_altitudes(raw[k], alt[k], ref[k]);
+        rawp[k] = raw[k], altp[k] = alt[k];
+    }
+    hyp_network_result *r0 = adjust(dir, NULL, rawp), *r1 = adjust(dir, "altitude", altp);
+    assert_false(r1->tests_failed);
+    char path[4200], line[256], name[64];
+    snprintf(path, sizeof path, "%s/truth.csv", dir);
+    FILE *f = fopen(path, "r");
+    assert_non_null(f);
+    size_t n = 0;
+    double ss0 = 0, ss1 = 0, h;
+    while (fgets(line, sizeof line, f))
+        if (sscanf(line, "%63[^,],%lf", name, &h) == 2)
+            for (size_t s = 0; s < r1->stations.count; s++)
+                if (!strcmp(r1->stations.name[s], name) && !r1->st[s].control) {
+                    const hyp_network_station *a = &r1->st[s], *b = &r0->st[s];
+                    assert_true(a->height_m == a->height_m);
+                    assert_true(fabs(a->height_m - h) <= 2.0 * a->sigma_m);
+                    assert_true(fabs(a->height_m - b->height_m) <= 2.0 * a->sigma_m);
+                    ss0 += (b->height_m - h) * (b->height_m - h);
+                    ss1 += (a->height_m - h) * (a->height_m - h);
+                    n++;
+                }
+    fclose(f);
+    print_message("adjust: %zu stations; RMSE %.3f m from altitudes, %.3f m from raw pressures\n", n, sqrt(ss1 / (double)n),
+                  sqrt(ss0 / (double)n));
+    assert_true(n >= 9);
+    hyp_network_result_free(r0);
+    hyp_network_result_free(r1);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -306,6 +404,7 @@ int main(void)
         cmocka_unit_test(test_extension_against_raw),
         cmocka_unit_test(test_step_refused),
         cmocka_unit_test(test_gnss_motion_not_resetting),
+        cmocka_unit_test(test_adjust),
     };
     return cmocka_run_group_tests(tests, setup, NULL);
 }
