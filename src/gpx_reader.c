@@ -317,6 +317,24 @@ static void start_point(gpx_ctx *g, const xmlChar *local, int nb_attr, const xml
     g->open_end = g->pt_selfclosed ? -1 : g->anchor;
 }
 
+/* A barometric altitude in an extension element is in metres: a unit
+ * attribute that says otherwise (hPa: a pressure named by mistake) is an
+ * error. */
+static void altitude_unit(gpx_ctx *g, int nb_attr, const xmlChar **attrs)
+{
+    char buf[32], uq[80];
+    const char *u = attr_value(attrs, nb_attr, "unit", buf, sizeof buf);
+    if (!u)
+        u = attr_value(attrs, nb_attr, "units", buf, sizeof buf);
+    static const char *const m[] = {"m", "metre", "metres", "meter", "meters"};
+    for (size_t k = 0; u && k < sizeof m / sizeof m[0]; k++)
+        if (!strcasecmp(u, m[k]))
+            return;
+    if (u)
+        fail(g, HYP_ERR_UNIT, "unit=\"%s\" on <%s>: a barometric altitude (--baro-altitude) is expected in m",
+             hyp__quote(uq, sizeof uq, u, strlen(u)), pres_name(g->opts));
+}
+
 static void start_capture(gpx_ctx *g, int what, int nb_attr, const xmlChar **attrs)
 {
     g->cap = what;
@@ -324,7 +342,11 @@ static void start_capture(gpx_ctx *g, int what, int nb_attr, const xmlChar **att
     g->text_len = 0;
     g->text_overflow = 0;
     g->cap_unit = HYP_UNIT_NONE;
-    if ((what == CAP_PRES && !g->opts->baro_altitude_field) || what == CAP_TEMP) {
+    if (what == CAP_PRES && g->opts->baro_altitude_field) {
+        altitude_unit(g, nb_attr, attrs);
+        return;
+    }
+    if (what == CAP_PRES || what == CAP_TEMP) {
         char buf[32];
         const char *u = attr_value(attrs, nb_attr, "unit", buf, sizeof buf);
         if (!u)

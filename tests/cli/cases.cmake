@@ -251,5 +251,6 @@ hyp_cli_case(baro_alt_step 1 "baro_step.gpx:34: barometric altitude steps from 8
 set(HYP_CASE_INPUTS ${R} @DATA@/base.csv)
 hyp_cli_case(baro_alt_no_field 1 "rover.gpx: no point has a barometric altitude \\(looked for <alt> in each point's extensions" correct ${R} --baro-altitude alt ${B} ${O})
 hyp_cli_case(baro_alt_csv 2 "rover_local.csv: --baro-altitude reads GPX tracks only \\(this is a CSV log\\)" correct @DATA@/rover_local.csv --time-zone Europe/Vienna --baro-altitude ele ${B} ${O})
+hyp_cli_case(baro_alt_is_pressure 1 "rover.gpx:4: unit=\"hPa\" on <pressure>: a barometric altitude \\(--baro-altitude\\) is expected in m" correct ${R} --baro-altitude pressure ${B} ${O})
 hyp_cli_case(baro_alt_bad_name 2 "--baro-altitude \"a b\": expected ele or the local name of an extension element" correct ${R} --baro-altitude "a b" ${B} ${O})
 set(HYP_CASE_INPUTS "")
