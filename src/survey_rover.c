@@ -136,8 +136,7 @@ static hyp_status join_altitudes(hyp_rover_run *r, hyp_error *err)
  * offset no longer varies with height as p / ref (docs/methods.md). Its
  * messages are the second's; the first's are dropped. */
 static hyp_status baro_reference(const hyp_survey *sv, hyp_rover_run *r, const hyp_base *bases, size_t nb,
-                                 hyp_correct_opts *co,
-                                 hyp_error *err)
+                                 hyp_correct_opts *co, hyp_error *err)
 {
     priv_t *p = r->priv;
     hyp_msgs first;
