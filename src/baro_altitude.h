@@ -19,6 +19,10 @@
  * the rescaling by the reference takes for part of the reference (common
  * practice, no source: consumer barometers are sold as +-1 hPa). */
 #define HYP__BARO_SENSOR_SIGMA_PA 100.0
+/* ... and of an uncalibrated reference's departure from 1013.25 hPa: the
+ * day's sea-level pressure is seldom more than about 10 hPa from it
+ * (common practice, no source). */
+#define HYP__BARO_REF_SIGMA_PA 1000.0
 
 typedef struct hyp__baro {
     double quant_m;            /* step of the stored altitudes, m; 0: finer than 1 mm */

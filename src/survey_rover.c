@@ -153,8 +153,9 @@ static hyp_status baro_reference(const hyp_survey *sv, hyp_rover_run *r, const h
     hyp_drift_kind k = r->result.drift.kind;   /* calibrated, not given (--offset, or the network's 0) */
     if (k == HYP_DRIFT_CONSTANT || k == HYP_DRIFT_LINEAR || k == HYP_DRIFT_PIECEWISE || k == HYP_DRIFT_GNSS)
         hyp__baro_rescale(&p->rv.doc.pts, &r->result, p->baro, r->path, &r->msgs);
-    if (p->baro->ref_pa == p->baro->ref_pa)
-        co->baro_offset_sigma_pa = HYP__BARO_SENSOR_SIGMA_PA;
+    /* rescaled: the sensor's own offset is left as a scale; not: the
+     * reference's departure from 1013.25 hPa itself */
+    co->baro_offset_sigma_pa = p->baro->ref_pa == p->baro->ref_pa ? HYP__BARO_SENSOR_SIGMA_PA : HYP__BARO_REF_SIGMA_PA;
     hyp_correct_result_free(&r->result);
     hyp_correct_result_init(&r->result);
     return HYP_OK;

@@ -157,10 +157,10 @@ typedef struct hyp_correct_opts {
     double rover_quant_pa;
     const struct hyp_baro_step *baro_steps;
     size_t n_baro_steps;
-    /* ... and whose pressures were rescaled by the reference a first
-     * correction found: the 1-sigma of the recorder's own additive
-     * offset (Pa), which that rescaling turns into a scale error of
-     * sigma / p on the height above the base (0: none). */
+    /* ... the 1-sigma (Pa) of what scales its heights above the base by
+     * sigma / p: the recorder's own additive offset, when its pressures
+     * were rescaled by the reference a first correction found, else the
+     * reference's departure from 1013.25 hPa (0: none). */
     double baro_offset_sigma_pa;
 } hyp_correct_opts;
 
