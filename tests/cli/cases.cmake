@@ -243,7 +243,7 @@ hyp_cli_case(report_html_unwritable 1 "r.HTML: cannot write: the directory does 
 # pressures as an altimeter's altitudes (0.1 m, re-set from 1016 to 996 hPa
 # at 07:15:00); a value that is no height; a step no re-setting can make
 set(HYP_CASE_INPUTS @DATA@/baro_alt.gpx @DATA@/base.csv)
-hyp_cli_case(baro_alt_ok 0 "baro_alt.gpx:34: barometric altitude re-set at 2026-06-18T07:15:00Z: a step of -164.8 m.*reference before its first re-setting was 1015.6. hPa.*61 of 61 corrected" correct @DATA@/baro_alt.gpx --baro-altitude ele ${B} ${O})
+hyp_cli_case(baro_alt_ok 0 "baro_alt.gpx:34: barometric altitude re-set at 2026-06-18T07:15:00Z: a step of -164.8 m.*reference before its first re-setting was 1015.6. hPa.*pressure from barometric altitudes\n  altitude  in steps of 0.1 m: quantisation 0.03 m \\(0.3. Pa\\), 1 sigma\n            the recorder's reference before its first re-setting: 1015.6. hPa \\(from the calibrated offset\\)\n            re-set at 2026-06-18T07:15:00Z \\(line 34\\): -164.8 m.*61 of 61 corrected" correct @DATA@/baro_alt.gpx --baro-altitude ele ${B} ${O})
 set(HYP_CASE_INPUTS @DATA@/bad/baro_range.gpx @DATA@/base.csv)
 hyp_cli_case(baro_alt_range 1 "baro_range.gpx:44: barometric altitude <ele> \"12000\" m is out of range; expected a standard-atmosphere height of -500..9000 m" correct @DATA@/bad/baro_range.gpx --baro-altitude ele ${B} ${O})
 set(HYP_CASE_INPUTS @DATA@/bad/baro_step.gpx @DATA@/base.csv)
