@@ -44,7 +44,8 @@ typedef struct hyp__baro {
  * Each step is a note in msgs. */
 hyp_status hyp__baro_join(hyp_series *s, const char *path, hyp__baro *b, hyp_msgs *msgs, hyp_error *err);
 
-/* After a first correction res of s: the mean over corrected points of
+/* After a first correction res of s: the mean over corrected points
+ * (about 4000 evenly spread at most) of
  * 1 - offset / p is ref / P0 (the pressures are the true ones times P0 /
  * ref, the offset closes the difference); rescales s by it, sets
  * b->ref_pa and says so in msgs. */
