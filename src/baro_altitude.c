@@ -141,47 +141,63 @@ static hyp_status find_steps(const hyp_series *s, const char *path, hyp__baro *b
     return HYP_OK;
 }
 
-hyp_status hyp__baro_join(hyp_series *s, const char *path, hyp__baro *b, hyp_msgs *msgs, hyp_error *err)
+/* The altitudes' step and its noise in Pa, said in a note. */
+static void set_quant(const hyp_series *s, hyp__baro *b, const char *path, hyp_msgs *msgs)
 {
-    b->n_steps = 0;
-    b->ref_pa = NAN;
     b->quant_m = find_quant(s);
-    double amed = 0.0;
+    double amean = 0.0;
     size_t nu = 0;
     for (size_t i = 0; i < s->count; i++)
         if (!s->flag[i])
-            amed += alt_of(s, i), nu++;
-    amed = nu ? amed / (double)nu : 0.0;
+            amean += alt_of(s, i), nu++;
+    amean = nu ? amean / (double)nu : 0.0;
     /* uniform quantisation noise q / sqrt(12) (Widrow and Kollar,
      * Quantization Noise, Cambridge UP 2008, ch. 4), in Pa at the mean
      * altitude */
-    b->quant_pa = b->quant_m / sqrt(12.0) * pa_per_m(amed);
+    b->quant_pa = b->quant_m / sqrt(12.0) * pa_per_m(amean);
     if (b->quant_m > 0)
         hyp_msgs_add_at(msgs, HYP_NOTE, "sample", path, 0,
                         "barometric altitudes come in steps of %g m: quantisation noise %.2f m (%.2f Pa) enters the noise budget",
                         b->quant_m, b->quant_m / sqrt(12.0), b->quant_pa);
+}
+
+/* Step k (at sample at[k]): its size from lines fitted on each side, at
+ * the middle of the interval, and the ratio of references that joins
+ * them (p = isa(a) ref / P0 is continuous across it). */
+static void size_step(const hyp_series *s, hyp__baro *b, const size_t *at, size_t k, double *a0, double *a1)
+{
+    hyp_baro_step *p = &b->steps[k];
+    size_t ib[FIT_N], ia[FIT_N];
+    size_t prev = at[k] - 1;
+    while (s->flag[prev])
+        prev--;
+    size_t nb = gather(s, prev, -1, k ? at[k - 1] - 1 : SIZE_MAX, ib);
+    size_t na = gather(s, at[k], +1, k + 1 < b->n_steps ? at[k + 1] : SIZE_MAX, ia);
+    double tm = 0.5 * (p->time_s + p->prev_time_s), dt = p->time_s - p->prev_time_s, sb, sa;
+    *a0 = side_at(s, ib, nb, tm, b->quant_m, dt, &sb);
+    *a1 = side_at(s, ia, na, tm, b->quant_m, dt, &sa);
+    p->size_m = *a1 - *a0;
+    p->sigma_m = hypot(sb, sa);
+    p->line = hyp_series_line(s, at[k]);
+    double p0 = hyp_baro_altitude_to_pressure_pa(*a0, HYP_P0_PA), p1 = hyp_baro_altitude_to_pressure_pa(*a1, HYP_P0_PA);
+    p->ratio = p0 / p1;
+    p->sigma_rel = p->sigma_m * pa_per_m(*a1) / p1;
+}
+
+hyp_status hyp__baro_join(hyp_series *s, const char *path, hyp__baro *b, hyp_msgs *msgs, hyp_error *err)
+{
+    b->n_steps = 0;
+    b->ref_pa = NAN;
+    set_quant(s, b, path, msgs);
     size_t at[HYP__BARO_MAX_STEPS];
     hyp_status st = find_steps(s, path, b, at, err);
     if (st)
         return st;
-    /* size each step from lines fitted on each side, then the ratio of
-     * references that joins them: p = isa(a) ref / P0 is continuous */
     double cum = 1.0, lo = 1.0, hi = 1.0;
     for (size_t k = 0; k < b->n_steps; k++) {
-        hyp_baro_step *p = &b->steps[k];
-        size_t ib[FIT_N], ia[FIT_N];
-        size_t prev = at[k] - 1;
-        while (s->flag[prev])
-            prev--;
-        size_t nb = gather(s, prev, -1, k ? at[k - 1] - 1 : SIZE_MAX, ib);
-        size_t na = gather(s, at[k], +1, k + 1 < b->n_steps ? at[k + 1] : SIZE_MAX, ia);
-        double tm = 0.5 * (p->time_s + p->prev_time_s), dt = p->time_s - p->prev_time_s, sb, sa;
-        double a0 = side_at(s, ib, nb, tm, b->quant_m, dt, &sb), a1 = side_at(s, ia, na, tm, b->quant_m, dt, &sa);
-        p->size_m = a1 - a0;
-        p->sigma_m = hypot(sb, sa);
-        p->line = hyp_series_line(s, at[k]);
-        p->ratio = hyp_baro_altitude_to_pressure_pa(a0, HYP_P0_PA) / hyp_baro_altitude_to_pressure_pa(a1, HYP_P0_PA);
-        p->sigma_rel = p->sigma_m * pa_per_m(a1) / hyp_baro_altitude_to_pressure_pa(a1, HYP_P0_PA);
+        double a0, a1;
+        size_step(s, b, at, k, &a0, &a1);
+        const hyp_baro_step *p = &b->steps[k];
         if (!(p->ratio == p->ratio))
             return refuse(s, path, at[k], a0, a1, "expected altitudes of -500..9000 m on both sides", err);
         cum *= p->ratio;
