@@ -210,7 +210,10 @@ hyp_status hyp_correct_point(const hyp_correct_result *res, size_t i, hyp_point_
 static hyp_status estimate_noise(hyp__work *w)
 {
     hyp_correct_result *r = w->r;
-    const double floor_pa = 0.5;   /* below half a pascal the estimate is resolution-limited */
+    /* below half a pascal the estimate is resolution-limited; a rover of
+     * quantised altitudes is no better than their quantisation noise (a
+     * still recorder shows one value: its scatter alone would say 0) */
+    const double floor_pa = 0.5, rfloor_pa = fmax(floor_pa, w->o->rover_quant_pa);
     if (hyp__noise_second_diff(w->bv.t, w->bv.p, NULL, NULL, w->bv.n, 3.0 * w->o->max_gap_s, &r->base_noise_pa))
         return HYP_ERR_NOMEM;
     if (w->base->kind == HYP_BASE_QNH)   /* a QNH series: resolution and reduction */
@@ -226,14 +229,14 @@ static hyp_status estimate_noise(hyp__work *w)
     r->diff_noise_pa = nn > 0 ? sqrt(ss / nn) : NAN;
     if (nn > 0) {
         double v = ss / nn - r->base_noise_pa * r->base_noise_pa;
-        r->rover_noise_pa = sqrt(v > floor_pa * floor_pa ? v : floor_pa * floor_pa);
+        r->rover_noise_pa = sqrt(v > rfloor_pa * rfloor_pa ? v : rfloor_pa * rfloor_pa);
         return HYP_OK;
     }
     if (hyp__noise_second_diff(w->rv->time_s, NULL, w->rv->pressure_pa, w->rv->flag, w->n, 3.0 * w->o->max_gap_s,
                                &r->rover_noise_pa))
         return HYP_ERR_NOMEM;
-    if (!(r->rover_noise_pa >= floor_pa))
-        r->rover_noise_pa = floor_pa;
+    if (!(r->rover_noise_pa >= rfloor_pa))
+        r->rover_noise_pa = rfloor_pa;
     hyp_msgs_add(w->msgs, HYP_NOTE, "rover noise %.2f Pa estimated from second differences along the track (no co-location to measure it)",
                  r->rover_noise_pa);
     return HYP_OK;

@@ -267,6 +267,7 @@ static hyp_status pool_push(hyp_survey *sv, const hyp_base_spec *b, hyp_msgs *ms
     hyp_read_opts ro = sv->o.read;
     ro.zone = &z;
     ro.need_position = 0;
+    ro.baro_altitude_field = NULL;   /* the rovers' */
     if (b->pressure_unit)
         ro.pressure_unit = b->pressure_unit;
     if (b->temperature_unit)

@@ -55,6 +55,7 @@ struct hyp__rover_priv {
     const hyp_survey *sv;       /* the survey it ran in (benchmarks and inputs
                                    for the HTML report) */
     const hyp_report_info *report_info;   /* the outputs' (NULL: none) */
+    struct hyp__baro *baro;     /* a barometric-altitude rover's steps (NULL: none) */
 };
 
 /* How the rover at `rover` (a path as given) is read: the survey's

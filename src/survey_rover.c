@@ -9,6 +9,7 @@
 #include "writers_int.h"
 #include "report_html.h"
 #include "report_page.h"
+#include "baro_altitude.h"
 
 #include <math.h>
 #include <pthread.h>
@@ -33,6 +34,7 @@ void hyp_rover_run_free(hyp_rover_run *r)
         free(p->own_out);
         free(p->east);
         free(p->north);
+        free(p->baro);
         for (int k = 0; k < 4; k++)
             free(p->paths[k]);
         free(p);
@@ -131,6 +133,50 @@ void hyp__rover_read_opts(const hyp_survey *sv, const char *rover, hyp_read_opts
         ro->zone = &own->zone;
 }
 
+/* A rover of barometric altitudes (read as pressures with the reference
+ * 1013.25 hPa): its quantisation and re-settings, kept for the budget. */
+static hyp_status join_altitudes(hyp_rover_run *r, hyp_error *err)
+{
+    priv_t *p = r->priv;
+    if (!p->rv.is_gpx)
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s: --baro-altitude reads GPX tracks only (this is a CSV log)", r->path);
+    if (!(p->baro = calloc(1, sizeof *p->baro)))
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    return hyp__baro_join(&p->rv.doc.pts, r->path, p->baro, &r->msgs, err);
+}
+
+/* A barometric-altitude rover's pressures are the true ones times P0 / ref
+ * (ref the recorder's unknown reference): a first correction calibrates
+ * the offset in Pa, which gives ref; the pressures rescaled by it leave
+ * the second correction only the sensor's own offset to calibrate, so the
+ * offset no longer varies with height as p / ref (docs/methods.md). Its
+ * messages are the second's; the first's are dropped. */
+static hyp_status baro_reference(const hyp_survey *sv, hyp_rover_run *r, const hyp_base *bases, size_t nb,
+                                 hyp_correct_opts *co, hyp_error *err)
+{
+    priv_t *p = r->priv;
+    hyp_msgs first;
+    hyp_msgs_init(&first);
+    /* the survey's own offset: the network holds it at 0 in *co to solve
+     * it, but the reference is the recorder's and is found as in correct */
+    hyp_correct_opts c1 = *co;
+    c1.offset_pa = sv->copts.offset_pa;
+    c1.offset_sigma_pa = sv->copts.offset_sigma_pa;
+    hyp_status st = hyp_correct(r->rover, bases, nb, &c1, &r->result, &first, err);
+    hyp_msgs_free(&first);
+    if (st)
+        return st;
+    hyp_drift_kind k = r->result.drift.kind;   /* calibrated, not given (--offset, or the network's 0) */
+    if (k == HYP_DRIFT_CONSTANT || k == HYP_DRIFT_LINEAR || k == HYP_DRIFT_PIECEWISE || k == HYP_DRIFT_GNSS)
+        hyp__baro_rescale(&p->rv.doc.pts, &r->result, p->baro, r->path, &r->msgs);
+    /* rescaled: the sensor's own offset is left as a scale; not: the
+     * reference's departure from 1013.25 hPa itself */
+    co->baro_offset_sigma_pa = p->baro->ref_pa == p->baro->ref_pa ? HYP__BARO_SENSOR_SIGMA_PA : HYP__BARO_REF_SIGMA_PA;
+    hyp_correct_result_free(&r->result);
+    hyp_correct_result_init(&r->result);
+    return HYP_OK;
+}
+
 /* Read the rover, choose its bases, correct it, convert its heights. */
 static hyp_status correct_rover(hyp_survey *sv, const hyp_correct_opts *copts, hyp_rover_run *r, int threads,
                                 hyp_error *err)
@@ -144,6 +190,8 @@ static hyp_status correct_rover(hyp_survey *sv, const hyp_correct_opts *copts, h
     if (st)
         return st;
     hyp__rover_clock_apply(hyp__rover_own_find(sv, r->path), &p->rv);
+    if (ro.baro_altitude_field && (st = join_altitudes(r, err)))
+        return st;
     r->rover = hyp__log_series(&p->rv);
     r->rover_pressure_unit = p->rv.punit;
     size_t sel[HYP_MAX_BASES], nb = 0;
@@ -177,6 +225,13 @@ static hyp_status correct_rover(hyp_survey *sv, const hyp_correct_opts *copts, h
     co.waypoints = p->rv.is_gpx ? &p->rv.doc.wpts : NULL;
     co.gnss_height_m = gnss_known;
     co.threads = threads;
+    if (p->baro) {
+        co.rover_quant_pa = p->baro->quant_pa;
+        co.baro_steps = p->baro->steps;
+        co.n_baro_steps = p->baro->n_steps;
+    }
+    if (p->baro && (st = baro_reference(sv, r, bases, nb, &co, err)))
+        return st;
     st = hyp_correct(r->rover, bases, nb, &co, &r->result, &r->msgs, err);
     if (!st)
         st = hyp_heights_convert(p->geo, r->rover, r->result.height_m, sv->o.known_ref, sv->o.out_ref, err);

@@ -90,7 +90,11 @@ static hyp_status set_text(hyp_survey_opts *o, const char *name, const char *v, 
         {"ties", offsetof(hyp_survey_opts, ties_path)},
         {"crs", offsetof(hyp_survey_opts, crs)},
         {"bases-colocated", offsetof(hyp_survey_opts, bases_colocated)},
+        {"baro-altitude", offsetof(hyp_survey_opts, read.baro_altitude_field)},
     };
+    if (!strcmp(name, "baro-altitude") && (!v || !v[0] || strpbrk(v, " \t<>:/\"'&")))
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s \"%s\": expected ele or the local name of an extension element", name,
+                             v ? v : "");
     for (size_t k = 0; k < sizeof texts / sizeof texts[0]; k++)
         if (!strcmp(name, texts[k].name)) {
             *(const char **)((char *)o + texts[k].at) = v;

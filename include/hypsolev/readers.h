@@ -31,6 +31,15 @@ typedef struct hyp_read_opts {
     const hyp_zone *zone;
     /* CSV only: a rover log needs lat and lon columns. */
     int need_position;
+    /* GPX only: NULL, or where the track stores a barometric
+     * (standard-atmosphere) altitude in place of a pressure: "ele" (the
+     * point's own height, which then is no GNSS height) or the local name
+     * of an extension element. Each value (m, geopotential, read with the
+     * reference 1013.25 hPa: hyp_baro_altitude_to_pressure_pa) becomes the
+     * sample's pressure; a value outside -500..9000 m is an error naming
+     * the line. The unknown reference the recorder used, and its
+     * re-settings, are the correction's business (docs/methods.md). */
+    const char *baro_altitude_field;
 } hyp_read_opts;
 
 HYP_API void hyp_read_opts_init(hyp_read_opts *o);

@@ -87,6 +87,8 @@ void cli_correct_help(void)
 "  NAME, --rover-temperature-field NAME, --rover-humidity-field NAME,\n"
 "  --rover-time-zone Z\n"
 "  --rover-clock-offset S   seconds this rover's logger clock is ahead of true time\n"
+"  --baro-altitude FIELD    rover GPX stores a barometric altitude (m) in ele or\n"
+"                           in the extension element FIELD, not a pressure\n"
 "\n"
 "batch:\n"
 "  ROVER may be a folder (its .gpx and .csv files) or a quoted pattern\n"

@@ -32,6 +32,7 @@ const struct option cli_common_options[] = {
     {"rover-temperature-field", required_argument, 0, CLI_ROVER_SET},
     {"rover-humidity-field", required_argument, 0, CLI_ROVER_SET},
     {"rover-time-zone", required_argument, 0, CLI_ROVER_SET}, {"rover-clock-offset", required_argument, 0, CLI_ROVER_SET},
+    SET("baro-altitude"),
     {0, 0, 0, 0},
 };
 

@@ -288,4 +288,18 @@ set(HYP_CASE_GOLDEN_OUT rover.csv)
 hyp_cli_case(rover_own_batch 0 "^$" correct --rover @DATA@/rover_own/clock_ahead.gpx --rover-clock-offset 3600 @DATA@/rover_local.csv --time-zone Europe/Vienna --rover ${RO} --rover-pressure-field baro --rover-pressure-unit Pa ${B} --out-dir @OUT@ -q -j 2)
 set(HYP_CASE_GOLDEN "")
 set(HYP_CASE_GOLDEN_OUT "")
+# barometric-altitude tracks (--baro-altitude): tests/data/rover.gpx's
+# pressures as an altimeter's altitudes (0.1 m, re-set from 1016 to 996 hPa
+# at 07:15:00); a value that is no height; a step no re-setting can make
+set(HYP_CASE_INPUTS @DATA@/baro_alt.gpx @DATA@/base.csv)
+hyp_cli_case(baro_alt_ok 0 "baro_alt.gpx:34: barometric altitude re-set at 2026-06-18T07:15:00Z: a step of -164.8 m.*reference before its first re-setting was 1015.6. hPa.*pressure from barometric altitudes\n  altitude  in steps of 0.1 m: quantisation 0.03 m \\(0.3. Pa\\), 1 sigma\n            the recorder's reference before its first re-setting: 1015.6. hPa \\(from the calibrated offset\\)\n            re-set at 2026-06-18T07:15:00Z \\(line 34\\): -164.8 m.*61 of 61 corrected" correct @DATA@/baro_alt.gpx --baro-altitude ele ${B} ${O})
+set(HYP_CASE_INPUTS @DATA@/bad/baro_range.gpx @DATA@/base.csv)
+hyp_cli_case(baro_alt_range 1 "baro_range.gpx:44: barometric altitude <ele> \"12000\" m is out of range; expected a standard-atmosphere height of -500..9000 m" correct @DATA@/bad/baro_range.gpx --baro-altitude ele ${B} ${O})
+set(HYP_CASE_INPUTS @DATA@/bad/baro_step.gpx @DATA@/base.csv)
+hyp_cli_case(baro_alt_step 1 "baro_step.gpx:34: barometric altitude steps from 871.2 m to 3871.1 m at 2026-06-18T07:15:00Z: a re-setting that large needs references further apart than the lowest and highest sea-level pressures recorded" correct @DATA@/bad/baro_step.gpx --baro-altitude ele ${B} ${O})
+set(HYP_CASE_INPUTS ${R} @DATA@/base.csv)
+hyp_cli_case(baro_alt_no_field 1 "rover.gpx: no point has a barometric altitude \\(looked for <alt> in each point's extensions" correct ${R} --baro-altitude alt ${B} ${O})
+hyp_cli_case(baro_alt_csv 2 "rover_local.csv: --baro-altitude reads GPX tracks only \\(this is a CSV log\\)" correct @DATA@/rover_local.csv --time-zone Europe/Vienna --baro-altitude ele ${B} ${O})
+hyp_cli_case(baro_alt_is_pressure 1 "rover.gpx:4: unit=\"hPa\" on <pressure>: a barometric altitude \\(--baro-altitude\\) is expected in m" correct ${R} --baro-altitude pressure ${B} ${O})
+hyp_cli_case(baro_alt_bad_name 2 "--baro-altitude \"a b\": expected ele or the local name of an extension element" correct ${R} --baro-altitude "a b" ${B} ${O})
 set(HYP_CASE_INPUTS "")

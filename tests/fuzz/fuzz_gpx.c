@@ -41,6 +41,13 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
     }
     hyp_gpx_doc_free(&d);
     hyp_msgs_free(&m);
+    /* the same bytes as a barometric-altitude track (--baro-altitude) */
+    hyp_gpx_doc_init(&d);
+    hyp_msgs_init(&m);
+    o.baro_altitude_field = size & 1 ? "ele" : "pressure";
+    hyp_gpx_read(path, &o, &d, &m, &err);
+    hyp_gpx_doc_free(&d);
+    hyp_msgs_free(&m);
     close(fd);
     return 0;
 }
