@@ -256,6 +256,7 @@ static hyp_status pool_push(hyp_survey *sv, const hyp_base_spec *b, hyp_msgs *ms
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     pb->spec.path = pb->path;
     pb->spec.time_zone = NULL;
+    pb->spec.time_format = NULL;   /* the caller's text: used below only */
     hyp_gpx_doc_init(&pb->log.doc);
     hyp_series_init(&pb->log.csv);
     sv->n_pool++;   /* owned from here on: freed with the survey */
@@ -266,6 +267,7 @@ static hyp_status pool_push(hyp_survey *sv, const hyp_base_spec *b, hyp_msgs *ms
     hyp_read_opts ro = sv->o.read;
     ro.zone = &z;
     ro.need_position = 0;
+    ro.time_format = b->time_format;
     if (b->pressure_unit)
         ro.pressure_unit = b->pressure_unit;
     if (b->temperature_unit)

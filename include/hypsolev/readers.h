@@ -31,6 +31,10 @@ typedef struct hyp_read_opts {
     const hyp_zone *zone;
     /* CSV only: a rover log needs lat and lon columns. */
     int need_position;
+    /* CSV only: the time column's format (hyp_time_parse_format in
+     * timeparse.h); NULL: ISO 8601, epoch seconds or a numeric date whose
+     * day/month order the file's dates decide (docs/formats.md). */
+    const char *time_format;
 } hyp_read_opts;
 
 HYP_API void hyp_read_opts_init(hyp_read_opts *o);

@@ -25,6 +25,7 @@ const struct option cli_common_options[] = {
     SET("colocate-radius"), SET("colocate-min"), SET("max-gap"), SET("humidity"), SET("lapse-rate"), SET("tie-radius"),
     SET("tie-min"), SET("smooth"), SET("gradient-sigma"), SET("clock-sigma"), SET("column-temp-sigma"),
     SET("lapse-sigma"), SET("benchmark-sigma"), {"quiet", no_argument, 0, 'q'}, {"jobs", required_argument, 0, 'j'},
+    SET("time-format"), BASE("base-time-format"),
     {0, 0, 0, 0},
 };
 
