@@ -239,3 +239,25 @@ hyp_cli_case(base_own_unit_bad 2 "--base-pressure-unit \"psi\": expected one of 
 hyp_cli_case(report_html_quiet 0 "^$" correct ${R} ${B} ${O} --report @OUT@/r.html -q)
 hyp_cli_case(report_html_needs_dir 2 "--report-html names the reports of --out-dir" correct ${R} ${B} ${O} --report-html)
 hyp_cli_case(report_html_unwritable 1 "r.HTML: cannot write: the directory does not exist" correct ${R} ${B} ${O} --report @OUT@/no/dir/r.HTML)
+# times as exports write them (issue 16): the golden table is the one of
+# rover.gpx, the same track; day-first dates in a date and a time column
+# (the order decided by the dates, pressure in "mb"), a month-first
+# 12-hour clock by --time-format (unit " Millibar "), and a base whose
+# times are "18 Jun 2026 06:50:00 +0000"
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT t.csv)
+set(HYP_CASE_INPUTS @DATA@/rover_dayfirst.csv @DATA@/base.csv)
+hyp_cli_case(time_dayfirst_columns 0 "rover_dayfirst.csv:4: dates read day first, as \"18.06.2026 09:00:00\" can only be read so.*pressure in mbar" correct @DATA@/rover_dayfirst.csv --time-zone Europe/Vienna ${B} --table @OUT@/t.csv -o @OUT@/t.gpx)
+set(HYP_CASE_INPUTS @DATA@/rover_12h.csv @DATA@/base.csv)
+hyp_cli_case(time_format_12h 0 "heights +61 of 61 corrected" correct @DATA@/rover_12h.csv --time-zone Europe/Vienna --time-format "%m/%d/%Y %I:%M:%S %p" ${B} --table @OUT@/t.csv)
+set(HYP_CASE_INPUTS @DATA@/rover.gpx @DATA@/base_month_name.csv)
+hyp_cli_case(base_time_format 0 "heights +61 of 61 corrected" correct ${R} --base @DATA@/base_month_name.csv --base-height 812.4 --base-at 46.8,9.9 --base-time-format "%d %b %Y %H:%M:%S %z" --table @OUT@/t.csv)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+set(HYP_CASE_INPUTS "")
+hyp_cli_case(time_dates_ambiguous 1 "ambiguous_dates.csv:3: time \"03.04.2026 09:00:00\": the date may be day.month or month.day .*give the order with --time-format" correct @DATA@/bad/ambiguous_dates.csv --time-zone UTC ${B} ${O})
+hyp_cli_case(time_format_mismatch 1 "rover_dayfirst.csv:4: time \"18.06.2026 09:00:00\" does not match the time format \"%Y-%m-%d %H:%M:%S\"" correct @DATA@/rover_dayfirst.csv --time-zone UTC --time-format "%Y-%m-%d %H:%M:%S" ${B} ${O})
+hyp_cli_case(time_format_unknown 2 "--time-format \"%Y-%m-%d %Q\" has %Q, which is not one of" correct @DATA@/rover_dayfirst.csv --time-format "%Y-%m-%d %Q" ${B} ${O})
+hyp_cli_case(base_time_format_without_base 2 "--base-time-format must follow the --base it applies to" correct ${R} --base-time-format "%d.%m.%Y %H:%M" ${B} ${O})
+# the base never takes the rovers' format: base.csv's ISO times still read
+hyp_cli_case(time_format_rover_only 0 "heights +61 of 61 corrected" correct @DATA@/rover_12h.csv --time-zone Europe/Vienna --time-format "%m/%d/%Y %I:%M:%S %p" ${B} ${O})
