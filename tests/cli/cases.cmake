@@ -261,3 +261,13 @@ hyp_cli_case(time_format_unknown 2 "--time-format \"%Y-%m-%d %Q\" has %Q, which 
 hyp_cli_case(base_time_format_without_base 2 "--base-time-format must follow the --base it applies to" correct ${R} --base-time-format "%d.%m.%Y %H:%M" ${B} ${O})
 # the base never takes the rovers' format: base.csv's ISO times still read
 hyp_cli_case(time_format_rover_only 0 "heights +61 of 61 corrected" correct @DATA@/rover_12h.csv --time-zone Europe/Vienna --time-format "%m/%d/%Y %I:%M:%S %p" ${B} ${O})
+# pressure as an attribute of an extension element (--pressure-field
+# ELEMENT@ATTRIBUTE), unit attribute " mb ": the table of rover.gpx
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT t.csv)
+set(HYP_CASE_INPUTS @DATA@/rover_attr.gpx @DATA@/base.csv)
+hyp_cli_case(gpx_pressure_attribute_mb 0 "pressure in mbar" correct @DATA@/rover_attr.gpx --pressure-field baro@value ${B} --base-pressure-field pressure --table @OUT@/t.csv -o @OUT@/t.gpx)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+set(HYP_CASE_INPUTS "")
+hyp_cli_case(gpx_pressure_attribute_missing 1 "rover_attr.gpx:5: <baro> has no val attribute" correct @DATA@/rover_attr.gpx --pressure-field baro@val ${B} --base-pressure-field pressure ${O})
