@@ -120,6 +120,37 @@ static int run(args *a)
     return rc;
 }
 
+/* A rover "-" is read from standard input: copied by the library into a
+ * temporary file under TMPDIR (else /tmp), run as that file, and removed
+ * after the run, whatever its end. One rover only, with -o (its output has
+ * no name of its own). Returns 0, or the exit status of a refusal. */
+static int stdin_rover(args *a, char *spool, size_t n)
+{
+    size_t k = 0;
+    while (k < a->c.rovers.n && strcmp(a->c.rovers.path[k], "-") != 0)
+        k++;
+    if (k == a->c.rovers.n)
+        return 0;
+    if (a->c.rovers.n > 1)
+        return cli_usage("correct", "a rover from standard input (-) must be the only rover");
+    if (!a->out.gpx)
+        return cli_usage("correct", "a rover from standard input (-) needs -o FILE for its corrected GPX");
+    if (isatty(0))
+        return cli_usage("correct", "a rover from standard input (-): standard input is a terminal; pipe or redirect a log into it");
+    hyp_error err;
+    hyp_status st = hyp_spool_stream(stdin, getenv("TMPDIR"), spool, n, &err);
+    if (st)
+        return cli_fail(&a->c, st, &err);
+    free(a->c.rovers.path[k]);
+    if (!(a->c.rovers.path[k] = strdup(spool))) {
+        hyp_spool_remove(spool);
+        spool[0] = '\0';
+        fprintf(stderr, "hypsolev: error: out of memory\n");
+        return EXIT_INPUT;
+    }
+    return 0;
+}
+
 int cmd_correct(int argc, char **argv)
 {
     args a;
@@ -134,8 +165,12 @@ int cmd_correct(int argc, char **argv)
         rc = cli_usage("correct", "no --base or --base-dir given: a base station's pressure log is needed");
     if (!rc)
         rc = check_report_html(&a);
+    char spool[4096] = "";
+    if (!rc)
+        rc = stdin_rover(&a, spool, sizeof spool);
     if (!rc)
         rc = run(&a);
+    hyp_spool_remove(spool);
     cli_files_free(&a.c.rovers);
     free(a.command_line);
     return rc < 0 ? 0 : rc;
