@@ -271,3 +271,23 @@ set(HYP_CASE_GOLDEN "")
 set(HYP_CASE_GOLDEN_OUT "")
 set(HYP_CASE_INPUTS "")
 hyp_cli_case(gpx_pressure_attribute_missing 1 "rover_attr.gpx:5: <baro> has no val attribute" correct @DATA@/rover_attr.gpx --pressure-field baro@val ${B} --base-pressure-field pressure ${O})
+# a rover from standard input ("-"), spooled under TMPDIR and removed after
+# the run (tests/cli/stdin_case.cmake): corrected as rover.gpx is; a bad log
+# refused and its copy removed; -o required
+function(hyp_stdin_case name rc regex input)
+  add_test(NAME cli_${name}
+    COMMAND ${CMAKE_COMMAND} -DEXE=$<TARGET_FILE:hypsolev-cli> -DDATA=${PROJECT_SOURCE_DIR}/tests/data
+            -DWORK=${CMAKE_CURRENT_BINARY_DIR}/cli/${name} -DEXPECT_RC=${rc} "-DEXPECT_ERR=${regex}"
+            -DINPUT=${input} "-DARGS=${ARGN}" "-DGOLDEN=${HYP_CASE_GOLDEN}" "-DGOLDEN_OUT=${HYP_CASE_GOLDEN_OUT}"
+            -P ${PROJECT_SOURCE_DIR}/tests/cli/stdin_case.cmake)
+  set_tests_properties(cli_${name} PROPERTIES LABELS cli TIMEOUT 150)
+endfunction()
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT t.csv)
+hyp_stdin_case(stdin_rover_gpx 0 "hypsolev-stdin\\.[A-Za-z0-9]+/stdin\n.*heights +61 of 61 corrected" @DATA@/rover.gpx correct - ${B} -o @OUT@/t.gpx --table @OUT@/t.csv)
+hyp_stdin_case(stdin_rover_csv 0 "dates read day first" @DATA@/rover_dayfirst.csv correct - --time-zone Europe/Vienna ${B} -o @OUT@/t.gpx --table @OUT@/t.csv)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+hyp_stdin_case(stdin_rover_bad 1 "hypsolev-stdin\\.[A-Za-z0-9]+/stdin:3: time \"03.04.2026 09:00:00\": the date may be day.month or month.day" @DATA@/bad/ambiguous_dates.csv correct - --time-zone UTC ${B} -o @OUT@/t.gpx)
+hyp_stdin_case(stdin_rover_needs_output 2 "a rover from standard input \\(-\\) needs -o FILE" @DATA@/rover.gpx correct - ${B} --table @OUT@/t.csv)
+hyp_stdin_case(stdin_rover_only_one 2 "a rover from standard input \\(-\\) must be the only rover" @DATA@/rover.gpx correct - @DATA@/rover.gpx ${B} --out-dir @OUT@)
