@@ -112,13 +112,27 @@ static const char *time_problem(hyp_time_result r)
     return "";
 }
 
+/* Whether a field starts as a clock time ("06:30", " 6:30 PM"), not as a
+ * stamp with its date (ISO, a numeric date, epoch seconds). */
+static int clock_only(const hyp__csv_field *t)
+{
+    size_t k = 0;
+    while (k < t->len && (t->s[k] == ' ' || t->s[k] == '\t'))
+        k++;
+    size_t d = k;
+    while (k < t->len && t->s[k] >= '0' && t->s[k] <= '9')
+        k++;
+    return k > d && k - d <= 2 && k < t->len && t->s[k] == ':';
+}
+
 /* The time of a row as text into tb (n bytes): the time field, after the
- * date field and a blank where the file has a date column. */
+ * date field and a blank where the file has a date column and the time
+ * field holds a clock time only. */
 static size_t time_text(const csv_state *cs, const hyp__csv_field *fields, char *tb, size_t n)
 {
     size_t l = 0;
     const hyp__csv_field *t = &fields[cs->idx[C_TIME]];
-    if (cs->idx[C_DATE] >= 0) {
+    if (cs->idx[C_DATE] >= 0 && clock_only(t)) {
         const hyp__csv_field *d = &fields[cs->idx[C_DATE]];
         l = d->len < n / 2 ? d->len : n / 2;
         memcpy(tb, d->s, l);
