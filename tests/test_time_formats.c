@@ -2,6 +2,7 @@
  * table of inputs and their UTC instants, each checked against GNU date or
  * zdump (the command beside the value), the refusals, numeric dates whose
  * day/month order is decided, and the unit spellings users write. */
+#define _GNU_SOURCE
 #include <stdarg.h>
 #include <stddef.h>
 #include <setjmp.h>
@@ -11,8 +12,13 @@
 #include <string.h>
 #include <sys/stat.h>
 
+#include "hypsolev/readers.h"
 #include "hypsolev/timeparse.h"
 #include "hypsolev/units.h"
+
+#include <stdio.h>
+#include <stdlib.h>
+#include <unistd.h>
 
 struct fmt_case {
     const char *zone;   /* NULL: no zone given */
@@ -202,6 +208,78 @@ static void test_unit_spellings(void **state)
     assert_int_equal(hyp_unit_parse(HYP_Q_TEMPERATURE, "mb"), HYP_UNIT_NONE);
 }
 
+
+/* A CSV log of the rows given, read as a rover log in UTC; the status, and
+ * the error's message in err. */
+static hyp_status read_csv(const char *rows, const char *fmt, hyp_series *s, hyp_msgs *m, hyp_error *err)
+{
+    char path[] = "/tmp/test_time_formats.XXXXXX";
+    int fd = mkstemp(path);
+    assert_true(fd >= 0);
+    FILE *f = fdopen(fd, "w");
+    assert_non_null(f);
+    fputs(rows, f);
+    fclose(f);
+    hyp_zone utc;
+    zone_of("UTC", &utc);
+    hyp_read_opts o;
+    hyp_read_opts_init(&o);
+    o.zone = &utc;
+    o.time_format = fmt;
+    hyp_series_init(s);
+    hyp_msgs_init(m);
+    hyp_status st = hyp_csv_read(path, &o, s, NULL, m, err);
+    unlink(path);
+    hyp_zone_free(&utc);
+    return st;
+}
+
+/* The CSV reader: numeric dates decided by the file, refused where they
+ * disagree or have a short year, a date column joined to a clock time only. */
+static void test_csv_dates(void **state)
+{
+    (void)state;
+    hyp_series s;
+    hyp_msgs m;
+    hyp_error err;
+    const char *hdr = "time,pressure [hPa],lat,lon\n";
+    char rows[1024];
+    /* month first, decided by line 4 (second field 18):
+     * date -u -d "2026-06-03 06:30 UTC" +%s -> 1780468200 */
+    snprintf(rows, sizeof rows, "%s06/03/2026 06:30,923,46.8,9.9\n06/03/2026 06:31,923,46.8,9.9\n"
+             "06/18/2026 06:32,923,46.8,9.9\n", hdr);
+    assert_int_equal(read_csv(rows, NULL, &s, &m, &err), HYP_OK);
+    assert_true(s.time_s[0] == 1780468200.0);
+    assert_true(m.count >= 1 && m.items[0].line == 4 && strstr(m.items[0].text, "month first"));
+    hyp_series_free(&s);
+    hyp_msgs_free(&m);
+    /* one date only day first (line 2), one only month first (line 3) */
+    snprintf(rows, sizeof rows, "%s18.06.2026 06:30,923,46.8,9.9\n06.18.2026 06:31,923,46.8,9.9\n"
+             "05.06.2026 06:32,923,46.8,9.9\n", hdr);
+    assert_int_equal(read_csv(rows, NULL, &s, &m, &err), HYP_ERR_VALUE);
+    assert_non_null(strstr(err.message, ":2: time \"18.06.2026 06:30\" is day first, but line 3's \"06.18.2026 06:31\" is month first"));
+    hyp_msgs_free(&m);
+    /* a two-digit year without a format */
+    snprintf(rows, sizeof rows, "%s18.06.26 06:30,923,46.8,9.9\n", hdr);
+    assert_int_equal(read_csv(rows, NULL, &s, &m, &err), HYP_ERR_VALUE);
+    assert_non_null(strstr(err.message, ":2: time \"18.06.26 06:30\": a year of fewer than four digits"));
+    hyp_msgs_free(&m);
+    /* a date column joined to a clock time; a full stamp read alone:
+     * date -u -d "2026-06-18 06:30 UTC" +%s -> 1781764200 */
+    snprintf(rows, sizeof rows, "date,time,pressure [hPa],lat,lon\n18.06.2026,06:30,923,46.8,9.9\n"
+             "18.06.2026,2026-06-18T06:31:00Z,923,46.8,9.9\n18.06.2026,6:32,923,46.8,9.9\n");
+    assert_int_equal(read_csv(rows, NULL, &s, &m, &err), HYP_OK);
+    assert_true(s.count == 3 && s.time_s[0] == 1781764200.0 && s.time_s[1] == 1781764260.0 &&
+                s.time_s[2] == 1781764320.0);
+    hyp_series_free(&s);
+    hyp_msgs_free(&m);
+    /* the format names the line, the text and the format */
+    snprintf(rows, sizeof rows, "%s18.06.2026 06:30,923,46.8,9.9\n2026-06-18 06:31,923,46.8,9.9\n", hdr);
+    assert_int_equal(read_csv(rows, "%d.%m.%Y %H:%M", &s, &m, &err), HYP_ERR_VALUE);
+    assert_non_null(strstr(err.message, ":3: time \"2026-06-18 06:31\" does not match the time format \"%d.%m.%Y %H:%M\""));
+    hyp_msgs_free(&m);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -211,6 +289,7 @@ int main(void)
         cmocka_unit_test(test_format_check),
         cmocka_unit_test(test_numeric_dates),
         cmocka_unit_test(test_unit_spellings),
+        cmocka_unit_test(test_csv_dates),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
