@@ -291,3 +291,10 @@ set(HYP_CASE_GOLDEN_OUT "")
 hyp_stdin_case(stdin_rover_bad 1 "hypsolev-stdin\\.[A-Za-z0-9]+/stdin:3: time \"03.04.2026 09:00:00\": the date may be day.month or month.day" @DATA@/bad/ambiguous_dates.csv correct - --time-zone UTC ${B} -o @OUT@/t.gpx)
 hyp_stdin_case(stdin_rover_needs_output 2 "a rover from standard input \\(-\\) needs -o FILE" @DATA@/rover.gpx correct - ${B} --table @OUT@/t.csv)
 hyp_stdin_case(stdin_rover_only_one 2 "a rover from standard input \\(-\\) must be the only rover" @DATA@/rover.gpx correct - @DATA@/rover.gpx ${B} --out-dir @OUT@)
+# inspect reads times by --time-format too: 06/18/2026 09:00:00 AM in
+# Vienna is 07:00 UTC (date -u -d "2026-06-18 09:00:00 +0200" +%FT%TZ),
+# 09:30:00 AM 07:30 UTC
+set(HYP_CASE_OUT "span        2026-06-18T07:00:00Z to 2026-06-18T07:30:00Z")
+hyp_cli_case(inspect_time_format 0 "" inspect @DATA@/rover_12h.csv --time-zone Europe/Vienna --time-format "%m/%d/%Y %I:%M:%S %p")
+set(HYP_CASE_OUT "")
+hyp_cli_case(inspect_time_format_bad 2 "--time-format \"%m/%d/%Y %I:%M:%S\" has %I \\(12-hour clock\\) without %p" inspect @DATA@/rover_12h.csv --time-format "%m/%d/%Y %I:%M:%S")
