@@ -15,6 +15,7 @@ typedef struct args {
     hyp_report_info report_info;
     char *command_line;         /* for the HTML report */
     int progress;
+    char spool[4096];           /* the copy of a rover on standard input, "" for none */
 } args;
 
 enum { O_OUTDIR = CLI_OWN, O_TABLE, O_HELP, O_SUMMARY, O_PROGRESS, O_OVERWRITE, O_REPORT, O_REPORT_HTML };
@@ -59,6 +60,20 @@ static int check_report_html(const args *a)
     return 0;
 }
 
+/* The text printed for a rover on standard input names it "stdin", not
+ * its temporary copy (which is gone when the run ends). */
+static void emit_named(const args *a, const char *buf, size_t len)
+{
+    size_t sl = strlen(a->spool);
+    const char *p = buf, *end = buf + len, *hit;
+    while (sl && (hit = memmem(p, (size_t)(end - p), a->spool, sl))) {
+        cli_emit(p, (size_t)(hit - p));
+        cli_emit("stdin", 5);
+        p = hit + sl;
+    }
+    cli_emit(p, (size_t)(end - p));
+}
+
 /* Each rover as it ends: its messages and summary, whole. */
 static void rover_done(void *ctx, size_t i, const hyp_rover_run *run)
 {
@@ -74,7 +89,7 @@ static void rover_done(void *ctx, size_t i, const hyp_rover_run *run)
     }
     hyp_rover_run_write_text(f, run, parts);
     fclose(f);
-    cli_emit(buf, len);
+    emit_named(a, buf, len);
     free(buf);
 }
 
@@ -165,12 +180,11 @@ int cmd_correct(int argc, char **argv)
         rc = cli_usage("correct", "no --base or --base-dir given: a base station's pressure log is needed");
     if (!rc)
         rc = check_report_html(&a);
-    char spool[4096] = "";
     if (!rc)
-        rc = stdin_rover(&a, spool, sizeof spool);
+        rc = stdin_rover(&a, a.spool, sizeof a.spool);
     if (!rc)
         rc = run(&a);
-    hyp_spool_remove(spool);
+    hyp_spool_remove(a.spool);
     cli_files_free(&a.c.rovers);
     free(a.command_line);
     return rc < 0 ? 0 : rc;
