@@ -153,7 +153,12 @@ static int stdin_rover(args *a, char *spool, size_t n)
     if (isatty(0))
         return cli_usage("correct", "a rover from standard input (-): standard input is a terminal; pipe or redirect a log into it");
     hyp_error err;
+    cli_signals_catch_reads();
     hyp_status st = hyp_spool_stream(stdin, getenv("TMPDIR"), spool, n, &err);
+    if (st && cli_signal()) {   /* the copy is already removed */
+        fprintf(stderr, "hypsolev: stopped by a signal while reading standard input; nothing written\n");
+        return 128 + cli_signal();
+    }
     if (st)
         return cli_fail(&a->c, st, &err);
     free(a->c.rovers.path[k]);
