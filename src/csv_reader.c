@@ -104,7 +104,9 @@ static hyp_status parse_header(csv_state *cs, hyp__csv_lines *lr, hyp_error *err
 static const char *time_problem(hyp_time_result r)
 {
     switch (r) {
-    case HYP_TIME_SYNTAX: return "is not a time; expected ISO 8601 (2026-06-14T09:30:00Z) or Unix epoch seconds";
+    case HYP_TIME_SYNTAX: return "is not a time; expected ISO 8601 (2026-06-14T09:30:00Z), Unix epoch seconds or "
+                                 "a numeric date and time (18.06.2026 09:30), or give the format with --time-format "
+                                 "(rover) or --base-time-format (base)";
     case HYP_TIME_RANGE: return "is out of range (a date that does not exist, or before 1900 or after 2200)";
     case HYP_TIME_NOZONE: return "has no time zone; add Z or an offset, or give the zone with --time-zone (rover) or --base-time-zone";
     case HYP_TIME_OK: break;

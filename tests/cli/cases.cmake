@@ -298,3 +298,5 @@ set(HYP_CASE_OUT "span        2026-06-18T07:00:00Z to 2026-06-18T07:30:00Z")
 hyp_cli_case(inspect_time_format 0 "" inspect @DATA@/rover_12h.csv --time-zone Europe/Vienna --time-format "%m/%d/%Y %I:%M:%S %p")
 set(HYP_CASE_OUT "")
 hyp_cli_case(inspect_time_format_bad 2 "--time-format \"%m/%d/%Y %I:%M:%S\" has %I \\(12-hour clock\\) without %p" inspect @DATA@/rover_12h.csv --time-format "%m/%d/%Y %I:%M:%S")
+# a time that is no stamp names the option that gives a format
+hyp_cli_case(time_not_a_stamp 1 "bad_time_syntax.csv:3: time \"18.06.2026\" is not a time; expected ISO 8601 .*give the format with --time-format" correct @DATA@/bad/bad_time_syntax.csv --time-zone UTC ${B} ${O})
