@@ -324,6 +324,7 @@ hyp_status hyp_survey_add_base_dir(hyp_survey *sv, const char *dir, hyp_msgs *ms
         b.lon_deg = e[k].lon_deg;
         b.clock_offset_s = e[k].clock_offset_s;
         b.kind = e[k].qnh ? HYP_BASE_QNH : HYP_BASE_STATION;
+        b.time_format = e[k].time_format[0] ? e[k].time_format : NULL;   /* read before e is freed */
         st = pool_push(sv, &b, msgs, err);
     }
     free(e);

@@ -92,7 +92,7 @@ void cli_correct_help(void)
 "  ROVER may be a folder (its .gpx and .csv files) or a quoted pattern\n"
 "  ROVER - is standard input (the only rover, with -o; spooled under TMPDIR)\n"
 "  --base-dir DIR           base logs listed in DIR/bases.csv (file, height, lat,\n"
-"                           lon, clock_offset, kind); each rover gets the logs\n"
+"                           lon, clock_offset, kind, time_format); each rover gets the logs\n"
 "                           that cover its time span\n"
 "  -j, --jobs N             threads in all (default: the number of cores): one\n"
 "                           rover per thread, and a single rover uses them all\n"

@@ -300,3 +300,12 @@ set(HYP_CASE_OUT "")
 hyp_cli_case(inspect_time_format_bad 2 "--time-format \"%m/%d/%Y %I:%M:%S\" has %I \\(12-hour clock\\) without %p" inspect @DATA@/rover_12h.csv --time-format "%m/%d/%Y %I:%M:%S")
 # a time that is no stamp names the option that gives a format
 hyp_cli_case(time_not_a_stamp 1 "bad_time_syntax.csv:3: time \"18.06.2026\" is not a time; expected ISO 8601 .*give the format with --time-format" correct @DATA@/bad/bad_time_syntax.csv --time-zone UTC ${B} ${O})
+# a base folder's index gives a log's time format in its time_format column
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT t.csv)
+set(HYP_CASE_INPUTS @DATA@/rover.gpx @DATA@/basedir_time_format/base.csv @DATA@/basedir_time_format/bases.csv)
+hyp_cli_case(base_dir_time_format 0 "heights +61 of 61 corrected" correct ${R} --base-dir @DATA@/basedir_time_format --table @OUT@/t.csv)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+set(HYP_CASE_INPUTS "")
+hyp_cli_case(base_dir_time_format_bad 1 "basedir_bad_format/bases.csv:3: time_format \"%d.%m.%Y %Q\" has %Q, which is not one of" correct ${R} --base-dir @DATA@/bad/basedir_bad_format ${O})
