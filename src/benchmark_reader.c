@@ -463,11 +463,11 @@ hyp_status hyp_base_index_read(const char *path, hyp_base_entry **out, size_t *c
     if (st)
         return st;
     int r = table_next(&t, err, &st);
-    static const char *names[6] = {"file", "height", "lat", "lon", "clock_offset", "kind"};
-    int c[6];
+    static const char *names[7] = {"file", "height", "lat", "lon", "clock_offset", "kind", "time_format"};
+    int c[7];
     if (r == 0)
         st = hyp_error_set(err, HYP_ERR_NODATA, "%s: empty file: no header row", path);
-    for (int k = 0; r == 1 && k < 6 && !st; k++)
+    for (int k = 0; r == 1 && k < 7 && !st; k++)
         if ((c[k] = column(&t, names[k])) < 0 && k < 2)
             st = hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: header: no \"%s\" column (expected file, height[, lat, lon, clock_offset, kind])",
                                path, t.lr.lineno, names[k]);
@@ -499,6 +499,10 @@ hyp_status hyp_base_index_read(const char *path, hyp_base_entry **out, size_t *c
         if (!st && kind[0] && strcasecmp(kind, "station") != 0 && strcasecmp(kind, "qnh") != 0)
             st = hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: kind \"%s\": expected station or qnh", path, t.lr.lineno, kind);
         e->qnh = strcasecmp(kind, "qnh") == 0;
+        field_text(&t, c[6], e->time_format, sizeof e->time_format);
+        char why[160];
+        if (!st && e->time_format[0] && hyp_time_format_check(e->time_format, why, sizeof why))
+            st = hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: time_format \"%s\" %s", path, t.lr.lineno, e->time_format, why);
         if (!st)
             (*count)++;
     }

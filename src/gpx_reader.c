@@ -97,6 +97,14 @@ static const char *field_name(const char *opt, const char *dflt)
     return opt ? opt : dflt;
 }
 
+/* "baro@value": the value is the attribute after the '@' of the element
+ * before it (docs/formats.md); NULL: the element's text. */
+static const char *field_attr(const char *opt)
+{
+    const char *at = opt ? strchr(opt, '@') : NULL;
+    return at ? at + 1 : NULL;
+}
+
 static unsigned cur_line(gpx_ctx *g)
 {
     return (unsigned)xmlSAX2GetLineNumber(g->ctxt);
@@ -168,7 +176,7 @@ static hyp_status intern_names(gpx_ctx *g)
                         : k == N_PRES ? pres_name(g->opts)
                         : k == N_TEMP ? field_name(g->opts->temperature_field, "temperature")
                                       : field_name(g->opts->humidity_field, "humidity");
-        if (!d || !(g->names[k] = xmlDictLookup(d, BAD_CAST n, -1)))
+        if (!d || !(g->names[k] = xmlDictLookup(d, BAD_CAST n, (int)strcspn(n, "@"))))
             return HYP_ERR_NOMEM;
     }
     return HYP_OK;
@@ -397,6 +405,8 @@ static void start_structure(gpx_ctx *g, const xmlChar *local, int nb_attr, const
         g->n_misplaced++;
 }
 
+static void capture_attr(gpx_ctx *g, const char *attr, int nb_attr, const xmlChar **attrs);
+
 static void on_start(void *ctx, const xmlChar *local, const xmlChar *prefix, const xmlChar *uri,
                      int nb_ns, const xmlChar **ns, int nb_attr, int nb_def, const xmlChar **attrs)
 {
@@ -458,12 +468,16 @@ static void on_start(void *ctx, const xmlChar *local, const xmlChar *prefix, con
     int in_ext = g->ext_depth ? g->depth > g->ext_depth : !gpx;
     if (!in_ext || g->in_wpt)
         return;
+    const char *opt = NULL;
     if (!g->got_pres && is_name(g, local, N_PRES))
-        start_capture(g, CAP_PRES, nb_attr, attrs);
+        start_capture(g, CAP_PRES, nb_attr, attrs), opt = g->opts->pressure_field;
     else if (!g->got_temp && is_name(g, local, N_TEMP))
-        start_capture(g, CAP_TEMP, nb_attr, attrs);
+        start_capture(g, CAP_TEMP, nb_attr, attrs), opt = g->opts->temperature_field;
     else if (!g->got_rh && is_name(g, local, N_RH))
-        start_capture(g, CAP_RH, nb_attr, attrs);
+        start_capture(g, CAP_RH, nb_attr, attrs), opt = g->opts->humidity_field;
+    const char *attr = field_attr(opt);
+    if (attr && g->cap && !g->status)
+        capture_attr(g, attr, nb_attr, attrs);
 }
 
 static void on_chars(void *ctx, const xmlChar *ch, int len)
@@ -612,6 +626,21 @@ static void end_capture(gpx_ctx *g)
         g->geoid = v;
         break;
     }
+}
+
+/* A value held in an attribute (<ext:baro value="1013.2"/>): read now, the
+ * element's text is not. */
+static void capture_attr(gpx_ctx *g, const char *attr, int nb_attr, const xmlChar **attrs)
+{
+    const char *label = cap_label(g, g->cap);
+    if (!attr_value(attrs, nb_attr, attr, g->text, sizeof g->text)) {
+        g->cap = 0;
+        fail(g, HYP_ERR_VALUE, "<%.*s> has no %s attribute; expected the value there (field \"%s\")",
+             (int)strcspn(label, "@"), label, attr, label);
+        return;
+    }
+    g->text_len = strlen(g->text);
+    end_capture(g);
 }
 
 static hyp_status push_waypoint(hyp_waypoints *w, const char *name, double t, double lat, double lon)

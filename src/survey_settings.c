@@ -69,6 +69,16 @@ static hyp_status set_vref(const char *name, const char *text, hyp_vref *v, hyp_
     return HYP_OK;
 }
 
+static hyp_status set_time_format(const char *name, const char *text, const char **to, hyp_error *err)
+{
+    char why[160];
+    if (hyp_time_format_check(text, why, sizeof why))
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s \"%s\" %s (see \"Time formats\" in docs/formats.md)",
+                             name, text, why);
+    *to = text;
+    return HYP_OK;
+}
+
 static hyp_status set_unit(hyp_quantity q, const char *name, const char *text, hyp_unit *u, hyp_error *err)
 {
     if (!(*u = hyp_unit_parse(q, text)))
@@ -113,6 +123,8 @@ static hyp_status set_text(hyp_survey_opts *o, const char *name, const char *v, 
         return set_unit(HYP_Q_PRESSURE, name, v, &o->read.pressure_unit, err);
     else if (!strcmp(name, "temperature-unit"))
         return set_unit(HYP_Q_TEMPERATURE, name, v, &o->read.temperature_unit, err);
+    else if (!strcmp(name, "time-format"))
+        return set_time_format(name, v, &o->read.time_format, err);
     else if (!strcmp(name, "gnss-heights"))
         return set_vref(name, v, &o->gnss_ref, err);
     else if (!strcmp(name, "known-heights"))
@@ -165,6 +177,8 @@ hyp_status hyp_base_spec_set(hyp_base_spec *b, const char *name, const char *val
         b->time_zone = value;
         return HYP_OK;
     }
+    if (!strcmp(name, "base-time-format"))
+        return set_time_format(name, v, &b->time_format, err);
     if (!strcmp(name, "base-qnh")) {
         b->kind = HYP_BASE_QNH;
         return HYP_OK;

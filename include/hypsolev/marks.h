@@ -46,12 +46,15 @@ typedef struct hyp_tie_spec {
 
 /* An index of base logs in a folder (--base-dir): a CSV named bases.csv
  * with columns file (relative to the folder), height (m), optional lat,
- * lon (degrees), clock_offset (s) and kind ("station" or "qnh"). */
+ * lon (degrees), clock_offset (s), kind ("station" or "qnh") and
+ * time_format (a CSV log's time format, as --base-time-format). */
 typedef struct hyp_base_entry {
     char file[256];
     double height_m, lat_deg, lon_deg, clock_offset_s;
     int qnh;
     unsigned line;
+    char time_format[64];   /* optional column time_format: the log's CSV
+                               time format (timeparse.h); "" for none */
 } hyp_base_entry;
 
 #ifdef __cplusplus

@@ -7,6 +7,7 @@
 #include "hypsolev/export.h"
 
 #include <stdint.h>
+#include <stdio.h>
 #include "hypsolev/error.h"
 #include "hypsolev/samples.h"
 #include "hypsolev/timeparse.h"
@@ -40,6 +41,10 @@ typedef struct hyp_read_opts {
      * the line. The unknown reference the recorder used, and its
      * re-settings, are the correction's business (docs/methods.md). */
     const char *baro_altitude_field;
+    /* CSV only: the time column's format (hyp_time_parse_format in
+     * timeparse.h); NULL: ISO 8601, epoch seconds or a numeric date whose
+     * day/month order the file's dates decide (docs/formats.md). */
+    const char *time_format;
 } hyp_read_opts;
 
 HYP_API void hyp_read_opts_init(hyp_read_opts *o);
@@ -147,6 +152,16 @@ HYP_API hyp_status hyp_base_index_read(const char *path, hyp_base_entry **out, s
 /* 1 when the file looks like XML (first non-blank byte after an optional
  * byte-order mark is '<'), 0 when not, -1 when it cannot be read. */
 HYP_API int hyp_file_is_xml(const char *path);
+
+
+/* Copies a stream (a rover on standard input) into a new private file
+ * DIR/hypsolev-stdin.XXXXXX/stdin (DIR: NULL or "" for /tmp), whose name
+ * goes into path (n bytes, PATH_MAX is enough): the readers need a
+ * regular file and the GPX writer copies the input's bytes. Nothing is left
+ * behind on failure. Remove it with hyp_spool_remove() after the run. */
+HYP_API hyp_status hyp_spool_stream(FILE *in, const char *dir, char *path, size_t n, hyp_error *err);
+/* Removes a file of hyp_spool_stream() and its folder; NULL or "": nothing. */
+HYP_API void hyp_spool_remove(const char *path);
 
 #ifdef __cplusplus
 }

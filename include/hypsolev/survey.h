@@ -50,6 +50,9 @@ typedef struct hyp_base_spec {
      * options (hyp_survey_opts.read): HYP_UNIT_NONE and NULL take those. */
     hyp_unit pressure_unit, temperature_unit;
     const char *pressure_field, *temperature_field, *humidity_field;
+    const char *time_format;   /* CSV time column's format (timeparse.h,
+                                  hyp_time_parse_format); NULL: detected.
+                                  Never the rovers' (read.time_format) */
 } hyp_base_spec;
 
 /* path and height; no position, clock offset 0, station pressure, offset
@@ -100,7 +103,7 @@ HYP_API hyp_status hyp_survey_opts_set(hyp_survey_opts *o, const char *name, con
  * "base-clock-offset" (s), "base-time-zone", "base-offset" and
  * "base-offset-sigma" (Pa), "base-qnh" (NULL), and how its log is read:
  * "base-pressure-unit", "base-temperature-unit", "base-pressure-field",
- * "base-temperature-field", "base-humidity-field". */
+ * "base-temperature-field", "base-humidity-field"; and "base-time-format". */
 HYP_API hyp_status hyp_base_spec_set(hyp_base_spec *b, const char *name, const char *value, hyp_error *err);
 
 /* What an HTML report says of the program that wrote it. */

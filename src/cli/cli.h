@@ -74,5 +74,8 @@ void cli_progress(void *ctx, size_t done, size_t n, double points);
 void cli_progress_quiet(void *ctx, size_t done, size_t n, double points);
 /* Prints a finished rover's text in one piece (clearing the progress line). */
 void cli_emit(const char *text, size_t len);
+/* As cli_signals_catch, but a signal interrupts a read under way (a rover
+ * on standard input that never ends can be stopped, its copy removed). */
+void cli_signals_catch_reads(void);
 
 #endif

@@ -33,6 +33,7 @@ const struct option cli_common_options[] = {
     {"rover-humidity-field", required_argument, 0, CLI_ROVER_SET},
     {"rover-time-zone", required_argument, 0, CLI_ROVER_SET}, {"rover-clock-offset", required_argument, 0, CLI_ROVER_SET},
     SET("baro-altitude"),
+    SET("time-format"), BASE("base-time-format"),
     {0, 0, 0, 0},
 };
 

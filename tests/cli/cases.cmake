@@ -303,3 +303,73 @@ hyp_cli_case(baro_alt_csv 2 "rover_local.csv: --baro-altitude reads GPX tracks o
 hyp_cli_case(baro_alt_is_pressure 1 "rover.gpx:4: unit=\"hPa\" on <pressure>: a barometric altitude \\(--baro-altitude\\) is expected in m" correct ${R} --baro-altitude pressure ${B} ${O})
 hyp_cli_case(baro_alt_bad_name 2 "--baro-altitude \"a b\": expected ele or the local name of an extension element" correct ${R} --baro-altitude "a b" ${B} ${O})
 set(HYP_CASE_INPUTS "")
+# times as exports write them (issue 16): the golden table is the one of
+# rover.gpx, the same track; day-first dates in a date and a time column
+# (the order decided by the dates, pressure in "mb"), a month-first
+# 12-hour clock by --time-format (unit " Millibar "), and a base whose
+# times are "18 Jun 2026 06:50:00 +0000"
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT t.csv)
+set(HYP_CASE_INPUTS @DATA@/rover_dayfirst.csv @DATA@/base.csv)
+hyp_cli_case(time_dayfirst_columns 0 "rover_dayfirst.csv:4: dates read day first, as \"18.06.2026 09:00:00\" can only be read so.*pressure in mbar" correct @DATA@/rover_dayfirst.csv --time-zone Europe/Vienna ${B} --table @OUT@/t.csv -o @OUT@/t.gpx)
+set(HYP_CASE_INPUTS @DATA@/rover_12h.csv @DATA@/base.csv)
+hyp_cli_case(time_format_12h 0 "heights +61 of 61 corrected" correct @DATA@/rover_12h.csv --time-zone Europe/Vienna --time-format "%m/%d/%Y %I:%M:%S %p" ${B} --table @OUT@/t.csv)
+set(HYP_CASE_INPUTS @DATA@/rover.gpx @DATA@/base_month_name.csv)
+hyp_cli_case(base_time_format 0 "heights +61 of 61 corrected" correct ${R} --base @DATA@/base_month_name.csv --base-height 812.4 --base-at 46.8,9.9 --base-time-format "%d %b %Y %H:%M:%S %z" --table @OUT@/t.csv)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+set(HYP_CASE_INPUTS "")
+hyp_cli_case(time_dates_ambiguous 1 "ambiguous_dates.csv:3: time \"03.04.2026 09:00:00\": the date may be day.month or month.day .*give the order with --time-format" correct @DATA@/bad/ambiguous_dates.csv --time-zone UTC ${B} ${O})
+hyp_cli_case(time_format_mismatch 1 "rover_dayfirst.csv:4: time \"18.06.2026 09:00:00\" does not match the time format \"%Y-%m-%d %H:%M:%S\"" correct @DATA@/rover_dayfirst.csv --time-zone UTC --time-format "%Y-%m-%d %H:%M:%S" ${B} ${O})
+hyp_cli_case(time_format_unknown 2 "--time-format \"%Y-%m-%d %Q\" has %Q, which is not one of" correct @DATA@/rover_dayfirst.csv --time-format "%Y-%m-%d %Q" ${B} ${O})
+hyp_cli_case(base_time_format_without_base 2 "--base-time-format must follow the --base it applies to" correct ${R} --base-time-format "%d.%m.%Y %H:%M" ${B} ${O})
+# the base never takes the rovers' format: base.csv's ISO times still read
+hyp_cli_case(time_format_rover_only 0 "heights +61 of 61 corrected" correct @DATA@/rover_12h.csv --time-zone Europe/Vienna --time-format "%m/%d/%Y %I:%M:%S %p" ${B} ${O})
+# pressure as an attribute of an extension element (--pressure-field
+# ELEMENT@ATTRIBUTE), unit attribute " mb ": the table of rover.gpx
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT t.csv)
+set(HYP_CASE_INPUTS @DATA@/rover_attr.gpx @DATA@/base.csv)
+hyp_cli_case(gpx_pressure_attribute_mb 0 "pressure in mbar" correct @DATA@/rover_attr.gpx --pressure-field baro@value ${B} --base-pressure-field pressure --table @OUT@/t.csv -o @OUT@/t.gpx)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+set(HYP_CASE_INPUTS "")
+hyp_cli_case(gpx_pressure_attribute_missing 1 "rover_attr.gpx:5: <baro> has no val attribute" correct @DATA@/rover_attr.gpx --pressure-field baro@val ${B} --base-pressure-field pressure ${O})
+# a rover from standard input ("-"), spooled under TMPDIR and removed after
+# the run (tests/cli/stdin_case.cmake): corrected as rover.gpx is; a bad log
+# refused and its copy removed; -o required
+function(hyp_stdin_case name rc regex input)
+  add_test(NAME cli_${name}
+    COMMAND ${CMAKE_COMMAND} -DEXE=$<TARGET_FILE:hypsolev-cli> -DDATA=${PROJECT_SOURCE_DIR}/tests/data
+            -DWORK=${CMAKE_CURRENT_BINARY_DIR}/cli/${name} -DEXPECT_RC=${rc} "-DEXPECT_ERR=${regex}"
+            -DINPUT=${input} "-DARGS=${ARGN}" "-DGOLDEN=${HYP_CASE_GOLDEN}" "-DGOLDEN_OUT=${HYP_CASE_GOLDEN_OUT}"
+            -P ${PROJECT_SOURCE_DIR}/tests/cli/stdin_case.cmake)
+  set_tests_properties(cli_${name} PROPERTIES LABELS cli TIMEOUT 150)
+endfunction()
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT t.csv)
+hyp_stdin_case(stdin_rover_gpx 0 "hypsolev correct: stdin\n.*heights +61 of 61 corrected" @DATA@/rover.gpx correct - ${B} -o @OUT@/t.gpx --table @OUT@/t.csv)
+hyp_stdin_case(stdin_rover_csv 0 "dates read day first" @DATA@/rover_dayfirst.csv correct - --time-zone Europe/Vienna ${B} -o @OUT@/t.gpx --table @OUT@/t.csv)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+hyp_stdin_case(stdin_rover_bad 1 "error: stdin:3: time \"03.04.2026 09:00:00\": the date may be day.month or month.day" @DATA@/bad/ambiguous_dates.csv correct - --time-zone UTC ${B} -o @OUT@/t.gpx)
+hyp_stdin_case(stdin_rover_needs_output 2 "a rover from standard input \\(-\\) needs -o FILE" @DATA@/rover.gpx correct - ${B} --table @OUT@/t.csv)
+hyp_stdin_case(stdin_rover_only_one 2 "a rover from standard input \\(-\\) must be the only rover" @DATA@/rover.gpx correct - @DATA@/rover.gpx ${B} --out-dir @OUT@)
+# inspect reads times by --time-format too: 06/18/2026 09:00:00 AM in
+# Vienna is 07:00 UTC (date -u -d "2026-06-18 09:00:00 +0200" +%FT%TZ),
+# 09:30:00 AM 07:30 UTC
+set(HYP_CASE_OUT "span        2026-06-18T07:00:00Z to 2026-06-18T07:30:00Z")
+hyp_cli_case(inspect_time_format 0 "" inspect @DATA@/rover_12h.csv --time-zone Europe/Vienna --time-format "%m/%d/%Y %I:%M:%S %p")
+set(HYP_CASE_OUT "")
+hyp_cli_case(inspect_time_format_bad 2 "--time-format \"%m/%d/%Y %I:%M:%S\" has %I \\(12-hour clock\\) without %p" inspect @DATA@/rover_12h.csv --time-format "%m/%d/%Y %I:%M:%S")
+# a time that is no stamp names the option that gives a format
+hyp_cli_case(time_not_a_stamp 1 "bad_time_syntax.csv:3: time \"18.06.2026\" is not a time; expected ISO 8601 .*give the format with --time-format" correct @DATA@/bad/bad_time_syntax.csv --time-zone UTC ${B} ${O})
+# a base folder's index gives a log's time format in its time_format column
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT t.csv)
+set(HYP_CASE_INPUTS @DATA@/rover.gpx @DATA@/basedir_time_format/base.csv @DATA@/basedir_time_format/bases.csv)
+hyp_cli_case(base_dir_time_format 0 "heights +61 of 61 corrected" correct ${R} --base-dir @DATA@/basedir_time_format --table @OUT@/t.csv)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+set(HYP_CASE_INPUTS "")
+hyp_cli_case(base_dir_time_format_bad 1 "basedir_bad_format/bases.csv:3: time_format \"%d.%m.%Y %Q\" has %Q, which is not one of" correct ${R} --base-dir @DATA@/bad/basedir_bad_format ${O})
