@@ -9,6 +9,7 @@
 #include "writers_int.h"
 #include "report_html.h"
 #include "report_page.h"
+#include "waypoint_heights.h"
 
 #include <math.h>
 #include <pthread.h>
@@ -24,6 +25,7 @@ void hyp_rover_run_free(hyp_rover_run *r)
     if (!r)
         return;
     hyp_correct_result_free(&r->result);
+    hyp__waypoint_heights_free(&r->waypoints);
     hyp_msgs_free(&r->msgs);
     priv_t *p = r->priv;
     if (p) {
@@ -163,6 +165,8 @@ static hyp_status correct_rover(hyp_survey *sv, const hyp_correct_opts *copts, h
     st = hyp_correct(r->rover, bases, nb, &co, &r->result, &r->msgs, err);
     if (!st)
         st = hyp_heights_convert(p->geo, r->rover, r->result.height_m, sv->o.known_ref, sv->o.out_ref, err);
+    if (!st && p->rv.is_gpx)   /* in the output reference, as the track */
+        st = hyp__waypoint_heights(&p->rv.doc.wpts, r->rover, &r->result, &r->waypoints, err);
     return st;
 }
 
@@ -268,12 +272,13 @@ static hyp_status write_outputs(hyp_survey *sv, hyp_rover_run *r, const hyp__rov
     if (ps->gpx[0]) {
         hyp__outfile *o = hyp__outset_add(&set, ps->gpx, err);
         st = !o ? err->status
-             : p->rv.is_gpx ? hyp__gpx_splice_to(r->path, &p->rv.doc, &r->result, &info, o, err)
+             : p->rv.is_gpx ? hyp__gpx_splice_to(r->path, &p->rv.doc, &r->result, &r->waypoints, &info, o, err)
                             : hyp__gpx_new_to(&p->rv.csv, &r->result, &info, r->name, o, err);
     }
     if (!st && ps->table[0]) {
         hyp__outfile *o = hyp__outset_add(&set, ps->table, err);
-        st = !o ? err->status : hyp__table_to(r->rover, &r->result, &info, o, err);
+        st = !o ? err->status
+             : hyp__table_to(r->rover, &r->result, &info, p->rv.is_gpx ? &p->rv.doc : NULL, &r->waypoints, o, err);
     }
     if (threaded) {
         pthread_join(tid, NULL);
