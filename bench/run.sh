@@ -17,7 +17,10 @@ cc -O2 -o "$work/peakrss" "$top/bench/peakrss.c"
 command -v xmllint > /dev/null || { echo "xmllint missing: apt-get install libxml2-utils"; exit 1; }
 "$work/gentrack" "$n" "$work/track.gpx" "$work/base.csv"
 measure() {   # prints "rss_kib wall_s"
-  "$work/peakrss" "$@" 2>&1 >/dev/null | sed -n 's/^peak_rss_kib \([0-9]*\) wall_s \([0-9.]*\)$/\1 \2/p'
+  "$work/peakrss" "$@" 2>&1 >/dev/null | sed -n 's/^peak_rss_kib \([0-9]*\) wall_s \([0-9.]*\) cpu_s.*$/\1 \2/p'
+}
+cpu() {   # prints "cpu_s" (user + system)
+  "$work/peakrss" "$@" 2>&1 >/dev/null | sed -n 's/^peak_rss_kib .* cpu_s \([0-9.]*\)$/\1/p'
 }
 run=(correct "$work/track.gpx" --base "$work/base.csv" --base-height 800 --offset 0 -o "$work/out.gpx" -q --no-gnss-anchor)
 measure xmllint --stream --noout "$work/track.gpx" > /dev/null   # warm the page cache
