@@ -42,6 +42,8 @@ void hyp_correct_result_free(hyp_correct_result *r)
 
 static void work_free(hyp__work *w)
 {
+    free(w->detail);
+    w->detail = NULL;
     for (size_t k = 0; k < HYP_MAX_BASES; k++)
         hyp__base_view_free(&w->bvs[k]);
 }
@@ -151,6 +153,8 @@ static void corrected_range(void *ctx, size_t lo, size_t hi, int part)
         }
         r->height_m[i] = d.height_m;
         r->sigma_m[i] = (float)d.sigma_m;
+        if (w->detail)
+            w->detail[i] = d;
         sm->tcol_min_k = fmin(sm->tcol_min_k, d.tcol_k);
         sm->tcol_max_k = fmax(sm->tcol_max_k, d.tcol_k);
     }
@@ -165,6 +169,10 @@ static hyp_status corrected_heights(hyp__work *w)
     if (!r->height_m || !r->sigma_m)
         return HYP_ERR_NOMEM;
     if (w->method == HYP_METHOD_TWO_BASE && !(r->extrapolated = calloc(n, 1)))
+        return HYP_ERR_NOMEM;
+    free(w->detail);
+    w->detail = NULL;
+    if (w->n <= HYP__DETAIL_CACHE_MAX && !(w->detail = malloc(n * sizeof *w->detail)))
         return HYP_ERR_NOMEM;
     pass ps = {.w = w};
     int parts = hyp__parallel(w->n, pass_parts(w), corrected_range, &ps);
@@ -194,6 +202,10 @@ hyp_status hyp_correct_point(const hyp_correct_result *res, size_t i, hyp_point_
         return res->priv ? HYP_ERR_USAGE : HYP_ERR_NODATA;
     if (res->status[i] != HYP_PT_OK)
         return HYP_ERR_NODATA;
+    if (res->priv->detail) {   /* a short track: as the correction computed it */
+        *d = res->priv->detail[i];
+        return HYP_OK;
+    }
     /* the kept state with the caller's result (it may have moved); only read */
     hyp__work w = *res->priv;
     w.r = (hyp_correct_result *)res;
