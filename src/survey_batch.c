@@ -260,6 +260,12 @@ typedef struct batch {
     hyp_run_info *infos;
     pthread_mutex_t lock, report_lock;
     pthread_cond_t ended;
+    /* the group gathered for the next commit (under lock); commit_lock
+     * keeps one group's commit and reports at a time */
+    struct pending *pend[64];
+    size_t n_pend;
+    double pend_points, pend_t0;
+    pthread_mutex_t commit_lock;
 } batch;
 
 static int batch_cancelled(const batch *b)
@@ -297,20 +303,45 @@ static void fill_info(hyp_run_info *in, const hyp_rover_run *r, hyp_status st, c
         snprintf(in->message, sizeof in->message, "%s", r->status ? r->error.message : "ok");
 }
 
-static void run_index(batch *b, size_t i)
-{
-    hyp_rover_run *r = NULL;
+/* Group commit: a worker's rovers are staged and their outputs put on
+ * disk and into place together, once this many rovers or points have
+ * gathered or this long after the first (and when the workers run out of
+ * rovers); a rover is reported only after its group's commit. One sync of
+ * the file system per group instead of three fsyncs and a directory sync
+ * per rover: a batch of small tracks spent most of its time outside its
+ * own computation in them. A long track (GROUP_POINTS or more) makes a
+ * group of its own, committed as hyp_survey_run commits. */
+#define GROUP_ROVERS 64
+#define GROUP_POINTS 250000.0
+#define GROUP_WAIT_S 2.0
+
+typedef struct pending {
+    size_t i;
+    hyp_rover_run *r;     /* NULL: out of memory */
+    hyp_status st;
     hyp_error err;
-    hyp_error_clear(&err);
-    hyp_status st = hyp_survey_run(b->sv, b->rovers[i], b->out, b->rover_threads, &r, &err);
-    fill_info(&b->infos[i], r, st, &err);
+    hyp__outset set;
+} pending;
+
+static double now_s(void)
+{
+    struct timespec t;
+    clock_gettime(CLOCK_MONOTONIC, &t);
+    return (double)t.tv_sec + 1e-9 * (double)t.tv_nsec;
+}
+
+static void report_index(batch *b, pending *p)
+{
+    size_t i = p->i;
+    hyp_rover_run *r = p->r;
+    fill_info(&b->infos[i], r, p->st, &p->err);
     if (b->done_fn) {
         hyp_rover_run bare;   /* out of memory: the rover's error alone */
         if (!r) {
             memset(&bare, 0, sizeof bare);
             bare.path = b->rovers[i];
-            bare.status = st;
-            bare.error = err;
+            bare.status = p->st;
+            bare.error = p->err;
         }
         pthread_mutex_lock(&b->report_lock);   /* one report at a time */
         b->done_fn(b->ctx, i, r ? r : &bare);
@@ -324,6 +355,72 @@ static void run_index(batch *b, size_t i)
     hyp_rover_run_free(r);
 }
 
+/* Commits the gathered group (whichever worker calls it), then reports
+ * its rovers in the order they ended. */
+static void flush_group(batch *b)
+{
+    pthread_mutex_lock(&b->commit_lock);
+    pthread_mutex_lock(&b->lock);
+    size_t n = b->n_pend;
+    pending *g[GROUP_ROVERS];
+    memcpy(g, b->pend, n * sizeof *g);
+    b->n_pend = 0;
+    b->pend_points = 0;
+    pthread_mutex_unlock(&b->lock);
+    hyp__outset *sets[GROUP_ROVERS];
+    hyp_status st[GROUP_ROVERS];
+    hyp_error *errs = n ? calloc(n, sizeof *errs) : NULL;
+    for (size_t k = 0; k < n; k++)
+        sets[k] = &g[k]->set;
+    if (n && !errs) {   /* nothing can be said to be written */
+        for (size_t k = 0; k < n; k++)
+            hyp__outset_abort(sets[k]);
+        for (size_t k = 0; k < n; k++)
+            st[k] = g[k]->set.n ? HYP_ERR_NOMEM : HYP_OK;
+    } else if (n)
+        hyp__outset_commit_group(sets, n, b->sv->o.cancelled, b->sv->o.cancel_ctx, st, errs);
+    for (size_t k = 0; k < n; k++) {
+        if (st[k] && g[k]->r) {
+            hyp_error e;
+            hyp_error_clear(&e);
+            if (errs)
+                e = errs[k];
+            else
+                hyp_error_set(&e, HYP_ERR_NOMEM, "out of memory: nothing written");
+            hyp__rover_run_unwritten(g[k]->r, &e);
+        }
+        report_index(b, g[k]);
+        free(g[k]);
+    }
+    free(errs);
+    pthread_mutex_unlock(&b->commit_lock);
+}
+
+static void run_index(batch *b, size_t i)
+{
+    pending *p = calloc(1, sizeof *p);
+    if (!p) {   /* not even room to keep it: run and commit it alone */
+        pending one = {.i = i};
+        hyp_error_clear(&one.err);
+        one.st = hyp_survey_run(b->sv, b->rovers[i], b->out, b->rover_threads, &one.r, &one.err);
+        report_index(b, &one);
+        return;
+    }
+    p->i = i;
+    hyp_error_clear(&p->err);
+    p->st = hyp__survey_run_staged(b->sv, b->rovers[i], b->out, b->rover_threads, &p->r, &p->set, &p->err);
+    double pts = p->r && p->r->rover ? (double)p->r->rover->count : 0.0;
+    pthread_mutex_lock(&b->lock);
+    if (!b->n_pend)
+        b->pend_t0 = now_s();
+    b->pend[b->n_pend++] = p;
+    b->pend_points += pts;
+    int full = b->n_pend == GROUP_ROVERS || b->pend_points >= GROUP_POINTS || now_s() - b->pend_t0 >= GROUP_WAIT_S;
+    pthread_mutex_unlock(&b->lock);
+    if (full)
+        flush_group(b);
+}
+
 static void *worker(void *arg)
 {
     batch *b = arg;
@@ -331,8 +428,10 @@ static void *worker(void *arg)
         pthread_mutex_lock(&b->lock);
         size_t i = b->next < b->n && !batch_cancelled(b) ? b->next++ : SIZE_MAX;
         pthread_mutex_unlock(&b->lock);
-        if (i == SIZE_MAX)
+        if (i == SIZE_MAX) {
+            flush_group(b);   /* what this worker (or another) left gathered */
             return NULL;
+        }
         run_index(b, i);
     }
 }
@@ -383,6 +482,7 @@ hyp_status hyp_survey_run_many(hyp_survey *sv, const char *const *rovers, size_t
     b.rover_threads = busy && (size_t)jobs > busy ? (int)((size_t)jobs / busy) : 1;
     pthread_mutex_init(&b.lock, NULL);
     pthread_mutex_init(&b.report_lock, NULL);
+    pthread_mutex_init(&b.commit_lock, NULL);
     pthread_cond_init(&b.ended, NULL);
     xmlInitParser();   /* libxml2 wants its one-time set-up before threads */
     pthread_t *th = busy > 1 ? calloc(busy, sizeof *th) : NULL;
@@ -401,6 +501,7 @@ hyp_status hyp_survey_run_many(hyp_survey *sv, const char *const *rovers, size_t
     free(th);
     pthread_cond_destroy(&b.ended);
     pthread_mutex_destroy(&b.report_lock);
+    pthread_mutex_destroy(&b.commit_lock);
     pthread_mutex_destroy(&b.lock);
     (void)err;
     return HYP_OK;
