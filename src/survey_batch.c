@@ -248,6 +248,8 @@ hyp_status hyp_survey_check_outputs(const hyp_survey *sv, const char *const *rov
 
 /* ---- many rovers on worker threads --------------------------------- */
 
+#define GROUP_ROVERS 64   /* the largest group of a commit (see flush_group) */
+
 typedef struct batch {
     hyp_survey *sv;
     const char *const *rovers;
@@ -262,7 +264,7 @@ typedef struct batch {
     pthread_cond_t ended;
     /* the group gathered for the next commit (under lock); commit_lock
      * keeps one group's commit and reports at a time */
-    struct pending *pend[64];
+    struct pending *pend[GROUP_ROVERS];
     size_t n_pend;
     double pend_points, pend_t0;
     pthread_mutex_t commit_lock;
@@ -311,7 +313,6 @@ static void fill_info(hyp_run_info *in, const hyp_rover_run *r, hyp_status st, c
  * per rover: a batch of small tracks spent most of its time outside its
  * own computation in them. A long track (GROUP_POINTS or more) makes a
  * group of its own, committed as hyp_survey_run commits. */
-#define GROUP_ROVERS 64
 #define GROUP_POINTS 250000.0
 #define GROUP_WAIT_S 2.0
 
@@ -411,6 +412,11 @@ static void run_index(batch *b, size_t i)
     p->st = hyp__survey_run_staged(b->sv, b->rovers[i], b->out, b->rover_threads, &p->r, &p->set, &p->err);
     double pts = p->r && p->r->rover ? (double)p->r->rover->count : 0.0;
     pthread_mutex_lock(&b->lock);
+    while (b->n_pend == GROUP_ROVERS) {   /* another worker filled it and has yet to take it */
+        pthread_mutex_unlock(&b->lock);
+        flush_group(b);
+        pthread_mutex_lock(&b->lock);
+    }
     if (!b->n_pend)
         b->pend_t0 = now_s();
     b->pend[b->n_pend++] = p;
