@@ -42,6 +42,8 @@ void hyp_correct_result_free(hyp_correct_result *r)
 
 static void work_free(hyp__work *w)
 {
+    free(w->detail);
+    w->detail = NULL;
     for (size_t k = 0; k < HYP_MAX_BASES; k++)
         hyp__base_view_free(&w->bvs[k]);
 }
@@ -72,25 +74,75 @@ static size_t bin_of(const size_t *hist, size_t *rank)
     return b;
 }
 
-/* The median (upper middle) and the largest sigma, exactly and without a
- * copy of the sigmas: radix selection in two 16-bit passes. */
+/* The k-th smallest (from 0) of a[0..n-1], reordering a: Hoare's FIND
+ * (Hoare 1961, CACM 4(7), Algorithm 65) with the middle element as pivot. */
+static uint32_t select_kth(uint32_t *a, size_t n, size_t k)
+{
+    size_t lo = 0, hi = n - 1;
+    while (lo < hi) {
+        uint32_t piv = a[lo + (hi - lo) / 2];
+        size_t i = lo, j = hi;
+        while (i <= j) {
+            while (a[i] < piv)
+                i++;
+            while (a[j] > piv)
+                j--;
+            if (i <= j) {
+                uint32_t t = a[i];
+                a[i] = a[j];
+                a[j] = t;
+                i++;
+                if (j == 0)
+                    break;
+                j--;
+            }
+        }
+        if (k <= j)
+            hi = j;
+        else if (k >= i)
+            lo = i;
+        else
+            return a[k];
+    }
+    return a[k];
+}
+
+/* Below this many corrected points the median is selected from a copy of
+ * the sigmas' bit patterns (at most 256 KiB): the two 512 KiB histograms
+ * cost a short track more than its whole median (perf, 5000 points). */
+#define SMALL_MEDIAN 65536
+
+/* The median (upper middle) and the largest sigma, exactly: for a long
+ * track without a copy of the sigmas, by radix selection in two 16-bit
+ * passes. Positive floats order like their bit patterns. */
 static hyp_status sigma_median(hyp_correct_result *r)
 {
-    size_t *hist = malloc(65536 * sizeof *hist), n = 0;
-    if (!hist)
-        return HYP_ERR_NOMEM;
+    size_t n = 0;
     for (size_t i = 0; i < r->count; i++)
         if (r->status[i] == HYP_PT_OK) {
             n++;
             if (r->worst_index == SIZE_MAX || r->sigma_m[i] > r->sigma_m[r->worst_index])
                 r->worst_index = i;
         }
+    size_t *hist = NULL;
+    uint32_t *pats = NULL;
+    if (n && n < SMALL_MEDIAN ? !(pats = malloc(n * sizeof *pats)) : !(hist = malloc(65536 * sizeof *hist)))
+        return HYP_ERR_NOMEM;
     if (n) {
-        size_t rank = n / 2;
-        sigma_hist(r, -1, hist);
-        uint32_t hi = (uint32_t)bin_of(hist, &rank);
-        sigma_hist(r, (long)hi, hist);
-        uint32_t pat = hi << 16 | (uint32_t)bin_of(hist, &rank);
+        uint32_t pat;
+        if (pats) {
+            size_t m = 0;
+            for (size_t i = 0; i < r->count; i++)
+                if (r->status[i] == HYP_PT_OK)
+                    memcpy(&pats[m++], &r->sigma_m[i], sizeof *pats);
+            pat = select_kth(pats, n, n / 2);
+        } else {
+            size_t rank = n / 2;
+            sigma_hist(r, -1, hist);
+            uint32_t hi = (uint32_t)bin_of(hist, &rank);
+            sigma_hist(r, (long)hi, hist);
+            pat = hi << 16 | (uint32_t)bin_of(hist, &rank);
+        }
         for (size_t i = 0; i < r->count && r->median_index == SIZE_MAX; i++) {
             uint32_t u;
             memcpy(&u, &r->sigma_m[i], sizeof u);
@@ -100,6 +152,7 @@ static hyp_status sigma_median(hyp_correct_result *r)
         r->median_sigma_m = r->sigma_m[r->median_index];
     }
     free(hist);
+    free(pats);
     return HYP_OK;
 }
 
@@ -151,6 +204,8 @@ static void corrected_range(void *ctx, size_t lo, size_t hi, int part)
         }
         r->height_m[i] = d.height_m;
         r->sigma_m[i] = (float)d.sigma_m;
+        if (w->detail)
+            w->detail[i] = d;
         sm->tcol_min_k = fmin(sm->tcol_min_k, d.tcol_k);
         sm->tcol_max_k = fmax(sm->tcol_max_k, d.tcol_k);
     }
@@ -165,6 +220,10 @@ static hyp_status corrected_heights(hyp__work *w)
     if (!r->height_m || !r->sigma_m)
         return HYP_ERR_NOMEM;
     if (w->method == HYP_METHOD_TWO_BASE && !(r->extrapolated = calloc(n, 1)))
+        return HYP_ERR_NOMEM;
+    free(w->detail);
+    w->detail = NULL;
+    if (w->n <= HYP__DETAIL_CACHE_MAX && !(w->detail = malloc(n * sizeof *w->detail)))
         return HYP_ERR_NOMEM;
     pass ps = {.w = w};
     int parts = hyp__parallel(w->n, pass_parts(w), corrected_range, &ps);
@@ -194,6 +253,10 @@ hyp_status hyp_correct_point(const hyp_correct_result *res, size_t i, hyp_point_
         return res->priv ? HYP_ERR_USAGE : HYP_ERR_NODATA;
     if (res->status[i] != HYP_PT_OK)
         return HYP_ERR_NODATA;
+    if (res->priv->detail) {   /* a short track: as the correction computed it */
+        *d = res->priv->detail[i];
+        return HYP_OK;
+    }
     /* the kept state with the caller's result (it may have moved); only read */
     hyp__work w = *res->priv;
     w.r = (hyp_correct_result *)res;

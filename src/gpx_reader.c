@@ -671,12 +671,35 @@ static hyp_status push_waypoint(hyp_waypoints *w, const char *name, double t, do
     return HYP_OK;
 }
 
+/* A waypoint's byte positions and <ele>, beside wpts (grown with it). */
+static hyp_status push_waypoint_at(gpx_ctx *g)
+{
+    hyp_gpx_doc *d = g->doc;
+    size_t i = d->wpts.count - 1;
+    void *p;
+    if (!(p = realloc(d->wpt_at, d->wpts.alloc * sizeof *d->wpt_at)))
+        return HYP_ERR_NOMEM;
+    d->wpt_at = p;
+    if (!(p = realloc(d->wpt_ele_m, d->wpts.alloc * sizeof(double))))
+        return HYP_ERR_NOMEM;
+    d->wpt_ele_m = p;
+    hyp_gpx_point *P = &d->wpt_at[i];
+    P->open_end = g->open_end;
+    P->ele_beg = g->ele_end >= 0 ? g->ele_beg : -1;
+    P->ele_end = g->ele_end;
+    P->ext_ins = g->ext_ins >= 0 ? g->ext_ins : g->pt_selfclosed ? -1 : end_tag_start(g);
+    P->ext_kind = g->ext_ins >= 0 ? HYP_EXT_INSIDE : d->layout.version == 10 ? HYP_EXT_BARE : HYP_EXT_WRAP;
+    d->wpt_ele_m[i] = g->ele;
+    return HYP_OK;
+}
+
 static void end_point(gpx_ctx *g)
 {
     hyp_gpx_doc *d = g->doc;
     if (g->in_wpt) {
         g->in_wpt = 0;
-        if (g->lat == g->lat && push_waypoint(&d->wpts, g->name, g->got_time ? g->time_s : NAN, g->lat, g->lon))
+        if (g->lat == g->lat &&
+            (push_waypoint(&d->wpts, g->name, g->got_time ? g->time_s : NAN, g->lat, g->lon) || push_waypoint_at(g)))
             fail(g, HYP_ERR_NOMEM, "out of memory");
         return;
     }
@@ -1155,6 +1178,8 @@ void hyp_gpx_doc_free(hyp_gpx_doc *d)
     free(d->wpts.time_s);
     free(d->wpts.lat_deg);
     free(d->wpts.lon_deg);
+    free(d->wpt_at);
+    free(d->wpt_ele_m);
     hyp_gpx_doc_init(d);
 }
 

@@ -245,6 +245,10 @@ static void print_heights(FILE *f, const hyp_rover_run *run)
     for (int fl = 1; fl < HYP_SAMPLE_FLAG_COUNT; fl++)
         if (r->n_flag[fl])
             fprintf(f, "            %zu dropped by the reader: %s\n", r->n_flag[fl], hyp_sample_flag_text((hyp_sample_flag)fl));
+    const hyp_waypoint_heights *w = &run->waypoints;
+    if (w->count)
+        fprintf(f, "  waypoints: %zu corrected, %zu outside the span, %zu without time\n", w->n_corrected, w->n_outside,
+                w->n_no_time);
 }
 
 static void print_references(FILE *f, const hyp_rover_run *run)

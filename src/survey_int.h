@@ -96,4 +96,15 @@ void hyp__survey_clean_dir(hyp_survey *sv, const char *target);
 /* 1 when path names one of the survey's inputs (or a hard link to one). */
 int hyp__survey_is_input(const hyp_survey *sv, const char *path, const char *const *rovers, size_t n);
 
+/* hyp_survey_run for a batch's group commit: the rover's outputs are
+ * staged (flushed and closed, not synced, not renamed) into *staged (n 0
+ * when there is none) for hyp__outset_commit_group (output_set.h); r is
+ * reported only after that commit. */
+struct hyp__outset;
+hyp_status hyp__survey_run_staged(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
+                                  hyp_rover_run **run, struct hyp__outset *staged, hyp_error *err);
+/* A run whose staged outputs did not get into place: its error, and
+ * nothing written. */
+void hyp__rover_run_unwritten(hyp_rover_run *r, const hyp_error *why);
+
 #endif

@@ -10,6 +10,7 @@
 #include "report_html.h"
 #include "report_page.h"
 #include "baro_altitude.h"
+#include "waypoint_heights.h"
 
 #include <math.h>
 #include <pthread.h>
@@ -25,6 +26,7 @@ void hyp_rover_run_free(hyp_rover_run *r)
     if (!r)
         return;
     hyp_correct_result_free(&r->result);
+    hyp__waypoint_heights_free(&r->waypoints);
     hyp_msgs_free(&r->msgs);
     priv_t *p = r->priv;
     if (p) {
@@ -235,6 +237,8 @@ static hyp_status correct_rover(hyp_survey *sv, const hyp_correct_opts *copts, h
     st = hyp_correct(r->rover, bases, nb, &co, &r->result, &r->msgs, err);
     if (!st)
         st = hyp_heights_convert(p->geo, r->rover, r->result.height_m, sv->o.known_ref, sv->o.out_ref, err);
+    if (!st && p->rv.is_gpx)   /* in the output reference, as the track */
+        st = hyp__waypoint_heights(&p->rv.doc.wpts, r->rover, &r->result, &r->waypoints, err);
     return st;
 }
 
@@ -317,9 +321,10 @@ static int is_html(const char *path)
     return n >= 5 && strcasecmp(path + n - 5, ".html") == 0;
 }
 
-/* The GPX and the table, staged; the report beside them; one commit. */
+/* The GPX and the table, staged; the report beside them; one commit, or
+ * (keep) the staged set handed to the caller's group commit. */
 static hyp_status write_outputs(hyp_survey *sv, hyp_rover_run *r, const hyp__rover_paths *ps, int threads,
-                                hyp_error *err)
+                                hyp__outset *keep, hyp_error *err)
 {
     priv_t *p = r->priv;
     hyp_output_info info = {.vref = hyp_vref_name(sv->o.out_ref), .gnss_m = r->gnss_out_m, .easting_m = r->easting_m,
@@ -340,12 +345,13 @@ static hyp_status write_outputs(hyp_survey *sv, hyp_rover_run *r, const hyp__rov
     if (ps->gpx[0]) {
         hyp__outfile *o = hyp__outset_add(&set, ps->gpx, err);
         st = !o ? err->status
-             : p->rv.is_gpx ? hyp__gpx_splice_to(r->path, &p->rv.doc, &r->result, &info, o, err)
+             : p->rv.is_gpx ? hyp__gpx_splice_to(r->path, &p->rv.doc, &r->result, &r->waypoints, &info, o, err)
                             : hyp__gpx_new_to(&p->rv.csv, &r->result, &info, r->name, o, err);
     }
     if (!st && ps->table[0]) {
         hyp__outfile *o = hyp__outset_add(&set, ps->table, err);
-        st = !o ? err->status : hyp__table_to(r->rover, &r->result, &info, o, err);
+        st = !o ? err->status
+             : hyp__table_to(r->rover, &r->result, &info, p->rv.is_gpx ? &p->rv.doc : NULL, &r->waypoints, o, err);
     }
     if (threaded) {
         pthread_join(tid, NULL);
@@ -359,7 +365,10 @@ static hyp_status write_outputs(hyp_survey *sv, hyp_rover_run *r, const hyp__rov
     } else if (!st && ps->report[0])
         st = stage_report(&set, r, ps->report, err);
     hyp__page_free(&job.page);
-    if (!st)
+    if (!st && keep) {
+        if (!(st = hyp__outset_stage(&set, err)))
+            *keep = set;
+    } else if (!st)
         st = hyp__outset_commit(&set, sv->o.cancelled, sv->o.cancel_ctx, err);
     else
         hyp__outset_abort(&set);
@@ -396,8 +405,34 @@ hyp_status hyp_survey_run(hyp_survey *sv, const char *rover, const hyp_outputs *
     return hyp__survey_run_with(sv, rover, out, threads, &sv->copts, run, err);
 }
 
+static hyp_status run_rover(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
+                            const hyp_correct_opts *copts, hyp_rover_run **run, hyp__outset *keep, hyp_error *err);
+
 hyp_status hyp__survey_run_with(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
                                 const hyp_correct_opts *copts, hyp_rover_run **run, hyp_error *err)
+{
+    return run_rover(sv, rover, out, threads, copts, run, NULL, err);
+}
+
+hyp_status hyp__survey_run_staged(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
+                                  hyp_rover_run **run, struct hyp__outset *staged, hyp_error *err)
+{
+    hyp__outset_init(staged);
+    return run_rover(sv, rover, out, threads, &sv->copts, run, staged, err);
+}
+
+void hyp__rover_run_unwritten(hyp_rover_run *r, const hyp_error *why)
+{
+    r->status = why->status;
+    r->error = *why;
+    r->test_failed = 0;
+    for (size_t k = 0; k < r->n_written; k++)
+        r->written[k] = NULL;
+    r->n_written = 0;
+}
+
+static hyp_status run_rover(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
+                            const hyp_correct_opts *copts, hyp_rover_run **run, hyp__outset *keep, hyp_error *err)
 {
     hyp_outputs none = {0};
     if (!out)
@@ -433,7 +468,7 @@ hyp_status hyp__survey_run_with(hyp_survey *sv, const char *rover, const hyp_out
         return HYP_OK;
     }
     if (!st)
-        st = write_outputs(sv, r, &ps, threads, &r->error);
+        st = write_outputs(sv, r, &ps, threads, keep, &r->error);
     r->status = st;
     if (st) {
         r->test_failed = 0;

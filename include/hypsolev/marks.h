@@ -57,6 +57,26 @@ typedef struct hyp_base_entry {
                                time format (timeparse.h); "" for none */
 } hyp_base_entry;
 
+/* A rover's GPX waypoints after the correction (hyp_rover_run.waypoints):
+ * per waypoint of its hyp_waypoints (same index), the corrected height
+ * (m, in the run's output reference) interpolated from the corrected track
+ * at the waypoint's time and its 1-sigma (m), NaN where not corrected;
+ * status says why (hyp_wpt_status). */
+typedef enum hyp_wpt_status {
+    HYP_WPT_CORRECTED = 0,
+    HYP_WPT_OUTSIDE = 1,   /* its time is outside the corrected span, or in a
+                              gap of the corrected track longer than 300 s */
+    HYP_WPT_NO_TIME = 2    /* no <time>: left as it is */
+} hyp_wpt_status;
+
+typedef struct hyp_waypoint_heights {
+    size_t count;
+    double *height_m;
+    double *sigma_m;
+    unsigned char *status;   /* hyp_wpt_status */
+    size_t n_corrected, n_outside, n_no_time;
+} hyp_waypoint_heights;
+
 #ifdef __cplusplus
 }
 #endif

@@ -114,6 +114,11 @@ typedef struct hyp_gpx_doc {
     double *geoidheight_m;  /* per sample of pts: <geoidheight> (m), NaN where absent;
                                NULL when no point has one */
     int has_geoidheight;
+    /* Per waypoint of wpts (same index): its byte positions, for the
+     * splicing writer (open_end -1 for <wpt .../>), and its <ele> (m, NaN
+     * without one). */
+    hyp_gpx_point *wpt_at;
+    double *wpt_ele_m;
 } hyp_gpx_doc;
 
 HYP_API void hyp_gpx_doc_init(hyp_gpx_doc *d);

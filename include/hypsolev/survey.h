@@ -174,6 +174,8 @@ typedef struct hyp_rover_run {
     int test_failed;           /* status HYP_OK, outputs written, but a test of
                                   the data failed (result.calib_test): the
                                   program's exit status 3 */
+    hyp_waypoint_heights waypoints; /* the GPX rover's waypoints corrected
+                                  (count 0: none, or a CSV rover) */
 } hyp_rover_run;
 
 HYP_API void hyp_rover_run_free(hyp_rover_run *r);
