@@ -57,8 +57,8 @@ static void test_set_refused(void **state)
     hyp_error err;
     hyp_rover_spec_init(&r, "walk.gpx");
     static const struct { const char *name, *value, *message; } bad[] = {
-        {"rover-pressure-unit", "bar", "rover-pressure-unit \"bar\": expected one of Pa, hPa, mbar, kPa, inHg, mmHg"},
-        {"rover-pressure-unit", "degC", "rover-pressure-unit \"degC\": expected one of Pa, hPa, mbar, kPa, inHg, mmHg"},
+        {"rover-pressure-unit", "bar", "rover-pressure-unit \"bar\": expected one of Pa, hPa, mbar (mb, millibar), kPa, inHg, mmHg"},
+        {"rover-pressure-unit", "degC", "rover-pressure-unit \"degC\": expected one of Pa, hPa, mbar (mb, millibar), kPa, inHg, mmHg"},
         {"rover-temperature-unit", "hPa", "rover-temperature-unit \"hPa\": expected one of degC, K, degF"},
         {"rover-clock-offset", "86401", "rover-clock-offset \"86401\": expected a number from -86400 to 86400"},
         {"rover-clock-offset", "0x10", "rover-clock-offset \"0x10\": expected a number from -86400 to 86400"},

@@ -270,7 +270,7 @@ hyp_cli_case(rover_own_adjust 0 "lies outside the track rover \\(2026-06-18T07:0
 hyp_cli_case(rover_own_adjust_not_given 1 "rover.gpx: no point has a pressure" adjust ${RO} ${B} --stations @DATA@/benchmarks.csv -o @OUT@/st.csv --occupations @DATA@/adjust/book_outside.csv)
 # usage errors name the option and what was expected
 hyp_cli_case(rover_option_without_rover 2 "--rover-pressure-unit must follow the --rover it applies to" correct ${R} --rover-pressure-unit Pa ${B} ${O})
-hyp_cli_case(rover_bad_pressure_unit 2 "--rover-pressure-unit \"bar\": expected one of Pa, hPa, mbar, kPa, inHg, mmHg" correct --rover ${RO} --rover-pressure-unit bar ${B} ${O})
+hyp_cli_case(rover_bad_pressure_unit 2 "--rover-pressure-unit \"bar\": expected one of Pa, hPa, mbar \\(mb, millibar\\), kPa, inHg, mmHg" correct --rover ${RO} --rover-pressure-unit bar ${B} ${O})
 hyp_cli_case(rover_bad_temperature_unit 2 "--rover-temperature-unit \"R\": expected one of degC, K, degF" correct --rover ${RO} --rover-temperature-unit R ${B} ${O})
 hyp_cli_case(rover_bad_clock_offset 2 "--rover-clock-offset \"1e9\": expected a number from -86400 to 86400" correct --rover ${RO} --rover-clock-offset 1e9 ${B} ${O})
 hyp_cli_case(rover_bad_time_zone 2 "--rover-time-zone \\(of --rover .*rover.gpx\\): " correct --rover ${RO} --rover-time-zone Mars/Olympus ${B} ${O})
