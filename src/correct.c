@@ -74,41 +74,8 @@ static size_t bin_of(const size_t *hist, size_t *rank)
     return b;
 }
 
-/* The k-th smallest (from 0) of a[0..n-1], reordering a: Hoare's FIND
- * (Hoare 1961, CACM 4(7), Algorithm 65) with the middle element as pivot. */
-static uint32_t select_kth(uint32_t *a, size_t n, size_t k)
-{
-    size_t lo = 0, hi = n - 1;
-    while (lo < hi) {
-        uint32_t piv = a[lo + (hi - lo) / 2];
-        size_t i = lo, j = hi;
-        while (i <= j) {
-            while (a[i] < piv)
-                i++;
-            while (a[j] > piv)
-                j--;
-            if (i <= j) {
-                uint32_t t = a[i];
-                a[i] = a[j];
-                a[j] = t;
-                i++;
-                if (j == 0)
-                    break;
-                j--;
-            }
-        }
-        if (k <= j)
-            hi = j;
-        else if (k >= i)
-            lo = i;
-        else
-            return a[k];
-    }
-    return a[k];
-}
-
 /* Below this many corrected points the median is selected from a copy of
- * the sigmas' bit patterns (at most 256 KiB): the two 512 KiB histograms
+ * the sigmas (at most 512 KiB): the two 512 KiB histograms
  * cost a short track more than its whole median (perf, 5000 points). */
 #define SMALL_MEDIAN 65536
 
@@ -125,17 +92,18 @@ static hyp_status sigma_median(hyp_correct_result *r)
                 r->worst_index = i;
         }
     size_t *hist = NULL;
-    uint32_t *pats = NULL;
-    if (n && n < SMALL_MEDIAN ? !(pats = malloc(n * sizeof *pats)) : !(hist = malloc(65536 * sizeof *hist)))
+    double *vals = NULL;
+    if (n && n < SMALL_MEDIAN ? !(vals = malloc(n * sizeof *vals)) : !(hist = malloc(65536 * sizeof *hist)))
         return HYP_ERR_NOMEM;
     if (n) {
         uint32_t pat;
-        if (pats) {
+        if (vals) {
             size_t m = 0;
             for (size_t i = 0; i < r->count; i++)
                 if (r->status[i] == HYP_PT_OK)
-                    memcpy(&pats[m++], &r->sigma_m[i], sizeof *pats);
-            pat = select_kth(pats, n, n / 2);
+                    vals[m++] = r->sigma_m[i];
+            float med = (float)hyp__select_kth(vals, n, n / 2);   /* exact: a float widened */
+            memcpy(&pat, &med, sizeof pat);
         } else {
             size_t rank = n / 2;
             sigma_hist(r, -1, hist);
@@ -152,7 +120,7 @@ static hyp_status sigma_median(hyp_correct_result *r)
         r->median_sigma_m = r->sigma_m[r->median_index];
     }
     free(hist);
-    free(pats);
+    free(vals);
     return HYP_OK;
 }
 
