@@ -1,5 +1,6 @@
 /* peakrss.c - runs a command and prints its peak resident set size (KiB,
- * from wait4's rusage) and wall time (s) on stderr: "peak_rss_kib S wall_s T".
+ * from wait4's rusage), wall time (s) and CPU time (user + system, s, of the
+ * command and its threads) on stderr: "peak_rss_kib S wall_s T cpu_s C".
  *   peakrss COMMAND [ARGS...] */
 #define _DEFAULT_SOURCE
 #include <stdio.h>
@@ -24,7 +25,8 @@ int main(int argc, char **argv)
     struct rusage ru;
     wait4(pid, &status, 0, &ru);
     clock_gettime(CLOCK_MONOTONIC, &b);
-    fprintf(stderr, "peak_rss_kib %ld wall_s %.3f\n", ru.ru_maxrss,
-            (double)(b.tv_sec - a.tv_sec) + 1e-9 * (double)(b.tv_nsec - a.tv_nsec));
+    fprintf(stderr, "peak_rss_kib %ld wall_s %.3f cpu_s %.3f\n", ru.ru_maxrss,
+            (double)(b.tv_sec - a.tv_sec) + 1e-9 * (double)(b.tv_nsec - a.tv_nsec),
+            (double)(ru.ru_utime.tv_sec + ru.ru_stime.tv_sec) + 1e-6 * (double)(ru.ru_utime.tv_usec + ru.ru_stime.tv_usec));
     return WIFEXITED(status) ? WEXITSTATUS(status) : 1;
 }

@@ -5,6 +5,9 @@
 # of runs made back to back in this one run of the script (the median of
 # five pairs), as a noisy machine allows nothing finer.
 #   bench/run.sh [POINTS] [BUILD_DIR]     (default 1000000, build)
+# The last part, an archive of small tracks (300 of 5000 points, --out-dir,
+# -j 1 and -j 2), compares CPU time (user + system) with xmllint --stream
+# over the same files; HYP_BENCH_ONLY=archive runs only that part.
 set -euo pipefail
 n=${1:-1000000}
 top=$(cd "$(dirname "$0")/.." && pwd)
@@ -15,10 +18,45 @@ trap 'rm -rf "$work"' EXIT
 cc -O2 -o "$work/gentrack" "$top/bench/gentrack.c" -lm
 cc -O2 -o "$work/peakrss" "$top/bench/peakrss.c"
 command -v xmllint > /dev/null || { echo "xmllint missing: apt-get install libxml2-utils"; exit 1; }
-"$work/gentrack" "$n" "$work/track.gpx" "$work/base.csv"
 measure() {   # prints "rss_kib wall_s"
-  "$work/peakrss" "$@" 2>&1 >/dev/null | sed -n 's/^peak_rss_kib \([0-9]*\) wall_s \([0-9.]*\)$/\1 \2/p'
+  "$work/peakrss" "$@" 2>&1 >/dev/null | sed -n 's/^peak_rss_kib \([0-9]*\) wall_s \([0-9.]*\) cpu_s.*$/\1 \2/p'
 }
+cpu() {   # prints "cpu_s" (user + system)
+  "$work/peakrss" "$@" 2>&1 >/dev/null | sed -n 's/^peak_rss_kib .* cpu_s \([0-9.]*\)$/\1/p'
+}
+archive() {
+  # An archive of small tracks: many rovers, each read, corrected and
+  # written (GPX, table, report) with its own output set. Five pairs for
+  # each of -j 1 and -j 2, xmllint --stream over the same files then
+  # hypsolev, back to back; the median pair's CPU-time ratio is the figure.
+  local k=300 m=5000
+  mkdir -p "$work/arch"
+  "$work/gentrack" "$m" "$work/arch/t0000.gpx" "$work/arch-base.csv"
+  for i in $(seq 1 $((k - 1))); do cp "$work/arch/t0000.gpx" "$work/arch/t$(printf %04d "$i").gpx"; done
+  local cmd=(correct "$work/arch" --base "$work/arch-base.csv" --base-height 800 --offset 0 -q --no-gnss-anchor)
+  cpu xmllint --stream --noout "$work"/arch/*.gpx > /dev/null   # warm the page cache
+  for j in 1 2; do
+    local rs=()
+    for p in 1 2 3 4 5; do
+      rm -rf "$work/arch-out" && mkdir "$work/arch-out"
+      local x h
+      x=$(cpu xmllint --stream --noout "$work"/arch/*.gpx)
+      h=$(cpu "$exe" "${cmd[@]}" --out-dir "$work/arch-out" -j "$j")
+      rs+=("$(awk -v h="$h" -v x="$x" 'BEGIN { printf "%.3f %.2f %.2f", h / x, h, x }')")
+    done
+    local r hs xs
+    read -r r hs xs < <(printf '%s\n' "${rs[@]}" | sort -n | sed -n 3p)
+    printf 'archive -j %d pairs (ratio, hypsolev CPU s, xmllint CPU s): %s | %s | %s | %s | %s\n' "$j" "${rs[@]}"
+    printf 'archive of %d x %d points, -j %d: hypsolev %.2f CPU s, xmllint --stream %.2f CPU s, ratio %.2f (median of 5 pairs; target <= 1.5)\n' \
+      "$k" "$m" "$j" "$hs" "$xs" "$r"
+  done
+  rm -rf "$work/arch" "$work/arch-out"
+}
+if [ "${HYP_BENCH_ONLY:-}" = archive ]; then
+  archive
+  exit 0
+fi
+"$work/gentrack" "$n" "$work/track.gpx" "$work/base.csv"
 run=(correct "$work/track.gpx" --base "$work/base.csv" --base-height 800 --offset 0 -o "$work/out.gpx" -q --no-gnss-anchor)
 measure xmllint --stream --noout "$work/track.gpx" > /dev/null   # warm the page cache
 # Five pairs, each xmllint then hypsolev on the same file back to back;
@@ -76,3 +114,4 @@ done
 read -r up j1 j2 < <(printf '%s\n' "${ups[@]}" | sort -n | sed -n 3p)
 printf 'batch pairs (speed-up, -j 1 s, -j 2 s): %s | %s | %s | %s | %s\n' "${ups[@]}"
 awk -v a="$j1" -v b="$j2" -v u="$up" 'BEGIN { printf "batch of 8: -j 1 %.2f s, -j 2 %.2f s, speed-up %.2f (median of 5 pairs; target >= 1.6)\n", a, b, u }'
+archive

@@ -216,3 +216,21 @@ double hyp_height_difference_m(double dphi_j_kg, double h1_m, double lat_deg)
     hyp_gravity g = hyp_gravity_at_lat(lat_deg);
     return hyp_height_difference_g_m(dphi_j_kg, h1_m, &g);
 }
+
+/* Barometric altitude: the USSA 1976 pressure law (eqs. 33a, 33b) with
+ * every pressure scaled by ref / P0, as an altimeter's reference setting
+ * scales it (ICAO Doc 7488 troposphere; see atmosphere.h). */
+double hyp_baro_altitude_to_pressure_pa(double alt_m, double ref_pa)
+{
+    if (!(alt_m >= -5000.0 && alt_m <= 20000.0) || !(ref_pa >= 10000.0 && ref_pa <= 120000.0))
+        return NAN;
+    return hyp_isa_pressure_pa(alt_m) * (ref_pa / HYP_P0_PA);
+}
+
+double hyp_baro_altitude_from_pressure_m(double pressure_pa, double ref_pa)
+{
+    if (!(ref_pa >= 10000.0 && ref_pa <= 120000.0) || !(pressure_pa > 0.0))
+        return NAN;
+    double h = hyp_isa_height_gp_m(pressure_pa * (HYP_P0_PA / ref_pa));
+    return h >= -5000.0 && h <= 20000.0 ? h : NAN;
+}

@@ -54,8 +54,11 @@ hyp_status hyp__base_view_make(const hyp_base *base, hyp__base_view *b, hyp_erro
     size_t m = s->count;
     memset(b, 0, sizeof *b);
     b->t = dalloc(m), b->p = dalloc(m), b->temp = dalloc(m), b->rh = dalloc(m), b->rate = dalloc(m);
-    if (!b->t || !b->p || !b->temp || !b->rh || !b->rate)
+    /* a failed view owns nothing: some callers return without freeing it */
+    if (!b->t || !b->p || !b->temp || !b->rh || !b->rate) {
+        hyp__base_view_free(b);
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    }
     double off = base->offset_pa == base->offset_pa ? base->offset_pa : 0.0;
     for (size_t i = 0; i < s->count; i++) {
         if (s->flag[i])
@@ -69,8 +72,10 @@ hyp_status hyp__base_view_make(const hyp_base *base, hyp__base_view *b, hyp_erro
         b->rh[b->n] = s->rh_pct[i];
         b->n++;
     }
-    if (b->n < 2)
+    if (b->n < 2) {
+        hyp__base_view_free(b);
         return hyp_error_set(err, HYP_ERR_NODATA, "%s: fewer than two usable base samples", base->name);
+    }
     base_rates(b);
     return HYP_OK;
 }

@@ -2,6 +2,7 @@
  * combined in quadrature. Every default and its origin is listed in
  * docs/methods.md section 4. */
 #include "correct_int.h"
+#include "baro_altitude.h"
 #include "hypsolev/atmosphere.h"
 #include "hypsolev/geo.h"
 
@@ -243,6 +244,24 @@ static double prior_term(const hyp__work *w, double d, double tv)
     return fabs(d) * st / tv;
 }
 
+/* A barometric-altitude track's re-settings (baro_altitude.c): each
+ * joining error lies between a point and the calibration nearest in time
+ * that fixes the offset there (the track's start when none), Pa. */
+static double baro_join_pa(const hyp__work *w, size_t i)
+{
+    const hyp_correct_opts *o = w->o;
+    if (!o->n_baro_steps)
+        return 0.0;
+    double t = w->rv->time_s[i], ref = w->rv->time_s[0], bd = INFINITY;
+    for (size_t k = 0; k < w->r->n_calibs; k++) {
+        const hyp_calib *cb = &w->r->calibs[k];
+        double m = 0.5 * (cb->start_s + cb->end_s);
+        if (!cb->rejected && fabs(m - t) < bd)
+            bd = fabs(m - t), ref = m;
+    }
+    return w->rv->pressure_pa[i] * sqrt(hyp__baro_join_var(o->baro_steps, o->n_baro_steps, t, ref));
+}
+
 double hyp__budget(const hyp__work *w, size_t i, const hyp__in *in, double dz, double c, double tv,
                    double b[HYP_B_COUNT])
 {
@@ -277,6 +296,10 @@ double hyp__budget(const hyp__work *w, size_t i, const hyp__in *in, double dz, d
                 b[HYP_B_FIT] = hypot(b[HYP_B_FIT], c * so);
         }
     }
+    if (w->o->n_baro_steps)
+        b[HYP_B_FIT] = hypot(b[HYP_B_FIT], c * baro_join_pa(w, i));
+    if (w->o->baro_offset_sigma_pa > 0)   /* docs/methods.md, "Barometric-altitude tracks" */
+        b[HYP_B_FIT] = hypot(b[HYP_B_FIT], fabs(dz) * w->o->baro_offset_sigma_pa / w->rv->pressure_pa[i]);
     b[HYP_B_RH] = rh_term(w, i, in, dz, tv);
     b[HYP_B_INTERP] = c * rate * in->dt_base / sqrt(12.0);
     b[HYP_B_CLOCK] = c * rate * o->clock_sigma_s;

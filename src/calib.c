@@ -3,6 +3,7 @@
  * like a benchmark, or given explicitly; and their statistics. */
 #include "correct_int.h"
 #include "base_offset.h"
+#include "near_index.h"
 #include "hypsolev/geo.h"
 #include "hypsolev/timeparse.h"
 #include "stats.h"
@@ -192,14 +193,23 @@ static size_t run_end(const hyp__work *w, size_t i, double lat, double lon, doub
 }
 
 /* Runs of samples within radius of (lat, lon), standing still there for at
- * least min_s. */
+ * least min_s. cand (ascending, nc of them), when not NULL, holds exactly
+ * the samples within radius (near_index.c), which spares a geodesic per
+ * sample in the search for where a run starts. */
 static hyp_status find_near(hyp__work *w, hyp_calib *proto, double lat, double lon, double radius,
-                            double min_s)
+                            double min_s, const size_t *cand, size_t nc)
 {
     const hyp_series *rv = w->rv;
-    size_t i = 0;
+    size_t i = 0, next = 0;
     while (i < w->n) {
-        if (!(w->r->status[i] == HYP_PT_OK && dist_to(w, i, lat, lon) <= radius)) {
+        if (cand) {
+            while (next < nc && cand[next] < i)
+                next++;
+            if (next == nc)
+                break;
+            i = cand[next];
+        }
+        if (!(w->r->status[i] == HYP_PT_OK && (cand || dist_to(w, i, lat, lon) <= radius))) {
             i++;
             continue;
         }
@@ -343,6 +353,30 @@ static hyp_status waypoint_ties(hyp__work *w)
     return HYP_OK;
 }
 
+/* Ties found from positions: each benchmark's samples within the tie
+ * radius from the index (12 bytes a sample while it lasts), not from a
+ * geodesic per benchmark and sample. */
+static hyp_status benchmark_ties(hyp__work *w, hyp_error *err)
+{
+    const hyp_correct_opts *o = w->o;
+    hyp__near_index ix;
+    size_t *cand = NULL, nc = 0, cap = 0;
+    hyp_status st = hyp__near_index_build(&ix, w->rv->lat_e7, w->rv->lon_e7, w->n, o->tie_radius_m);
+    for (size_t b = 0; !st && b < o->benchmarks->count; b++) {
+        st = hyp__near_index_query(&ix, o->benchmarks->lat_deg[b], o->benchmarks->lon_deg[b], o->tie_radius_m,
+                                   &cand, &nc, &cap);
+        if (st || !nc)
+            continue;
+        hyp_calib proto;
+        proto_for(w, &proto, (long)b, HYP_HOW_POSITION);
+        st = find_near(w, &proto, o->benchmarks->lat_deg[b], o->benchmarks->lon_deg[b], o->tie_radius_m,
+                       o->tie_min_s, cand, nc);
+    }
+    hyp__near_index_free(&ix);
+    free(cand);
+    return st ? hyp_error_set(err, HYP_ERR_NOMEM, "out of memory") : HYP_OK;
+}
+
 /* Drops a window that overlaps an earlier one for the same point found a
  * more trusted way (explicit > waypoint > positions). */
 static void dedup(hyp_correct_result *r)
@@ -397,18 +431,13 @@ hyp_status hyp__find_calibrations(hyp__work *w, hyp_error *err)
             continue;
         hyp_calib proto;
         proto_for(w, &proto, -1 - (long)k, HYP_HOW_POSITION);
-        if (find_near(w, &proto, b->lat_deg, b->lon_deg, o->coloc_radius_m, o->coloc_min_s))
+        if (find_near(w, &proto, b->lat_deg, b->lon_deg, o->coloc_radius_m, o->coloc_min_s, NULL, 0))
             st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     }
     if (!st && o->benchmarks && waypoint_ties(w))
         st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
-    for (size_t b = 0; !st && o->benchmarks && w->rv->has_position && b < o->benchmarks->count; b++) {
-        hyp_calib proto;
-        proto_for(w, &proto, (long)b, HYP_HOW_POSITION);
-        if (find_near(w, &proto, o->benchmarks->lat_deg[b], o->benchmarks->lon_deg[b], o->tie_radius_m,
-                      o->tie_min_s))
-            st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
-    }
+    if (!st && o->benchmarks && w->rv->has_position && o->benchmarks->count)
+        st = benchmark_ties(w, err);
     if (!st && o->auto_colocate && o->n_colocate == 0 && !base_pos && o->offset_pa != o->offset_pa)
         hyp_msgs_add_at(w->msgs, HYP_WARNING, "calibration", w->base->name, 0, "no base position (--base-at) or no rover positions: co-location cannot be found automatically");
     if (!st && w->r->n_calibs) {

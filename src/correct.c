@@ -42,6 +42,8 @@ void hyp_correct_result_free(hyp_correct_result *r)
 
 static void work_free(hyp__work *w)
 {
+    free(w->detail);
+    w->detail = NULL;
     for (size_t k = 0; k < HYP_MAX_BASES; k++)
         hyp__base_view_free(&w->bvs[k]);
 }
@@ -72,25 +74,43 @@ static size_t bin_of(const size_t *hist, size_t *rank)
     return b;
 }
 
-/* The median (upper middle) and the largest sigma, exactly and without a
- * copy of the sigmas: radix selection in two 16-bit passes. */
+/* Below this many corrected points the median is selected from a copy of
+ * the sigmas (at most 512 KiB): the two 512 KiB histograms
+ * cost a short track more than its whole median (perf, 5000 points). */
+#define SMALL_MEDIAN 65536
+
+/* The median (upper middle) and the largest sigma, exactly: for a long
+ * track without a copy of the sigmas, by radix selection in two 16-bit
+ * passes. Positive floats order like their bit patterns. */
 static hyp_status sigma_median(hyp_correct_result *r)
 {
-    size_t *hist = malloc(65536 * sizeof *hist), n = 0;
-    if (!hist)
-        return HYP_ERR_NOMEM;
+    size_t n = 0;
     for (size_t i = 0; i < r->count; i++)
         if (r->status[i] == HYP_PT_OK) {
             n++;
             if (r->worst_index == SIZE_MAX || r->sigma_m[i] > r->sigma_m[r->worst_index])
                 r->worst_index = i;
         }
+    size_t *hist = NULL;
+    double *vals = NULL;
+    if (n && n < SMALL_MEDIAN ? !(vals = malloc(n * sizeof *vals)) : !(hist = malloc(65536 * sizeof *hist)))
+        return HYP_ERR_NOMEM;
     if (n) {
-        size_t rank = n / 2;
-        sigma_hist(r, -1, hist);
-        uint32_t hi = (uint32_t)bin_of(hist, &rank);
-        sigma_hist(r, (long)hi, hist);
-        uint32_t pat = hi << 16 | (uint32_t)bin_of(hist, &rank);
+        uint32_t pat;
+        if (vals) {
+            size_t m = 0;
+            for (size_t i = 0; i < r->count; i++)
+                if (r->status[i] == HYP_PT_OK)
+                    vals[m++] = r->sigma_m[i];
+            float med = (float)hyp__select_kth(vals, n, n / 2);   /* exact: a float widened */
+            memcpy(&pat, &med, sizeof pat);
+        } else {
+            size_t rank = n / 2;
+            sigma_hist(r, -1, hist);
+            uint32_t hi = (uint32_t)bin_of(hist, &rank);
+            sigma_hist(r, (long)hi, hist);
+            pat = hi << 16 | (uint32_t)bin_of(hist, &rank);
+        }
         for (size_t i = 0; i < r->count && r->median_index == SIZE_MAX; i++) {
             uint32_t u;
             memcpy(&u, &r->sigma_m[i], sizeof u);
@@ -100,6 +120,7 @@ static hyp_status sigma_median(hyp_correct_result *r)
         r->median_sigma_m = r->sigma_m[r->median_index];
     }
     free(hist);
+    free(vals);
     return HYP_OK;
 }
 
@@ -151,6 +172,8 @@ static void corrected_range(void *ctx, size_t lo, size_t hi, int part)
         }
         r->height_m[i] = d.height_m;
         r->sigma_m[i] = (float)d.sigma_m;
+        if (w->detail)
+            w->detail[i] = d;
         sm->tcol_min_k = fmin(sm->tcol_min_k, d.tcol_k);
         sm->tcol_max_k = fmax(sm->tcol_max_k, d.tcol_k);
     }
@@ -165,6 +188,10 @@ static hyp_status corrected_heights(hyp__work *w)
     if (!r->height_m || !r->sigma_m)
         return HYP_ERR_NOMEM;
     if (w->method == HYP_METHOD_TWO_BASE && !(r->extrapolated = calloc(n, 1)))
+        return HYP_ERR_NOMEM;
+    free(w->detail);
+    w->detail = NULL;
+    if (w->n <= HYP__DETAIL_CACHE_MAX && !(w->detail = malloc(n * sizeof *w->detail)))
         return HYP_ERR_NOMEM;
     pass ps = {.w = w};
     int parts = hyp__parallel(w->n, pass_parts(w), corrected_range, &ps);
@@ -194,6 +221,10 @@ hyp_status hyp_correct_point(const hyp_correct_result *res, size_t i, hyp_point_
         return res->priv ? HYP_ERR_USAGE : HYP_ERR_NODATA;
     if (res->status[i] != HYP_PT_OK)
         return HYP_ERR_NODATA;
+    if (res->priv->detail) {   /* a short track: as the correction computed it */
+        *d = res->priv->detail[i];
+        return HYP_OK;
+    }
     /* the kept state with the caller's result (it may have moved); only read */
     hyp__work w = *res->priv;
     w.r = (hyp_correct_result *)res;
@@ -210,7 +241,10 @@ hyp_status hyp_correct_point(const hyp_correct_result *res, size_t i, hyp_point_
 static hyp_status estimate_noise(hyp__work *w)
 {
     hyp_correct_result *r = w->r;
-    const double floor_pa = 0.5;   /* below half a pascal the estimate is resolution-limited */
+    /* below half a pascal the estimate is resolution-limited; a rover of
+     * quantised altitudes is no better than their quantisation noise (a
+     * still recorder shows one value: its scatter alone would say 0) */
+    const double floor_pa = 0.5, rfloor_pa = fmax(floor_pa, w->o->rover_quant_pa);
     if (hyp__noise_second_diff(w->bv.t, w->bv.p, NULL, NULL, w->bv.n, 3.0 * w->o->max_gap_s, &r->base_noise_pa))
         return HYP_ERR_NOMEM;
     if (w->base->kind == HYP_BASE_QNH)   /* a QNH series: resolution and reduction */
@@ -226,14 +260,14 @@ static hyp_status estimate_noise(hyp__work *w)
     r->diff_noise_pa = nn > 0 ? sqrt(ss / nn) : NAN;
     if (nn > 0) {
         double v = ss / nn - r->base_noise_pa * r->base_noise_pa;
-        r->rover_noise_pa = sqrt(v > floor_pa * floor_pa ? v : floor_pa * floor_pa);
+        r->rover_noise_pa = sqrt(v > rfloor_pa * rfloor_pa ? v : rfloor_pa * rfloor_pa);
         return HYP_OK;
     }
     if (hyp__noise_second_diff(w->rv->time_s, NULL, w->rv->pressure_pa, w->rv->flag, w->n, 3.0 * w->o->max_gap_s,
                                &r->rover_noise_pa))
         return HYP_ERR_NOMEM;
-    if (!(r->rover_noise_pa >= floor_pa))
-        r->rover_noise_pa = floor_pa;
+    if (!(r->rover_noise_pa >= rfloor_pa))
+        r->rover_noise_pa = rfloor_pa;
     hyp_msgs_add(w->msgs, HYP_NOTE, "rover noise %.2f Pa estimated from second differences along the track (no co-location to measure it)",
                  r->rover_noise_pa);
     return HYP_OK;

@@ -53,7 +53,16 @@ typedef struct hyp__work {
     double tsig_k;     /* column temperature uncertainty at the base end */
     int tcol_scaled;   /* the column is calibrated by the fitted scale */
     double dz_ref_m;   /* mean height above the base of the calibrations */
+    /* A short track's points' details as the correction computed them
+     * (NULL for a track longer than HYP__DETAIL_CACHE_MAX): the table
+     * reads them instead of computing every point a second time. */
+    hyp_point_detail *detail;
 } hyp__work;
+
+/* Tracks up to this many points keep their details (104 bytes a point,
+ * at most 5.2 MB): an archive of small tracks writes its tables at half
+ * the cost, and a long track's memory per point is what it was. */
+#define HYP__DETAIL_CACHE_MAX 50000
 
 /* The inputs of rover sample i (its status: OK, or why it cannot be
  * corrected). The two-base extrapolation limit is checked here too. */

@@ -13,10 +13,12 @@
 
 #define MAX_COLUMNS 4096
 
-enum col { C_TIME, C_PRES, C_TEMP, C_RH, C_LAT, C_LON, C_ELE, C_N };
-static const char *col_label[C_N] = {"time", "pressure", "temperature", "humidity", "lat", "lon", "ele"};
+/* C_DATE: a date column whose text goes before the time column's (joined
+ * by a blank), for exports that write date and time apart. */
+enum col { C_TIME, C_PRES, C_TEMP, C_RH, C_LAT, C_LON, C_ELE, C_DATE, C_N };
+static const char *col_label[C_N] = {"time", "pressure", "temperature", "humidity", "lat", "lon", "ele", "date"};
 static const hyp__field col_field[C_N] = {HYP__F_COUNT, HYP__F_PRESSURE, HYP__F_TEMPERATURE, HYP__F_HUMIDITY,
-                                          HYP__F_POSITION, HYP__F_POSITION, HYP__F_ELE};
+                                          HYP__F_POSITION, HYP__F_POSITION, HYP__F_ELE, HYP__F_COUNT};
 
 static int name_matches(const char *name, int col, const hyp_read_opts *o)
 {
@@ -28,6 +30,7 @@ static int name_matches(const char *name, int col, const hyp_read_opts *o)
         {"lat", "latitude", NULL, NULL},
         {"lon", "longitude", "lng", NULL},
         {"ele", "elevation", "altitude", NULL},
+        {"date", NULL, NULL, NULL},
     };
     const char *custom = col == C_PRES ? o->pressure_field
                        : col == C_TEMP ? o->temperature_field
@@ -101,30 +104,73 @@ static hyp_status parse_header(csv_state *cs, hyp__csv_lines *lr, hyp_error *err
 static const char *time_problem(hyp_time_result r)
 {
     switch (r) {
-    case HYP_TIME_SYNTAX: return "is not a time; expected ISO 8601 (2026-06-14T09:30:00Z) or Unix epoch seconds";
+    case HYP_TIME_SYNTAX: return "is not a time; expected ISO 8601 (2026-06-14T09:30:00Z), Unix epoch seconds or "
+                                 "a numeric date and time (18.06.2026 09:30), or give the format with --time-format "
+                                 "(rover) or --base-time-format (base)";
     case HYP_TIME_RANGE: return "is out of range (a date that does not exist, or before 1900 or after 2200)";
-    case HYP_TIME_NOZONE: return "has no time zone; add Z or an offset, or give the zone with --time-zone (rover) or --base-time-zone";
+    case HYP_TIME_NOZONE: return "has no time zone; add Z or an offset, or give the zone with --time-zone or --rover-time-zone (rover) or --base-time-zone";
     case HYP_TIME_OK: break;
     }
     return "";
 }
 
-/* The time field of a row: NaN when blank. */
-static hyp_status parse_time(csv_state *cs, hyp__csv_lines *lr, const hyp__csv_field *f, double *t,
-                             hyp_error *err)
+/* Whether a field starts as a clock time ("06:30", " 6:30 PM"), not as a
+ * stamp with its date (ISO, a numeric date, epoch seconds). */
+static int clock_only(const hyp__csv_field *t)
 {
-    char tb[128];
-    size_t l = f->len < sizeof tb - 1 ? f->len : sizeof tb - 1;
-    memcpy(tb, f->s, l);
-    tb[l] = '\0';
+    size_t k = 0;
+    while (k < t->len && (t->s[k] == ' ' || t->s[k] == '\t'))
+        k++;
+    size_t d = k;
+    while (k < t->len && t->s[k] >= '0' && t->s[k] <= '9')
+        k++;
+    return k > d && k - d <= 2 && k < t->len && t->s[k] == ':';
+}
+
+/* The time of a row as text into tb (n bytes): the time field, after the
+ * date field and a blank where the file has a date column and the time
+ * field holds a clock time only. */
+static size_t time_text(const csv_state *cs, const hyp__csv_field *fields, char *tb, size_t n)
+{
+    size_t l = 0;
+    const hyp__csv_field *t = &fields[cs->idx[C_TIME]];
+    if (cs->idx[C_DATE] >= 0 && clock_only(t)) {
+        const hyp__csv_field *d = &fields[cs->idx[C_DATE]];
+        l = d->len < n / 2 ? d->len : n / 2;
+        memcpy(tb, d->s, l);
+        tb[l++] = ' ';
+    }
+    size_t k = t->len < n - 1 - l ? t->len : n - 1 - l;
+    memcpy(tb + l, t->s, k);
+    tb[l + k] = '\0';
+    return l + k;
+}
+
+static hyp_status decide_order(csv_state *cs, const char *first, unsigned first_line, hyp_error *err);
+
+/* The time of a row: NaN when blank. */
+static hyp_status parse_time(csv_state *cs, hyp__csv_lines *lr, double *t, hyp_error *err)
+{
+    char tb[160];
+    size_t l = time_text(cs, cs->fields, tb, sizeof tb);
     *t = NAN;
     if (l == 0 || strspn(tb, " \t") == l)
         return HYP_OK;
+    int a, b;
+    if (!cs->opts->time_format && !cs->clock.date_order && hyp_time_numeric_date(tb, &a, &b)) {
+        hyp_status st = decide_order(cs, tb, lr->lineno, err);
+        if (st)
+            return st;
+    }
     hyp_time_result r = hyp__clock_read(&cs->clock, tb, lr->lineno, t);
     if (!r)
         return HYP_OK;
-    char q[160];
-    hyp__quote(q, sizeof q, f->s, f->len);
+    char q[200];
+    hyp__quote(q, sizeof q, tb, l);
+    if (cs->opts->time_format && r == HYP_TIME_SYNTAX)
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: time \"%s\" does not match the time format \"%s\" "
+                             "(--time-format for a rover, --base-time-format for a base)", cs->path, lr->lineno, q,
+                             cs->opts->time_format);
     return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: time \"%s\" %s", cs->path, lr->lineno, q, time_problem(r));
 }
 
@@ -143,12 +189,20 @@ static hyp_status parse_row(csv_state *cs, hyp__csv_lines *lr, hyp_series *out,
     }
     if (n == -2)
         return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: more than %d fields", cs->path, lr->lineno, MAX_COLUMNS);
+    if (cs->idx[C_DATE] >= n) {
+        if (!lr->ended_with_newline) {
+            *partial = 1;
+            return HYP_OK;
+        }
+        return hyp_error_set(err, HYP_ERR_FORMAT, "%s:%u: date: the row has %d fields, the header %d",
+                             cs->path, lr->lineno, n, cs->ncols);
+    }
     double v[C_N];
     int refused = 0;   /* bit c: the value of column c was refused */
     for (int c = 0; c < C_N; c++) {
         v[c] = NAN;
         int i = cs->idx[c];
-        if (i < 0)
+        if (i < 0 || c == C_DATE)
             continue;
         if (i >= n) {
             if (!lr->ended_with_newline) {
@@ -162,7 +216,7 @@ static hyp_status parse_row(csv_state *cs, hyp__csv_lines *lr, hyp_series *out,
         }
         const hyp__csv_field *f = &cs->fields[i];
         if (c == C_TIME) {
-            hyp_status st = parse_time(cs, lr, f, &v[c], err);
+            hyp_status st = parse_time(cs, lr, &v[c], err);
             if (st)
                 return st;
             continue;
@@ -244,6 +298,81 @@ static hyp_status read_rows(csv_state *cs, hyp__csv_lines *lr, hyp_series *out,
     return HYP_OK;
 }
 
+/* The first row whose numeric date can only be read one way. */
+typedef struct order_sign { unsigned line; char value[80]; } order_sign;
+
+/* Reads the file's dates once more to find rows that tell the order. */
+static hyp_status scan_dates(csv_state *cs, order_sign *day, order_sign *month, hyp_error *err)
+{
+    FILE *f = fopen(cs->path, "rb");
+    hyp__csv_field *fl = malloc(MAX_COLUMNS * sizeof *fl);
+    hyp__csv_lines lr = {.f = f};
+    hyp_status st = HYP_OK;
+    if (!f || !fl) {
+        st = f ? hyp_error_set(err, HYP_ERR_NOMEM, "%s: out of memory", cs->path)
+               : hyp_error_set(err, HYP_ERR_IO, "%s: cannot open again: %s", cs->path, strerror(errno));
+        goto out;
+    }
+    int header = 0;
+    while (hyp__csv_read_line(&lr) == 1 && !(day->line && month->line)) {
+        size_t lead = strspn(lr.buf, " \t");
+        if (lr.buf[lead] == '\0' || lr.buf[lead] == '#' || !header++)
+            continue;
+        int n = hyp__csv_split(lr.buf, cs->delim, fl, MAX_COLUMNS), a, b;
+        if (n <= cs->idx[C_TIME] || n <= cs->idx[C_DATE])
+            continue;
+        char tb[160];
+        time_text(cs, fl, tb, sizeof tb);
+        if (hyp_time_numeric_date(tb, &a, &b) != 1)
+            continue;
+        order_sign *o = a > 12 && !day->line ? day : b > 12 && !month->line ? month : NULL;
+        if (o) {
+            o->line = lr.lineno;
+            hyp__quote(o->value, sizeof o->value, tb, strlen(tb));
+        }
+    }
+out:
+    free(fl);
+    free(lr.buf);
+    if (f)
+        fclose(f);
+    return st;
+}
+
+/* Whether numeric dates (18.06.2026) are day or month first: where a day
+ * above 12 shows in the first field and none in the second, day first;
+ * the other way round, month first; otherwise refused, naming the option
+ * that decides. Two-digit years are refused without a format. */
+static hyp_status decide_order(csv_state *cs, const char *first, unsigned first_line, hyp_error *err)
+{
+    static const char decides[] = "give the order with --time-format (rover) or --base-time-format (base), "
+                                  "e.g. \"%d.%m.%Y %H:%M:%S\"";
+    char q[200];
+    int a, b;
+    hyp__quote(q, sizeof q, first, strlen(first));
+    if (hyp_time_numeric_date(first, &a, &b) == 2)
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: time \"%s\": a year of fewer than four digits is not read "
+                             "without a format; give one with %%y in --time-format (rover) or --base-time-format (base)",
+                             cs->path, first_line, q);
+    order_sign day = {0}, month = {0};
+    hyp_status st = scan_dates(cs, &day, &month, err);
+    if (st)
+        return st;
+    if (day.line && month.line)
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: time \"%s\" is day first, but line %u's \"%s\" is month first; "
+                             "the dates cannot be read in one order: %s", cs->path, day.line, day.value,
+                             month.line, month.value, decides);
+    if (!day.line && !month.line)
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: time \"%s\": the date may be day.month or month.day and no "
+                             "date in the file tells which (none has a field above 12): %s",
+                             cs->path, first_line, q, decides);
+    cs->clock.date_order = day.line ? 1 : 2;
+    order_sign *o = day.line ? &day : &month;
+    hyp_msgs_add_at(cs->screen.msgs, HYP_NOTE, "sample", cs->path, o->line,
+                    "dates read %s first, as \"%s\" can only be read so", day.line ? "day" : "month", o->value);
+    return HYP_OK;
+}
+
 hyp_status hyp_csv_read(const char *path, const hyp_read_opts *opts, hyp_series *out,
                         hyp_unit *pressure_unit_found, hyp_msgs *msgs, hyp_error *err)
 {
@@ -255,6 +384,7 @@ hyp_status hyp_csv_read(const char *path, const hyp_read_opts *opts, hyp_series 
     hyp_series_free(out);
     csv_state cs = {.path = path, .opts = opts, .screen = {.path = path, .msgs = msgs}};
     hyp__clock_init(&cs.clock, opts->zone);
+    cs.clock.format = opts->time_format;
     hyp__csv_lines lr = {0};
     FILE *f = NULL;
     hyp_status st = open_checked(path, &f, err);

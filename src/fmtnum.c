@@ -4,6 +4,15 @@
 #include <math.h>
 #include <stdint.h>
 #include <stdio.h>
+#include <string.h>
+
+/* "00" "01" ... "99": two digits per step */
+static const char D2[201] =
+    "0001020304050607080910111213141516171819"
+    "2021222324252627282930313233343536373839"
+    "4041424344454647484950515253545556575859"
+    "6061626364656667686970717273747576777879"
+    "8081828384858687888990919293949596979899";
 
 int hyp__fmt_fixed(char *buf, size_t n, double v, int prec)
 {
@@ -20,19 +29,40 @@ int hyp__fmt_fixed(char *buf, size_t n, double v, int prec)
     if (fabs(fr - 0.5) < 4e-6)
         return snprintf(buf, n, "%.*f", prec, v);
     uint64_t u = (uint64_t)fl + (fr > 0.5);
-    char tmp[32];
-    int k = 0;
-    do {   /* digits from the right, the point after prec of them */
-        tmp[k++] = (char)('0' + u % 10);
-        u /= 10;
-        if (k == prec)
-            tmp[k++] = '.';
-    } while (u || k <= prec + (prec > 0));
+    /* integer part, then exactly prec decimals, two digits at a time */
+    static const uint64_t p10i[10] = {1, 10, 100, 1000, 10000, 100000, 1000000, 10000000, 100000000, 1000000000};
+    uint64_t ip = u / p10i[prec];
+    uint32_t fp = (uint32_t)(u - ip * p10i[prec]);
     int len = 0;
     if (signbit(v))   /* printf keeps the sign of a negative that rounds to 0 */
         buf[len++] = '-';
-    while (k)
-        buf[len++] = tmp[--k];
+    char t[24];
+    int k = 24;
+    while (ip >= 100) {
+        unsigned r = (unsigned)(ip % 100);
+        ip /= 100;
+        k -= 2;
+        memcpy(t + k, D2 + 2 * r, 2);
+    }
+    if (ip >= 10) {
+        k -= 2;
+        memcpy(t + k, D2 + 2 * ip, 2);
+    } else
+        t[--k] = (char)('0' + ip);
+    memcpy(buf + len, t + k, (size_t)(24 - k));
+    len += 24 - k;
+    if (prec) {
+        buf[len++] = '.';
+        for (int j = prec; j >= 2;) {
+            unsigned r = fp % 100;
+            fp /= 100;
+            j -= 2;
+            memcpy(buf + len + j, D2 + 2 * r, 2);
+        }
+        if (prec & 1)
+            buf[len] = (char)('0' + fp % 10);
+        len += prec;
+    }
     buf[len] = '\0';
     return len;
 }

@@ -5,6 +5,7 @@
 #include "reader_common.h"
 #include "rare_values.h"
 #include "hypsolev/writers.h"
+#include "hypsolev/atmosphere.h"
 
 #include <ctype.h>
 #include <errno.h>
@@ -77,9 +78,31 @@ typedef struct gpx_ctx {
     int text_overflow;
 } gpx_ctx;
 
+/* With a barometric altitude in an extension element, that element is
+ * read where the pressure would be. */
+static int alt_in_ele(const hyp_read_opts *o)
+{
+    return o->baro_altitude_field && strcmp(o->baro_altitude_field, "ele") == 0;
+}
+
+static const char *pres_name(const hyp_read_opts *o)
+{
+    if (o->baro_altitude_field && !alt_in_ele(o))
+        return o->baro_altitude_field;
+    return o->pressure_field && o->pressure_field[0] ? o->pressure_field : "pressure";
+}
+
 static const char *field_name(const char *opt, const char *dflt)
 {
     return opt ? opt : dflt;
+}
+
+/* "baro@value": the value is the attribute after the '@' of the element
+ * before it (docs/formats.md); NULL: the element's text. */
+static const char *field_attr(const char *opt)
+{
+    const char *at = opt ? strchr(opt, '@') : NULL;
+    return at ? at + 1 : NULL;
 }
 
 static unsigned cur_line(gpx_ctx *g)
@@ -150,10 +173,10 @@ static hyp_status intern_names(gpx_ctx *g)
     xmlDictPtr d = g->ctxt->dict;
     for (int k = 0; k < N_COUNT; k++) {
         const char *n = fixed[k] ? fixed[k]
-                        : k == N_PRES ? field_name(g->opts->pressure_field, "pressure")
+                        : k == N_PRES ? pres_name(g->opts)
                         : k == N_TEMP ? field_name(g->opts->temperature_field, "temperature")
                                       : field_name(g->opts->humidity_field, "humidity");
-        if (!d || !(g->names[k] = xmlDictLookup(d, BAD_CAST n, -1)))
+        if (!d || !(g->names[k] = xmlDictLookup(d, BAD_CAST n, (int)strcspn(n, "@"))))
             return HYP_ERR_NOMEM;
     }
     return HYP_OK;
@@ -302,6 +325,24 @@ static void start_point(gpx_ctx *g, const xmlChar *local, int nb_attr, const xml
     g->open_end = g->pt_selfclosed ? -1 : g->anchor;
 }
 
+/* A barometric altitude in an extension element is in metres: a unit
+ * attribute that says otherwise (hPa: a pressure named by mistake) is an
+ * error. */
+static void altitude_unit(gpx_ctx *g, int nb_attr, const xmlChar **attrs)
+{
+    char buf[32], uq[80];
+    const char *u = attr_value(attrs, nb_attr, "unit", buf, sizeof buf);
+    if (!u)
+        u = attr_value(attrs, nb_attr, "units", buf, sizeof buf);
+    static const char *const m[] = {"m", "metre", "metres", "meter", "meters"};
+    for (size_t k = 0; u && k < sizeof m / sizeof m[0]; k++)
+        if (!strcasecmp(u, m[k]))
+            return;
+    if (u)
+        fail(g, HYP_ERR_UNIT, "unit=\"%s\" on <%s>: a barometric altitude (--baro-altitude) is expected in m",
+             hyp__quote(uq, sizeof uq, u, strlen(u)), pres_name(g->opts));
+}
+
 static void start_capture(gpx_ctx *g, int what, int nb_attr, const xmlChar **attrs)
 {
     g->cap = what;
@@ -309,6 +350,10 @@ static void start_capture(gpx_ctx *g, int what, int nb_attr, const xmlChar **att
     g->text_len = 0;
     g->text_overflow = 0;
     g->cap_unit = HYP_UNIT_NONE;
+    if (what == CAP_PRES && g->opts->baro_altitude_field) {
+        altitude_unit(g, nb_attr, attrs);
+        return;
+    }
     if (what == CAP_PRES || what == CAP_TEMP) {
         char buf[32];
         const char *u = attr_value(attrs, nb_attr, "unit", buf, sizeof buf);
@@ -359,6 +404,8 @@ static void start_structure(gpx_ctx *g, const xmlChar *local, int nb_attr, const
     if (!g->in_pt && !g->in_wpt && (is_name(g, local, N_TRKPT) || is_name(g, local, N_RTEPT)))
         g->n_misplaced++;
 }
+
+static void capture_attr(gpx_ctx *g, const char *attr, int nb_attr, const xmlChar **attrs);
 
 static void on_start(void *ctx, const xmlChar *local, const xmlChar *prefix, const xmlChar *uri,
                      int nb_ns, const xmlChar **ns, int nb_attr, int nb_def, const xmlChar **attrs)
@@ -421,12 +468,16 @@ static void on_start(void *ctx, const xmlChar *local, const xmlChar *prefix, con
     int in_ext = g->ext_depth ? g->depth > g->ext_depth : !gpx;
     if (!in_ext || g->in_wpt)
         return;
+    const char *opt = NULL;
     if (!g->got_pres && is_name(g, local, N_PRES))
-        start_capture(g, CAP_PRES, nb_attr, attrs);
+        start_capture(g, CAP_PRES, nb_attr, attrs), opt = g->opts->pressure_field;
     else if (!g->got_temp && is_name(g, local, N_TEMP))
-        start_capture(g, CAP_TEMP, nb_attr, attrs);
+        start_capture(g, CAP_TEMP, nb_attr, attrs), opt = g->opts->temperature_field;
     else if (!g->got_rh && is_name(g, local, N_RH))
-        start_capture(g, CAP_RH, nb_attr, attrs);
+        start_capture(g, CAP_RH, nb_attr, attrs), opt = g->opts->humidity_field;
+    const char *attr = field_attr(opt);
+    if (attr && g->cap && !g->status)
+        capture_attr(g, attr, nb_attr, attrs);
 }
 
 static void on_chars(void *ctx, const xmlChar *ch, int len)
@@ -447,7 +498,7 @@ static const char *cap_label(gpx_ctx *g, int cap)
     switch (cap) {
     case CAP_ELE: return "ele";
     case CAP_TIME: return "time";
-    case CAP_PRES: return field_name(g->opts->pressure_field, "pressure");
+    case CAP_PRES: return pres_name(g->opts);
     case CAP_TEMP: return field_name(g->opts->temperature_field, "temperature");
     case CAP_RH: return field_name(g->opts->humidity_field, "humidity");
     case CAP_NAME: return "name";
@@ -476,7 +527,7 @@ static void end_time(gpx_ctx *g)
     if (r)
         hyp__quote(q, sizeof q, t, strlen(t));
     if (r == HYP_TIME_NOZONE)
-        fail(g, HYP_ERR_VALUE, "<time> \"%s\" has no time zone; add Z or give the zone with --time-zone", q);
+        fail(g, HYP_ERR_VALUE, "<time> \"%s\" has no time zone; add Z or give the zone with --time-zone or --rover-time-zone", q);
     else if (r == HYP_TIME_RANGE)
         fail(g, HYP_ERR_VALUE, "<time> \"%s\" is out of range (a date that does not exist, or before 1900 or after 2200)", q);
     else if (r)
@@ -493,6 +544,30 @@ static double unit_value(gpx_ctx *g, double v, int *raw, hyp_unit *attr_unit)
         return v;
     *attr_unit = g->cap_unit;
     return v == v ? hyp_unit_to_si(g->cap_unit, v) : v;
+}
+
+/* A barometric altitude (hyp_read_opts.baro_altitude_field): the pressure
+ * the standard atmosphere has there with the reference 1013.25 hPa
+ * (hyp_baro_altitude_to_pressure_pa). -500..9000 m: the lowest land
+ * surface is near -430 m, the highest summit 8849 m (both from memory);
+ * a value beyond says the field is not such an altitude. */
+static void end_altitude(gpx_ctx *g, int cap, int r, double v)
+{
+    char q[64];
+    if (r != 1 || !(v >= -500.0 && v <= 9000.0)) {
+        fail(g, HYP_ERR_VALUE, "barometric altitude <%s> \"%s\" m is %s; expected a standard-atmosphere height of -500..9000 m (is --baro-altitude %s the right field?)",
+             cap_label(g, cap), hyp__quote(q, sizeof q, g->text, g->text_len), r == 1 ? "out of range" : "not a finite number",
+             g->opts->baro_altitude_field);
+        return;
+    }
+    if (cap == CAP_ELE) {
+        g->ele = NAN;   /* not a GNSS height; the splice writer still replaces it */
+        g->ele_end = end_tag_start(g);
+    }
+    g->got_pres = 1;
+    g->pres_bad = 0;
+    g->pres_raw = 0;
+    g->pres = hyp_baro_altitude_to_pressure_pa(v, HYP_P0_PA);
 }
 
 static void end_capture(gpx_ctx *g)
@@ -518,6 +593,10 @@ static void end_capture(gpx_ctx *g)
         char q[64];
         fail(g, HYP_ERR_VALUE, "<%s> \"%s\" is %s; expected a number", cap_label(g, cap),
              hyp__quote(q, sizeof q, g->text, g->text_len), r == 2 ? "empty" : "not a number");
+        return;
+    }
+    if (g->opts->baro_altitude_field && cap == (alt_in_ele(g->opts) ? CAP_ELE : CAP_PRES)) {
+        end_altitude(g, cap, r, v);
         return;
     }
     static const hyp__field field[] = {[CAP_ELE] = HYP__F_ELE, [CAP_PRES] = HYP__F_PRESSURE,
@@ -549,6 +628,21 @@ static void end_capture(gpx_ctx *g)
     }
 }
 
+/* A value held in an attribute (<ext:baro value="1013.2"/>): read now, the
+ * element's text is not. */
+static void capture_attr(gpx_ctx *g, const char *attr, int nb_attr, const xmlChar **attrs)
+{
+    const char *label = cap_label(g, g->cap);
+    if (!attr_value(attrs, nb_attr, attr, g->text, sizeof g->text)) {
+        g->cap = 0;
+        fail(g, HYP_ERR_VALUE, "<%.*s> has no %s attribute; expected the value there (field \"%s\")",
+             (int)strcspn(label, "@"), label, attr, label);
+        return;
+    }
+    g->text_len = strlen(g->text);
+    end_capture(g);
+}
+
 static hyp_status push_waypoint(hyp_waypoints *w, const char *name, double t, double lat, double lon)
 {
     if (w->count == w->alloc) {
@@ -577,12 +671,35 @@ static hyp_status push_waypoint(hyp_waypoints *w, const char *name, double t, do
     return HYP_OK;
 }
 
+/* A waypoint's byte positions and <ele>, beside wpts (grown with it). */
+static hyp_status push_waypoint_at(gpx_ctx *g)
+{
+    hyp_gpx_doc *d = g->doc;
+    size_t i = d->wpts.count - 1;
+    void *p;
+    if (!(p = realloc(d->wpt_at, d->wpts.alloc * sizeof *d->wpt_at)))
+        return HYP_ERR_NOMEM;
+    d->wpt_at = p;
+    if (!(p = realloc(d->wpt_ele_m, d->wpts.alloc * sizeof(double))))
+        return HYP_ERR_NOMEM;
+    d->wpt_ele_m = p;
+    hyp_gpx_point *P = &d->wpt_at[i];
+    P->open_end = g->open_end;
+    P->ele_beg = g->ele_end >= 0 ? g->ele_beg : -1;
+    P->ele_end = g->ele_end;
+    P->ext_ins = g->ext_ins >= 0 ? g->ext_ins : g->pt_selfclosed ? -1 : end_tag_start(g);
+    P->ext_kind = g->ext_ins >= 0 ? HYP_EXT_INSIDE : d->layout.version == 10 ? HYP_EXT_BARE : HYP_EXT_WRAP;
+    d->wpt_ele_m[i] = g->ele;
+    return HYP_OK;
+}
+
 static void end_point(gpx_ctx *g)
 {
     hyp_gpx_doc *d = g->doc;
     if (g->in_wpt) {
         g->in_wpt = 0;
-        if (g->lat == g->lat && push_waypoint(&d->wpts, g->name, g->got_time ? g->time_s : NAN, g->lat, g->lon))
+        if (g->lat == g->lat &&
+            (push_waypoint(&d->wpts, g->name, g->got_time ? g->time_s : NAN, g->lat, g->lon) || push_waypoint_at(g)))
             fail(g, HYP_ERR_NOMEM, "out of memory");
         return;
     }
@@ -966,6 +1083,8 @@ hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts, hyp_gpx_doc
         hyp_msgs_add_at(msgs, HYP_NOTE, "sample", path, 0, "%zu <trkpt> or <rtept> elements outside gpx/trk/trkseg and gpx/rte are not read as points", g.n_misplaced);
     if (!st)
         st = resolve_units(&g);
+    if (!st && opts->baro_altitude_field)
+        doc->pressure_unit = HYP_UNIT_PA;   /* made from the altitudes, in Pa */
     if (!st)
         st = check_points(&g);
     if (!st) {
@@ -976,8 +1095,11 @@ hyp_status hyp_gpx_read(const char *path, const hyp_read_opts *opts, hyp_gpx_doc
         if (no_t == doc->pts.count)
             st = hyp_error_set(err, HYP_ERR_NODATA, "%s: no point has a <time>; a barometric track needs times", path);
         else if (no_p + no_t >= doc->pts.count)
-            st = hyp_error_set(err, HYP_ERR_NODATA,
-                               "%s: no point has a pressure (looked for an element named \"%s\" in each point's extensions; --pressure-field sets the name)",
+            st = opts->baro_altitude_field
+                 ? hyp_error_set(err, HYP_ERR_NODATA, "%s: no point has a barometric altitude (looked for <%s>%s, as --baro-altitude says)", path,
+                                 opts->baro_altitude_field, alt_in_ele(opts) ? "" : " in each point's extensions")
+                 : hyp_error_set(err, HYP_ERR_NODATA,
+                               "%s: no point has a pressure (looked for an element named \"%s\" in each point's extensions; --pressure-field, or --rover-pressure-field for one rover, sets the name)",
                                path, field_name(opts->pressure_field, "pressure"));
         else if (no_p)
             hyp_msgs_add_at(msgs, HYP_WARNING, "sample", path, 0, "%zu of %zu points have no pressure and get no corrected height", no_p,
@@ -1056,6 +1178,8 @@ void hyp_gpx_doc_free(hyp_gpx_doc *d)
     free(d->wpts.time_s);
     free(d->wpts.lat_deg);
     free(d->wpts.lon_deg);
+    free(d->wpt_at);
+    free(d->wpt_ele_m);
     hyp_gpx_doc_init(d);
 }
 

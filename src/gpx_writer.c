@@ -235,31 +235,28 @@ static hyp_status step(src *s, sink *out, int64_t to, int want_last, int want_ne
     return HYP_OK;
 }
 
-static hyp_status splice_point(src *s, sink *out, const char *in, const hyp_gpx_doc *doc,
-                               const hyp_correct_result *res, size_t i, const hyp_gpx_point *P, hyp_error *err)
+/* One point's or waypoint's splice: the corrected height into its <ele>
+ * (or a new <ele> first, where the schema wants it) when `ok`, then `el`
+ * under its extensions. */
+static hyp_status splice_at(src *s, sink *out, const char *in, const hyp_gpx_layout *L, const hyp_gpx_point *P,
+                            int ok, double height_m, const char *el, hyp_error *err)
 {
-    const hyp_gpx_layout *L = &doc->layout;
     const char *gp = L->prefix, *colon = L->prefix[0] ? ":" : "";
-    if (P->open_end < 0 || P->ext_ins < 0)
-        return HYP_OK;     /* <trkpt .../> without content: nothing to splice */
-    int ok = res->status[i] == HYP_PT_OK;
     hyp_status st;
     if (ok && P->ele_beg >= 0) {
         if ((st = step(s, out, P->ele_beg, '>', 0, in, err)))
             return st;
         char h[32];
-        put_bytes(out, h, (size_t)fmt3(h, res->height_m[i]));
+        put_bytes(out, h, (size_t)fmt3(h, height_m));
         if ((st = step(s, NULL, P->ele_end, 0, '<', in, err)))
             return st;
     } else if (ok) {
         if ((st = step(s, out, P->open_end, '>', 0, in, err)))
             return st;
-        put_fmt(out, "<%s%sele>%.3f</%s%sele>", gp, colon, res->height_m[i], gp, colon);
+        put_fmt(out, "<%s%sele>%.3f</%s%sele>", gp, colon, height_m, gp, colon);
     }
     if ((st = step(s, out, P->ext_ins, 0, '<', in, err)))
         return st;
-    char el[512];
-    point_elements(el, sizeof el, doc, res, i);
     if (P->ext_kind == HYP_EXT_WRAP) {
         put_str(out, "<"), put_str(out, gp), put_str(out, colon), put_str(out, "extensions>");
         put_str(out, el);
@@ -267,6 +264,47 @@ static hyp_status splice_point(src *s, sink *out, const char *in, const hyp_gpx_
     } else
         put_str(out, el);
     return HYP_OK;
+}
+
+static hyp_status splice_point(src *s, sink *out, const char *in, const hyp_gpx_doc *doc,
+                               const hyp_correct_result *res, size_t i, const hyp_gpx_point *P, hyp_error *err)
+{
+    if (P->open_end < 0 || P->ext_ins < 0)
+        return HYP_OK;     /* <trkpt .../> without content: nothing to splice */
+    char el[512];
+    point_elements(el, sizeof el, doc, res, i);
+    return splice_at(s, out, in, &doc->layout, P, res->status[i] == HYP_PT_OK, res->height_m[i], el, err);
+}
+
+/* Waypoint k: corrected, its height and sigma as a track point's
+ * (docs/formats.md); otherwise not a byte of it changes. */
+static hyp_status splice_waypoint(src *s, sink *out, const char *in, const hyp_gpx_doc *doc,
+                                  const hyp_waypoint_heights *wh, size_t k, hyp_error *err)
+{
+    const hyp_gpx_point *P = &doc->wpt_at[k];
+    if (wh->status[k] != HYP_WPT_CORRECTED || P->open_end < 0 || P->ext_ins < 0)
+        return HYP_OK;
+    char el[160], a[32], b[32];
+    const char *X = HYP_GPX_PREFIX;
+    fmt3(b, wh->sigma_m[k]);
+    if (doc->wpt_ele_m[k] == doc->wpt_ele_m[k]) {
+        fmt3(a, doc->wpt_ele_m[k]);
+        snprintf(el, sizeof el, "<%s:ele_in>%s</%s:ele_in><%s:sigma>%s</%s:sigma>", X, a, X, X, b, X);
+    } else
+        snprintf(el, sizeof el, "<%s:sigma>%s</%s:sigma>", X, b, X);
+    return splice_at(s, out, in, &doc->layout, P, 1, wh->height_m[k], el, err);
+}
+
+/* The waypoints from *k on that start before file offset `before`. */
+static hyp_status splice_waypoints(src *s, sink *out, const char *in, const hyp_gpx_doc *doc,
+                                   const hyp_waypoint_heights *wh, size_t *k, int64_t before, hyp_error *err)
+{
+    hyp_status st = HYP_OK;
+    if (!wh || !doc->wpt_at)
+        return st;
+    for (; !st && *k < wh->count && *k < doc->wpts.count && doc->wpt_at[*k].open_end < before; ++*k)
+        st = splice_waypoint(s, out, in, doc, wh, *k, err);
+    return st;
 }
 
 /* The document-level note of the vertical reference: GPX 1.1 in
@@ -308,11 +346,17 @@ static hyp_status splice_vref(src *s, sink *out, const char *in_path, const hyp_
  * document-level parts only where the range starts at the beginning
  * (lo == 0) or runs to the end (hi == count). */
 static hyp_status splice_range(src *s, sink *out, const char *in_path, const hyp_gpx_doc *doc,
-                               const hyp_correct_result *res, const char *vref, size_t lo, size_t hi,
-                               int64_t anchor, int64_t stop, hyp_error *err)
+                               const hyp_correct_result *res, const hyp_waypoint_heights *wh, const char *vref,
+                               size_t lo, size_t hi, int64_t anchor, int64_t stop, hyp_error *err)
 {
     const hyp_gpx_layout *L = &doc->layout;
     hyp_status st;
+    /* waypoints (in file order) are this range's from its first point on
+     * (the first range's from the start) */
+    size_t wk = 0;
+    if (lo > 0 && wh && doc->wpt_at)
+        while (wk < wh->count && doc->wpt_at[wk].open_end < anchor + (int64_t)L->pt_step[lo])
+            wk++;
     if (lo == 0) {
         if (!L->has_hyp_ns) {
             int c, rc = src_advance(s, L->root_attr_ins, out);
@@ -328,11 +372,15 @@ static hyp_status splice_range(src *s, sink *out, const char *in_path, const hyp
     for (size_t i = lo; i < hi; i++) {
         hyp_gpx_point P;
         hyp_gpx_point_next(L, i, &anchor, &P);
+        if ((st = splice_waypoints(s, out, in_path, doc, wh, &wk, anchor, err)))
+            return st;
         /* the layout is in file order; the series may be in time order */
         st = splice_point(s, out, in_path, doc, res, doc->pt_series ? doc->pt_series[i] : i, &P, err);
         if (st)
             return st;
     }
+    if ((st = splice_waypoints(s, out, in_path, doc, wh, &wk, hi < doc->pts.count ? stop : INT64_MAX, err)))
+        return st;
     if (hi < doc->pts.count) {   /* the rest is another part's */
         int rc = src_advance(s, stop, out);
         return rc ? advance_error(err, in_path, rc, stop) : HYP_OK;
@@ -370,6 +418,7 @@ typedef struct half {
     const char *in_path, *tmp_path;
     const hyp_gpx_doc *doc;
     const hyp_correct_result *res;
+    const hyp_waypoint_heights *wh;
     const char *vref;
     size_t lo;
     int64_t anchor_before, start;
@@ -388,7 +437,7 @@ static void *second_half(void *arg)
     }
     sink count = {NULL, 0, 0};
     s->last = -1;
-    h->st = splice_range(s, &count, h->in_path, h->doc, h->res, h->vref, 0, h->lo, 0, h->start, &h->err);
+    h->st = splice_range(s, &count, h->in_path, h->doc, h->res, h->wh, h->vref, 0, h->lo, 0, h->start, &h->err);
     h->first_len = count.n;
     FILE *out = NULL;
     char *obuf = NULL;
@@ -417,7 +466,7 @@ static void *second_half(void *arg)
             s->off = h->start - 1;
             int rc = src_advance(s, h->start, NULL);
             h->st = rc ? advance_error(&h->err, h->in_path, rc, h->start)
-                       : splice_range(s, &k, h->in_path, h->doc, h->res, h->vref, h->lo, h->doc->pts.count,
+                       : splice_range(s, &k, h->in_path, h->doc, h->res, h->wh, h->vref, h->lo, h->doc->pts.count,
                                       h->anchor_before, 0, &h->err);
             if (!h->st && k.failed)
                 h->st = hyp_error_set(&h->err, HYP_ERR_IO, "write error: %s; nothing written", strerror(errno));
@@ -435,7 +484,8 @@ static void *second_half(void *arg)
 #define SPLIT_MIN_POINTS 20000
 
 hyp_status hyp__gpx_splice_to(const char *in_path, const hyp_gpx_doc *doc, const hyp_correct_result *res,
-                              const hyp_output_info *info, hyp__outfile *o, hyp_error *err)
+                              const hyp_waypoint_heights *wh, const hyp_output_info *info, hyp__outfile *o,
+                              hyp_error *err)
 {
     const char *out_path = o->final[0] ? o->final : "standard output";
     if (res->count != doc->pts.count)
@@ -451,7 +501,7 @@ hyp_status hyp__gpx_splice_to(const char *in_path, const hyp_gpx_doc *doc, const
     }
     size_t n = doc->pts.count, m = n / 2;
     int split = info && info->threads >= 2 && n >= SPLIT_MIN_POINTS && o->kind == HYP__OUT_STAGED;
-    half h = {in_path, o->tmp, doc, res, vref, m, 0, 0, 0, {0}, HYP_OK};
+    half h = {in_path, o->tmp, doc, res, wh, vref, m, 0, 0, 0, {0}, HYP_OK};
     pthread_t tid;
     if (split) {
         /* the anchor before point m, and point m's own: where the halves meet */
@@ -462,7 +512,7 @@ hyp_status hyp__gpx_splice_to(const char *in_path, const hyp_gpx_doc *doc, const
     }
     sink k = {o->f, 0, 0};
     if (split) {
-        st = splice_range(s, &k, in_path, doc, res, vref, 0, m, 0, h.start, err);
+        st = splice_range(s, &k, in_path, doc, res, wh, vref, 0, m, 0, h.start, err);
         pthread_join(tid, NULL);
         if (!st && h.st)
             st = hyp_error_set(err, h.st, "%s", h.err.message);
@@ -470,7 +520,7 @@ hyp_status hyp__gpx_splice_to(const char *in_path, const hyp_gpx_doc *doc, const
             st = hyp_error_set(err, HYP_ERR_INTERNAL, "%s: the two halves of the output do not meet (%lld, %lld bytes); nothing written",
                                out_path, (long long)k.n, (long long)h.first_len);
     } else
-        st = splice_range(s, &k, in_path, doc, res, vref, 0, n, 0, 0, err);
+        st = splice_range(s, &k, in_path, doc, res, wh, vref, 0, n, 0, 0, err);
     if (!st && k.failed)
         st = hyp_error_set(err, HYP_ERR_IO, "write error: %s; nothing written", strerror(errno));
     fclose(s->f);
@@ -488,7 +538,7 @@ hyp_status hyp_gpx_write_spliced(const char *in_path, const hyp_gpx_doc *doc,
     hyp__stale_remove(out_path);
     hyp_status st = hyp__out_open(&o, out_path, err);
     if (!st)
-        st = hyp__gpx_splice_to(in_path, doc, res, info, &o, err);
+        st = hyp__gpx_splice_to(in_path, doc, res, NULL, info, &o, err);
     if (!st)
         return hyp__out_commit(&o, err);
     hyp__out_abort(&o);

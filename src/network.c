@@ -69,17 +69,18 @@ static hyp_status colocations(hyp__net *N, size_t k, const hyp_rover_run *run, h
 }
 
 /* Seconds of random-walk drift not captured by the track's linear model at
- * time t: a Brownian bridge between the co-locations that pin it, or the
+ * time t: a Brownian bridge between the comparisons that pin it
+ * (co-locations with a base; side-by-side ones with another rover), or the
  * distance from the nearest (Karatzas and Shreve, Brownian Motion and
- * Stochastic Calculus, section 5.6.B, as the drift fit uses). With no
- * co-location the track's start stands in. */
-static double drift_distance_s(const hyp__net *N, size_t k, double t)
+ * Stochastic Calculus, section 5.6.B, as the drift fit uses). With none the
+ * track's start stands in. */
+double hyp__net_bridge_s(const hyp__net *N, size_t k, double t, hyp_obs_kind kind)
 {
     double lo = -INFINITY, hi = INFINITY;
     int any = 0;
     for (size_t i = 0; i < N->r->n_obs; i++) {
         const hyp_network_obs *o = &N->r->obs[i];
-        if (o->kind != HYP_OBS_COLOCATION || o->track != k)
+        if (o->kind != kind || (o->track != k && (kind != HYP_OBS_SIDE_BY_SIDE || o->track2 != k)))
             continue;
         double m = 0.5 * (o->start_s + o->end_s);
         any = 1;
@@ -146,7 +147,7 @@ hyp_status hyp__net_occupation(hyp__net *N, size_t k, const hyp_rover_run *run, 
             return HYP_OK;
         }
     }
-    double nn = (double)n, rw = c * sqrt(N->q_pa2_per_s * drift_distance_s(N, k, tm));
+    double nn = (double)n, rw = c * sqrt(N->q_pa2_per_s * hyp__net_bridge_s(N, k, tm, HYP_OBS_COLOCATION));
     o->observed_m = sum_h / nn;
     o->sigma_m = sqrt(noise2 / nn / nn + other2 / nn + rw * rw);
     t->occupations++;

@@ -42,6 +42,9 @@ typedef struct hyp__net {
                                   they were never side by side (NaN: none) */
 } hyp__net;
 
+/* Seconds of random-walk drift track k has at time t between its
+ * comparisons of that kind (network.c). */
+double hyp__net_bridge_s(const hyp__net *N, size_t k, double t, hyp_obs_kind kind);
 hyp_network_obs *hyp__net_push(hyp__net *N, hyp_obs_kind kind, double c, double dt_h);
 hyp_status hyp__net_occupation(hyp__net *N, size_t k, const hyp_rover_run *run, const hyp__window *win,
                                hyp_error *err);

@@ -391,34 +391,6 @@ static hyp_status loop(hyp__net *N, size_t k, hyp_error *err)
     return HYP_OK;
 }
 
-/* Seconds of an instrument's random-walk drift its linear model misses at
- * time t: the Brownian bridge between its side-by-side comparisons, or the
- * distance from the nearest, or from its track's start when it has none
- * (Karatzas and Shreve, section 5.6.B, as network.c for co-locations). */
-static double bridge_s(const hyp__net *N, size_t k, double t)
-{
-    double lo = -INFINITY, hi = INFINITY;
-    int any = 0;
-    for (size_t i = 0; i < N->r->n_obs; i++) {
-        const hyp_network_obs *o = &N->r->obs[i];
-        if (o->kind != HYP_OBS_SIDE_BY_SIDE || (o->track != k && o->track2 != k))
-            continue;
-        double m = 0.5 * (o->start_s + o->end_s);
-        any = 1;
-        if (m <= t && m > lo)
-            lo = m;
-        if (m >= t && m < hi)
-            hi = m;
-    }
-    if (!any)
-        return fabs(t - N->r->tracks[k].t0_s);
-    if (isinf(lo))
-        return hi - t;
-    if (isinf(hi))
-        return t - lo;
-    return hi > lo ? (t - lo) * (hi - t) / (hi - lo) : 0.0;
-}
-
 /* The legs' sigmas get both instruments' random-walk drift (the survey's
  * rate, default (2 Pa)^2 per hour), now that every comparison is known. */
 static void legs_drift(hyp__net *N)
@@ -428,7 +400,7 @@ static void legs_drift(hyp__net *N)
         if (o->kind != HYP_OBS_LEAPFROG)
             continue;
         double t = 0.5 * (o->start_s + o->end_s), ca = N->coef[i], cb = N->coef2[i];
-        double v = N->q_pa2_per_s * (ca * ca * bridge_s(N, o->track, t) + cb * cb * bridge_s(N, o->track2, t));
+        double v = N->q_pa2_per_s * (ca * ca * hyp__net_bridge_s(N, o->track, t, HYP_OBS_SIDE_BY_SIDE) + cb * cb * hyp__net_bridge_s(N, o->track2, t, HYP_OBS_SIDE_BY_SIDE));
         o->sigma_m = sqrt(o->sigma_m * o->sigma_m + v);
     }
 }

@@ -2,7 +2,7 @@
  * targets, renamed into place only when every output of the set is
  * complete and on disk (rename(2) is atomic within a file system; the
  * directory is synced after it so the new names survive a power cut). */
-#define _POSIX_C_SOURCE 200809L
+#define _GNU_SOURCE   /* syncfs */
 #include "output_set.h"
 
 #include <dirent.h>
@@ -78,8 +78,16 @@ hyp_status hyp__out_open(hyp__outfile *o, const char *path, hyp_error *err)
     return HYP_OK;
 }
 
-/* Flush, sync and close; the staging file stays until renamed or removed. */
+/* Flush, sync (unless nosync: a group commit syncs the file system once)
+ * and close; the staging file stays until renamed or removed. */
+static hyp_status out_finish_x(hyp__outfile *o, int nosync, hyp_error *err);
+
 static hyp_status out_finish(hyp__outfile *o, hyp_error *err)
+{
+    return out_finish_x(o, 0, err);
+}
+
+static hyp_status out_finish_x(hyp__outfile *o, int nosync, hyp_error *err)
 {
     if (o->finished)
         return HYP_OK;
@@ -91,7 +99,7 @@ static hyp_status out_finish(hyp__outfile *o, hyp_error *err)
     }
     int bad = fflush(o->f) != 0 || ferror(o->f);
     int e = errno;
-    if (!bad && o->kind == HYP__OUT_STAGED && fsync(fileno(o->f)) != 0 && errno != EINVAL) {
+    if (!bad && o->kind == HYP__OUT_STAGED && !nosync && fsync(fileno(o->f)) != 0 && errno != EINVAL) {
         bad = 1;
         e = errno;
     }
@@ -205,6 +213,131 @@ hyp_status hyp__outset_commit(hyp__outset *s, int (*cancelled)(void *), void *ct
     }
     s->n = 0;
     return HYP_OK;
+}
+
+hyp_status hyp__outset_stage(hyp__outset *s, hyp_error *err)
+{
+    hyp_status st = HYP_OK;
+    for (size_t k = 0; k < s->n && !st; k++)
+        st = out_finish_x(&s->files[k], 1, err);
+    if (st)
+        hyp__outset_abort(s);
+    return st;
+}
+
+/* Each staged file's directory once: fn(dir) for each. */
+static int each_dir(hyp__outset *const *sets, size_t n, int (*fn)(const char *))
+{
+    char seen[8][4096];
+    size_t ns = 0;
+    int bad = 0;
+    for (size_t i = 0; i < n; i++)
+        for (size_t k = 0; k < sets[i]->n; k++) {
+            const hyp__outfile *o = &sets[i]->files[k];
+            if (o->kind != HYP__OUT_STAGED)
+                continue;
+            char d[4096];
+            dir_of(o->final, d, sizeof d);
+            int found = 0;
+            for (size_t j = 0; j < ns && !found; j++)
+                found = strcmp(seen[j], d) == 0;
+            if (found)
+                continue;
+            if (ns < 8)
+                memcpy(seen[ns++], d, sizeof d);
+            bad |= fn(d);
+        }
+    return bad;
+}
+
+/* syncfs(2) writes every dirty page and inode of the file system holding
+ * dir, and reports a write-back error of any of them (Linux 5.8 and
+ * later): one call puts a whole group's staging files on disk. */
+static int syncfs_dir(const char *dir)
+{
+    int fd = open(dir, O_RDONLY | O_DIRECTORY);
+    if (fd < 0)
+        return 1;
+    int bad = syncfs(fd) != 0;
+    close(fd);
+    return bad;
+}
+
+static int sync_dir_only(const char *dir)
+{
+    int fd = open(dir, O_RDONLY | O_DIRECTORY);
+    if (fd >= 0) {
+        fsync(fd);   /* best effort, as sync_dir */
+        close(fd);
+    }
+    return 0;
+}
+
+/* One staged set's files: each fsynced (the way of a group of one). */
+static hyp_status fsync_staged(hyp__outset *s, hyp_error *err)
+{
+    for (size_t k = 0; k < s->n; k++) {
+        const hyp__outfile *o = &s->files[k];
+        if (o->kind != HYP__OUT_STAGED)
+            continue;
+        int fd = open(o->tmp, O_RDONLY);
+        int bad = fd < 0 || (fsync(fd) != 0 && errno != EINVAL);
+        int e = errno;
+        if (fd >= 0)
+            close(fd);
+        if (bad)
+            return hyp_error_set(err, HYP_ERR_IO, "%s: write failed: %s; the previous file (if any) is unchanged", o->final,
+                                 strerror(e));
+    }
+    return HYP_OK;
+}
+
+void hyp__outset_commit_group(hyp__outset *const *sets, size_t n, int (*cancelled)(void *), void *ctx,
+                              hyp_status *st, hyp_error *errs)
+{
+    size_t live = 0;
+    for (size_t i = 0; i < n; i++) {
+        st[i] = HYP_OK;
+        live += sets[i]->n > 0;
+    }
+    if (live == 1) {   /* one set: its files synced one by one, as a commit */
+        for (size_t i = 0; i < n; i++)
+            if (sets[i]->n && (st[i] = fsync_staged(sets[i], &errs[i])))
+                hyp__outset_abort(sets[i]);
+    } else if (live > 1 && each_dir(sets, n, syncfs_dir)) {
+        int e = errno;
+        for (size_t i = 0; i < n; i++)
+            if (sets[i]->n) {
+                st[i] = hyp_error_set(&errs[i], HYP_ERR_IO, "%s: write failed: %s; the previous file (if any) is unchanged",
+                                      sets[i]->files[0].final, strerror(e));
+                hyp__outset_abort(sets[i]);
+            }
+    }
+    int stop = cancelled && cancelled(ctx);
+    for (size_t i = 0; i < n; i++) {
+        hyp__outset *s = sets[i];
+        if (!s->n || st[i])
+            continue;
+        if (stop) {
+            st[i] = hyp_error_set(&errs[i], HYP_ERR_IO, "interrupted: nothing written");
+            hyp__outset_abort(s);
+            continue;
+        }
+        for (size_t k = 0; k < s->n && !st[i]; k++) {
+            hyp__outfile *o = &s->files[k];
+            if (o->kind == HYP__OUT_STAGED && rename(o->tmp, o->final) != 0)
+                st[i] = hyp_error_set(&errs[i], HYP_ERR_IO, "%s: write failed: cannot rename into place: %s", o->final,
+                                      strerror(errno));
+            else
+                o->tmp[0] = '\0';
+        }
+        if (st[i])
+            hyp__outset_abort(s);
+    }
+    if (!stop)
+        each_dir(sets, n, sync_dir_only);
+    for (size_t i = 0; i < n; i++)
+        sets[i]->n = 0;
 }
 
 /* The pid of a staging name's tail "PID-XXXXXX", or 0 when it is not one. */

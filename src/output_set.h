@@ -64,6 +64,19 @@ hyp_status hyp__outset_commit(hyp__outset *s, int (*cancelled)(void *), void *ct
 /* Removes every staging file of the set (after a failure). */
 void hyp__outset_abort(hyp__outset *s);
 
+/* A group commit (a batch's rovers): hyp__outset_stage flushes and closes
+ * a set's files without syncing them (on failure it removes them all);
+ * hyp__outset_commit_group then puts every staged set of the group on disk
+ * at once (syncfs(2) of each directory's file system; a group with one set
+ * fsyncs its files), and only then, unless cancelled(ctx), renames each set
+ * into place and syncs each directory once. st[i] and errs[i] say how set
+ * i ended; a failed or cancelled set's staging files are removed. The
+ * promise is commit's: nothing is renamed into place before it is on
+ * disk, and the targets of a set are all new or all old. */
+hyp_status hyp__outset_stage(hyp__outset *s, hyp_error *err);
+void hyp__outset_commit_group(hyp__outset *const *sets, size_t n, int (*cancelled)(void *), void *ctx,
+                              hyp_status *st, hyp_error *errs);
+
 /* Removes the stale staging files of target `path`: names of our pattern
  * beside it whose process no longer exists. Returns how many. */
 size_t hyp__stale_remove(const char *path);

@@ -111,6 +111,9 @@ typedef struct hyp__clock {
     unsigned second_line;     /* the first read as the second occurrence */
     size_t n_skipped;         /* stamps in an hour the clock skipped */
     unsigned skipped_line;
+    const char *format;       /* hyp_time_parse_format's; NULL: ISO 8601 or epoch */
+    int date_order;           /* numeric dates (18.06.2026): 0 not read,
+                                 1 day first, 2 month first */
 } hyp__clock;
 
 void hyp__clock_init(hyp__clock *c, const hyp_zone *zone);

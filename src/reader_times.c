@@ -22,7 +22,10 @@ void hyp__clock_init(hyp__clock *c, const hyp_zone *zone)
 hyp_time_result hyp__clock_read(hyp__clock *c, const char *text, unsigned line, double *time_s)
 {
     hyp_time_local how;
-    hyp_time_result r = hyp_time_parse_zoned(text, c->zone, time_s, &how);
+    hyp_time_result r = c->format ? hyp_time_parse_format(text, c->format, c->zone, time_s, &how)
+                      : hyp_time_parse_zoned(text, c->zone, time_s, &how);
+    if (r == HYP_TIME_SYNTAX && !c->format && c->date_order)
+        r = hyp_time_parse_numeric(text, c->date_order == 1, c->zone, time_s, &how);
     if (r)
         return r;
     if (how.zoned) {

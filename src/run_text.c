@@ -5,6 +5,7 @@
 #include "survey_int.h"
 #include "hypsolev/vertical.h"
 #include "text_safe.h"
+#include "baro_altitude.h"
 
 #include <math.h>
 #include <string.h>
@@ -244,6 +245,10 @@ static void print_heights(FILE *f, const hyp_rover_run *run)
     for (int fl = 1; fl < HYP_SAMPLE_FLAG_COUNT; fl++)
         if (r->n_flag[fl])
             fprintf(f, "            %zu dropped by the reader: %s\n", r->n_flag[fl], hyp_sample_flag_text((hyp_sample_flag)fl));
+    const hyp_waypoint_heights *w = &run->waypoints;
+    if (w->count)
+        fprintf(f, "  waypoints: %zu corrected, %zu outside the span, %zu without time\n", w->n_corrected, w->n_outside,
+                w->n_no_time);
 }
 
 static void print_references(FILE *f, const hyp_rover_run *run)
@@ -261,13 +266,38 @@ static void print_references(FILE *f, const hyp_rover_run *run)
         fprintf(f, "  crs       easting/northing in %s\n", run->crs_name);
 }
 
+/* A barometric-altitude rover: its quantisation, the reference found and
+ * each re-setting with its time and size (baro_altitude.c). */
+static void print_baro(FILE *f, const char *span, const hyp__baro *b)
+{
+    fprintf(f, "  rover     %s; pressure from barometric altitudes\n", span);
+    if (b->quant_m > 0)
+        fprintf(f, "  altitude  in steps of %g m: quantisation %.2f m (%.2f Pa), 1 sigma\n", b->quant_m,
+                b->quant_m / sqrt(12.0), b->quant_pa);
+    if (b->ref_pa == b->ref_pa)
+        fprintf(f, "            the recorder's reference%s: %.2f hPa (from the calibrated offset)\n",
+                b->n_steps ? " before its first re-setting" : "", b->ref_pa / 100.0);
+    else
+        fprintf(f, "            the recorder's reference: not calibrated, 1013.25 hPa taken (its error scales the height "
+                   "above the base: docs/methods.md)\n");
+    for (size_t k = 0; k < b->n_steps; k++) {
+        char t[32];
+        hyp_time_format(b->steps[k].time_s, t, sizeof t);
+        fprintf(f, "            re-set at %s (line %u): %+.1f m +- %.2f m, joined\n", t, (unsigned)b->steps[k].line,
+                b->steps[k].size_m, b->steps[k].sigma_m);
+    }
+}
+
 static void print_summary(FILE *f, const hyp_rover_run *run)
 {
     const hyp_correct_result *r = &run->result;
     char span[200];
     fprintf(f, "hypsolev correct: %s\n", run->path);
     span_text(run->rover, span, sizeof span);
-    fprintf(f, "  rover     %s; pressure in %s\n", span, hyp_unit_name(run->rover_pressure_unit));
+    if (run->priv && run->priv->baro)
+        print_baro(f, span, run->priv->baro);
+    else
+        fprintf(f, "  rover     %s; pressure in %s\n", span, hyp_unit_name(run->rover_pressure_unit));
     print_bases(f, run);
     print_method(f, run);
     print_calibrations(f, r);

@@ -6,7 +6,7 @@
 
 /* k-th smallest of v[0..n) by quickselect (Hoare's FIND, CACM 4, 1961),
  * reordering v; expected linear time where a sort is n log n. */
-static double select_k(double *v, size_t n, size_t k)
+double hyp__select_kth(double *v, size_t n, size_t k)
 {
     size_t lo = 0, hi = n - 1;
     while (lo < hi) {
@@ -41,7 +41,7 @@ double hyp__median_inplace(double *v, size_t n)
 {
     if (n == 0)
         return NAN;
-    double hi = select_k(v, n, n / 2);
+    double hi = hyp__select_kth(v, n, n / 2);
     if (n % 2)
         return hi;
     /* the lower middle is the largest of the lower part */

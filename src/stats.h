@@ -5,6 +5,8 @@
 #include <stddef.h>
 
 /* Median of v[0..n) (reorders v). NaN for n == 0. */
+/* The k-th smallest (from 0) of v[0..n), n > 0, reordering v. */
+double hyp__select_kth(double *v, size_t n, size_t k);
 double hyp__median_inplace(double *v, size_t n);
 
 /* White-noise level (1 sigma) of a slowly varying series from its second

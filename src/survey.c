@@ -211,6 +211,7 @@ void hyp_survey_free(hyp_survey *sv)
     for (size_t k = 0; k < sv->n_cleaned; k++)
         free(sv->cleaned[k]);
     free(sv->cleaned);
+    hyp__rover_own_free(sv);
     pthread_mutex_destroy(&sv->lock);
     free(sv);
 }
@@ -256,6 +257,7 @@ static hyp_status pool_push(hyp_survey *sv, const hyp_base_spec *b, hyp_msgs *ms
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     pb->spec.path = pb->path;
     pb->spec.time_zone = NULL;
+    pb->spec.time_format = NULL;   /* the caller's text: used below only */
     hyp_gpx_doc_init(&pb->log.doc);
     hyp_series_init(&pb->log.csv);
     sv->n_pool++;   /* owned from here on: freed with the survey */
@@ -266,6 +268,8 @@ static hyp_status pool_push(hyp_survey *sv, const hyp_base_spec *b, hyp_msgs *ms
     hyp_read_opts ro = sv->o.read;
     ro.zone = &z;
     ro.need_position = 0;
+    ro.baro_altitude_field = NULL;   /* the rovers' */
+    ro.time_format = b->time_format;
     if (b->pressure_unit)
         ro.pressure_unit = b->pressure_unit;
     if (b->temperature_unit)
@@ -322,6 +326,7 @@ hyp_status hyp_survey_add_base_dir(hyp_survey *sv, const char *dir, hyp_msgs *ms
         b.lon_deg = e[k].lon_deg;
         b.clock_offset_s = e[k].clock_offset_s;
         b.kind = e[k].qnh ? HYP_BASE_QNH : HYP_BASE_STATION;
+        b.time_format = e[k].time_format[0] ? e[k].time_format : NULL;   /* read before e is freed */
         st = pool_push(sv, &b, msgs, err);
     }
     free(e);

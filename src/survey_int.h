@@ -42,6 +42,8 @@ struct hyp_survey {
     pthread_mutex_t lock;       /* the list below */
     char **cleaned;             /* directories cleared of stale staging files */
     size_t n_cleaned;
+    struct hyp__rover_own *rover_own;   /* rovers' own reading options */
+    size_t n_rover_own;
 };
 
 struct hyp__rover_priv {
@@ -53,11 +55,25 @@ struct hyp__rover_priv {
     const hyp_survey *sv;       /* the survey it ran in (benchmarks and inputs
                                    for the HTML report) */
     const hyp_report_info *report_info;   /* the outputs' (NULL: none) */
+    struct hyp__baro *baro;     /* a barometric-altitude rover's steps (NULL: none) */
 };
 
 /* How the rover at `rover` (a path as given) is read: the survey's
  * reading options, its zone, positions wanted. */
 void hyp__rover_read_opts(const hyp_survey *sv, const char *rover, hyp_read_opts *ro);
+
+/* A rover's own reading options (survey_rover_spec.c): the spec with
+ * an owned path, its zone parsed. */
+typedef struct hyp__rover_own {
+    hyp_rover_spec spec;
+    char *path;
+    hyp_zone zone;
+} hyp__rover_own;
+/* The rover's own options, NULL when it has none. */
+const hyp__rover_own *hyp__rover_own_find(const hyp_survey *sv, const char *rover);
+void hyp__rover_own_free(hyp_survey *sv);
+/* Moves a rover read with its own clock offset to true time. */
+void hyp__rover_clock_apply(const hyp__rover_own *own, hyp__log *l);
 
 /* The bases a rover uses (indices into the pool). */
 hyp_status hyp__select_bases(const hyp_survey *sv, const hyp_series *rv, size_t *sel, size_t *n, hyp_error *err);
@@ -79,5 +95,16 @@ void hyp__stem(const char *path, char *out, size_t n);
 void hyp__survey_clean_dir(hyp_survey *sv, const char *target);
 /* 1 when path names one of the survey's inputs (or a hard link to one). */
 int hyp__survey_is_input(const hyp_survey *sv, const char *path, const char *const *rovers, size_t n);
+
+/* hyp_survey_run for a batch's group commit: the rover's outputs are
+ * staged (flushed and closed, not synced, not renamed) into *staged (n 0
+ * when there is none) for hyp__outset_commit_group (output_set.h); r is
+ * reported only after that commit. */
+struct hyp__outset;
+hyp_status hyp__survey_run_staged(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
+                                  hyp_rover_run **run, struct hyp__outset *staged, hyp_error *err);
+/* A run whose staged outputs did not get into place: its error, and
+ * nothing written. */
+void hyp__rover_run_unwritten(hyp_rover_run *r, const hyp_error *why);
 
 #endif

@@ -9,6 +9,8 @@
 #include "writers_int.h"
 #include "report_html.h"
 #include "report_page.h"
+#include "baro_altitude.h"
+#include "waypoint_heights.h"
 
 #include <math.h>
 #include <pthread.h>
@@ -24,6 +26,7 @@ void hyp_rover_run_free(hyp_rover_run *r)
     if (!r)
         return;
     hyp_correct_result_free(&r->result);
+    hyp__waypoint_heights_free(&r->waypoints);
     hyp_msgs_free(&r->msgs);
     priv_t *p = r->priv;
     if (p) {
@@ -33,6 +36,7 @@ void hyp_rover_run_free(hyp_rover_run *r)
         free(p->own_out);
         free(p->east);
         free(p->north);
+        free(p->baro);
         for (int k = 0; k < 4; k++)
             free(p->paths[k]);
         free(p);
@@ -109,10 +113,70 @@ static hyp_status prepare_extras(const hyp_survey *sv, hyp_rover_run *r, const f
 
 void hyp__rover_read_opts(const hyp_survey *sv, const char *rover, hyp_read_opts *ro)
 {
-    (void)rover;
+    const hyp__rover_own *own = hyp__rover_own_find(sv, rover);
     *ro = sv->o.read;
     ro->zone = &sv->rover_zone;
     ro->need_position = 1;
+    if (!own)
+        return;
+    /* the rover's own settings where it has them, else the survey's */
+    const hyp_rover_spec *r = &own->spec;
+    if (r->pressure_unit)
+        ro->pressure_unit = r->pressure_unit;
+    if (r->temperature_unit)
+        ro->temperature_unit = r->temperature_unit;
+    if (r->pressure_field)
+        ro->pressure_field = r->pressure_field;
+    if (r->temperature_field)
+        ro->temperature_field = r->temperature_field;
+    if (r->humidity_field)
+        ro->humidity_field = r->humidity_field;
+    if (r->time_zone)
+        ro->zone = &own->zone;
+}
+
+/* A rover of barometric altitudes (read as pressures with the reference
+ * 1013.25 hPa): its quantisation and re-settings, kept for the budget. */
+static hyp_status join_altitudes(hyp_rover_run *r, hyp_error *err)
+{
+    priv_t *p = r->priv;
+    if (!p->rv.is_gpx)
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s: --baro-altitude reads GPX tracks only (this is a CSV log)", r->path);
+    if (!(p->baro = calloc(1, sizeof *p->baro)))
+        return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    return hyp__baro_join(&p->rv.doc.pts, r->path, p->baro, &r->msgs, err);
+}
+
+/* A barometric-altitude rover's pressures are the true ones times P0 / ref
+ * (ref the recorder's unknown reference): a first correction calibrates
+ * the offset in Pa, which gives ref; the pressures rescaled by it leave
+ * the second correction only the sensor's own offset to calibrate, so the
+ * offset no longer varies with height as p / ref (docs/methods.md). Its
+ * messages are the second's; the first's are dropped. */
+static hyp_status baro_reference(const hyp_survey *sv, hyp_rover_run *r, const hyp_base *bases, size_t nb,
+                                 hyp_correct_opts *co, hyp_error *err)
+{
+    priv_t *p = r->priv;
+    hyp_msgs first;
+    hyp_msgs_init(&first);
+    /* the survey's own offset: the network holds it at 0 in *co to solve
+     * it, but the reference is the recorder's and is found as in correct */
+    hyp_correct_opts c1 = *co;
+    c1.offset_pa = sv->copts.offset_pa;
+    c1.offset_sigma_pa = sv->copts.offset_sigma_pa;
+    hyp_status st = hyp_correct(r->rover, bases, nb, &c1, &r->result, &first, err);
+    hyp_msgs_free(&first);
+    if (st)
+        return st;
+    hyp_drift_kind k = r->result.drift.kind;   /* calibrated, not given (--offset, or the network's 0) */
+    if (k == HYP_DRIFT_CONSTANT || k == HYP_DRIFT_LINEAR || k == HYP_DRIFT_PIECEWISE || k == HYP_DRIFT_GNSS)
+        hyp__baro_rescale(&p->rv.doc.pts, &r->result, p->baro, r->path, &r->msgs);
+    /* rescaled: the sensor's own offset is left as a scale; not: the
+     * reference's departure from 1013.25 hPa itself */
+    co->baro_offset_sigma_pa = p->baro->ref_pa == p->baro->ref_pa ? HYP__BARO_SENSOR_SIGMA_PA : HYP__BARO_REF_SIGMA_PA;
+    hyp_correct_result_free(&r->result);
+    hyp_correct_result_init(&r->result);
+    return HYP_OK;
 }
 
 /* Read the rover, choose its bases, correct it, convert its heights. */
@@ -126,6 +190,9 @@ static hyp_status correct_rover(hyp_survey *sv, const hyp_correct_opts *copts, h
     if (!st)
         st = hyp__log_read(r->path, &ro, &p->rv, &r->msgs, err);
     if (st)
+        return st;
+    hyp__rover_clock_apply(hyp__rover_own_find(sv, r->path), &p->rv);
+    if (ro.baro_altitude_field && (st = join_altitudes(r, err)))
         return st;
     r->rover = hyp__log_series(&p->rv);
     r->rover_pressure_unit = p->rv.punit;
@@ -160,9 +227,18 @@ static hyp_status correct_rover(hyp_survey *sv, const hyp_correct_opts *copts, h
     co.waypoints = p->rv.is_gpx ? &p->rv.doc.wpts : NULL;
     co.gnss_height_m = gnss_known;
     co.threads = threads;
+    if (p->baro) {
+        co.rover_quant_pa = p->baro->quant_pa;
+        co.baro_steps = p->baro->steps;
+        co.n_baro_steps = p->baro->n_steps;
+    }
+    if (p->baro && (st = baro_reference(sv, r, bases, nb, &co, err)))
+        return st;
     st = hyp_correct(r->rover, bases, nb, &co, &r->result, &r->msgs, err);
     if (!st)
         st = hyp_heights_convert(p->geo, r->rover, r->result.height_m, sv->o.known_ref, sv->o.out_ref, err);
+    if (!st && p->rv.is_gpx)   /* in the output reference, as the track */
+        st = hyp__waypoint_heights(&p->rv.doc.wpts, r->rover, &r->result, &r->waypoints, err);
     return st;
 }
 
@@ -245,9 +321,10 @@ static int is_html(const char *path)
     return n >= 5 && strcasecmp(path + n - 5, ".html") == 0;
 }
 
-/* The GPX and the table, staged; the report beside them; one commit. */
+/* The GPX and the table, staged; the report beside them; one commit, or
+ * (keep) the staged set handed to the caller's group commit. */
 static hyp_status write_outputs(hyp_survey *sv, hyp_rover_run *r, const hyp__rover_paths *ps, int threads,
-                                hyp_error *err)
+                                hyp__outset *keep, hyp_error *err)
 {
     priv_t *p = r->priv;
     hyp_output_info info = {.vref = hyp_vref_name(sv->o.out_ref), .gnss_m = r->gnss_out_m, .easting_m = r->easting_m,
@@ -268,12 +345,13 @@ static hyp_status write_outputs(hyp_survey *sv, hyp_rover_run *r, const hyp__rov
     if (ps->gpx[0]) {
         hyp__outfile *o = hyp__outset_add(&set, ps->gpx, err);
         st = !o ? err->status
-             : p->rv.is_gpx ? hyp__gpx_splice_to(r->path, &p->rv.doc, &r->result, &info, o, err)
+             : p->rv.is_gpx ? hyp__gpx_splice_to(r->path, &p->rv.doc, &r->result, &r->waypoints, &info, o, err)
                             : hyp__gpx_new_to(&p->rv.csv, &r->result, &info, r->name, o, err);
     }
     if (!st && ps->table[0]) {
         hyp__outfile *o = hyp__outset_add(&set, ps->table, err);
-        st = !o ? err->status : hyp__table_to(r->rover, &r->result, &info, o, err);
+        st = !o ? err->status
+             : hyp__table_to(r->rover, &r->result, &info, p->rv.is_gpx ? &p->rv.doc : NULL, &r->waypoints, o, err);
     }
     if (threaded) {
         pthread_join(tid, NULL);
@@ -287,7 +365,10 @@ static hyp_status write_outputs(hyp_survey *sv, hyp_rover_run *r, const hyp__rov
     } else if (!st && ps->report[0])
         st = stage_report(&set, r, ps->report, err);
     hyp__page_free(&job.page);
-    if (!st)
+    if (!st && keep) {
+        if (!(st = hyp__outset_stage(&set, err)))
+            *keep = set;
+    } else if (!st)
         st = hyp__outset_commit(&set, sv->o.cancelled, sv->o.cancel_ctx, err);
     else
         hyp__outset_abort(&set);
@@ -324,8 +405,34 @@ hyp_status hyp_survey_run(hyp_survey *sv, const char *rover, const hyp_outputs *
     return hyp__survey_run_with(sv, rover, out, threads, &sv->copts, run, err);
 }
 
+static hyp_status run_rover(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
+                            const hyp_correct_opts *copts, hyp_rover_run **run, hyp__outset *keep, hyp_error *err);
+
 hyp_status hyp__survey_run_with(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
                                 const hyp_correct_opts *copts, hyp_rover_run **run, hyp_error *err)
+{
+    return run_rover(sv, rover, out, threads, copts, run, NULL, err);
+}
+
+hyp_status hyp__survey_run_staged(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
+                                  hyp_rover_run **run, struct hyp__outset *staged, hyp_error *err)
+{
+    hyp__outset_init(staged);
+    return run_rover(sv, rover, out, threads, &sv->copts, run, staged, err);
+}
+
+void hyp__rover_run_unwritten(hyp_rover_run *r, const hyp_error *why)
+{
+    r->status = why->status;
+    r->error = *why;
+    r->test_failed = 0;
+    for (size_t k = 0; k < r->n_written; k++)
+        r->written[k] = NULL;
+    r->n_written = 0;
+}
+
+static hyp_status run_rover(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
+                            const hyp_correct_opts *copts, hyp_rover_run **run, hyp__outset *keep, hyp_error *err)
 {
     hyp_outputs none = {0};
     if (!out)
@@ -361,7 +468,7 @@ hyp_status hyp__survey_run_with(hyp_survey *sv, const char *rover, const hyp_out
         return HYP_OK;
     }
     if (!st)
-        st = write_outputs(sv, r, &ps, threads, &r->error);
+        st = write_outputs(sv, r, &ps, threads, keep, &r->error);
     r->status = st;
     if (st) {
         r->test_failed = 0;

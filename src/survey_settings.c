@@ -69,6 +69,16 @@ static hyp_status set_vref(const char *name, const char *text, hyp_vref *v, hyp_
     return HYP_OK;
 }
 
+static hyp_status set_time_format(const char *name, const char *text, const char **to, hyp_error *err)
+{
+    char why[160];
+    if (hyp_time_format_check(text, why, sizeof why))
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s \"%s\" %s (see \"Time formats\" in docs/formats.md)",
+                             name, text, why);
+    *to = text;
+    return HYP_OK;
+}
+
 static hyp_status set_unit(hyp_quantity q, const char *name, const char *text, hyp_unit *u, hyp_error *err)
 {
     if (!(*u = hyp_unit_parse(q, text)))
@@ -90,7 +100,11 @@ static hyp_status set_text(hyp_survey_opts *o, const char *name, const char *v, 
         {"ties", offsetof(hyp_survey_opts, ties_path)},
         {"crs", offsetof(hyp_survey_opts, crs)},
         {"bases-colocated", offsetof(hyp_survey_opts, bases_colocated)},
+        {"baro-altitude", offsetof(hyp_survey_opts, read.baro_altitude_field)},
     };
+    if (!strcmp(name, "baro-altitude") && (!v || !v[0] || strpbrk(v, " \t<>:/\"'&")))
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s \"%s\": expected ele or the local name of an extension element", name,
+                             v ? v : "");
     for (size_t k = 0; k < sizeof texts / sizeof texts[0]; k++)
         if (!strcmp(name, texts[k].name)) {
             *(const char **)((char *)o + texts[k].at) = v;
@@ -109,6 +123,8 @@ static hyp_status set_text(hyp_survey_opts *o, const char *name, const char *v, 
         return set_unit(HYP_Q_PRESSURE, name, v, &o->read.pressure_unit, err);
     else if (!strcmp(name, "temperature-unit"))
         return set_unit(HYP_Q_TEMPERATURE, name, v, &o->read.temperature_unit, err);
+    else if (!strcmp(name, "time-format"))
+        return set_time_format(name, v, &o->read.time_format, err);
     else if (!strcmp(name, "gnss-heights"))
         return set_vref(name, v, &o->gnss_ref, err);
     else if (!strcmp(name, "known-heights"))
@@ -161,6 +177,8 @@ hyp_status hyp_base_spec_set(hyp_base_spec *b, const char *name, const char *val
         b->time_zone = value;
         return HYP_OK;
     }
+    if (!strcmp(name, "base-time-format"))
+        return set_time_format(name, v, &b->time_format, err);
     if (!strcmp(name, "base-qnh")) {
         b->kind = HYP_BASE_QNH;
         return HYP_OK;
@@ -185,5 +203,27 @@ hyp_status hyp_base_spec_set(hyp_base_spec *b, const char *name, const char *val
     if (number("base-at latitude", buf, -90, 90, &b->lat_deg, err) ||
         number("base-at longitude", comma + 1, -180, 180, &b->lon_deg, err))
         return HYP_ERR_USAGE;
+    return HYP_OK;
+}
+
+hyp_status hyp_rover_spec_set(hyp_rover_spec *r, const char *name, const char *value, hyp_error *err)
+{
+    const char *v = value ? value : "";
+    if (!strcmp(name, "rover-pressure-unit"))
+        return set_unit(HYP_Q_PRESSURE, name, v, &r->pressure_unit, err);
+    if (!strcmp(name, "rover-temperature-unit"))
+        return set_unit(HYP_Q_TEMPERATURE, name, v, &r->temperature_unit, err);
+    if (!strcmp(name, "rover-clock-offset"))
+        return number(name, v, -86400, 86400, &r->clock_offset_s, err);
+    const char **text = !strcmp(name, "rover-pressure-field")      ? &r->pressure_field
+                        : !strcmp(name, "rover-temperature-field") ? &r->temperature_field
+                        : !strcmp(name, "rover-humidity-field")    ? &r->humidity_field
+                        : !strcmp(name, "rover-time-zone")         ? &r->time_zone
+                                                                   : NULL;
+    if (!text)
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s: no such rover setting", name);
+    if (!value || !value[0])
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s \"\": expected a name", name);
+    *text = value;
     return HYP_OK;
 }

@@ -20,9 +20,36 @@ static void num(FILE *f, double v, int prec)
     fwrite_unlocked(b, 1, (size_t)n + 1, f);   /* the FILE is this writer's alone */
 }
 
-hyp_status hyp__table_to(const hyp_series *s, const hyp_correct_result *res, const hyp_output_info *info,
-                         hyp__outfile *o, hyp_error *err)
+static const char *wpt_status_text(unsigned char st)
 {
+    return st == HYP_WPT_CORRECTED ? "ok" : st == HYP_WPT_NO_TIME ? "no time, left as it is"
+                                                               : "outside the corrected span, left as it is";
+}
+
+/* The waypoints' rows: time, position, ele_in, height and sigma; the
+ * columns that describe a sample of the track empty. */
+static void waypoint_rows(FILE *f, const hyp_gpx_doc *doc, const hyp_waypoint_heights *wh, int extra)
+{
+    for (size_t k = 0; k < wh->count && k < doc->wpts.count; k++) {
+        char t[40] = "";
+        if (doc->wpts.time_s[k] == doc->wpts.time_s[k])
+            hyp_time_format(doc->wpts.time_s[k], t, sizeof t);
+        fputs(t, f);
+        num(f, doc->wpts.lat_deg[k], 8);
+        num(f, doc->wpts.lon_deg[k], 8);
+        num(f, doc->wpt_ele_m[k], 3);
+        num(f, wh->height_m[k], 3);
+        num(f, wh->sigma_m[k], 3);
+        for (int c = 0; c < 4 + HYP_B_COUNT + extra; c++)
+            fputc_unlocked(',', f);
+        fprintf(f, ",%s,waypoint\n", wpt_status_text(wh->status[k]));
+    }
+}
+
+hyp_status hyp__table_to(const hyp_series *s, const hyp_correct_result *res, const hyp_output_info *info,
+                         const hyp_gpx_doc *doc, const hyp_waypoint_heights *wh, hyp__outfile *o, hyp_error *err)
+{
+    int wpts = doc && wh && wh->count && doc->wpts.count;
     hyp_output_info none = {0};
     if (!info)
         info = &none;
@@ -34,7 +61,7 @@ hyp_status hyp__table_to(const hyp_series *s, const hyp_correct_result *res, con
         fputs(",gnss_minus_height", f);
     if (info->easting_m)
         fputs(",easting,northing", f);
-    fputs(",status\n", f);
+    fputs(wpts ? ",status,kind\n" : ",status\n", f);
     for (size_t i = 0; i < s->count; i++) {
         char t[40] = "";
         if (s->time_s[i] == s->time_s[i])
@@ -69,8 +96,12 @@ hyp_status hyp__table_to(const hyp_series *s, const hyp_correct_result *res, con
                                                                       : hyp_point_status_text((hyp_point_status)res->status[i]);
         fputc_unlocked(',', f);
         fputs_unlocked(why, f);
+        if (wpts)
+            fputs_unlocked(",track", f);
         fputc_unlocked('\n', f);
     }
+    if (wpts)
+        waypoint_rows(f, doc, wh, (info->gnss_m ? 1 : 0) + (info->easting_m ? 2 : 0));
     (void)err;   /* write errors are found when the set is committed */
     return HYP_OK;
 }
@@ -82,7 +113,7 @@ hyp_status hyp_table_write(const hyp_series *s, const hyp_correct_result *res, c
     hyp__stale_remove(out_path);
     hyp_status st = hyp__out_open(&o, out_path, err);
     if (!st)
-        st = hyp__table_to(s, res, info, &o, err);
+        st = hyp__table_to(s, res, info, NULL, NULL, &o, err);
     if (!st)
         return hyp__out_commit(&o, err);
     hyp__out_abort(&o);

@@ -2,6 +2,7 @@
  * tz database zones (TZif files, RFC 8536) for stamps without a zone. */
 #include "hypsolev/timeparse.h"
 #include "tzrule.h"
+#include "timefmt_int.h"
 
 #include <ctype.h>
 #include <errno.h>
@@ -423,8 +424,20 @@ hyp_time_result hyp_time_parse_zoned(const char *text, const hyp_zone *zone, dou
         s++;
     if (*s)
         return HYP_TIME_SYNTAX;
+    hyp__tfields f = {y, mo, d, h, mi, sec, frac, has_zone, off};
+    return hyp__time_from_fields(&f, zone, time_s, how);
+}
+
+hyp_time_result hyp__time_from_fields(const hyp__tfields *f, const hyp_zone *zone, double *time_s,
+                                      hyp_time_local *how)
+{
+    int y = f->y, mo = f->mo, d = f->d, h = f->h, mi = f->mi, sec = f->sec, has_zone = f->has_zone;
+    double frac = f->frac;
+    int32_t off = f->off_s;
+    if (how)
+        memset(how, 0, sizeof *how);
     if (y < 1900 || y > 2200 || mo < 1 || mo > 12 || d < 1 || d > days_in_month(y, (unsigned)mo) ||
-        h > 24 || mi > 59 || sec > 60 || (h == 24 && (mi || sec || frac > 0.0)))
+        h < 0 || h > 24 || mi < 0 || mi > 59 || sec < 0 || sec > 60 || (h == 24 && (mi || sec || frac > 0.0)))
         return HYP_TIME_RANGE;
     /* sec == 60 is a leap second: POSIX time has none, so it is the same
      * instant as the next second's start. */

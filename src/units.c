@@ -12,6 +12,10 @@ static const struct unit_name names[] = {
     {HYP_Q_PRESSURE, HYP_UNIT_HPA, "hPa"},
     {HYP_Q_PRESSURE, HYP_UNIT_MBAR, "mbar"},
     {HYP_Q_PRESSURE, HYP_UNIT_MBAR, "mb"},
+    {HYP_Q_PRESSURE, HYP_UNIT_MBAR, "millibar"},
+    {HYP_Q_PRESSURE, HYP_UNIT_MBAR, "millibars"},
+    {HYP_Q_PRESSURE, HYP_UNIT_HPA, "hectopascal"},
+    {HYP_Q_PRESSURE, HYP_UNIT_HPA, "hectopascals"},
     {HYP_Q_PRESSURE, HYP_UNIT_KPA, "kPa"},
     {HYP_Q_PRESSURE, HYP_UNIT_INHG, "inHg"},
     {HYP_Q_PRESSURE, HYP_UNIT_MMHG, "mmHg"},
@@ -36,8 +40,15 @@ hyp_unit hyp_unit_parse(hyp_quantity q, const char *name)
 {
     if (!name)
         return HYP_UNIT_NONE;
+    /* users write " mb " or "MBAR": blanks around the name and case are
+     * not part of it */
+    while (*name == ' ' || *name == '\t')
+        name++;
+    size_t len = strlen(name);
+    while (len && (name[len - 1] == ' ' || name[len - 1] == '\t'))
+        len--;
     for (size_t i = 0; i < sizeof names / sizeof names[0]; i++)
-        if (names[i].q == q && strcasecmp(names[i].name, name) == 0)
+        if (names[i].q == q && strlen(names[i].name) == len && strncasecmp(names[i].name, name, len) == 0)
             return names[i].u;
     return HYP_UNIT_NONE;
 }
@@ -63,7 +74,7 @@ const char *hyp_unit_name(hyp_unit u)
 const char *hyp_unit_choices(hyp_quantity q)
 {
     switch (q) {
-    case HYP_Q_PRESSURE: return "Pa, hPa, mbar, kPa, inHg, mmHg";
+    case HYP_Q_PRESSURE: return "Pa, hPa, mbar (mb, millibar), kPa, inHg, mmHg";
     case HYP_Q_TEMPERATURE: return "degC, K, degF";
     case HYP_Q_HUMIDITY: return "%";
     }

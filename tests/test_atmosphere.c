@@ -62,6 +62,51 @@ static void test_ussa_inverse(void **state)
         assert_near(hyp_isa_height_gp_m(hyp_isa_pressure_pa(h)), h, 1e-6 * (1 + fabs(h)));
 }
 
+/* Barometric altitude against ICAO Doc 7488/3 (Manual of the ICAO Standard
+ * Atmosphere), Table 1, indexed by GEOPOTENTIAL altitude (m'), pressures
+ * to 6 significant digits, from memory: 1000 m' 898.746 hPa, 2000 m'
+ * 794.952 hPa, 5000 m' 540.199 hPa, 11000 m' 226.321 hPa (the same law
+ * as USSA 1976, NOAA-S/T 76-1562, whose Table I lists the same pressures
+ * against geometric altitude). The tolerance is half a unit of the last
+ * digit tabulated. */
+static void test_baro_altitude_table(void **state)
+{
+    (void)state;
+    static const struct { double h_m, p_pa; } tab[] = {
+        {1000.0, 89874.6}, {2000.0, 79495.2}, {5000.0, 54019.9}, {11000.0, 22632.1},
+    };
+    for (size_t i = 0; i < sizeof tab / sizeof tab[0]; i++) {
+        assert_near(hyp_baro_altitude_to_pressure_pa(tab[i].h_m, HYP_P0_PA), tab[i].p_pa, 0.05);
+        /* 0.05 Pa is 0.014 m at 11 km' (air density 0.365 kg/m^3 there,
+         * the same table: dh = dp / (rho g0)) */
+        assert_near(hyp_baro_altitude_from_pressure_m(tab[i].p_pa, HYP_P0_PA), tab[i].h_m, 0.015);
+    }
+    /* A reference 10 hPa low scales every pressure by 1003.25 / 1013.25
+     * (ICAO Doc 7488 altimeter law, see atmosphere.h): by hand, 1000 m'
+     * set to 1003.25 hPa is 89874.57 * 100325 / 101325 = 88987.58 Pa. */
+    assert_near(hyp_baro_altitude_to_pressure_pa(1000.0, 100325.0), 88987.58, 0.01);
+    /* ... and hyp_station_from_qnh_pa, the same law written the other way
+     * (its own formula, its own code), agrees in the troposphere. */
+    for (double h = -400.0; h <= 9000.0; h += 731.0)
+        assert_rel(hyp_baro_altitude_to_pressure_pa(h, 98765.0), hyp_station_from_qnh_pa(98765.0, h), 1e-12);
+    /* outside its domain: NaN */
+    assert_true(isnan(hyp_baro_altitude_to_pressure_pa(25000.0, HYP_P0_PA)));
+    assert_true(isnan(hyp_baro_altitude_to_pressure_pa(1000.0, 5000.0)));
+    assert_true(isnan(hyp_baro_altitude_from_pressure_m(1000.0, HYP_P0_PA)));   /* 31 km' */
+    assert_true(isnan(hyp_baro_altitude_from_pressure_m(NAN, HYP_P0_PA)));
+}
+
+/* Round trips in both layers used (a property, not a published value). */
+static void test_baro_altitude_round_trip(void **state)
+{
+    (void)state;
+    for (double ref = 95000.0; ref <= 105000.0; ref += 2500.0)
+        for (double h = -500.0; h <= 20000.0; h += 37.3) {
+            double p = hyp_baro_altitude_to_pressure_pa(h, ref);
+            assert_near(hyp_baro_altitude_from_pressure_m(p, ref), h, 1e-6);
+        }
+}
+
 /* Common practice, no source: near sea level about 12 Pa per metre, and
  * 101325 Pa at sea level becomes about 100129 Pa at 100 m (1196 Pa less). */
 static void test_rule_of_thumb(void **state)
@@ -186,6 +231,8 @@ int main(void)
         cmocka_unit_test(test_svp),
         cmocka_unit_test(test_virtual_temperature),
         cmocka_unit_test(test_hypsometric_reproduces_table),
+        cmocka_unit_test(test_baro_altitude_table),
+        cmocka_unit_test(test_baro_altitude_round_trip),
         cmocka_unit_test(test_height_difference),
         cmocka_unit_test(test_qnh),
     };

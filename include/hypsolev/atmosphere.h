@@ -95,6 +95,21 @@ HYP_API double hyp_height_difference_m(double dphi_j_kg, double h1_m, double lat
 /* The same with the latitude's gravity already evaluated. */
 HYP_API double hyp_height_difference_g_m(double dphi_j_kg, double h1_m, const hyp_gravity *g);
 
+/* Barometric (standard-atmosphere) altitude: what an altimeter shows.
+ * An altimeter set to reference pressure ref_pa (its "sea-level" setting)
+ * shows the USSA 1976 geopotential height of its pressure scaled by
+ * P0 / ref_pa: p = hyp_isa_pressure_pa(alt) * ref_pa / P0. In the
+ * troposphere this is ICAO Doc 7488's altimeter law p = ref (1 - L H /
+ * T0)^(g0 M0 / (R* L)), L = 0.0065 K/m', exactly (the law is a power of
+ * ref-free terms times ref); above 11 km' the same scaling is the
+ * convention of this library. alt_m is taken as geopotential (m'), as
+ * ICAO's pressure altitude is; valid for -5000 m' <= alt_m <= 20000 m'
+ * and 10000 Pa <= ref_pa <= 120000 Pa, NaN outside. */
+HYP_API double hyp_baro_altitude_to_pressure_pa(double alt_m, double ref_pa);
+/* Inverse: the barometric altitude (m') an altimeter set to ref_pa shows
+ * at pressure_pa; NaN outside the domain above. */
+HYP_API double hyp_baro_altitude_from_pressure_m(double pressure_pa, double ref_pa);
+
 #ifdef __cplusplus
 }
 #endif

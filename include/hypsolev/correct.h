@@ -148,7 +148,33 @@ typedef struct hyp_correct_opts {
                                   reporting resolution as a uniform error */
     int threads;               /* threads for the per-point passes, default 1 (the
                                   results do not depend on it) */
+    /* A rover whose pressures were made from barometric altitudes
+     * (hyp_read_opts.baro_altitude_field): the 1-sigma quantisation of
+     * those altitudes in Pa (a floor of the rover noise; 0: none), and the
+     * re-settings found and joined (hyp_baro_step), whose joining errors
+     * add to the noise of points beyond them as seen from the nearest
+     * calibration. */
+    double rover_quant_pa;
+    const struct hyp_baro_step *baro_steps;
+    size_t n_baro_steps;
+    /* ... the 1-sigma (Pa) of what scales its heights above the base by
+     * sigma / p: the recorder's own additive offset, when its pressures
+     * were rescaled by the reference a first correction found, else the
+     * reference's departure from 1013.25 hPa (0: none). */
+    double baro_offset_sigma_pa;
 } hyp_correct_opts;
+
+/* A re-setting of a barometric-altitude recorder's reference: between the
+ * samples before and at time_s the altitude stepped by size_m more than
+ * the motion allows; the later samples were rescaled by `ratio` (the
+ * reference before over the one after) to join the earlier ones, with
+ * a relative 1-sigma error sigma_rel of the pressures after it. */
+typedef struct hyp_baro_step {
+    double time_s, prev_time_s;
+    double size_m, sigma_m;
+    double ratio, sigma_rel;
+    uint32_t line;
+} hyp_baro_step;
 
 HYP_API void hyp_correct_opts_init(hyp_correct_opts *o);
 

@@ -46,13 +46,36 @@ typedef struct hyp_tie_spec {
 
 /* An index of base logs in a folder (--base-dir): a CSV named bases.csv
  * with columns file (relative to the folder), height (m), optional lat,
- * lon (degrees), clock_offset (s) and kind ("station" or "qnh"). */
+ * lon (degrees), clock_offset (s), kind ("station" or "qnh") and
+ * time_format (a CSV log's time format, as --base-time-format). */
 typedef struct hyp_base_entry {
     char file[256];
     double height_m, lat_deg, lon_deg, clock_offset_s;
     int qnh;
     unsigned line;
+    char time_format[64];   /* optional column time_format: the log's CSV
+                               time format (timeparse.h); "" for none */
 } hyp_base_entry;
+
+/* A rover's GPX waypoints after the correction (hyp_rover_run.waypoints):
+ * per waypoint of its hyp_waypoints (same index), the corrected height
+ * (m, in the run's output reference) interpolated from the corrected track
+ * at the waypoint's time and its 1-sigma (m), NaN where not corrected;
+ * status says why (hyp_wpt_status). */
+typedef enum hyp_wpt_status {
+    HYP_WPT_CORRECTED = 0,
+    HYP_WPT_OUTSIDE = 1,   /* its time is outside the corrected span, or in a
+                              gap of the corrected track longer than 300 s */
+    HYP_WPT_NO_TIME = 2    /* no <time>: left as it is */
+} hyp_wpt_status;
+
+typedef struct hyp_waypoint_heights {
+    size_t count;
+    double *height_m;
+    double *sigma_m;
+    unsigned char *status;   /* hyp_wpt_status */
+    size_t n_corrected, n_outside, n_no_time;
+} hyp_waypoint_heights;
 
 #ifdef __cplusplus
 }

@@ -7,6 +7,7 @@
 #include "hypsolev/export.h"
 
 #include <stdint.h>
+#include <stdio.h>
 #include "hypsolev/error.h"
 #include "hypsolev/samples.h"
 #include "hypsolev/timeparse.h"
@@ -31,6 +32,19 @@ typedef struct hyp_read_opts {
     const hyp_zone *zone;
     /* CSV only: a rover log needs lat and lon columns. */
     int need_position;
+    /* GPX only: NULL, or where the track stores a barometric
+     * (standard-atmosphere) altitude in place of a pressure: "ele" (the
+     * point's own height, which then is no GNSS height) or the local name
+     * of an extension element. Each value (m, geopotential, read with the
+     * reference 1013.25 hPa: hyp_baro_altitude_to_pressure_pa) becomes the
+     * sample's pressure; a value outside -500..9000 m is an error naming
+     * the line. The unknown reference the recorder used, and its
+     * re-settings, are the correction's business (docs/methods.md). */
+    const char *baro_altitude_field;
+    /* CSV only: the time column's format (hyp_time_parse_format in
+     * timeparse.h); NULL: ISO 8601, epoch seconds or a numeric date whose
+     * day/month order the file's dates decide (docs/formats.md). */
+    const char *time_format;
 } hyp_read_opts;
 
 HYP_API void hyp_read_opts_init(hyp_read_opts *o);
@@ -100,6 +114,11 @@ typedef struct hyp_gpx_doc {
     double *geoidheight_m;  /* per sample of pts: <geoidheight> (m), NaN where absent;
                                NULL when no point has one */
     int has_geoidheight;
+    /* Per waypoint of wpts (same index): its byte positions, for the
+     * splicing writer (open_end -1 for <wpt .../>), and its <ele> (m, NaN
+     * without one). */
+    hyp_gpx_point *wpt_at;
+    double *wpt_ele_m;
 } hyp_gpx_doc;
 
 HYP_API void hyp_gpx_doc_init(hyp_gpx_doc *d);
@@ -138,6 +157,16 @@ HYP_API hyp_status hyp_base_index_read(const char *path, hyp_base_entry **out, s
 /* 1 when the file looks like XML (first non-blank byte after an optional
  * byte-order mark is '<'), 0 when not, -1 when it cannot be read. */
 HYP_API int hyp_file_is_xml(const char *path);
+
+
+/* Copies a stream (a rover on standard input) into a new private file
+ * DIR/hypsolev-stdin.XXXXXX/stdin (DIR: NULL or "" for /tmp), whose name
+ * goes into path (n bytes, PATH_MAX is enough): the readers need a
+ * regular file and the GPX writer copies the input's bytes. Nothing is left
+ * behind on failure. Remove it with hyp_spool_remove() after the run. */
+HYP_API hyp_status hyp_spool_stream(FILE *in, const char *dir, char *path, size_t n, hyp_error *err);
+/* Removes a file of hyp_spool_stream() and its folder; NULL or "": nothing. */
+HYP_API void hyp_spool_remove(const char *path);
 
 #ifdef __cplusplus
 }

@@ -50,6 +50,9 @@ typedef struct hyp_base_spec {
      * options (hyp_survey_opts.read): HYP_UNIT_NONE and NULL take those. */
     hyp_unit pressure_unit, temperature_unit;
     const char *pressure_field, *temperature_field, *humidity_field;
+    const char *time_format;   /* CSV time column's format (timeparse.h,
+                                  hyp_time_parse_format); NULL: detected.
+                                  Never the rovers' (read.time_format) */
 } hyp_base_spec;
 
 /* path and height; no position, clock offset 0, station pressure, offset
@@ -62,7 +65,9 @@ typedef struct hyp_survey_opts {
                                   threads are set by the run from the fields
                                   below */
     hyp_read_opts read;        /* how logs are read (its zone is ignored:
-                                  rover_time_zone and each base's own) */
+                                  rover_time_zone and each base's own); the
+                                  default of every rover and base without
+                                  its own (hyp_rover_spec, hyp_base_spec) */
     const char *rover_time_zone;      /* NULL: stamps must carry a zone */
     const char *const *colocate;      /* "START/END" windows, ISO 8601 */
     size_t n_colocate;
@@ -98,7 +103,7 @@ HYP_API hyp_status hyp_survey_opts_set(hyp_survey_opts *o, const char *name, con
  * "base-clock-offset" (s), "base-time-zone", "base-offset" and
  * "base-offset-sigma" (Pa), "base-qnh" (NULL), and how its log is read:
  * "base-pressure-unit", "base-temperature-unit", "base-pressure-field",
- * "base-temperature-field", "base-humidity-field". */
+ * "base-temperature-field", "base-humidity-field"; and "base-time-format". */
 HYP_API hyp_status hyp_base_spec_set(hyp_base_spec *b, const char *name, const char *value, hyp_error *err);
 
 /* What an HTML report says of the program that wrote it. */
@@ -169,6 +174,8 @@ typedef struct hyp_rover_run {
     int test_failed;           /* status HYP_OK, outputs written, but a test of
                                   the data failed (result.calib_test): the
                                   program's exit status 3 */
+    hyp_waypoint_heights waypoints; /* the GPX rover's waypoints corrected
+                                  (count 0: none, or a CSV rover) */
 } hyp_rover_run;
 
 HYP_API void hyp_rover_run_free(hyp_rover_run *r);
@@ -283,6 +290,40 @@ HYP_API hyp_status hyp_survey_write_summary(const hyp_survey *sv, const char *pa
  * failed, 1 when it was not started. The program exits with the worst
  * over its rovers, in the order usage 2, input 1, test failed 3, ok 0. */
 HYP_API int hyp_run_exit_status(const hyp_run_info *r);
+
+/* One rover's own reading options, where its logger differs from the
+ * survey's (hyp_survey_opts.read and rover_time_zone, which stay the
+ * default for every rover and base that has no setting of its own: a
+ * rover storing <baro> in Pa beside a base whose column is "pressure" in
+ * hPa). HYP_UNIT_NONE, NULL and 0 take the survey's. */
+typedef struct hyp_rover_spec {
+    const char *path;          /* the rover file, exactly as given to
+                                  hyp_survey_run (matched by this text) */
+    hyp_unit pressure_unit, temperature_unit;
+    const char *pressure_field, *temperature_field, *humidity_field;
+    const char *time_zone;     /* zone of stamps that carry none; NULL: the
+                                  survey's rover_time_zone */
+    double clock_offset_s;     /* s the rover logger's clock is ahead of true
+                                  time (default 0): its times, waypoints' too,
+                                  are moved to true time as it is read, so
+                                  tables and new GPX files show true time */
+} hyp_rover_spec;
+
+/* path; everything else the survey's. */
+HYP_API void hyp_rover_spec_init(hyp_rover_spec *r, const char *path);
+/* Sets one by name, as the program's option without the dashes:
+ * "rover-pressure-unit", "rover-temperature-unit" (a unit name, see
+ * units.h), "rover-pressure-field", "rover-temperature-field",
+ * "rover-humidity-field" (a GPX extension element's local name or a CSV
+ * column), "rover-time-zone" (checked by hyp_survey_add_rover_spec),
+ * "rover-clock-offset" (s, -86400 to 86400). Texts are kept by pointer.
+ * HYP_ERR_USAGE with a message ("rover-pressure-unit \"bar\": expected one
+ * of ...") for an unknown name or a bad value. */
+HYP_API hyp_status hyp_rover_spec_set(hyp_rover_spec *r, const char *name, const char *value, hyp_error *err);
+/* Gives the rover at spec->path its own reading options in this survey
+ * (copied; texts must outlive the survey). HYP_ERR_USAGE for an empty
+ * path, a path given a spec twice, or a time zone that cannot be read. */
+HYP_API hyp_status hyp_survey_add_rover_spec(hyp_survey *sv, const hyp_rover_spec *r, hyp_error *err);
 
 #ifdef __cplusplus
 }

@@ -114,6 +114,34 @@ HYP_API void hyp_time_format(double time_s, char *buf, size_t n);
  * days_from_civil algorithm, public domain). */
 HYP_API int64_t hyp_days_from_civil(int64_t y, unsigned m, unsigned d);
 
+
+/* Time stamps as exports write them (docs/formats.md, "Time formats").
+ * A format is a strftime-style subset: %Y (four-digit year), %y (two
+ * digits: 69-99 are 1969-1999, 00-68 2000-2068, as POSIX strptime), %m
+ * (month 1-12, one or two digits), %b (English month abbreviation, any
+ * case), %d (day), %H (hour 0-24), %I (hour 1-12) with %p (AM or PM, any
+ * case), %M, %S (optionally followed in the text by a fraction ".fff" or
+ * ",fff"), %z (Z, +hh:mm, +hhmm or +hh), %% (a percent sign); a blank
+ * matches one or more blanks, any other character itself. A format needs
+ * one year, month, day and hour. Returns 0 when fmt is usable, else -1
+ * with the reason in why (n bytes, e.g. "has %Q, which is not one of ..."). */
+HYP_API int hyp_time_format_check(const char *fmt, char *why, size_t n);
+/* Reads text by fmt into seconds since the epoch (UTC): HYP_TIME_SYNTAX
+ * when it does not match (or fmt is not usable), HYP_TIME_RANGE for a field
+ * out of range, HYP_TIME_NOZONE without %z and without a zone. *how as in
+ * hyp_time_parse_zoned (may be NULL). */
+HYP_API hyp_time_result hyp_time_parse_format(const char *text, const char *fmt, const hyp_zone *zone,
+                                              double *time_s, hyp_time_local *how);
+/* Whether text starts as a numeric date "A.B.YYYY" (or with / or -
+ * between, A and B of one or two digits): 0 when not, 1 with A and B in
+ * *first and *second, 2 when the year has fewer than four digits (never
+ * read without a format that has %y). */
+HYP_API int hyp_time_numeric_date(const char *text, int *first, int *second);
+/* Reads "A.B.YYYY[T| ]hh:mm[:ss[.fff]][ zone]" as day.month (day_first 1)
+ * or month.day (0), otherwise as hyp_time_parse_zoned. */
+HYP_API hyp_time_result hyp_time_parse_numeric(const char *text, int day_first, const hyp_zone *zone,
+                                               double *time_s, hyp_time_local *how);
+
 #ifdef __cplusplus
 }
 #endif

@@ -39,7 +39,7 @@ void cli_files_free(cli_files *f);
 /* The options correct and adjust share (options.c). Codes from CLI_SET to
  * CLI_OWN are the common table's; a command's own start at CLI_OWN. */
 #define CLI_MAX_WINDOWS 64
-enum { CLI_SET = 256, CLI_BASE_SET, CLI_BASE, CLI_CLOCK, CLI_COLOC, CLI_BASE_DIR, CLI_OWN = 300 };
+enum { CLI_SET = 256, CLI_BASE_SET, CLI_BASE, CLI_CLOCK, CLI_COLOC, CLI_BASE_DIR, CLI_ROVER, CLI_ROVER_SET, CLI_OWN = 300 };
 typedef struct cli_common {
     const char *cmd;
     hyp_survey_opts so;
@@ -49,6 +49,8 @@ typedef struct cli_common {
     const char *colocate[CLI_MAX_WINDOWS];
     int jobs, quiet;
     cli_files rovers;
+    hyp_rover_spec *rover_specs;   /* --rover FILE and its --rover-* options */
+    int n_rover_specs;
 } cli_common;
 void cli_common_init(cli_common *c, const char *cmd);
 int cli_common_option(cli_common *c, int code, const char *name, const char *arg);
@@ -72,5 +74,8 @@ void cli_progress(void *ctx, size_t done, size_t n, double points);
 void cli_progress_quiet(void *ctx, size_t done, size_t n, double points);
 /* Prints a finished rover's text in one piece (clearing the progress line). */
 void cli_emit(const char *text, size_t len);
+/* As cli_signals_catch, but a signal interrupts a read under way (a rover
+ * on standard input that never ends can be stopped, its copy removed). */
+void cli_signals_catch_reads(void);
 
 #endif

@@ -106,6 +106,7 @@ int cmd_adjust(int argc, char **argv)
     if (!rc)
         rc = run(&a);
     cli_files_free(&a.c.rovers);
+    free(a.c.rover_specs);
     free(a.command_line);
     return rc < 0 ? 0 : rc;
 }

@@ -15,6 +15,7 @@ typedef struct args {
     hyp_report_info report_info;
     char *command_line;         /* for the HTML report */
     int progress;
+    char spool[4096];           /* the copy of a rover on standard input, "" for none */
 } args;
 
 enum { O_OUTDIR = CLI_OWN, O_TABLE, O_HELP, O_SUMMARY, O_PROGRESS, O_OVERWRITE, O_REPORT, O_REPORT_HTML };
@@ -59,6 +60,20 @@ static int check_report_html(const args *a)
     return 0;
 }
 
+/* The text printed for a rover on standard input names it "stdin", not
+ * its temporary copy (which is gone when the run ends). */
+static void emit_named(const args *a, const char *buf, size_t len)
+{
+    size_t sl = strlen(a->spool);
+    const char *p = buf, *end = buf + len, *hit;
+    while (sl && (hit = memmem(p, (size_t)(end - p), a->spool, sl))) {
+        cli_emit(p, (size_t)(hit - p));
+        cli_emit("stdin", 5);
+        p = hit + sl;
+    }
+    cli_emit(p, (size_t)(end - p));
+}
+
 /* Each rover as it ends: its messages and summary, whole. */
 static void rover_done(void *ctx, size_t i, const hyp_rover_run *run)
 {
@@ -74,7 +89,7 @@ static void rover_done(void *ctx, size_t i, const hyp_rover_run *run)
     }
     hyp_rover_run_write_text(f, run, parts);
     fclose(f);
-    cli_emit(buf, len);
+    emit_named(a, buf, len);
     free(buf);
 }
 
@@ -120,6 +135,42 @@ static int run(args *a)
     return rc;
 }
 
+/* A rover "-" is read from standard input: copied by the library into a
+ * temporary file under TMPDIR (else /tmp), run as that file, and removed
+ * after the run, whatever its end. One rover only, with -o (its output has
+ * no name of its own). Returns 0, or the exit status of a refusal. */
+static int stdin_rover(args *a, char *spool, size_t n)
+{
+    size_t k = 0;
+    while (k < a->c.rovers.n && strcmp(a->c.rovers.path[k], "-") != 0)
+        k++;
+    if (k == a->c.rovers.n)
+        return 0;
+    if (a->c.rovers.n > 1)
+        return cli_usage("correct", "a rover from standard input (-) must be the only rover");
+    if (!a->out.gpx)
+        return cli_usage("correct", "a rover from standard input (-) needs -o FILE for its corrected GPX");
+    if (isatty(0))
+        return cli_usage("correct", "a rover from standard input (-): standard input is a terminal; pipe or redirect a log into it");
+    hyp_error err;
+    cli_signals_catch_reads();
+    hyp_status st = hyp_spool_stream(stdin, getenv("TMPDIR"), spool, n, &err);
+    if (st && cli_signal()) {   /* the copy is already removed */
+        fprintf(stderr, "hypsolev: stopped by a signal while reading standard input; nothing written\n");
+        return 128 + cli_signal();
+    }
+    if (st)
+        return cli_fail(&a->c, st, &err);
+    free(a->c.rovers.path[k]);
+    if (!(a->c.rovers.path[k] = strdup(spool))) {
+        hyp_spool_remove(spool);
+        spool[0] = '\0';
+        fprintf(stderr, "hypsolev: error: out of memory\n");
+        return EXIT_INPUT;
+    }
+    return 0;
+}
+
 int cmd_correct(int argc, char **argv)
 {
     args a;
@@ -135,8 +186,12 @@ int cmd_correct(int argc, char **argv)
     if (!rc)
         rc = check_report_html(&a);
     if (!rc)
+        rc = stdin_rover(&a, a.spool, sizeof a.spool);
+    if (!rc)
         rc = run(&a);
+    hyp_spool_remove(a.spool);
     cli_files_free(&a.c.rovers);
+    free(a.c.rover_specs);
     free(a.command_line);
     return rc < 0 ? 0 : rc;
 }

@@ -17,7 +17,7 @@ static void help(void)
           "sensor), clock jumps and periods of rapid change.\n"
           "\n"
           "  --pressure-unit U, --temperature-unit U, --pressure-field NAME,\n"
-          "  --time-zone Z             as for correct\n"
+          "  --time-zone Z, --time-format FMT  as for correct\n"
           "\n"
           "exit status: 0 every log was read, 1 a log could not be used, 2 usage error.\n\n", stdout);
     cli_print_safety();
@@ -42,7 +42,7 @@ int cmd_inspect(int argc, char **argv)
     static const struct option lo[] = {
         {"pressure-unit", required_argument, 0, 'p'}, {"temperature-unit", required_argument, 0, 't'},
         {"pressure-field", required_argument, 0, 'f'}, {"time-zone", required_argument, 0, 'z'},
-        {"help", no_argument, 0, 'h'}, {0, 0, 0, 0}};
+        {"help", no_argument, 0, 'h'}, {"time-format", required_argument, 0, 'F'}, {0, 0, 0, 0}};
     hyp_read_opts ro;
     hyp_read_opts_init(&ro);
     hyp_zone z;
@@ -74,6 +74,15 @@ int cmd_inspect(int argc, char **argv)
             }
             ro.zone = &z;
             break;
+        case 'F': {
+            char why[160];
+            if (hyp_time_format_check(optarg, why, sizeof why)) {
+                fprintf(stderr, "hypsolev inspect: --time-format \"%s\" %s\n", optarg, why);
+                return EXIT_USAGE;
+            }
+            ro.time_format = optarg;
+            break;
+        }
         case 'h': help(); return 0;
         default:
             return cli_bad_option("inspect", argv[optind - 1], optopt, c == ':');

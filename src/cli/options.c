@@ -8,6 +8,7 @@
 #include <stdarg.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 
 #define SET(name) {name, required_argument, 0, CLI_SET}
 #define FLAG(name) {name, no_argument, 0, CLI_SET}
@@ -25,6 +26,14 @@ const struct option cli_common_options[] = {
     SET("colocate-radius"), SET("colocate-min"), SET("max-gap"), SET("humidity"), SET("lapse-rate"), SET("tie-radius"),
     SET("tie-min"), SET("smooth"), SET("gradient-sigma"), SET("clock-sigma"), SET("column-temp-sigma"),
     SET("lapse-sigma"), SET("benchmark-sigma"), {"quiet", no_argument, 0, 'q'}, {"jobs", required_argument, 0, 'j'},
+    {"rover", required_argument, 0, CLI_ROVER}, {"rover-pressure-unit", required_argument, 0, CLI_ROVER_SET},
+    {"rover-temperature-unit", required_argument, 0, CLI_ROVER_SET},
+    {"rover-pressure-field", required_argument, 0, CLI_ROVER_SET},
+    {"rover-temperature-field", required_argument, 0, CLI_ROVER_SET},
+    {"rover-humidity-field", required_argument, 0, CLI_ROVER_SET},
+    {"rover-time-zone", required_argument, 0, CLI_ROVER_SET}, {"rover-clock-offset", required_argument, 0, CLI_ROVER_SET},
+    SET("baro-altitude"),
+    SET("time-format"), BASE("base-time-format"),
     {0, 0, 0, 0},
 };
 
@@ -54,6 +63,51 @@ static int setting(const cli_common *c, hyp_status st, const hyp_error *err)
     return st ? cli_usage(c->cmd, "--%s", err->message) : 0;
 }
 
+/* --rover FILE: one file (not a folder or a pattern, whose files would
+ * not carry its name), added to the rovers; its --rover-* options follow. */
+static int rover_option(cli_common *c, const char *arg)
+{
+    struct stat st;
+    if (stat(arg, &st) == 0 && S_ISDIR(st.st_mode))
+        return cli_usage(c->cmd, "--rover %s: a folder; --rover names one rover file (give folders without --rover)", arg);
+    if (strpbrk(arg, "*?[") && stat(arg, &st) != 0)
+        return cli_usage(c->cmd, "--rover %s: no such file; --rover names one rover file, not a pattern", arg);
+    hyp_rover_spec *p = realloc(c->rover_specs, (size_t)(c->n_rover_specs + 1) * sizeof *p);
+    if (!p) {
+        fputs("hypsolev: error: out of memory\n", stderr);
+        return EXIT_INPUT;
+    }
+    c->rover_specs = p;
+    hyp_rover_spec_init(&p[c->n_rover_specs++], arg);
+    return cli_files_add(&c->rovers, arg);
+}
+
+/* The same file twice: stat's device and inode where both exist, else the
+ * names. */
+static int same_file(const char *a, const char *b)
+{
+    struct stat x, y;
+    if (stat(a, &x) == 0 && stat(b, &y) == 0)
+        return x.st_dev == y.st_dev && x.st_ino == y.st_ino;
+    return strcmp(a, b) == 0;
+}
+
+/* A --rover file must be its own only rover: also given as a rover
+ * (positional, in a folder or pattern, or a second --rover) it would be
+ * read twice, once without its options. */
+static int check_rover_specs(const cli_common *c)
+{
+    for (int k = 0; k < c->n_rover_specs; k++) {
+        size_t seen = 0;
+        for (size_t i = 0; i < c->rovers.n; i++)
+            seen += same_file(c->rover_specs[k].path, c->rovers.path[i]);
+        if (seen > 1)
+            return cli_usage(c->cmd, "--rover %s is also given as a rover (or twice): give it once, with --rover",
+                             c->rover_specs[k].path);
+    }
+    return 0;
+}
+
 int cli_common_option(cli_common *c, int code, const char *name, const char *arg)
 {
     hyp_error err;
@@ -81,6 +135,11 @@ int cli_common_option(cli_common *c, int code, const char *name, const char *arg
         c->colocate[c->so.n_colocate++] = arg;
         return 0;
     case CLI_BASE_DIR: c->base_dir = arg; return 0;
+    case CLI_ROVER: return rover_option(c, arg);
+    case CLI_ROVER_SET:
+        if (!c->n_rover_specs)
+            return cli_usage(c->cmd, "--%s must follow the --rover it applies to", name);
+        return setting(c, hyp_rover_spec_set(&c->rover_specs[c->n_rover_specs - 1], name, arg, &err), &err);
     case 'q': c->quiet = 1; return 0;
     case 'j':
         c->jobs = (int)strtol(arg, &end, 10);
@@ -124,7 +183,8 @@ int cli_parse(cli_common *c, int argc, char **argv, const struct option *own, in
     }
     if (!c->rovers.n)
         return cli_usage(c->cmd, "no rover file given");
-    return cli_files_expand(&c->rovers, c->cmd);
+    int rc = cli_files_expand(&c->rovers, c->cmd);
+    return rc ? rc : check_rover_specs(c);
 }
 
 hyp_status cli_open_survey(cli_common *c, hyp_survey **sv, hyp_error *err)
@@ -136,6 +196,8 @@ hyp_status cli_open_survey(cli_common *c, hyp_survey **sv, hyp_error *err)
         st = hyp_survey_add_base(*sv, &c->bases[k], &m, err);
     if (!st && c->base_dir)
         st = hyp_survey_add_base_dir(*sv, c->base_dir, &m, err);
+    for (int k = 0; !st && k < c->n_rover_specs; k++)
+        st = hyp_survey_add_rover_spec(*sv, &c->rover_specs[k], err);
     hyp_msgs_write(stderr, &m, c->quiet ? HYP_WARNING : HYP_NOTE);
     hyp_msgs_free(&m);
     return st;

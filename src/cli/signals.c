@@ -24,17 +24,27 @@ static double now_s(void)
     return (double)ts.tv_sec + 1e-9 * (double)ts.tv_nsec;
 }
 
-void cli_signals_catch(void)
+static void catch_with(int flags)
 {
     struct sigaction sa;
     memset(&sa, 0, sizeof sa);
     sa.sa_handler = on_signal;
-    sa.sa_flags = SA_RESTART;   /* reads and writes under way go on */
+    sa.sa_flags = flags;
     sigemptyset(&sa.sa_mask);
     sigaction(SIGINT, &sa, NULL);
     sigaction(SIGTERM, &sa, NULL);
     sigaction(SIGHUP, &sa, NULL);
     t0_s = now_s();
+}
+
+void cli_signals_catch(void)
+{
+    catch_with(SA_RESTART);   /* reads and writes under way go on */
+}
+
+void cli_signals_catch_reads(void)
+{
+    catch_with(0);
 }
 
 int cli_signal(void)

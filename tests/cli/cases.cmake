@@ -246,3 +246,130 @@ hyp_cli_case(adjust_loop_no_known_mark 1 "a loop without a base needs a known ma
 hyp_cli_case(adjust_loop_one_mark_warned 0 "loop rover: no station occupied twice and 1 known mark: the weather cannot be told apart from the heights.*BM-1 .* control" adjust @DATA@/rover.gpx --stations @DATA@/benchmarks.csv -o @OUT@/st.csv)
 hyp_cli_case(adjust_min_common_bad 2 "--min-common \"5\": expected a number from 10 to 86400" adjust @DATA@/rover.gpx --stations @DATA@/benchmarks.csv -o @OUT@/st.csv --min-common 5)
 hyp_cli_case(adjust_weather_walk_bad 2 "--weather-walk \"nan\": expected a number from 0.01 to 20" adjust @DATA@/rover.gpx --stations @DATA@/benchmarks.csv -o @OUT@/st.csv --weather-walk nan)
+# each rover is read its own way (issue 15): rover_own/rover.gpx is
+# rover.gpx with its pressure in Pa in <x:baro> (no unit attribute), beside
+# base.csv's "pressure [hPa]" column; read with --rover's own options it
+# gives the very table of rover.gpx read as it is (golden_table's). The
+# survey's --pressure-field and --pressure-unit stay the default of every
+# rover and base, so given for the rover alone they break the base.
+set(RO @DATA@/rover_own/rover.gpx)
+set(HYP_CASE_INPUTS @DATA@/rover_own/rover.gpx @DATA@/base.csv)
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT t.csv)
+hyp_cli_case(rover_own_field_unit 0 "wrote" correct --rover ${RO} --rover-pressure-field baro --rover-pressure-unit Pa ${B} --table @OUT@/t.csv)
+# clock_ahead.gpx is rover.gpx with every time an hour later (a logger
+# clock one hour ahead): its own clock offset brings it back to true time
+hyp_cli_case(rover_own_clock_offset 0 "wrote" correct --rover @DATA@/rover_own/clock_ahead.gpx --rover-clock-offset 3600 ${B} --table @OUT@/t.csv)
+# the local-time CSV of golden_csv_rover_local_time with its own zone
+hyp_cli_case(rover_own_time_zone 0 "wrote" correct --rover @DATA@/rover_local.csv --rover-time-zone Europe/Vienna ${B} --table @OUT@/t.csv -o @OUT@/t.gpx)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+hyp_cli_case(rover_own_global_default 1 "base.csv:2: header: no \"baro\" column" correct ${RO} --pressure-field baro --pressure-unit Pa ${B} ${O})
+hyp_cli_case(rover_own_clock_not_given 1 "clock_ahead.gpx: .*base.csv: the base's clock looks 1 h 00 min behind the rover's" correct @DATA@/rover_own/clock_ahead.gpx ${B} ${O})
+hyp_cli_case(rover_own_adjust 0 "lies outside the track rover \\(2026-06-18T07:00:00Z to 2026-06-18T07:30:00Z\\)" adjust --rover ${RO} --rover-pressure-field baro --rover-pressure-unit Pa ${B} --stations @DATA@/benchmarks.csv -o @OUT@/st.csv --occupations @DATA@/adjust/book_outside.csv)
+hyp_cli_case(rover_own_adjust_not_given 1 "rover.gpx: no point has a pressure" adjust ${RO} ${B} --stations @DATA@/benchmarks.csv -o @OUT@/st.csv --occupations @DATA@/adjust/book_outside.csv)
+# usage errors name the option and what was expected
+hyp_cli_case(rover_option_without_rover 2 "--rover-pressure-unit must follow the --rover it applies to" correct ${R} --rover-pressure-unit Pa ${B} ${O})
+hyp_cli_case(rover_bad_pressure_unit 2 "--rover-pressure-unit \"bar\": expected one of Pa, hPa, mbar \\(mb, millibar\\), kPa, inHg, mmHg" correct --rover ${RO} --rover-pressure-unit bar ${B} ${O})
+hyp_cli_case(rover_bad_temperature_unit 2 "--rover-temperature-unit \"R\": expected one of degC, K, degF" correct --rover ${RO} --rover-temperature-unit R ${B} ${O})
+hyp_cli_case(rover_bad_clock_offset 2 "--rover-clock-offset \"1e9\": expected a number from -86400 to 86400" correct --rover ${RO} --rover-clock-offset 1e9 ${B} ${O})
+hyp_cli_case(rover_bad_time_zone 2 "--rover-time-zone \\(of --rover .*rover.gpx\\): " correct --rover ${RO} --rover-time-zone Mars/Olympus ${B} ${O})
+hyp_cli_case(rover_also_positional 2 "--rover .*rover_own/rover.gpx is also given as a rover \\(or twice\\)" correct ${RO} --rover ${RO} --rover-pressure-field baro ${B} ${O})
+hyp_cli_case(rover_given_twice 2 "--rover .*rover_own/rover.gpx is also given as a rover \\(or twice\\)" correct --rover ${RO} --rover ${RO} ${B} ${O})
+hyp_cli_case(rover_in_folder 2 "--rover .*rover.gpx is also given as a rover" correct @DATA@/rover_own --rover ${RO} ${B} --out-dir @OUT@)
+hyp_cli_case(rover_is_folder 2 "--rover .*rover_own: a folder; --rover names one rover file" correct --rover @DATA@/rover_own ${B} ${O})
+set(HYP_CASE_INPUTS "")
+# three rovers in one batch, each read its own way (the local-time CSV by
+# the survey's --time-zone, the default): all three tables equal
+# golden_table's (checked here for rover_own/rover.gpx's)
+set(HYP_CASE_INPUTS @DATA@/rover_own/rover.gpx @DATA@/rover_own/clock_ahead.gpx @DATA@/rover_local.csv @DATA@/base.csv)
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT rover.csv)
+hyp_cli_case(rover_own_batch 0 "^$" correct --rover @DATA@/rover_own/clock_ahead.gpx --rover-clock-offset 3600 @DATA@/rover_local.csv --time-zone Europe/Vienna --rover ${RO} --rover-pressure-field baro --rover-pressure-unit Pa ${B} --out-dir @OUT@ -q -j 2)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+# barometric-altitude tracks (--baro-altitude): tests/data/rover.gpx's
+# pressures as an altimeter's altitudes (0.1 m, re-set from 1016 to 996 hPa
+# at 07:15:00); a value that is no height; a step no re-setting can make
+set(HYP_CASE_INPUTS @DATA@/baro_alt.gpx @DATA@/base.csv)
+hyp_cli_case(baro_alt_ok 0 "baro_alt.gpx:34: barometric altitude re-set at 2026-06-18T07:15:00Z: a step of -164.8 m.*reference before its first re-setting was 1015.6. hPa.*pressure from barometric altitudes\n  altitude  in steps of 0.1 m: quantisation 0.03 m \\(0.3. Pa\\), 1 sigma\n            the recorder's reference before its first re-setting: 1015.6. hPa \\(from the calibrated offset\\)\n            re-set at 2026-06-18T07:15:00Z \\(line 34\\): -164.8 m.*61 of 61 corrected" correct @DATA@/baro_alt.gpx --baro-altitude ele ${B} ${O})
+set(HYP_CASE_INPUTS @DATA@/bad/baro_range.gpx @DATA@/base.csv)
+hyp_cli_case(baro_alt_range 1 "baro_range.gpx:44: barometric altitude <ele> \"12000\" m is out of range; expected a standard-atmosphere height of -500..9000 m" correct @DATA@/bad/baro_range.gpx --baro-altitude ele ${B} ${O})
+set(HYP_CASE_INPUTS @DATA@/bad/baro_step.gpx @DATA@/base.csv)
+hyp_cli_case(baro_alt_step 1 "baro_step.gpx:34: barometric altitude steps from 871.2 m to 3871.1 m at 2026-06-18T07:15:00Z: a re-setting that large needs references further apart than the lowest and highest sea-level pressures recorded" correct @DATA@/bad/baro_step.gpx --baro-altitude ele ${B} ${O})
+set(HYP_CASE_INPUTS ${R} @DATA@/base.csv)
+hyp_cli_case(baro_alt_no_field 1 "rover.gpx: no point has a barometric altitude \\(looked for <alt> in each point's extensions" correct ${R} --baro-altitude alt ${B} ${O})
+hyp_cli_case(baro_alt_csv 2 "rover_local.csv: --baro-altitude reads GPX tracks only \\(this is a CSV log\\)" correct @DATA@/rover_local.csv --time-zone Europe/Vienna --baro-altitude ele ${B} ${O})
+hyp_cli_case(baro_alt_is_pressure 1 "rover.gpx:4: unit=\"hPa\" on <pressure>: a barometric altitude \\(--baro-altitude\\) is expected in m" correct ${R} --baro-altitude pressure ${B} ${O})
+hyp_cli_case(baro_alt_bad_name 2 "--baro-altitude \"a b\": expected ele or the local name of an extension element" correct ${R} --baro-altitude "a b" ${B} ${O})
+set(HYP_CASE_INPUTS "")
+# times as exports write them (issue 16): the golden table is the one of
+# rover.gpx, the same track; day-first dates in a date and a time column
+# (the order decided by the dates, pressure in "mb"), a month-first
+# 12-hour clock by --time-format (unit " Millibar "), and a base whose
+# times are "18 Jun 2026 06:50:00 +0000"
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT t.csv)
+set(HYP_CASE_INPUTS @DATA@/rover_dayfirst.csv @DATA@/base.csv)
+hyp_cli_case(time_dayfirst_columns 0 "rover_dayfirst.csv:4: dates read day first, as \"18.06.2026 09:00:00\" can only be read so.*pressure in mbar" correct @DATA@/rover_dayfirst.csv --time-zone Europe/Vienna ${B} --table @OUT@/t.csv -o @OUT@/t.gpx)
+set(HYP_CASE_INPUTS @DATA@/rover_12h.csv @DATA@/base.csv)
+hyp_cli_case(time_format_12h 0 "heights +61 of 61 corrected" correct @DATA@/rover_12h.csv --time-zone Europe/Vienna --time-format "%m/%d/%Y %I:%M:%S %p" ${B} --table @OUT@/t.csv)
+set(HYP_CASE_INPUTS @DATA@/rover.gpx @DATA@/base_month_name.csv)
+hyp_cli_case(base_time_format 0 "heights +61 of 61 corrected" correct ${R} --base @DATA@/base_month_name.csv --base-height 812.4 --base-at 46.8,9.9 --base-time-format "%d %b %Y %H:%M:%S %z" --table @OUT@/t.csv)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+set(HYP_CASE_INPUTS "")
+hyp_cli_case(time_dates_ambiguous 1 "ambiguous_dates.csv:3: time \"03.04.2026 09:00:00\": the date may be day.month or month.day .*give the order with --time-format" correct @DATA@/bad/ambiguous_dates.csv --time-zone UTC ${B} ${O})
+hyp_cli_case(time_format_mismatch 1 "rover_dayfirst.csv:4: time \"18.06.2026 09:00:00\" does not match the time format \"%Y-%m-%d %H:%M:%S\"" correct @DATA@/rover_dayfirst.csv --time-zone UTC --time-format "%Y-%m-%d %H:%M:%S" ${B} ${O})
+hyp_cli_case(time_format_unknown 2 "--time-format \"%Y-%m-%d %Q\" has %Q, which is not one of" correct @DATA@/rover_dayfirst.csv --time-format "%Y-%m-%d %Q" ${B} ${O})
+hyp_cli_case(base_time_format_without_base 2 "--base-time-format must follow the --base it applies to" correct ${R} --base-time-format "%d.%m.%Y %H:%M" ${B} ${O})
+# the base never takes the rovers' format: base.csv's ISO times still read
+hyp_cli_case(time_format_rover_only 0 "heights +61 of 61 corrected" correct @DATA@/rover_12h.csv --time-zone Europe/Vienna --time-format "%m/%d/%Y %I:%M:%S %p" ${B} ${O})
+# pressure as an attribute of an extension element (--pressure-field
+# ELEMENT@ATTRIBUTE), unit attribute " mb ": the table of rover.gpx
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT t.csv)
+set(HYP_CASE_INPUTS @DATA@/rover_attr.gpx @DATA@/base.csv)
+hyp_cli_case(gpx_pressure_attribute_mb 0 "pressure in mbar" correct @DATA@/rover_attr.gpx --pressure-field baro@value ${B} --base-pressure-field pressure --table @OUT@/t.csv -o @OUT@/t.gpx)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+set(HYP_CASE_INPUTS "")
+hyp_cli_case(gpx_pressure_attribute_missing 1 "rover_attr.gpx:5: <baro> has no val attribute" correct @DATA@/rover_attr.gpx --pressure-field baro@val ${B} --base-pressure-field pressure ${O})
+# a rover from standard input ("-"), spooled under TMPDIR and removed after
+# the run (tests/cli/stdin_case.cmake): corrected as rover.gpx is; a bad log
+# refused and its copy removed; -o required
+function(hyp_stdin_case name rc regex input)
+  add_test(NAME cli_${name}
+    COMMAND ${CMAKE_COMMAND} -DEXE=$<TARGET_FILE:hypsolev-cli> -DDATA=${PROJECT_SOURCE_DIR}/tests/data
+            -DWORK=${CMAKE_CURRENT_BINARY_DIR}/cli/${name} -DEXPECT_RC=${rc} "-DEXPECT_ERR=${regex}"
+            -DINPUT=${input} "-DARGS=${ARGN}" "-DGOLDEN=${HYP_CASE_GOLDEN}" "-DGOLDEN_OUT=${HYP_CASE_GOLDEN_OUT}"
+            -P ${PROJECT_SOURCE_DIR}/tests/cli/stdin_case.cmake)
+  set_tests_properties(cli_${name} PROPERTIES LABELS cli TIMEOUT 150)
+endfunction()
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT t.csv)
+hyp_stdin_case(stdin_rover_gpx 0 "hypsolev correct: stdin\n.*heights +61 of 61 corrected" @DATA@/rover.gpx correct - ${B} -o @OUT@/t.gpx --table @OUT@/t.csv)
+hyp_stdin_case(stdin_rover_csv 0 "dates read day first" @DATA@/rover_dayfirst.csv correct - --time-zone Europe/Vienna ${B} -o @OUT@/t.gpx --table @OUT@/t.csv)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+hyp_stdin_case(stdin_rover_bad 1 "error: stdin:3: time \"03.04.2026 09:00:00\": the date may be day.month or month.day" @DATA@/bad/ambiguous_dates.csv correct - --time-zone UTC ${B} -o @OUT@/t.gpx)
+hyp_stdin_case(stdin_rover_needs_output 2 "a rover from standard input \\(-\\) needs -o FILE" @DATA@/rover.gpx correct - ${B} --table @OUT@/t.csv)
+hyp_stdin_case(stdin_rover_only_one 2 "a rover from standard input \\(-\\) must be the only rover" @DATA@/rover.gpx correct - @DATA@/rover.gpx ${B} --out-dir @OUT@)
+# inspect reads times by --time-format too: 06/18/2026 09:00:00 AM in
+# Vienna is 07:00 UTC (date -u -d "2026-06-18 09:00:00 +0200" +%FT%TZ),
+# 09:30:00 AM 07:30 UTC
+set(HYP_CASE_OUT "span        2026-06-18T07:00:00Z to 2026-06-18T07:30:00Z")
+hyp_cli_case(inspect_time_format 0 "" inspect @DATA@/rover_12h.csv --time-zone Europe/Vienna --time-format "%m/%d/%Y %I:%M:%S %p")
+set(HYP_CASE_OUT "")
+hyp_cli_case(inspect_time_format_bad 2 "--time-format \"%m/%d/%Y %I:%M:%S\" has %I \\(12-hour clock\\) without %p" inspect @DATA@/rover_12h.csv --time-format "%m/%d/%Y %I:%M:%S")
+# a time that is no stamp names the option that gives a format
+hyp_cli_case(time_not_a_stamp 1 "bad_time_syntax.csv:3: time \"18.06.2026\" is not a time; expected ISO 8601 .*give the format with --time-format" correct @DATA@/bad/bad_time_syntax.csv --time-zone UTC ${B} ${O})
+# a base folder's index gives a log's time format in its time_format column
+set(HYP_CASE_GOLDEN ${PROJECT_SOURCE_DIR}/tests/cli/expected/rover_table.csv)
+set(HYP_CASE_GOLDEN_OUT t.csv)
+set(HYP_CASE_INPUTS @DATA@/rover.gpx @DATA@/basedir_time_format/base.csv @DATA@/basedir_time_format/bases.csv)
+hyp_cli_case(base_dir_time_format 0 "heights +61 of 61 corrected" correct ${R} --base-dir @DATA@/basedir_time_format --table @OUT@/t.csv)
+set(HYP_CASE_GOLDEN "")
+set(HYP_CASE_GOLDEN_OUT "")
+set(HYP_CASE_INPUTS "")
+hyp_cli_case(base_dir_time_format_bad 1 "basedir_bad_format/bases.csv:3: time_format \"%d.%m.%Y %Q\" has %Q, which is not one of" correct ${R} --base-dir @DATA@/bad/basedir_bad_format ${O})

@@ -2,7 +2,7 @@
  *   HYP_FAIL_MALLOC_AT=N     the N-th malloc/calloc/realloc returns NULL
  *   HYP_FAIL_FWRITE_AFTER=B  fwrite, fputs (and their _unlocked forms) fail
  *                            once B bytes have been written
- *   HYP_FAIL_FSYNC=1         fsync fails with EIO
+ *   HYP_FAIL_FSYNC=1         fsync and syncfs fail with EIO
  *   HYP_FAIL_COUNT=1         print the number of allocations counted at exit
  * so that tests can check the error paths: a message, exit status 1, the
  * previous output intact, no temporary file left. */
@@ -22,6 +22,7 @@ static size_t (*real_fwrite_unlocked)(const void *, size_t, size_t, FILE *);
 static int (*real_fputs)(const char *, FILE *);
 static int (*real_fputs_unlocked)(const char *, FILE *);
 static int (*real_fsync)(int);
+static int (*real_syncfs)(int);
 static long fail_at = -1, count = 0;
 static long long write_after = -1, written = 0;
 static int fail_fsync = 0, ready = 0, armed = 0;
@@ -48,6 +49,7 @@ static void init(void)
     real_fputs = (int (*)(const char *, FILE *))dlsym(RTLD_NEXT, "fputs");
     real_fputs_unlocked = (int (*)(const char *, FILE *))dlsym(RTLD_NEXT, "fputs_unlocked");
     real_fsync = (int (*)(int))dlsym(RTLD_NEXT, "fsync");
+    real_syncfs = (int (*)(int))dlsym(RTLD_NEXT, "syncfs");
     const char *e = getenv("HYP_FAIL_MALLOC_AT");
     fail_at = e ? atol(e) : -1;
     e = getenv("HYP_FAIL_FWRITE_AFTER");
@@ -168,6 +170,18 @@ int fsync(int fd)
         return -1;
     }
     return real_fsync(fd);
+}
+
+/* a batch's group commit syncs the file system once (output_set.c) */
+int syncfs(int fd)
+{
+    if (!ready)
+        init();
+    if (fail_fsync) {
+        errno = EIO;
+        return -1;
+    }
+    return real_syncfs(fd);
 }
 
 /* Allocations count only from the program's option parsing on, so that

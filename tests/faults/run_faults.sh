@@ -60,6 +60,26 @@ rc=$?
 [ $rc -eq 1 ] || bad "fsync failing: exit $rc, expected 1"
 grep -q "write failed: Input/output error; the previous file (if any) is unchanged" "$work/err" || bad "fsync message: $(cat "$work/err")"
 check_failed_run fsync
+# a batch commits its rovers in groups with one syncfs(2): when that fails,
+# no rover's outputs are renamed into place and no staging file is left
+mkdir -p "$work/rovers" "$work/bout"
+cp "$data/rover.gpx" "$work/rovers/a.gpx"; cp "$data/rover.gpx" "$work/rovers/b.gpx"
+for r in a b; do for x in gpx csv report.txt; do echo old > "$work/bout/$r.$x"; done; done
+HYP_FAIL_FSYNC=1 LD_PRELOAD=$shim "$exe" correct "$work/rovers" --base "$data/base.csv" --base-height 812.4 \
+    --base-at 46.8,9.9 --out-dir "$work/bout" --overwrite -q 2> "$work/err"
+rc=$?
+[ $rc -eq 1 ] || bad "batch, syncfs failing: exit $rc, expected 1"
+grep -q "write failed: Input/output error; the previous file (if any) is unchanged" "$work/err" || bad "batch syncfs message: $(cat "$work/err")"
+for r in a b; do for x in gpx csv report.txt; do
+  [ "$(cat "$work/bout/$r.$x")" = old ] || bad "batch, syncfs failing: $r.$x changed"
+done; done
+ls "$work/bout" | grep -q 'hyp-tmp-' && bad "batch, syncfs failing: staging file left: $(ls "$work/bout")"
+# and without the failure the same batch replaces them all
+"$exe" correct "$work/rovers" --base "$data/base.csv" --base-height 812.4 --base-at 46.8,9.9 \
+    --out-dir "$work/bout" --overwrite -q 2> "$work/err" || bad "batch without failure: $(cat "$work/err")"
+for r in a b; do for x in gpx csv report.txt; do
+  [ "$(head -c 3 "$work/bout/$r.$x")" != old ] || bad "batch without failure: $r.$x not replaced"
+done; done
 echo "write failures: checked"
 
 # 3. SIGKILL while writing a larger track

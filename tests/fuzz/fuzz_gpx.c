@@ -19,6 +19,10 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
     hyp_read_opts o;
     hyp_read_opts_init(&o);
     o.pressure_unit = HYP_UNIT_HPA;
+    if (size % 2) {   /* half the inputs: values held in attributes */
+        o.pressure_field = "pressure@value";
+        o.temperature_field = "temperature@v";
+    }
     if (hyp_gpx_read(path, &o, &d, &m, &err) == HYP_OK) {
         /* splice a made-up result back: every offset must land */
         hyp_correct_result r;
@@ -39,6 +43,13 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
         remove(out);
         hyp_correct_result_free(&r);
     }
+    hyp_gpx_doc_free(&d);
+    hyp_msgs_free(&m);
+    /* the same bytes as a barometric-altitude track (--baro-altitude) */
+    hyp_gpx_doc_init(&d);
+    hyp_msgs_init(&m);
+    o.baro_altitude_field = size & 1 ? "ele" : "pressure";
+    hyp_gpx_read(path, &o, &d, &m, &err);
     hyp_gpx_doc_free(&d);
     hyp_msgs_free(&m);
     close(fd);

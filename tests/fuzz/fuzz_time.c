@@ -1,4 +1,5 @@
-/* fuzz_time.c - libFuzzer harness for time stamps, zones and units. */
+/* fuzz_time.c - libFuzzer harness for time stamps, zones, export time
+ * formats ("FORMAT<tab>TEXT") and units. */
 #include "fuzz_common.h"
 #include "hypsolev/hypsolev.h"
 
@@ -27,6 +28,23 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
         }
     }
     hyp_zone_free(&z);
+    /* export formats: "FORMAT<tab>TEXT", read in a fixed zone; numeric dates */
+    char *tab = strchr(buf, '\t');
+    hyp_zone fixed;
+    hyp_zone_init(&fixed);
+    fixed.kind = 1;
+    fixed.offset_s = 3600;
+    int a, b;
+    hyp_time_numeric_date(buf, &a, &b);
+    hyp_time_parse_numeric(buf, 1, &fixed, &t, NULL);
+    hyp_time_parse_numeric(buf, 0, NULL, &t, NULL);
+    if (tab) {
+        char why[160];
+        *tab = '\0';
+        hyp_time_format_check(buf, why, sizeof why);
+        hyp_time_local how;
+        hyp_time_parse_format(tab + 1, buf, &fixed, &t, &how);
+    }
     for (int q = 0; q < 3; q++)
         hyp_unit_parse((hyp_quantity)q, buf);
     return 0;

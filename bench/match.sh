@@ -1,0 +1,34 @@
+#!/usr/bin/env bash
+# Benchmark (not a test): matching benchmarks to a track (issue 15). Runs
+# bench/match_bench.c (the former geodesic per benchmark and sample against
+# the index, same track and benchmarks, in this one run, CPU times), then
+# times `hypsolev correct` end to end on a track of the same shape with that
+# many benchmarks (median of three runs, wall time).
+#   bench/match.sh [POINTS] [BENCHMARKS] [BUILD_DIR]   (default 3600 10000 build)
+set -euo pipefail
+n=${1:-3600}
+m=${2:-10000}
+top=$(cd "$(dirname "$0")/.." && pwd)
+build=${3:-$top/build}
+exe=$build/hypsolev
+work=$(mktemp -d)
+trap 'rm -rf "$work"' EXIT
+cc -O2 -D_DEFAULT_SOURCE -I"$top/include" -I"$top/src" -o "$work/match_bench" "$top/bench/match_bench.c" \
+  "$top/src/near_index.c" "$top/src/geo.c" "$top/src/error.c" -lproj -lm
+cc -O2 -o "$work/gentrack" "$top/bench/gentrack.c" -lm
+cc -O2 -o "$work/peakrss" "$top/bench/peakrss.c"
+"$work/match_bench" "$n" "$m"
+"$work/gentrack" "$n" "$work/track.gpx" "$work/base.csv"
+# benchmarks over a 5 km square about the track (invented names)
+awk -v m="$m" 'BEGIN { srand(7); print "name,lat,lon,height,sigma,note"
+  for (k = 0; k < m; k++) printf "BM%d,%.7f,%.7f,%.2f,,\n", k, 46.78 + 0.045 * rand(), 9.88 + 0.065 * rand(), 800 + 600 * rand() }' \
+  > "$work/bm.csv"
+run=(correct "$work/track.gpx" --base "$work/base.csv" --base-height 800 --benchmarks "$work/bm.csv"
+     -o "$work/out.gpx" -q --no-gnss-anchor)
+walls=()
+for k in 1 2 3; do
+  rm -f "$work/out.gpx"
+  walls+=("$("$work/peakrss" "$exe" "${run[@]}" 2>&1 >/dev/null | sed -n 's/^peak_rss_kib [0-9]* wall_s \([0-9.]*\)$/\1/p')")
+done
+printf 'hypsolev correct, %s points, %s benchmarks: %s s (median of 3 runs: %s s; target: seconds at most)\n' "$n" "$m" \
+  "$(printf '%s\n' "${walls[@]}" | sort -n | sed -n 2p)" "${walls[*]}"

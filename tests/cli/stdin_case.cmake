@@ -1,0 +1,46 @@
+# stdin_case.cmake - a rover read from standard input ("-"): runs the
+# program with INPUT_FILE on its standard input and TMPDIR in the case's
+# folder; checks the exit status, stderr, the golden table, and that the
+# spooled copy is gone after the run, whether it succeeded or failed.
+#   cmake -DEXE=... -DWORK=dir -DINPUT=file -DEXPECT_RC=n -DEXPECT_ERR=regex
+#         -DARGS=a;b;c [-DGOLDEN=expected.csv -DGOLDEN_OUT=file] -P stdin_case.cmake
+# In ARGS, @DATA@ is tests/data and @OUT@ the case's scratch folder.
+cmake_minimum_required(VERSION 3.25)
+file(REMOVE_RECURSE "${WORK}")
+file(MAKE_DIRECTORY "${WORK}/tmp")
+set(args "")
+foreach(a IN LISTS ARGS)
+  string(REPLACE "@DATA@" "${DATA}" a "${a}")
+  string(REPLACE "@OUT@" "${WORK}" a "${a}")
+  list(APPEND args "${a}")
+endforeach()
+string(REPLACE "@DATA@" "${DATA}" INPUT "${INPUT}")
+file(SHA256 "${INPUT}" before)
+execute_process(COMMAND ${CMAKE_COMMAND} -E env TMPDIR=${WORK}/tmp "${EXE}" ${args}
+  INPUT_FILE "${INPUT}" RESULT_VARIABLE rc OUTPUT_VARIABLE out ERROR_VARIABLE err TIMEOUT 120)
+message("exit ${rc}\n--- stderr:\n${err}")
+if(NOT rc STREQUAL "${EXPECT_RC}")
+  message(FATAL_ERROR "exit status ${rc}, expected ${EXPECT_RC}")
+endif()
+if(NOT err MATCHES "${EXPECT_ERR}")
+  message(FATAL_ERROR "stderr does not match: ${EXPECT_ERR}")
+endif()
+file(SHA256 "${INPUT}" after)
+if(NOT before STREQUAL after)
+  message(FATAL_ERROR "input ${INPUT} changed")
+endif()
+file(GLOB_RECURSE left LIST_DIRECTORIES true "${WORK}/tmp/*")
+if(left)
+  message(FATAL_ERROR "the spooled copy of standard input was left behind: ${left}")
+endif()
+if(GOLDEN)
+  file(READ "${GOLDEN}" want)
+  file(READ "${WORK}/${GOLDEN_OUT}" got)
+  if(NOT want STREQUAL got)
+    message(FATAL_ERROR "${GOLDEN_OUT} differs from ${GOLDEN}")
+  endif()
+endif()
+set(nanre "(^|[^A-Za-z0-9_\"])[-+]?([Nn][Aa][Nn]|[Ii][Nn][Ff]([Ii][Nn][Ii][Tt][Yy])?)([^A-Za-z0-9_]|$)")
+if(out MATCHES "${nanre}" OR err MATCHES "${nanre}")
+  message(FATAL_ERROR "a non-finite number shown: \"${CMAKE_MATCH_0}\"")
+endif()
