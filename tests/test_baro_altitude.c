@@ -9,6 +9,7 @@
 #include <setjmp.h>
 #include <stdint.h>
 #include <cmocka.h>
+#include "test_files.h"
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -30,22 +31,6 @@
 static double altimeter_m(double p_hpa, double ref_hpa)
 {
     return 288.15 / 0.0065 * (1.0 - pow(p_hpa / ref_hpa, 8.31432 * 0.0065 / (9.80665 * 0.0289644)));
-}
-
-static char *slurp(const char *path, size_t *n)
-{
-    FILE *f = fopen(path, "rb");
-    assert_non_null(f);
-    fseek(f, 0, SEEK_END);
-    long len = ftell(f);
-    fseek(f, 0, SEEK_SET);
-    char *b = malloc((size_t)len + 1);
-    assert_non_null(b);
-    assert_int_equal(fread(b, 1, (size_t)len, f), (size_t)len);
-    b[len] = '\0';
-    fclose(f);
-    *n = (size_t)len;
-    return b;
 }
 
 /* Writes the simulator's rover.gpx as an altimeter's track: each point's

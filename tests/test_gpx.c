@@ -7,6 +7,7 @@
 #include <setjmp.h>
 #include <stdint.h>
 #include <cmocka.h>
+#include "test_files.h"
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -23,22 +24,6 @@
 /* The fixtures' own private elements, declared so that GPX 1.0's strict
  * wildcard can check the input's part as well as ours. */
 #define SENSOR_XSD HYP_SOURCE_DIR "/tests/data/lossless/sensor.xsd"
-
-static char *slurp(const char *path, size_t *n)
-{
-    FILE *f = fopen(path, "rb");
-    assert_non_null(f);
-    fseek(f, 0, SEEK_END);
-    long len = ftell(f);
-    fseek(f, 0, SEEK_SET);
-    char *b = malloc((size_t)len + 1);
-    assert_non_null(b);
-    assert_int_equal(fread(b, 1, (size_t)len, f), (size_t)len);
-    fclose(f);
-    b[len] = '\0';
-    *n = (size_t)len;
-    return b;
-}
 
 /* A result with made-up heights: the writer is under test, not the core. */
 static void fake_result(const hyp_gpx_doc *d, hyp_correct_result *r)

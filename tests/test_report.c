@@ -10,6 +10,7 @@
 #include <setjmp.h>
 #include <stdint.h>
 #include <cmocka.h>
+#include "test_files.h"
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -36,22 +37,6 @@ static void make_work(void)
 {
     snprintf(work, sizeof work, "%s/report-work", HYP_BINARY_DIR);
     mkdir(work, 0777);
-}
-
-static char *slurp(const char *path, size_t *n)
-{
-    FILE *f = fopen(path, "rb");
-    assert_non_null(f);
-    fseek(f, 0, SEEK_END);
-    long len = ftell(f);
-    fseek(f, 0, SEEK_SET);
-    char *b = malloc((size_t)len + 1);
-    assert_non_null(b);
-    assert_int_equal(fread(b, 1, (size_t)len, f), (size_t)len);
-    b[len] = '\0';
-    fclose(f);
-    *n = (size_t)len;
-    return b;
 }
 
 /* The demo survey as its README runs it, with an HTML report. */

@@ -325,6 +325,17 @@ HYP_API hyp_status hyp_rover_spec_set(hyp_rover_spec *r, const char *name, const
  * path, a path given a spec twice, or a time zone that cannot be read. */
 HYP_API hyp_status hyp_survey_add_rover_spec(hyp_survey *sv, const hyp_rover_spec *r, hyp_error *err);
 
+/* The rovers as a command line or an archive gives them: a folder becomes
+ * its .gpx and .csv files (any case; not hidden ones, not its subfolders),
+ * a name with * ? or [ that is no file becomes the files it matches
+ * (glob(3)), anything else stays as given; each folder's or pattern's files
+ * sorted by name so that runs repeat. On HYP_OK *out holds *n_out strings
+ * (free with hyp_rover_list_free); HYP_ERR_NODATA for a folder with no log
+ * or a pattern matching nothing, HYP_ERR_IO for a folder that cannot be
+ * read, each naming it. */
+HYP_API hyp_status hyp_rover_list_expand(const char *const *in, size_t n, char ***out, size_t *n_out, hyp_error *err);
+HYP_API void hyp_rover_list_free(char **paths, size_t n);
+
 #ifdef __cplusplus
 }
 #endif

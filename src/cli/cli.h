@@ -26,14 +26,12 @@ int cli_bad_option(const char *cmd, const char *arg, int optopt, int missing);
 /* Usage message of a command ("hypsolev CMD: ..." and the --help hint). */
 int cli_usage(const char *cmd, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
 
-/* Rover files: folders become their .gpx and .csv files, quoted patterns
- * their matches (sorted, so runs repeat), plain files stay as given. */
+/* Rover files as typed (hyp_rover_list_expand expands them). */
 typedef struct cli_files {
     char **path;
     size_t n, alloc;
 } cli_files;
 int cli_files_add(cli_files *f, const char *path);
-int cli_files_expand(cli_files *f, const char *cmd);
 void cli_files_free(cli_files *f);
 
 /* The options correct and adjust share (options.c). Codes from CLI_SET to

@@ -183,8 +183,16 @@ int cli_parse(cli_common *c, int argc, char **argv, const struct option *own, in
     }
     if (!c->rovers.n)
         return cli_usage(c->cmd, "no rover file given");
-    int rc = cli_files_expand(&c->rovers, c->cmd);
-    return rc ? rc : check_rover_specs(c);
+    hyp_error err;
+    char **list;
+    size_t n_list;
+    hyp_status st = hyp_rover_list_expand((const char *const *)c->rovers.path, c->rovers.n, &list, &n_list, &err);
+    if (st)
+        return cli_fail(c, st, &err);
+    cli_files_free(&c->rovers);
+    c->rovers.path = list;
+    c->rovers.n = c->rovers.alloc = n_list;
+    return check_rover_specs(c);
 }
 
 hyp_status cli_open_survey(cli_common *c, hyp_survey **sv, hyp_error *err)

@@ -373,3 +373,7 @@ set(HYP_CASE_GOLDEN "")
 set(HYP_CASE_GOLDEN_OUT "")
 set(HYP_CASE_INPUTS "")
 hyp_cli_case(base_dir_time_format_bad 1 "basedir_bad_format/bases.csv:3: time_format \"%d.%m.%Y %Q\" has %Q, which is not one of" correct ${R} --base-dir @DATA@/bad/basedir_bad_format ${O})
+# the rover list is expanded by the library (hyp_rover_list_expand): a
+# folder with no log and a pattern matching nothing are errors naming them
+hyp_cli_case(rovers_empty_folder 1 "cli/rovers_empty_folder: a folder with no .gpx or .csv file" correct @OUT@ ${B} -o @OUT@/x.gpx)
+hyp_cli_case(rovers_pattern_no_match 1 "rovers_pattern_no_match/\\*.zzz: no file matches" correct @OUT@/*.zzz ${B} -o @OUT@/x.gpx)
