@@ -25,7 +25,13 @@
  *          [--stations S] [--dt S] [--mislabel] [--open-tracks]
  *
  * A whole multi-day, multi-rover survey of stations in the same atmosphere
- * (network.c, which documents its files). */
+ * (network.c, which documents its files).
+ *
+ *   hypsim leapfrog OUTDIR [--seed N] [--index-error PA]
+ *   hypsim loop OUTDIR [--seed N] [--singular]
+ *
+ * Surveys without a base logger: a leapfrog traverse with two instruments
+ * and a loop with one (leapfrog.c, which documents its files). */
 #define _DEFAULT_SOURCE
 #include <math.h>
 #include <stddef.h>
@@ -638,10 +644,14 @@ int main(int argc, char **argv)
 {
     if (argc >= 2 && (strcmp(argv[1], "network") == 0 || strcmp(argv[1], "network-hard") == 0))
         return sim_network_main(argc - 1, argv + 1);   /* a whole station survey: network.c */
+    if (argc >= 2 && (strcmp(argv[1], "leapfrog") == 0 || strcmp(argv[1], "loop") == 0))
+        return sim_leapfrog_main(argc - 1, argv + 1);  /* surveys without a base: leapfrog.c */
     if (argc < 3) {
         fprintf(stderr, "usage: hypsim SCENARIO OUTDIR [--seed N]\n"
                         "       hypsim network|network-hard OUTDIR [--seed N] [--days D] [--rovers R]\n"
-                        "              [--stations S] [--dt S] [--mislabel] [--open-tracks]\n");
+                        "              [--stations S] [--dt S] [--mislabel] [--open-tracks]\n"
+                        "       hypsim leapfrog OUTDIR [--seed N] [--index-error PA]\n"
+                        "       hypsim loop OUTDIR [--seed N] [--singular]\n");
         return 2;
     }
     const scenario *sc = NULL;

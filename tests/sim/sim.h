@@ -80,4 +80,8 @@ void latlon(const scenario *sc, double east_km, double north_km, double *lat, do
  * variant's name. Returns the process exit status. */
 int sim_network_main(int argc, char **argv);
 
+/* hypsim leapfrog|loop OUTDIR [options] (leapfrog.c); argv[0] is the
+ * survey's kind. Returns the process exit status. */
+int sim_leapfrog_main(int argc, char **argv);
+
 #endif
