@@ -43,6 +43,7 @@ void hyp__adj_opts_default(hyp__adj_opts *opts)
     opts->min_rcond = 1e-13;
     opts->max_work_bytes = (size_t)512 << 20;
     opts->keep = NULL;
+    opts->stop_at_kept = 0;
 }
 
 void hyp__adj_result_init(hyp__adj_result *res)
@@ -602,6 +603,9 @@ static hyp__adj_snoop_stop snoop_stop_reason(const hyp__adj_opts *opts, const hy
 {
     if (!(res->w_max_free > res->w_crit))
         return HYP_ADJ_SNOOP_CLEAN;
+    if (opts->stop_at_kept && opts->keep && res->w_max_obs != SIZE_MAX && opts->keep[res->w_max_obs] &&
+        res->w_max > res->w_max_free)
+        return HYP_ADJ_SNOOP_MODEL;
     if (opts->max_reject && res->n_rejections >= opts->max_reject)
         return HYP_ADJ_SNOOP_LIMIT;
     if (res->dof <= 1)

@@ -57,6 +57,10 @@ typedef struct hyp__adj_opts {
                             * data snooping never rejects it (a prior or a
                             * pseudo-observation of a model); its w is
                             * still computed and flagged (NULL) */
+    int stop_at_kept;     /* nonzero: snooping stops (HYP_ADJ_SNOOP_MODEL) when
+                           * the largest |w| beyond the critical value is a
+                           * kept one: the model, not a measurement, is then
+                           * the likeliest error (0) */
 } hyp__adj_opts;
 
 /* Bits of hyp__adj_result.flag, per observation. */
@@ -79,7 +83,8 @@ typedef enum hyp__adj_snoop_stop {
     HYP_ADJ_SNOOP_CLEAN,       /* no |w| beyond the critical value is left */
     HYP_ADJ_SNOOP_DOF,         /* the next rejection would leave dof 0: kept */
     HYP_ADJ_SNOOP_SINGULAR,    /* the next rejection would make the network singular: kept */
-    HYP_ADJ_SNOOP_LIMIT        /* max_reject reached */
+    HYP_ADJ_SNOOP_LIMIT,       /* max_reject reached */
+    HYP_ADJ_SNOOP_MODEL        /* the largest |w| is a kept prior's (stop_at_kept) */
 } hyp__adj_snoop_stop;
 
 typedef struct hyp__adj_rejection {

@@ -191,6 +191,14 @@ static void fill(hyp__net *N, const layout *L, const hyp__adj_result *a)
             r->n_rejected++;
             snprintf(o->flag, sizeof o->flag, "rejected: |w| beyond %.2f (Baarda's w-test, alpha %g)", a->w_crit,
                      N->o->alpha_w);
+        } else if ((a->flag[row] & HYP_ADJ_OUTLIER) && o->kind == HYP_OBS_WEATHER_STEP) {
+            snprintf(o->flag, sizeof o->flag, "fails the w-test (|w| beyond %.2f): the weather changed faster "
+                     "than --weather-walk allows (a prior of the model, not taken out)", a->w_crit);
+            r->tests_failed = 1;
+        } else if ((a->flag[row] & HYP_ADJ_OUTLIER) && (o->kind == HYP_OBS_DRIFT_PRIOR || o->kind == HYP_OBS_INDEX_PRIOR)) {
+            snprintf(o->flag, sizeof o->flag, "fails the w-test (|w| beyond %.2f): the instrument drifted more "
+                     "than its prior allows (a prior of the model, not taken out)", a->w_crit);
+            r->tests_failed = 1;
         } else if (a->flag[row] & HYP_ADJ_OUTLIER) {
             snprintf(o->flag, sizeof o->flag, "fails the w-test (|w| beyond %.2f) but cannot be taken out: "
                      "nothing else determines what it observes", a->w_crit);
@@ -343,6 +351,19 @@ hyp_status hyp__net_adjust(hyp__net *N, hyp_error *err)
             t[1] = (hyp__adj_term){L.ka[m], -1.0};
             L.rows[row] = (hyp__adj_obs){t, 2, 0.0, 1.0, NULL, 0};
         }
+    /* the model's priors (drift, the walk of the weather, the index) are no
+     * candidate blunders: snooping never rejects one (taking a weather step
+     * out leaves the stations after it free); one failing its w-test says
+     * the model is too tight, and fails the tests */
+    unsigned char *keep = st ? NULL : calloc(L.n_rows + extra + 1, 1);
+    if (!st && !keep)
+        st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
+    for (size_t row = 0; keep && row < L.n_rows + extra; row++) {
+        hyp_obs_kind kd = row < L.n_rows ? r->obs[L.row_obs[row]].kind : HYP_OBS_INDEX_PRIOR;
+        keep[row] = kd == HYP_OBS_DRIFT_PRIOR || kd == HYP_OBS_WEATHER_STEP || kd == HYP_OBS_INDEX_PRIOR;
+    }
+    ao.keep = keep;
+    ao.stop_at_kept = 1;
     hyp__adj_problem pb = {L.n_unknowns, (const char *const *)L.names, L.n_rows + extra, L.rows};
     hyp__adj_result a;
     hyp__adj_result_init(&a);
@@ -367,6 +388,7 @@ hyp_status hyp__net_adjust(hyp__net *N, hyp_error *err)
         }
     }
     hyp__adj_result_free(&a);
+    free(keep);
     layout_free(&L, S + 2 * r->n_tracks + N->n_nodes + 1);
     free(occupied);
     return st;

@@ -45,6 +45,8 @@ static double station_lon(int i)
 static double g_mid;
 static double trend_pa_h = 100.0, wave_pa = 30.0;
 
+static double walk_hpa = 0;   /* --weather-walk of run(); 0: the default */
+
 static double p_true(double h, double t)
 {
     double dt = t - T0_S;
@@ -162,6 +164,8 @@ static hyp_status run(const char *const *names, int n_rovers, hyp_network_result
     no.stations_path = stations;
     no.fieldbook_path = book;
     no.auto_occupations = 0;   /* the book says where; the positions only confirm */
+    if (walk_hpa > 0)
+        no.weather_walk_hpa_sqrt_h = walk_hpa;
     hyp_status st = hyp_network_run(sv, &no, pp, (size_t)n_rovers, res, err);
     if (*res && getenv("HYP_TEST_VERBOSE"))
         hyp_msgs_write(stderr, &(*res)->msgs, HYP_NOTE);
@@ -597,6 +601,54 @@ static void test_mixed_survey(void **state)
     hyp_msgs_free(&m);
 }
 
+/* A storm (5 hPa/h) against a walk of 0.15 hPa/sqrt(h): the weather model
+ * is far too tight. Its steps are priors, not candidate blunders: none is
+ * rejected (taking one out leaves the stations after it free: seen as
+ * heights kilometres off before), nor an occupation in their place (the
+ * largest |w| is the model's: snooping stops there), the steps that fail
+ * are flagged, the tests fail, and the heights stay within their (scaled)
+ * sigmas. */
+static void test_loop_walk_too_tight(void **state)
+{
+    (void)state;
+    double h[4] = {610.0, 655.0, 702.5, 640.0};
+    int known[4] = {1, 0, 0, 1};
+    write_stations(4, h, known);
+    plan p;
+    loop_plan(&p);
+    const char *names[1] = {"solo"};
+    lcg = 4242u;
+    trend_pa_h = 500.0, wave_pa = 40.0;
+    write_rover("solo", &p, h, 60.0, 0.0);
+    trend_pa_h = 100.0, wave_pa = 30.0;
+    write_book(&p, names, 1);
+    hyp_network_result *res = NULL;
+    hyp_error err;
+    walk_hpa = 0.15;
+    hyp_status st = run(names, 1, &res, &err);
+    walk_hpa = 0;
+    if (st)
+        fail_msg("%s", err.message);
+    size_t flagged = 0;
+    for (size_t i = 0; i < res->n_obs; i++) {
+        const hyp_network_obs *o = &res->obs[i];
+        /* the model is the likeliest error: snooping stops there and
+         * blames no occupation for it */
+        assert_false(o->rejected);
+        if (o->kind == HYP_OBS_WEATHER_STEP) {
+            flagged += strstr(o->flag, "faster than --weather-walk") != NULL;
+        }
+    }
+    print_message("tight walk: %zu weather steps flagged; S1 %.3f +- %.3f m (made 655.000), S2 %.3f +- %.3f m "
+                  "(made 702.500); tests failed %d\n", flagged, res->st[1].height_m, res->st[1].sigma_m,
+                  res->st[2].height_m, res->st[2].sigma_m, res->tests_failed);
+    assert_true(flagged >= 1);
+    assert_int_equal(res->tests_failed, 1);
+    for (int s = 1; s <= 2; s++)
+        assert_true(fabs(res->st[s].height_m - h[s]) <= 2 * res->st[s].sigma_m);
+    hyp_network_result_free(res);
+}
+
 static int setup(void **state)
 {
     (void)state;
@@ -617,6 +669,7 @@ int main(void)
         cmocka_unit_test(test_loop_without_known_mark_refused),
         cmocka_unit_test(test_loop_weak_design_warned),
         cmocka_unit_test(test_mixed_survey),
+        cmocka_unit_test(test_loop_walk_too_tight),
     };
     return cmocka_run_group_tests(tests, setup, NULL);
 }
