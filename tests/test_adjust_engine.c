@@ -706,6 +706,48 @@ static void test_snoop_keep(void **state)
     hyp__adj_result_free(&res);
 }
 
+/* stop_at_kept: when a kept prior has the largest |w|, snooping stops
+ * rather than blame a measurement for the model's error. Four observations
+ * of one height, 0.0, 0.0, 0.6 m (sigma 0.1 m) and a kept prior of 2.0 m
+ * (sigma 0.2 m); by hand as above (the weighted mean): p = 100, 100, 100,
+ * 25, sum 325; x = (60 + 50) / 325 = 0.338462; v = 0.338462, 0.338462,
+ * -0.261538, -1.661538; r = 1 - p / 325 = 0.692308 (three times),
+ * 0.923077; w = 4.06780, 4.06780, -3.14330, -8.64692. Without the stop
+ * the first (a good measurement) is rejected for the prior's error. */
+static void test_snoop_stop_at_kept(void **state)
+{
+    (void)state;
+    hyp__adj_term t[4] = {{0, 1.0}, {0, 1.0}, {0, 1.0}, {0, 1.0}};
+    hyp__adj_obs obs[4] = {
+        {&t[0], 1, 0.0, 0.1, "a", 1},
+        {&t[1], 1, 0.0, 0.1, "b", 1},
+        {&t[2], 1, 0.6, 0.1, "c", 1},
+        {&t[3], 1, 2.0, 0.2, "prior", 1},
+    };
+    unsigned char keep[4] = {0, 0, 0, 1};
+    hyp__adj_problem pb = {1, NULL, 4, obs};
+    hyp__adj_opts o;
+    hyp__adj_opts_default(&o);
+    o.snoop = 1;
+    o.keep = keep;
+    hyp__adj_result res;
+    hyp__adj_result_init(&res);
+    hyp_error err;
+    assert_int_equal(hyp__adj_solve(&pb, &o, &res, &err), HYP_OK);
+    assert_true(res.n_rejections >= 1);
+    assert_int_equal(res.rejections[0].obs, 0);
+    assert_near(res.rejections[0].w, 4.06780, 1e-5);
+    o.stop_at_kept = 1;
+    assert_int_equal(hyp__adj_solve(&pb, &o, &res, &err), HYP_OK);
+    assert_int_equal(res.n_rejections, 0);
+    assert_int_equal(res.snoop_stop, HYP_ADJ_SNOOP_MODEL);
+    assert_int_equal(res.w_max_obs, 3);
+    assert_near(res.w[3], -8.64692, 1e-5);
+    assert_near(res.w[2], -3.14330, 1e-5);
+    assert_true(res.flag[3] & HYP_ADJ_OUTLIER);
+    hyp__adj_result_free(&res);
+}
+
 /* ---- a larger random network against its truth ---- */
 
 /* splitmix64 (Steele, Lea and Flood, "Fast splittable pseudorandom number
@@ -895,6 +937,7 @@ int main(void)
         cmocka_unit_test(test_random_network),
         cmocka_unit_test(test_random_snoop),
         cmocka_unit_test(test_snoop_keep),
+        cmocka_unit_test(test_snoop_stop_at_kept),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
