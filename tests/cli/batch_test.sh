@@ -72,16 +72,19 @@ mkdir -p "$work/many" "$work/out2"
 for i in $(seq 1 60); do cp "$work/rovers/walk-day0.gpx" "$work/many/w$i.gpx"; done
 "$exe" correct "$work/many/w1.gpx" --base-dir "$work/bases" -o "$work/ref.gpx" -q || bad "reference run"
 for sig in INT HUP; do
+  when='hyp-tmp-'
+  [ $sig = HUP ] && when='\.report\.txt$'
   rm -rf "$work/out2" && mkdir -p "$work/out2"
   echo old > "$work/out2/w1.gpx"
   "$exe" correct "$work/many" --base-dir "$work/bases" --out-dir "$work/out2" --overwrite -j 2 -q \
       --summary "$work/sum-$sig.csv" 2> "$work/stderr3" &
   pid=$!
-  # signal part-way: once the first rover's outputs are in place (a loaded
-  # or sanitized run starts slowly; a fixed sleep could land before the
-  # program has begun), or after 30 s at the latest
+  # signal part-way: SIGINT once the first rover's outputs are staged
+  # (nothing committed yet), SIGHUP once the first group is committed (a
+  # loaded or sanitized run starts slowly; a fixed sleep could land before
+  # the program has begun), or after 30 s at the latest
   for _ in $(seq 1 300); do
-    [ "$(ls "$work/out2" | grep -c '\.report\.txt$')" -ge 1 ] && break
+    [ "$(ls "$work/out2" | grep -cE "$when")" -ge 1 ] && break
     kill -0 $pid 2>/dev/null || break
     sleep 0.1
   done
@@ -92,7 +95,17 @@ for sig in INT HUP; do
   [ $rc -eq $want ] || [ $rc -eq 0 ] || bad "SIG$sig: exit $rc, expected $want (or 0 if it had finished)"
   ls "$work/out2" | grep -qE 'hyp-tmp-' && bad "SIG$sig: staging files left: $(ls "$work/out2")"
   [ -s "$work/sum-$sig.csv" ] || bad "SIG$sig: no summary written"
-  [ $rc -eq 0 ] || grep -q "not started (interrupted)" "$work/sum-$sig.csv" || bad "SIG$sig: summary does not list the rovers not run"
+  # a rover not started, or run but stopped before its group was committed
+  [ $rc -eq 0 ] || grep -qE "not started \(interrupted\)|interrupted: nothing written" "$work/sum-$sig.csv" ||
+      bad "SIG$sig: summary does not list the rovers not run or not written"
+  # every rover the summary calls ok has its outputs, and no other has any
+  while IFS=, read -r file _ _ _ _ _ _ status; do
+    b="$work/out2/$(basename "${file//\"/}" .gpx)"
+    case "$status" in
+      '"ok"') [ -s "$b.csv" ] || bad "SIG$sig: $(basename "$b") is ok in the summary but has no table" ;;
+      *) [ "$(head -c 3 "$b.gpx" 2>/dev/null)" != "<?x" ] || bad "SIG$sig: $(basename "$b") is not ok in the summary but was written" ;;
+    esac
+  done < <(tail -n +2 "$work/sum-$sig.csv")
   for f in "$work"/out2/*.gpx; do
     b=${f%.gpx}
     if [ "$(head -c 3 "$f")" = old ]; then
