@@ -31,7 +31,19 @@ int hyp__fmt_fixed(char *buf, size_t n, double v, int prec)
     uint64_t u = (uint64_t)fl + (fr > 0.5);
     /* integer part, then exactly prec decimals, two digits at a time */
     static const uint64_t p10i[10] = {1, 10, 100, 1000, 10000, 100000, 1000000, 10000000, 100000000, 1000000000};
-    uint64_t ip = u / p10i[prec];
+    uint64_t ip;
+    switch (prec) {   /* a constant divisor is a multiply; a variable one a slow div */
+    case 0: ip = u; break;
+    case 1: ip = u / 10u; break;
+    case 2: ip = u / 100u; break;
+    case 3: ip = u / 1000u; break;
+    case 4: ip = u / 10000u; break;
+    case 5: ip = u / 100000u; break;
+    case 6: ip = u / 1000000u; break;
+    case 7: ip = u / 10000000u; break;
+    case 8: ip = u / 100000000u; break;
+    default: ip = u / 1000000000u; break;
+    }
     uint32_t fp = (uint32_t)(u - ip * p10i[prec]);
     int len = 0;
     if (signbit(v))   /* printf keeps the sign of a negative that rounds to 0 */
@@ -49,8 +61,8 @@ int hyp__fmt_fixed(char *buf, size_t n, double v, int prec)
         memcpy(t + k, D2 + 2 * ip, 2);
     } else
         t[--k] = (char)('0' + ip);
-    memcpy(buf + len, t + k, (size_t)(24 - k));
-    len += 24 - k;
+    while (k < 24)   /* a few bytes: a loop, not a call */
+        buf[len++] = t[k++];
     if (prec) {
         buf[len++] = '.';
         for (int j = prec; j >= 2;) {

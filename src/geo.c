@@ -14,6 +14,8 @@ struct hyp_geo {
     PJ_CONTEXT *ctx;
     PJ *geoid;    /* EPSG:4979 -> EPSG:4326+5773, lon/lat order */
     PJ *proj;     /* EPSG:4326 -> the CRS set, lon/lat order */
+    char *proj_def;    /* the definition proj was made from (a UTM zone resolved) */
+    char *proj_name;   /* and the name hyp_geo_set_crs gave it */
 };
 
 double hyp_geo_distance_m(double lat1_deg, double lon1_deg,
@@ -88,6 +90,8 @@ void hyp_geo_close(hyp_geo *g)
         return;
     proj_destroy(g->geoid);
     proj_destroy(g->proj);
+    free(g->proj_def);
+    free(g->proj_name);
     if (g->ctx)
         proj_context_destroy(g->ctx);
     free(g);
@@ -198,6 +202,12 @@ hyp_status hyp_geo_set_crs(hyp_geo *g, const char *crs, double lat_deg, double l
         snprintf(buf, sizeof buf, "EPSG:%d", (lat_deg >= 0 ? 32600 : 32700) + zone);
         def = buf;
     }
+    if (g->proj && g->proj_def && strcmp(g->proj_def, def) == 0) {
+        /* the same CRS again (a batch's next rover): PROJ's set-up, which
+         * costs more than projecting a few thousand points, is kept */
+        snprintf(name, n, "%s", g->proj_name);
+        return HYP_OK;
+    }
     PJ *dst = proj_create(g->ctx, def);
     char plus[1100];
     if (dst && def[0] == '+' && proj_get_type(dst) != PJ_TYPE_PROJECTED_CRS && !strstr(def, "type=crs") &&
@@ -226,6 +236,15 @@ hyp_status hyp_geo_set_crs(hyp_geo *g, const char *crs, double lat_deg, double l
         return hyp_error_set(err, HYP_ERR_USAGE, "--crs \"%s\": no transformation from WGS84 without a ballpark step", crs);
     proj_destroy(g->proj);
     g->proj = norm;
+    free(g->proj_def);
+    free(g->proj_name);
+    g->proj_def = strdup(def);
+    g->proj_name = strdup(name);
+    if (!g->proj_def || !g->proj_name) {   /* no cache then, the projection itself is set */
+        free(g->proj_def);
+        free(g->proj_name);
+        g->proj_def = g->proj_name = NULL;
+    }
     return HYP_OK;
 }
 

@@ -49,6 +49,11 @@ static void plan_setup(plan *pl, const hyp_rover_run *r)
 {
     memset(pl, 0, sizeof *pl);
     pl->r = r;
+    if (r->easting_m && r->priv && !r->priv->geo) {   /* a batch took its geo back */
+        hyp_error e;
+        hyp_error_clear(&e);
+        hyp__rover_geo_reopen(r, &e);   /* failing, the plan is drawn in metres about the centre */
+    }
     pl->geo = r->easting_m && r->priv ? r->priv->geo : NULL;
     double la_lo = INFINITY, la_hi = -INFINITY, lo_lo = INFINITY, lo_hi = -INFINITY;
     for (size_t i = 0; i < r->rover->count; i++) {

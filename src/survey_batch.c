@@ -397,7 +397,7 @@ static void flush_group(batch *b)
     pthread_mutex_unlock(&b->commit_lock);
 }
 
-static void run_index(batch *b, size_t i)
+static void run_index(batch *b, size_t i, hyp_geo **geo)
 {
     pending *p = calloc(1, sizeof *p);
     if (!p) {   /* not even room to keep it: run and commit it alone */
@@ -409,7 +409,7 @@ static void run_index(batch *b, size_t i)
     }
     p->i = i;
     hyp_error_clear(&p->err);
-    p->st = hyp__survey_run_staged(b->sv, b->rovers[i], b->out, b->rover_threads, &p->r, &p->set, &p->err);
+    p->st = hyp__survey_run_lent(b->sv, b->rovers[i], b->out, b->rover_threads, geo, &p->r, &p->set, &p->err);
     double pts = p->r && p->r->rover ? (double)p->r->rover->count : 0.0;
     pthread_mutex_lock(&b->lock);
     while (b->n_pend == GROUP_ROVERS) {   /* another worker filled it and has yet to take it */
@@ -430,15 +430,17 @@ static void run_index(batch *b, size_t i)
 static void *worker(void *arg)
 {
     batch *b = arg;
+    hyp_geo *geo = NULL;   /* this thread's PROJ context, lent to each of its rovers in turn */
     for (;;) {
         pthread_mutex_lock(&b->lock);
         size_t i = b->next < b->n && !batch_cancelled(b) ? b->next++ : SIZE_MAX;
         pthread_mutex_unlock(&b->lock);
         if (i == SIZE_MAX) {
             flush_group(b);   /* what this worker (or another) left gathered */
+            hyp_geo_close(geo);
             return NULL;
         }
-        run_index(b, i);
+        run_index(b, i, &geo);
     }
 }
 

@@ -186,7 +186,7 @@ static hyp_status correct_rover(hyp_survey *sv, const hyp_correct_opts *copts, h
     priv_t *p = r->priv;
     hyp_read_opts ro;
     hyp__rover_read_opts(sv, r->path, &ro);
-    hyp_status st = hyp_geo_open(&p->geo, err);
+    hyp_status st = p->geo ? HYP_OK : hyp_geo_open(&p->geo, err);   /* a batch lends its worker's */
     if (!st)
         st = hyp__log_read(r->path, &ro, &p->rv, &r->msgs, err);
     if (st)
@@ -406,19 +406,53 @@ hyp_status hyp_survey_run(hyp_survey *sv, const char *rover, const hyp_outputs *
 }
 
 static hyp_status run_rover(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
-                            const hyp_correct_opts *copts, hyp_rover_run **run, hyp__outset *keep, hyp_error *err);
+                            const hyp_correct_opts *copts, hyp_rover_run **run, hyp__outset *keep, hyp_geo **lent,
+                            hyp_error *err);
 
 hyp_status hyp__survey_run_with(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
                                 const hyp_correct_opts *copts, hyp_rover_run **run, hyp_error *err)
 {
-    return run_rover(sv, rover, out, threads, copts, run, NULL, err);
+    return run_rover(sv, rover, out, threads, copts, run, NULL, NULL, err);
 }
 
 hyp_status hyp__survey_run_staged(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
                                   hyp_rover_run **run, struct hyp__outset *staged, hyp_error *err)
 {
     hyp__outset_init(staged);
-    return run_rover(sv, rover, out, threads, &sv->copts, run, staged, err);
+    return run_rover(sv, rover, out, threads, &sv->copts, run, staged, NULL, err);
+}
+
+hyp_status hyp__survey_run_lent(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
+                                hyp_geo **geo, hyp_rover_run **run, struct hyp__outset *staged, hyp_error *err)
+{
+    hyp__outset_init(staged);
+    hyp_status st = run_rover(sv, rover, out, threads, &sv->copts, run, staged, geo, err);
+    if (*run && (*run)->priv && !*geo) {   /* taken back: the outputs are staged */
+        *geo = (*run)->priv->geo;
+        (*run)->priv->geo = NULL;
+    }
+    return st;
+}
+
+hyp_status hyp__rover_geo_reopen(const hyp_rover_run *r, hyp_error *err)
+{
+    priv_t *p = r->priv;
+    if (!p || p->geo || !r->easting_m || !p->sv || !p->sv->o.crs)
+        return HYP_OK;
+    const hyp_series *s = r->rover;
+    double la = NAN, lo = NAN;
+    for (size_t i = 0; s && i < s->count && la != la; i++)   /* as prepare_extras chose the zone */
+        if (hyp_series_lat(s, i) == hyp_series_lat(s, i))
+            la = hyp_series_lat(s, i), lo = hyp_series_lon(s, i);
+    char name[sizeof r->crs_name];
+    hyp_status st = hyp_geo_open(&p->geo, err);
+    if (!st)
+        st = hyp_geo_set_crs(p->geo, p->sv->o.crs, la, lo, name, sizeof name, err);
+    if (st) {
+        hyp_geo_close(p->geo);
+        p->geo = NULL;
+    }
+    return st;
 }
 
 void hyp__rover_run_unwritten(hyp_rover_run *r, const hyp_error *why)
@@ -432,7 +466,8 @@ void hyp__rover_run_unwritten(hyp_rover_run *r, const hyp_error *why)
 }
 
 static hyp_status run_rover(hyp_survey *sv, const char *rover, const hyp_outputs *out, int threads,
-                            const hyp_correct_opts *copts, hyp_rover_run **run, hyp__outset *keep, hyp_error *err)
+                            const hyp_correct_opts *copts, hyp_rover_run **run, hyp__outset *keep, hyp_geo **lent,
+                            hyp_error *err)
 {
     hyp_outputs none = {0};
     if (!out)
@@ -440,6 +475,10 @@ static hyp_status run_rover(hyp_survey *sv, const char *rover, const hyp_outputs
     hyp_rover_run *r = *run = run_new(rover);
     if (!r)
         return hyp_error_set(err, HYP_ERR_NOMEM, "%s: out of memory", rover);
+    if (lent && *lent) {   /* its PROJ set-up (geoid, last CRS) made by an earlier rover */
+        r->priv->geo = *lent;
+        *lent = NULL;
+    }
     r->gnss_ref = sv->o.gnss_ref;
     r->known_ref = sv->o.known_ref;
     r->out_ref = sv->o.out_ref;

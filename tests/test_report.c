@@ -3,7 +3,8 @@
  * file), its profile read back from the SVG against the run's heights and
  * the page's own table, the track distance against PROJ's geodesic
  * solver, a failed run's page, the page writer's number formats, and a
- * long track with a one-sample spike (size, and the spike drawn). */
+ * long track with a one-sample spike (size, and the spike drawn), and a
+ * batch's page written from its done callback (the plan still in the CRS). */
 #define _GNU_SOURCE
 #include <stdarg.h>
 #include <stddef.h>
@@ -494,6 +495,64 @@ static void test_long_track(void **state)
     remove(rover), remove(base), remove(gpx);
 }
 
+/* ---- a batch's run, its page written later ----------------------------- */
+
+typedef struct later_page {
+    int pages, with_crs;
+} later_page;
+
+static void write_later(void *ctx, size_t index, const hyp_rover_run *run)
+{
+    later_page *lp = ctx;
+    (void)index;
+    char *page = NULL;
+    size_t n = 0;
+    FILE *f = open_memstream(&page, &n);
+    assert_non_null(f);
+    hyp_error err;
+    assert_int_equal(hyp_rover_run_write_html(f, run, NULL, &err), HYP_OK);
+    fclose(f);
+    lp->pages++;
+    /* the plan in the run's CRS, named as proj.db names EPSG:32632
+     * (projinfo EPSG:32632: "WGS 84 / UTM zone 32N"); without its geo
+     * the plan would be in metres about the track's centre */
+    if (strstr(page, "easting [m] (WGS 84 / UTM zone 32N"))
+        lp->with_crs++;
+    free(page);
+}
+
+/* A batch takes each rover's PROJ set-up back once its outputs are staged
+ * (its worker lends it to the next rover); a page written from the done
+ * callback still gets the plan in the run's CRS. */
+static void test_batch_page_later(void **state)
+{
+    (void)state;
+    hyp_survey_opts o;
+    hyp_survey_opts_init(&o);
+    o.threads = 1;
+    o.crs = "utm";
+    hyp_survey *sv;
+    hyp_error err;
+    assert_int_equal(hyp_survey_new(&sv, &o, NULL, &err), HYP_OK);
+    hyp_base_spec b;
+    hyp_base_spec_init(&b, DEMO "/base.csv", 812.4);
+    assert_int_equal(hyp_base_spec_set(&b, "base-at", "46.80,9.90", &err), HYP_OK);
+    assert_int_equal(hyp_survey_add_base(sv, &b, NULL, &err), HYP_OK);
+    char dir[700];
+    snprintf(dir, sizeof dir, "%s/batch-later", work);
+    mkdir(dir, 0777);
+    hyp_outputs out;
+    hyp_outputs_init(&out);
+    out.dir = dir, out.overwrite = 1;
+    const char *rovers[1] = {DEMO "/rover.gpx"};
+    hyp_run_info info;
+    later_page lp = {0};
+    assert_int_equal(hyp_survey_run_many(sv, rovers, 1, &out, 1, write_later, NULL, &lp, &info, &err), HYP_OK);
+    assert_int_equal(lp.pages, 1);
+    assert_int_equal(lp.with_crs, 1);
+    hyp_survey_free(sv);
+}
+
 int main(void)
 {
     make_work();
@@ -504,6 +563,7 @@ int main(void)
         cmocka_unit_test(test_profile_matches_run),
         cmocka_unit_test(test_failed_run_page),
         cmocka_unit_test(test_long_track),
+        cmocka_unit_test(test_batch_page_later),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
