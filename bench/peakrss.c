@@ -1,6 +1,7 @@
 /* peakrss.c - runs a command and prints its peak resident set size (KiB,
  * from wait4's rusage), wall time (s) and CPU time (user + system, s, of the
- * command and its threads) on stderr: "peak_rss_kib S wall_s T cpu_s C".
+ * command and its threads; and user time alone) on stderr:
+ * "peak_rss_kib S wall_s T cpu_s C user_s U".
  *   peakrss COMMAND [ARGS...] */
 #define _DEFAULT_SOURCE
 #include <stdio.h>
@@ -25,8 +26,9 @@ int main(int argc, char **argv)
     struct rusage ru;
     wait4(pid, &status, 0, &ru);
     clock_gettime(CLOCK_MONOTONIC, &b);
-    fprintf(stderr, "peak_rss_kib %ld wall_s %.3f cpu_s %.3f\n", ru.ru_maxrss,
-            (double)(b.tv_sec - a.tv_sec) + 1e-9 * (double)(b.tv_nsec - a.tv_nsec),
-            (double)(ru.ru_utime.tv_sec + ru.ru_stime.tv_sec) + 1e-6 * (double)(ru.ru_utime.tv_usec + ru.ru_stime.tv_usec));
+    double user = (double)ru.ru_utime.tv_sec + 1e-6 * (double)ru.ru_utime.tv_usec;
+    double sys = (double)ru.ru_stime.tv_sec + 1e-6 * (double)ru.ru_stime.tv_usec;
+    fprintf(stderr, "peak_rss_kib %ld wall_s %.3f cpu_s %.3f user_s %.3f\n", ru.ru_maxrss,
+            (double)(b.tv_sec - a.tv_sec) + 1e-9 * (double)(b.tv_nsec - a.tv_nsec), user + sys, user);
     return WIFEXITED(status) ? WEXITSTATUS(status) : 1;
 }

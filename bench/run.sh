@@ -21,14 +21,20 @@ command -v xmllint > /dev/null || { echo "xmllint missing: apt-get install libxm
 measure() {   # prints "rss_kib wall_s"
   "$work/peakrss" "$@" 2>&1 >/dev/null | sed -n 's/^peak_rss_kib \([0-9]*\) wall_s \([0-9.]*\) cpu_s.*$/\1 \2/p'
 }
-cpu() {   # prints "cpu_s" (user + system)
-  "$work/peakrss" "$@" 2>&1 >/dev/null | sed -n 's/^peak_rss_kib .* cpu_s \([0-9.]*\)$/\1/p'
+cpu() {   # prints "cpu_s user_s" (user + system, and user alone)
+  "$work/peakrss" "$@" 2>&1 >/dev/null | sed -n 's/^peak_rss_kib .* cpu_s \([0-9.]*\) user_s \([0-9.]*\)$/\1 \2/p'
 }
 archive() {
   # An archive of small tracks: many rovers, each read, corrected and
-  # written (GPX, table, report) with its own output set. Five pairs for
-  # each of -j 1 and -j 2, xmllint --stream over the same files then
-  # hypsolev, back to back; the median pair's CPU-time ratio is the figure.
+  # written (GPX, table, report) with its own output set. Five rounds for
+  # each of -j 1 and -j 2: xmllint --stream over the same files then
+  # hypsolev, back to back; the median round's CPU-time ratio is the figure.
+  # Each round then frees the outputs, waits as long as xmllint took, and
+  # has dd write as many bytes into one file of the same folder: the
+  # machine's own cost of putting those bytes in the page cache, which on a
+  # virtual machine that hands freed memory back to its host is far from
+  # constant (docs/performance.md). The figures beside the ratio say how
+  # much of hypsolev's CPU time is its user time and how much dd needed.
   local k=300 m=5000
   mkdir -p "$work/arch"
   "$work/gentrack" "$m" "$work/arch/t0000.gpx" "$work/arch-base.csv"
@@ -39,16 +45,22 @@ archive() {
     local rs=()
     for p in 1 2 3 4 5; do
       rm -rf "$work/arch-out" && mkdir "$work/arch-out"
-      local x h
-      x=$(cpu xmllint --stream --noout "$work"/arch/*.gpx)
-      h=$(cpu "$exe" "${cmd[@]}" --out-dir "$work/arch-out" -j "$j")
-      rs+=("$(awk -v h="$h" -v x="$x" 'BEGIN { printf "%.3f %.2f %.2f", h / x, h, x }')")
+      local x xu h hu d bytes
+      read -r x xu < <(cpu xmllint --stream --noout "$work"/arch/*.gpx)
+      read -r h hu < <(cpu "$exe" "${cmd[@]}" --out-dir "$work/arch-out" -j "$j")
+      bytes=$(du -sb "$work/arch-out" | cut -f1)
+      rm -rf "$work/arch-out" && mkdir "$work/arch-out"
+      cpu xmllint --stream --noout "$work"/arch/*.gpx > /dev/null   # the same pause as before hypsolev
+      read -r d _ < <(cpu dd if=/dev/zero of="$work/arch-out/dd.bin" bs=256k count=$((bytes / 262144)) status=none)
+      rs+=("$(awk -v h="$h" -v x="$x" -v hu="$hu" -v d="$d" -v b="$bytes" \
+        'BEGIN { printf "%.3f %.2f %.2f %.2f %.2f %.0f", h / x, h, x, hu, d, b / 1048576 }')")
     done
-    local r hs xs
-    read -r r hs xs < <(printf '%s\n' "${rs[@]}" | sort -n | sed -n 3p)
-    printf 'archive -j %d pairs (ratio, hypsolev CPU s, xmllint CPU s): %s | %s | %s | %s | %s\n' "$j" "${rs[@]}"
-    printf 'archive of %d x %d points, -j %d: hypsolev %.2f CPU s, xmllint --stream %.2f CPU s, ratio %.2f (median of 5 pairs; target <= 1.5)\n' \
-      "$k" "$m" "$j" "$hs" "$xs" "$r"
+    local r hs xs hus ds mib
+    read -r r hs xs hus ds mib < <(printf '%s\n' "${rs[@]}" | sort -n | sed -n 3p)
+    printf 'archive -j %d rounds (ratio, hypsolev CPU s, xmllint CPU s, hypsolev user s, dd CPU s, MiB written):\n' "$j"
+    printf '  %s\n' "${rs[@]}"
+    printf 'archive of %d x %d points, -j %d: hypsolev %.2f CPU s (user %.2f s), xmllint --stream %.2f CPU s, ratio %.2f (median of 5 rounds; target <= 1.5); dd writing the same %s MiB: %.2f CPU s\n' \
+      "$k" "$m" "$j" "$hs" "$hus" "$xs" "$r" "$mib" "$ds"
   done
   rm -rf "$work/arch" "$work/arch-out"
 }
