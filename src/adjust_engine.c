@@ -44,6 +44,7 @@ void hyp__adj_opts_default(hyp__adj_opts *opts)
     opts->max_work_bytes = (size_t)512 << 20;
     opts->keep = NULL;
     opts->stop_at_kept = 0;
+    opts->rho_inseparable = 0;
 }
 
 void hyp__adj_result_init(hyp__adj_result *res)
@@ -597,6 +598,48 @@ static hyp_status push_rejection(hyp__adj_result *res, size_t i, size_t *alloc)
     return HYP_OK;
 }
 
+/* The correlation of the w-tests of observations i and j (both used and
+ * controlled): rho_ij = Qvv_ij / sqrt(Qvv_ii Qvv_jj), with Qvv = P^-1 -
+ * A Qxx A^T (uncorrelated observations: Qvv_ij = -a_i Qxx a_j^T for i != j,
+ * Qvv_ii = sigma_i^2 r_i). |rho| near 1: a blunder in either moves both w
+ * alike, so the larger |w| does not say which is wrong (Foerstner 1983,
+ * "Reliability and discernability of extended Gauss-Markov models";
+ * Caspary, Concepts of Network and Deformation Analysis, the correlation
+ * of test statistics). In a single loop every pair has |rho| = 1. */
+static double w_correlation(const hyp__adj_problem *pb, const work *ws, const hyp__adj_result *res, size_t i,
+                            size_t j)
+{
+    const hyp__adj_obs *oi = &pb->obs[i], *oj = &pb->obs[j];
+    double aqa = 0;
+    for (size_t a = 0; a < oi->n_terms; a++)
+        for (size_t b = 0; b < oj->n_terms; b++)
+            aqa += oi->terms[a].coef * oj->terms[b].coef * qxx(ws, oi->terms[a].unknown, oj->terms[b].unknown);
+    double d = oi->sigma * oj->sigma * sqrt(res->r[i] * res->r[j]);
+    return d > 0 ? -aqa / d : 0.0;
+}
+
+/* With opts->rho_inseparable: the used, controlled observation whose
+ * w-test correlates most with candidate i's beyond the bound, recorded in
+ * res; 1 when there is one. */
+static int inseparable(const hyp__adj_problem *pb, const hyp__adj_opts *opts, const work *ws,
+                       hyp__adj_result *res, size_t i)
+{
+    if (!(opts->rho_inseparable > 0))
+        return 0;
+    double best = 0;
+    for (size_t j = 0; j < pb->n_obs; j++) {
+        if (j == i || !(res->flag[j] & HYP_ADJ_USED) || res->w[j] != res->w[j])
+            continue;
+        double rho = w_correlation(pb, ws, res, i, j);
+        if (fabs(rho) >= opts->rho_inseparable && fabs(rho) > fabs(best)) {
+            best = rho;
+            res->insep_obs = j;
+        }
+    }
+    res->insep_rho = best;
+    return best != 0;
+}
+
 /* Why snooping stops before rejecting the observation with the largest |w|
  * (among those it may reject), or HYP_ADJ_SNOOP_OFF to go on. */
 static hyp__adj_snoop_stop snoop_stop_reason(const hyp__adj_opts *opts, const hyp__adj_result *res)
@@ -666,6 +709,17 @@ static hyp_status snoop_pass(const hyp__adj_problem *pb, const hyp__adj_opts *op
             continue;
         }
         size_t i = res->w_max_free_obs;
+        if (inseparable(pb, opts, ws, res, i)) {
+            res->snoop_stop = HYP_ADJ_SNOOP_INSEPARABLE;
+            if (!stale)
+                return HYP_OK;
+            hyp_error scratch;   /* fresh numbers for the set reached, as above */
+            hyp_status st = adjust_once(pb, opts, ws, res, &scratch);
+            if (st)
+                return st == HYP_ERR_NODATA ? st : hyp_error_set(err, st, "%s", scratch.message);
+            stale = 0;
+            continue;
+        }
         if (push_rejection(res, i, alloc))
             return hyp_error_set(err, HYP_ERR_NOMEM, "adjustment: out of memory recording a rejection");
         set_used(res, i, 0);
@@ -726,6 +780,8 @@ hyp_status hyp__adj_solve(const hyp__adj_problem *pb, const hyp__adj_opts *opts,
         goto out;
     res->alpha_global = opts->alpha_global;
     res->w_crit = hyp__normal_quantile(1.0 - opts->alpha_w / 2);   /* two-sided */
+    res->insep_obs = SIZE_MAX;
+    res->insep_rho = 0;
     for (size_t i = 0; i < pb->n_obs; i++)
         res->flag[i] = pb->obs[i].active ? HYP_ADJ_USED : 0;
     st = adjust_once(pb, opts, &ws, res, err);

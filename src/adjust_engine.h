@@ -61,6 +61,11 @@ typedef struct hyp__adj_opts {
                            * the largest |w| beyond the critical value is a
                            * kept one: the model, not a measurement, is then
                            * the likeliest error (0) */
+    double rho_inseparable; /* > 0: snooping stops (HYP_ADJ_SNOOP_INSEPARABLE)
+                           * rather than reject an observation whose w-test
+                           * correlates with another's beyond this in
+                           * absolute value: the data cannot tell which of
+                           * the two is wrong (0: off) */
 } hyp__adj_opts;
 
 /* Bits of hyp__adj_result.flag, per observation. */
@@ -84,7 +89,9 @@ typedef enum hyp__adj_snoop_stop {
     HYP_ADJ_SNOOP_DOF,         /* the next rejection would leave dof 0: kept */
     HYP_ADJ_SNOOP_SINGULAR,    /* the next rejection would make the network singular: kept */
     HYP_ADJ_SNOOP_LIMIT,       /* max_reject reached */
-    HYP_ADJ_SNOOP_MODEL        /* the largest |w| is a kept prior's (stop_at_kept) */
+    HYP_ADJ_SNOOP_MODEL,       /* the largest |w| is a kept prior's (stop_at_kept) */
+    HYP_ADJ_SNOOP_INSEPARABLE  /* the next rejection's w-test correlates with another
+                                * one's beyond rho_inseparable: not rejected */
 } hyp__adj_snoop_stop;
 
 typedef struct hyp__adj_rejection {
@@ -126,6 +133,9 @@ typedef struct hyp__adj_result {
     double w_max_free;    /* largest |w| among the used observations snooping may
                            * reject (not opts->keep), NaN when none: what it tests */
     size_t w_max_free_obs;/* its observation */
+    size_t insep_obs;     /* HYP_ADJ_SNOOP_INSEPARABLE: the observation that
+                           * cannot be told apart from w_max_free_obs */
+    double insep_rho;     /* the correlation of their w-tests */
 } hyp__adj_result;
 
 void hyp__adj_opts_default(hyp__adj_opts *opts);

@@ -205,6 +205,18 @@ static void fill(hyp__net *N, const layout *L, const hyp__adj_result *a)
             r->tests_failed = 1;
         }
     }
+    /* snooping stopped at two observations the data cannot tell apart (a
+     * blunder in either moves both w-tests alike): neither is taken out and
+     * both are flagged, so a wrong one is not traded for a good one */
+    size_t pair[2] = {a->w_max_free_obs, a->insep_obs};
+    for (int q = 0; q < 2 && a->snoop_stop == HYP_ADJ_SNOOP_INSEPARABLE; q++) {
+        if (pair[q] >= L->n_rows)
+            continue;
+        hyp_network_obs *o = &r->obs[L->row_obs[pair[q]]];
+        snprintf(o->flag, sizeof o->flag, "fails the w-test with another flagged so (their w-tests correlate %+.3f): "
+                 "the data cannot tell which is wrong; neither taken out", a->insep_rho);
+        r->tests_failed = 1;
+    }
     for (size_t s = 0; s < r->stations.count; s++) {
         hyp_network_station *t = &r->st[s];
         t->control = r->stations.height_m[s] == r->stations.height_m[s];
@@ -364,6 +376,9 @@ hyp_status hyp__net_adjust(hyp__net *N, hyp_error *err)
     }
     ao.keep = keep;
     ao.stop_at_kept = 1;
+    /* our choice, no source: |rho| 0.99 between two w-tests leaves their
+     * |w| within a few per cent of each other at any blunder size */
+    ao.rho_inseparable = 0.99;
     hyp__adj_problem pb = {L.n_unknowns, (const char *const *)L.names, L.n_rows + extra, L.rows};
     hyp__adj_result a;
     hyp__adj_result_init(&a);

@@ -919,6 +919,53 @@ static void test_random_snoop(void **state)
     rnet_free(&rn);
 }
 
+/* Two observations no other determines cannot be told apart: unknowns x
+ * and y; x observed three times (0, 0, 0 m), y - x twice (0 and 1 m), all
+ * with sigma 0.1 m. By hand (the weighted mean, Ghilani & Wolf, Adjustment
+ * Computations): y - x = 0.5, v = +0.5 and -0.5 m, r = 0.5 each, w = +-0.5
+ * / (0.1 sqrt 0.5) = +-7.07107; Qvv_45 = -a4 Qxx a5 = -(0.1^2 / 2),
+ * Qvv_44 = Qvv_55 = 0.1^2 * 0.5, so their w-tests correlate exactly -1:
+ * either 1 m or 0 m may be the blunder. Without the bound snooping rejects
+ * one of them (by the order of the rows); with it, neither, and both stay
+ * flagged. */
+static void test_snoop_inseparable(void **state)
+{
+    (void)state;
+    hyp__adj_term t[7] = {{0, 1.0}, {0, 1.0}, {0, 1.0}, {1, 1.0}, {0, -1.0}, {1, 1.0}, {0, -1.0}};
+    hyp__adj_obs obs[5] = {
+        {&t[0], 1, 0.0, 0.1, "x1", 1}, {&t[1], 1, 0.0, 0.1, "x2", 1}, {&t[2], 1, 0.0, 0.1, "x3", 1},
+        {&t[3], 2, 0.0, 0.1, "d1", 1}, {&t[5], 2, 1.0, 0.1, "d2", 1},
+    };
+    hyp__adj_problem pb = {2, NULL, 5, obs};
+    hyp__adj_opts o;
+    hyp__adj_opts_default(&o);
+    o.snoop = 1;
+    hyp__adj_result res;
+    hyp__adj_result_init(&res);
+    hyp_error err;
+    assert_int_equal(hyp__adj_solve(&pb, &o, &res, &err), HYP_OK);
+    assert_int_equal(res.n_rejections, 1);
+    assert_near(fabs(res.rejections[0].w), 7.07107, 1e-5);
+    o.rho_inseparable = 0.99;
+    assert_int_equal(hyp__adj_solve(&pb, &o, &res, &err), HYP_OK);
+    assert_int_equal(res.n_rejections, 0);
+    assert_int_equal(res.snoop_stop, HYP_ADJ_SNOOP_INSEPARABLE);
+    assert_near(res.insep_rho, -1.0, 1e-9);
+    size_t a = res.w_max_free_obs, b = res.insep_obs;
+    assert_true((a == 3 && b == 4) || (a == 4 && b == 3));
+    assert_near(res.w[3], 7.07107, 1e-5);
+    assert_near(res.w[4], -7.07107, 1e-5);
+    assert_true((res.flag[3] & HYP_ADJ_OUTLIER) && (res.flag[4] & HYP_ADJ_OUTLIER));
+    /* a blunder the data can place is still rejected with the bound on */
+    obs[4].value = 0.0;
+    obs[2].value = 1.0;
+    assert_int_equal(hyp__adj_solve(&pb, &o, &res, &err), HYP_OK);
+    assert_int_equal(res.n_rejections, 1);
+    assert_int_equal(res.rejections[0].obs, 2);
+    assert_int_equal(res.snoop_stop, HYP_ADJ_SNOOP_CLEAN);
+    hyp__adj_result_free(&res);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -938,6 +985,7 @@ int main(void)
         cmocka_unit_test(test_random_snoop),
         cmocka_unit_test(test_snoop_keep),
         cmocka_unit_test(test_snoop_stop_at_kept),
+        cmocka_unit_test(test_snoop_inseparable),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
