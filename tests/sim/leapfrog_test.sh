@@ -80,12 +80,9 @@ done
 diff <(cut -d, -f1-3 "$work/l/stations.csv") <(cut -d, -f1-3 "$work/g/stations.csv") > /dev/null ||
   bad "--singular moved or renamed a station"
 
-# awk_lib, sim_points, sim_check_headers: tests/sim/sim_checks.sh
+# awk_lib, sim_folder_start: tests/sim/sim_checks.sh
 # shellcheck source=sim_checks.sh
 . "$(dirname "$0")/sim_checks.sh"
-
-# one line per track point: rover time lat lon pressure_hPa temperature_degC
-points() { sim_points "$1" 'r?.gpx'; }
 
 # The files of one folder agree: headers, control heights = truth, every
 # booking inside its true window and its track, the GNSS fixes of each true
@@ -93,9 +90,8 @@ points() { sim_points "$1" 'r?.gpx'; }
 # over 5 sigma, as network_test.sh).
 check_folder() {
   local d=$1 tag=$2
-  points "$d" > "$d.points"
-  [ -s "$d.points" ] || { bad "$tag: no track points read"; return; }
-  sim_check_headers "$d" "$tag"
+  # $d.points: rover time lat lon pressure_hPa temperature_degC
+  sim_folder_start "$d" "$tag" 'r?.gpx' || return
   awk "$awk_lib"'
     FNR == 1 && FILENAME !~ /points$/ { next }
     FILENAME ~ /\/truth.csv$/ { h[$1] = $2; next }

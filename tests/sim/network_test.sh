@@ -44,19 +44,14 @@ rc=$?
   bad "impossible --mislabel: exit $rc, message: $(cat "$work/err"), files: $(ls "$work/y" | head -3)"
 
 # --- consistency of one survey folder ---
-# awk_lib, sim_points, sim_check_headers: tests/sim/sim_checks.sh
+# awk_lib, sim_folder_start: tests/sim/sim_checks.sh
 # shellcheck source=sim_checks.sh
 . "$(dirname "$0")/sim_checks.sh"
 
-# one line per track point: file time lat lon pressure_hPa temperature_degC
-points() { sim_points "$1" 'r*-day*.gpx'; }
-
 check_folder() {
   local d=$1 tag=$2
-  points "$d" > "$d.points"
-  [ -s "$d.points" ] || { bad "$tag: no track points read"; return; }
-  # stations.csv, truth.csv and bases.csv
-  sim_check_headers "$d" "$tag"
+  # $d.points: file time lat lon pressure_hPa temperature_degC; headers
+  sim_folder_start "$d" "$tag" 'r*-day*.gpx' || return
   [ "$(head -1 "$d/bases.csv")" = "file,height,lat,lon,clock_offset,kind" ] || bad "$tag: bases.csv header"
   awk -F, -v tag="$tag" '
     FNR == 1 { next }

@@ -1,3 +1,4 @@
+# shellcheck shell=bash
 # sim_checks.sh - what the checks of the simulator's surveys with several
 # standings (network_test.sh, leapfrog_test.sh) share. Sourced, after the
 # caller has defined bad() (prints FAIL and counts a failure).
@@ -33,6 +34,7 @@
 # start oa), the mean height dz/c above ref_h must lie within 2 m of the
 # true height h[station]; none says what a missing sample means. Returns
 # the largest error, m.
+# shellcheck disable=SC2034,SC2016  # for the caller; awk code, not shell
 awk_lib='
 function iso2s(t,   y, m, d, era, yoe, doy, doe) {
   y = substr(t, 1, 4) + 0; m = substr(t, 6, 2) + 0; d = substr(t, 9, 2) + 0
@@ -103,10 +105,15 @@ sim_points() {
   done
 }
 
-# sim_check_headers DIR TAG: the header lines of stations.csv, truth.csv
-# and fieldbook.csv.
-sim_check_headers() {
+# sim_folder_start DIR TAG GLOB: the start of a folder's checks. Writes
+# DIR.points (sim_points DIR GLOB), failing with status 1 when there is no
+# point; checks the header lines of stations.csv, truth.csv and
+# fieldbook.csv.
+sim_folder_start() {
+  sim_points "$1" "$3" > "$1.points"
+  [ -s "$1.points" ] || { bad "$2: no track points read"; return 1; }
   [ "$(head -1 "$1/stations.csv")" = "name,lat,lon,height,sigma" ] || bad "$2: stations.csv header"
   [ "$(head -1 "$1/truth.csv")" = "name,height" ] || bad "$2: truth.csv header"
   [ "$(head -1 "$1/fieldbook.csv")" = "station,rover,start,end" ] || bad "$2: fieldbook.csv header"
+  return 0
 }
