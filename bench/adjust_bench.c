@@ -9,26 +9,14 @@
  *      src/distrib.c src/error.c -llapacke -lm && /tmp/adjust_bench [N M] */
 #include "../src/adjust_engine.c"
 
+#include "bench_util.h"
+
 #include <sys/resource.h>
 #include <time.h>
 
-/* CPU time of the process: on a shared machine wall time says more about
- * the other jobs than about this one. */
-static double now_s(void)
+static double uniform(void)   /* in (0, 1): never 0, for log() */
 {
-    struct timespec t;
-    clock_gettime(CLOCK_PROCESS_CPUTIME_ID, &t);
-    return (double)t.tv_sec + 1e-9 * (double)t.tv_nsec;
-}
-
-static uint64_t rng_state = 12345;
-
-static double uniform(void)   /* splitmix64 (Steele, Lea and Flood 2014) */
-{
-    uint64_t z = (rng_state += 0x9e3779b97f4a7c15ULL);
-    z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ULL;
-    z = (z ^ (z >> 27)) * 0x94d049bb133111ebULL;
-    return ((double)((z ^ (z >> 31)) >> 11) + 0.5) / 9007199254740992.0;
+    return ((double)bench_bits53() + 0.5) / BENCH_TWO_POW_53;
 }
 
 static double normal(void)
@@ -75,20 +63,20 @@ static void phases(const hyp__adj_problem *pb)
     }
     for (size_t i = 0; i < pb->n_obs; i++)
         res.flag[i] = HYP_ADJ_USED;
-    double t0 = now_s();
+    double t0 = bench_now_s();
     check_datum(pb, res.flag, &ws, &err);
-    double t1 = now_s();
+    double t1 = bench_now_s();
     build_normal(pb, res.flag, &ws);
-    double t2 = now_s();
+    double t2 = bench_now_s();
     if (factor_solve(pb, &o, &ws, &res, &err)) {
         fprintf(stderr, "%s\n", err.message);
         exit(1);
     }
-    double t3 = now_s();
+    double t3 = bench_now_s();
     invert(&ws, &err);
-    double t4 = now_s();
+    double t4 = bench_now_s();
     obs_stats(pb, &o, &ws, &res);
-    double t5 = now_s();
+    double t5 = bench_now_s();
     printf("phases: datum check %.3f s, normal matrix %.3f s, scale + dpotrf + dpocon + dpotrs %.3f s, "
            "dpotri %.3f s, residuals/redundancy/w %.3f s\n", t1 - t0, t2 - t1, t3 - t2, t4 - t3, t5 - t4);
     work_free(&ws);
@@ -101,12 +89,12 @@ static double timed_solve(const hyp__adj_problem *pb, int snoop_on, hyp__adj_res
     hyp__adj_opts_default(&o);
     o.snoop = snoop_on;
     hyp_error err;
-    double t0 = now_s();
+    double t0 = bench_now_s();
     if (hyp__adj_solve(pb, &o, res, &err)) {
         fprintf(stderr, "%s\n", err.message);
         exit(1);
     }
-    return now_s() - t0;
+    return bench_now_s() - t0;
 }
 
 int main(int argc, char **argv)

@@ -8,15 +8,11 @@
 set -euo pipefail
 n=${1:-3600}
 m=${2:-10000}
-top=$(cd "$(dirname "$0")/.." && pwd)
-build=${3:-$top/build}
-exe=$build/hypsolev
-work=$(mktemp -d)
-trap 'rm -rf "$work"' EXIT
+# shellcheck source=bench_lib.sh
+. "$(dirname "$0")/bench_lib.sh"
+bench_setup "${3:-}"
 cc -O2 -D_DEFAULT_SOURCE -I"$top/include" -I"$top/src" -o "$work/match_bench" "$top/bench/match_bench.c" \
   "$top/src/near_index.c" "$top/src/geo.c" "$top/src/error.c" -lproj -lm
-cc -O2 -o "$work/gentrack" "$top/bench/gentrack.c" -lm
-cc -O2 -o "$work/peakrss" "$top/bench/peakrss.c"
 "$work/match_bench" "$n" "$m"
 "$work/gentrack" "$n" "$work/track.gpx" "$work/base.csv"
 # benchmarks over a 5 km square about the track (invented names)
@@ -28,7 +24,8 @@ run=(correct "$work/track.gpx" --base "$work/base.csv" --base-height 800 --bench
 walls=()
 for k in 1 2 3; do
   rm -f "$work/out.gpx"
-  walls+=("$("$work/peakrss" "$exe" "${run[@]}" 2>&1 >/dev/null | sed -n 's/^peak_rss_kib [0-9]* wall_s \([0-9.]*\) .*$/\1/p')")
+  read -r _ w < <(bench_measure "$exe" "${run[@]}")
+  walls+=("$w")
 done
 printf 'hypsolev correct, %s points, %s benchmarks: %s s (median of 3 runs: %s s; target: seconds at most)\n' "$n" "$m" \
-  "$(printf '%s\n' "${walls[@]}" | sort -n | sed -n 2p)" "${walls[*]}"
+  "$(bench_median "${walls[@]}")" "${walls[*]}"

@@ -11,6 +11,7 @@
  *      src/near_index.c src/geo.c src/error.c -lproj -lm && /tmp/match_bench [POINTS [BENCHMARKS]] */
 #include "near_index.h"
 #include "hypsolev/samples.h"
+#include "bench_util.h"
 
 #include <math.h>
 #include <stdio.h>
@@ -18,21 +19,9 @@
 #include <string.h>
 #include <time.h>
 
-static double now_s(void)
+static double uniform(void)   /* in [0, 1) */
 {
-    struct timespec t;
-    clock_gettime(CLOCK_PROCESS_CPUTIME_ID, &t);
-    return (double)t.tv_sec + 1e-9 * (double)t.tv_nsec;
-}
-
-static uint64_t rng_state = 12345;
-
-static double uniform(void)   /* splitmix64 (Steele, Lea and Flood 2014) */
-{
-    uint64_t z = (rng_state += 0x9e3779b97f4a7c15ULL);
-    z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ULL;
-    z = (z ^ (z >> 27)) * 0x94d049bb133111ebULL;
-    return (double)((z ^ (z >> 31)) >> 11) / 9007199254740992.0;
+    return (double)bench_bits53() / BENCH_TWO_POW_53;
 }
 
 /* Room for n indices in *p (capacity *cap); 0 or -1 out of memory. */
@@ -48,6 +37,19 @@ static int grow(size_t **p, size_t *cap, size_t n)
         return -1;
     *p = q;
     *cap = nc;
+    return 0;
+}
+
+/* One benchmark's samples idx[0..got-1] kept flat: appended to *flat
+ * (capacity *cap) after the *hits kept before; off[k + 1] becomes the new
+ * count. 0, or -1 out of memory. */
+static int keep_hits(size_t **flat, size_t *cap, size_t *off, size_t k, size_t *hits, const size_t *idx, size_t got)
+{
+    *hits += got;
+    off[k + 1] = *hits;
+    if (grow(flat, cap, *hits))
+        return -1;
+    memcpy(*flat + off[k], idx, got * sizeof *idx);
     return 0;
 }
 
@@ -81,33 +83,25 @@ int main(int argc, char **argv)
     size_t *oa = calloc(m + 1, sizeof *oa), *ob = calloc(m + 1, sizeof *ob);
     if (!oa || !ob)
         return 1;
-    double t0 = now_s();
+    double t0 = bench_now_s();
     for (size_t k = 0; k < m; k++) {
         size_t got;
-        if (hyp__near_exhaustive(la, lo, n, bla[k], blo[k], radius_m, &b, &got, &cb))
+        if (hyp__near_exhaustive(la, lo, n, bla[k], blo[k], radius_m, &b, &got, &cb) ||
+            keep_hits(&b2, &c2, ob, k, &hits_old, b, got))
             return 1;
-        hits_old += got;
-        ob[k + 1] = hits_old;
-        if (grow(&b2, &c2, hits_old))
-            return 1;
-        memcpy(b2 + ob[k], b, got * sizeof *b);
     }
-    double t1 = now_s();
+    double t1 = bench_now_s();
     hyp__near_index ix;
     if (hyp__near_index_build(&ix, la, lo, n, radius_m))
         return 1;
-    double t2 = now_s();
+    double t2 = bench_now_s();
     for (size_t k = 0; k < m; k++) {
         size_t got;
-        if (hyp__near_index_query(&ix, bla[k], blo[k], radius_m, &a, &got, &ca))
+        if (hyp__near_index_query(&ix, bla[k], blo[k], radius_m, &a, &got, &ca) ||
+            keep_hits(&a2, &c1, oa, k, &hits_new, a, got))
             return 1;
-        hits_new += got;
-        oa[k + 1] = hits_new;
-        if (grow(&a2, &c1, hits_new))
-            return 1;
-        memcpy(a2 + oa[k], a, got * sizeof *a);
     }
-    double t3 = now_s();
+    double t3 = bench_now_s();
     for (size_t k = 0; k < m; k++) {
         na = oa[k + 1] - oa[k];
         nb = ob[k + 1] - ob[k];

@@ -10,17 +10,11 @@
 # over the same files; HYP_BENCH_ONLY=archive runs only that part.
 set -euo pipefail
 n=${1:-1000000}
-top=$(cd "$(dirname "$0")/.." && pwd)
-build=${2:-$top/build}
-exe=$build/hypsolev
-work=$(mktemp -d)
-trap 'rm -rf "$work"' EXIT
-cc -O2 -o "$work/gentrack" "$top/bench/gentrack.c" -lm
-cc -O2 -o "$work/peakrss" "$top/bench/peakrss.c"
+# shellcheck source=bench_lib.sh
+. "$(dirname "$0")/bench_lib.sh"
+bench_setup "${2:-}"
 command -v xmllint > /dev/null || { echo "xmllint missing: apt-get install libxml2-utils"; exit 1; }
-measure() {   # prints "rss_kib wall_s"
-  "$work/peakrss" "$@" 2>&1 >/dev/null | sed -n 's/^peak_rss_kib \([0-9]*\) wall_s \([0-9.]*\) cpu_s.*$/\1 \2/p'
-}
+measure() { bench_measure "$@"; }   # prints "rss_kib wall_s"
 cpu() {   # prints "cpu_s user_s" (user + system, and user alone)
   "$work/peakrss" "$@" 2>&1 >/dev/null | sed -n 's/^peak_rss_kib .* cpu_s \([0-9.]*\) user_s \([0-9.]*\)$/\1 \2/p'
 }
@@ -56,7 +50,7 @@ archive() {
         'BEGIN { printf "%.3f %.2f %.2f %.2f %.2f %.0f", h / x, h, x, hu, d, b / 1048576 }')")
     done
     local r hs xs hus ds mib
-    read -r r hs xs hus ds mib < <(printf '%s\n' "${rs[@]}" | sort -n | sed -n 3p)
+    read -r r hs xs hus ds mib < <(bench_median "${rs[@]}")
     printf 'archive -j %d rounds (ratio, hypsolev CPU s, xmllint CPU s, hypsolev user s, dd CPU s, MiB written):\n' "$j"
     printf '  %s\n' "${rs[@]}"
     printf 'archive of %d x %d points, -j %d: hypsolev %.2f CPU s (user %.2f s), xmllint --stream %.2f CPU s, ratio %.2f (median of 5 rounds; target <= 1.5); dd writing the same %s MiB: %.2f CPU s\n' \
@@ -80,7 +74,7 @@ for k in 1 2 3 4 5; do
   read -r h_rss h_s < <(measure "$exe" "${run[@]}")
   ratios+=("$(awk -v h="$h_s" -v x="$x_s" 'BEGIN { printf "%.3f %.2f %.2f", h / x, h, x }')")
 done
-read -r ratio h_s x_s < <(printf '%s\n' "${ratios[@]}" | sort -n | sed -n 3p)
+read -r ratio h_s x_s < <(bench_median "${ratios[@]}")
 # The HTML report's cost: the same run without and with --report x.html,
 # back to back, five pairs; the median pair's ratio is the figure.
 reps=()
@@ -91,7 +85,7 @@ for k in 1 2 3 4 5; do
   read -r r_rss b_s < <(measure "$exe" "${run[@]}" --report "$work/r.html")
   reps+=("$(awk -v a="$a_s" -v b="$b_s" -v m="$r_rss" 'BEGIN { printf "%.3f %.2f %.2f %d", b / a, a, b, m }')")
 done
-read -r rep_ratio rep_a rep_b rep_rss < <(printf '%s\n' "${reps[@]}" | sort -n | sed -n 3p)
+read -r rep_ratio rep_a rep_b rep_rss < <(bench_median "${reps[@]}")
 rep_size=$(stat -c %s "$work/r.html")
 # the fixed part of the memory: the same command on a 1000-point track
 "$work/gentrack" 1000 "$work/small.gpx" "$work/small.csv"
@@ -123,7 +117,7 @@ for k in 1 2 3 4 5; do
   read -r _ j2 < <(measure "$exe" "${batch[@]}" --out-dir "$work/o2" -j 2)
   ups+=("$(awk -v a="$j1" -v b="$j2" 'BEGIN { printf "%.3f %.2f %.2f", a / b, a, b }')")
 done
-read -r up j1 j2 < <(printf '%s\n' "${ups[@]}" | sort -n | sed -n 3p)
+read -r up j1 j2 < <(bench_median "${ups[@]}")
 printf 'batch pairs (speed-up, -j 1 s, -j 2 s): %s | %s | %s | %s | %s\n' "${ups[@]}"
 awk -v a="$j1" -v b="$j2" -v u="$up" 'BEGIN { printf "batch of 8: -j 1 %.2f s, -j 2 %.2f s, speed-up %.2f (median of 5 pairs; target >= 1.6)\n", a, b, u }'
 archive

@@ -208,13 +208,7 @@ static hyp_status run_track(hyp__net *N, size_t k, int threads, hyp_error *err)
         return HYP_OK;
     }
     const hyp_series *s = run->rover;
-    t->t0_s = t->t1_s = NAN;
-    for (size_t i = 0; i < s->count; i++)
-        if (!s->flag[i]) {
-            if (t->t0_s != t->t0_s)
-                t->t0_s = s->time_s[i];
-            t->t1_s = s->time_s[i];
-        }
+    hyp__net_track_span(t, s);
     hyp__window *w = NULL;
     size_t nw = 0;
     st = colocations(N, k, run, err);

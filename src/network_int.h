@@ -46,6 +46,9 @@ typedef struct hyp__net {
  * comparisons of that kind (network.c). */
 double hyp__net_bridge_s(const hyp__net *N, size_t k, double t, hyp_obs_kind kind);
 hyp_network_obs *hyp__net_push(hyp__net *N, hyp_obs_kind kind, double c, double dt_h);
+/* The track's first and last time (t0_s, t1_s) over the samples of s that
+ * are not flagged; both NaN when every sample is (network_obs.c). */
+void hyp__net_track_span(hyp_network_track *t, const hyp_series *s);
 hyp_status hyp__net_occupation(hyp__net *N, size_t k, const hyp_rover_run *run, const hyp__window *win,
                                hyp_error *err);
 /* The windows of track k (book, waypoints, found), merged, into *out:

@@ -7,30 +7,40 @@
 #include <stdlib.h>
 #include <string.h>
 
+void hyp__net_track_span(hyp_network_track *t, const hyp_series *s)
+{
+    t->t0_s = t->t1_s = NAN;
+    for (size_t i = 0; i < s->count; i++)
+        if (!s->flag[i]) {
+            if (t->t0_s != t->t0_s)
+                t->t0_s = s->time_s[i];
+            t->t1_s = s->time_s[i];
+        }
+}
+
+/* *p grown to na doubles: 1, or 0 out of memory (*p as it was). */
+static int grow_doubles(double **p, size_t na)
+{
+    double *q = realloc(*p, na * sizeof *q);
+    if (q)
+        *p = q;
+    return q != NULL;
+}
+
 hyp_network_obs *hyp__net_push(hyp__net *N, hyp_obs_kind kind, double c, double dt_h)
 {
     hyp_network_result *r = N->r;
     if (r->n_obs == N->obs_alloc) {
         size_t na = N->obs_alloc ? 2 * N->obs_alloc : 256;
         hyp_network_obs *o = realloc(r->obs, na * sizeof *o);
-        double *cc = realloc(N->coef, na * sizeof *cc);
-        if (cc)
-            N->coef = cc;
-        double *dd = cc ? realloc(N->dt_h, na * sizeof *dd) : NULL;
-        if (dd)
-            N->dt_h = dd;
-        double *c2 = dd ? realloc(N->coef2, na * sizeof *c2) : NULL;
-        if (c2)
-            N->coef2 = c2;
-        double *d2 = c2 ? realloc(N->dt2_h, na * sizeof *d2) : NULL;
-        if (d2)
-            N->dt2_h = d2;
-        size_t *nd = d2 ? realloc(N->node, na * sizeof *nd) : NULL;
-        if (nd)
-            N->node = nd;
         if (o)
             r->obs = o;
-        if (!o || !nd)
+        int ok = o && grow_doubles(&N->coef, na) && grow_doubles(&N->dt_h, na) && grow_doubles(&N->coef2, na) &&
+                 grow_doubles(&N->dt2_h, na);
+        size_t *nd = ok ? realloc(N->node, na * sizeof *nd) : NULL;
+        if (nd)
+            N->node = nd;
+        if (!nd)
             return NULL;
         N->obs_alloc = na;
     }

@@ -88,13 +88,7 @@ hyp_status hyp__net_raw_track(hyp__net *N, size_t k, hyp_error *err)
     const hyp__log *lg = &N->raw[k];
     const hyp_series *s = hyp__log_series(lg);
     t->raw = 1;
-    t->t0_s = t->t1_s = NAN;
-    for (size_t i = 0; i < s->count; i++)
-        if (!s->flag[i]) {
-            if (t->t0_s != t->t0_s)
-                t->t0_s = s->time_s[i];
-            t->t1_s = s->time_s[i];
-        }
+    hyp__net_track_span(t, s);
     if (!(t->t0_s == t->t0_s)) {
         t->status = HYP_ERR_NODATA;
         snprintf(t->error, sizeof t->error, "no sample with a time and a pressure");

@@ -336,6 +336,17 @@ static void test_normal_quantile(void **state)
 
 /* ---- global test and data snooping ---- */
 
+/* The default options with data snooping on; keep: NULL, or one flag per
+ * observation (nonzero: kept, never rejected). */
+static hyp__adj_opts snoop_opts(const unsigned char *keep)
+{
+    hyp__adj_opts o;
+    hyp__adj_opts_default(&o);
+    o.snoop = 1;
+    o.keep = keep;
+    return o;
+}
+
 /* Clean data: the global test passes, snooping rejects nothing (largest |w|
  * 0.76 in Ghilani's network and 1.68 in Gama's, far below 3.29). Sigmas
  * three times too small: v^T P v grows ninefold, 11.45 > 9.348 and
@@ -343,9 +354,7 @@ static void test_normal_quantile(void **state)
 static void test_global_and_clean(void **state)
 {
     (void)state;
-    hyp__adj_opts o;
-    hyp__adj_opts_default(&o);
-    o.snoop = 1;
+    hyp__adj_opts o = snoop_opts(NULL);
     net nt;
     hyp__adj_result res;
     hyp__adj_result_init(&res);
@@ -377,9 +386,7 @@ static void test_global_and_clean(void **state)
  * lie within 2 a-priori sigmas of the published blunder-free heights. */
 static void snoop_case(net *nt, size_t k, const double *clean_x)
 {
-    hyp__adj_opts o;
-    hyp__adj_opts_default(&o);
-    o.snoop = 1;
+    hyp__adj_opts o = snoop_opts(NULL);
     hyp__adj_result res, ref;
     hyp__adj_result_init(&res);
     hyp__adj_result_init(&ref);
@@ -431,9 +438,7 @@ static void test_snoop_dof_stop(void **state)
     lev a = {"P", "Q", 1.000, 0.002}, b = {"P", "Q", 1.050, 0.002};
     net_lev(&nt, &a, "P", 100.0);
     net_lev(&nt, &b, "P", 100.0);
-    hyp__adj_opts o;
-    hyp__adj_opts_default(&o);
-    o.snoop = 1;
+    hyp__adj_opts o = snoop_opts(NULL);
     hyp__adj_result res;
     hyp__adj_result_init(&res);
     solve_ok(&nt, &o, &res);
@@ -464,9 +469,7 @@ static void test_snoop_limit_and_singular(void **state)
     gama_net(&nt);
     nt.obs[0].value += 0.05;
     nt.obs[2].value -= 0.05;
-    hyp__adj_opts o;
-    hyp__adj_opts_default(&o);
-    o.snoop = 1;
+    hyp__adj_opts o = snoop_opts(NULL);
     o.max_reject = 1;
     hyp__adj_result res, with, without;
     hyp__adj_result_init(&res);
@@ -681,10 +684,7 @@ static void test_snoop_keep(void **state)
     };
     unsigned char keep[3] = {0, 0, 0};
     hyp__adj_problem pb = {1, NULL, 3, obs};
-    hyp__adj_opts o;
-    hyp__adj_opts_default(&o);
-    o.snoop = 1;
-    o.keep = keep;
+    hyp__adj_opts o = snoop_opts(keep);
     hyp__adj_result res;
     hyp__adj_result_init(&res);
     hyp_error err;
@@ -726,10 +726,7 @@ static void test_snoop_stop_at_kept(void **state)
     };
     unsigned char keep[4] = {0, 0, 0, 1};
     hyp__adj_problem pb = {1, NULL, 4, obs};
-    hyp__adj_opts o;
-    hyp__adj_opts_default(&o);
-    o.snoop = 1;
-    o.keep = keep;
+    hyp__adj_opts o = snoop_opts(keep);
     hyp__adj_result res;
     hyp__adj_result_init(&res);
     hyp_error err;
@@ -886,9 +883,7 @@ static void test_random_snoop(void **state)
     rnet rn;
     rnet_make(&rn, 20240611);
     rn.obs[1500].value += 10.0 * rn.obs[1500].sigma;
-    hyp__adj_opts o;
-    hyp__adj_opts_default(&o);
-    o.snoop = 1;
+    hyp__adj_opts o = snoop_opts(NULL);
     hyp__adj_result res, fresh;
     hyp__adj_result_init(&res);
     hyp__adj_result_init(&fresh);

@@ -141,17 +141,25 @@ static void test_resetting_found(void **state)
     free(tr.h);
 }
 
-static hyp_rover_run *run_one(const char *rover, const char *field)
+/* A new survey with the default options and, if field is not NULL,
+ * --baro-altitude field; msgs is initialised here. */
+static hyp_survey *new_survey(const char *field, hyp_msgs *msgs, hyp_error *err)
 {
     hyp_survey_opts o;
     hyp_survey_opts_init(&o);
-    hyp_error err;
     if (field)
-        assert_int_equal(hyp_survey_opts_set(&o, "baro-altitude", field, &err), HYP_OK);
+        assert_int_equal(hyp_survey_opts_set(&o, "baro-altitude", field, err), HYP_OK);
     hyp_survey *sv;
+    hyp_msgs_init(msgs);
+    assert_int_equal(hyp_survey_new(&sv, &o, msgs, err), HYP_OK);
+    return sv;
+}
+
+static hyp_rover_run *run_one(const char *rover, const char *field)
+{
+    hyp_error err;
     hyp_msgs msgs;
-    hyp_msgs_init(&msgs);
-    assert_int_equal(hyp_survey_new(&sv, &o, &msgs, &err), HYP_OK);
+    hyp_survey *sv = new_survey(field, &msgs, &err);
     hyp_base_spec b;
     hyp_base_spec_init(&b, SIM_DIR "/base.csv", scenario_value(SIM_DIR, "base_height_m"));
     b.lat_deg = scenario_value(SIM_DIR, "base_lat");
@@ -307,15 +315,9 @@ static void network_track_as_altitudes(const char *in, const char *out, double r
 
 static hyp_network_result *adjust(const char *dir, const char *field, const char *const *tracks)
 {
-    hyp_survey_opts o;
-    hyp_survey_opts_init(&o);
     hyp_error err;
-    if (field)
-        assert_int_equal(hyp_survey_opts_set(&o, "baro-altitude", field, &err), HYP_OK);
-    hyp_survey *sv;
     hyp_msgs m;
-    hyp_msgs_init(&m);
-    assert_int_equal(hyp_survey_new(&sv, &o, &m, &err), HYP_OK);
+    hyp_survey *sv = new_survey(field, &m, &err);
     assert_int_equal(hyp_survey_add_base_dir(sv, dir, &m, &err), HYP_OK);
     hyp_network_opts no;
     hyp_network_opts_init(&no);

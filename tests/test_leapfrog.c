@@ -143,7 +143,10 @@ static void write_book(const plan *p, const char *const *names, int n_rovers)
     fclose(f);
 }
 
-static hyp_status run(const char *const *names, int n_rovers, hyp_network_result **res, hyp_error *err)
+/* The network run on dir's rovers names[0..n_rovers-1] (NAME.csv),
+ * stations.csv and book.csv, with the base logger base if not NULL. */
+static hyp_status run_with_base(const char *const *names, int n_rovers, const hyp_base_spec *base,
+                                hyp_network_result **res, hyp_error *err)
 {
     char paths[4][700], stations[700], book[700];
     const char *pp[4];
@@ -159,6 +162,8 @@ static hyp_status run(const char *const *names, int n_rovers, hyp_network_result
     hyp_msgs m;
     hyp_msgs_init(&m);
     assert_int_equal(hyp_survey_new(&sv, &so, &m, err), HYP_OK);
+    if (base && hyp_survey_add_base(sv, base, &m, err))
+        fail_msg("%s", err->message);
     hyp_network_opts no;
     hyp_network_opts_init(&no);
     no.stations_path = stations;
@@ -172,6 +177,29 @@ static hyp_status run(const char *const *names, int n_rovers, hyp_network_result
     hyp_survey_free(sv);
     hyp_msgs_free(&m);
     return st;
+}
+
+static hyp_status run(const char *const *names, int n_rovers, hyp_network_result **res, hyp_error *err)
+{
+    return run_with_base(names, n_rovers, NULL, res, err);
+}
+
+/* How many of the result's observations are of kind k. */
+static size_t count_obs(const hyp_network_result *r, hyp_obs_kind k)
+{
+    size_t n = 0;
+    for (size_t i = 0; i < r->n_obs; i++)
+        n += r->obs[i].kind == k;
+    return n;
+}
+
+/* Plan p: the stations seq[0..n-1] in turn from t_start, 10 min on each,
+ * 10 min walks. */
+static void plan_seq(plan *p, const int *seq, int n, double t_start)
+{
+    memset(p, 0, sizeof *p);
+    for (int j = 0; j < n; j++)
+        p->st[p->n] = seq[j], p->t0[p->n] = t_start + j * 1200.0, p->t1[p->n++] = t_start + j * 1200.0 + 600.0;
 }
 
 static int has_msg(const hyp_network_result *r, const char *text)
@@ -270,15 +298,22 @@ static void traverse_plans(plan *a, plan *b)
     a->st[a->n] = NS - 1, a->t0[a->n] = T0_S + NS * T, a->t1[a->n++] = T0_S + NS * T + D;
 }
 
-static hyp_network_result *traverse(double b_extra_pa)
+/* The traverse's true heights H, stations.csv (S0 and S9 known) and the
+ * two instruments' plans p[0], p[1]. */
+static void traverse_stations(plan *p)
 {
     for (int i = 0; i < NS; i++)
         H[i] = 520.0 + 40.0 * i + 7.0 * sin(1.3 * i);
     int known[NS] = {0};
     known[0] = known[NS - 1] = 1;
     write_stations(NS, H, known);
-    plan p[2];
     traverse_plans(&p[0], &p[1]);
+}
+
+static hyp_network_result *traverse(double b_extra_pa)
+{
+    plan p[2];
+    traverse_stations(p);
     const char *names[2] = {"inst-a", "inst-b"};
     lcg = 12345u;
     write_rover("inst-a", &p[0], H, 80.0, 5.0);
@@ -309,9 +344,7 @@ static void test_traverse(void **state)
         assert_string_equal(res->st[i].method, "leapfrog");
     }
     double rmse = sqrt(s2 / (double)n);
-    size_t legs = 0, sbs = 0;
-    for (size_t i = 0; i < res->n_obs; i++)
-        legs += res->obs[i].kind == HYP_OBS_LEAPFROG, sbs += res->obs[i].kind == HYP_OBS_SIDE_BY_SIDE;
+    size_t legs = count_obs(res, HYP_OBS_LEAPFROG), sbs = count_obs(res, HYP_OBS_SIDE_BY_SIDE);
     print_message("traverse: RMSE %.3f m over %zu stations, %zu within 2 sigma; %zu legs, %zu side by side; "
                   "index a %.1f +- %.1f Pa (made 80), b %.1f +- %.1f Pa (made -50)\n", rmse, n, inside, legs, sbs,
                   res->tracks[0].offset_pa, res->tracks[0].offset_sigma_pa, res->tracks[1].offset_pa,
@@ -396,18 +429,10 @@ static void test_index_error_does_not_accumulate(void **state)
 static void test_rover_alone_named(void **state)
 {
     (void)state;
-    for (int i = 0; i < NS; i++)
-        H[i] = 520.0 + 40.0 * i + 7.0 * sin(1.3 * i);
-    int known[NS] = {0};
-    known[0] = known[NS - 1] = 1;
-    write_stations(NS, H, known);
     plan p[3];
-    traverse_plans(&p[0], &p[1]);
-    memset(&p[2], 0, sizeof p[2]);
+    traverse_stations(p);
     static const int seq[] = {0, 1, 0};
-    for (int j = 0; j < 3; j++)
-        p[2].st[j] = seq[j], p[2].t0[j] = T0_S + 18000.0 + j * 1200.0, p[2].t1[j] = T0_S + 18000.0 + j * 1200.0 + 600.0;
-    p[2].n = 3;
+    plan_seq(&p[2], seq, 3, T0_S + 18000.0);
     const char *names[3] = {"inst-a", "inst-b", "late"};
     lcg = 999u;
     write_rover("inst-a", &p[0], H, 80.0, 5.0);
@@ -428,39 +453,41 @@ static void test_rover_alone_named(void **state)
 
 /* ---- loops ----------------------------------------------------------- */
 
-/* One instrument: S0 (known), S1, S2, S1 again, S3 (known), S0 again;
- * 10 min on each, 10 min walks. */
-static void loop_plan(plan *p)
+static const char *const solo_names[1] = {"solo"};
+static const double loop_h[4] = {610.0, 655.0, 702.5, 640.0};   /* made-up true heights, m */
+/* S0 (known), S1, S2, S1 again, S3 (known), S0 again */
+static const int loop_seq[6] = {0, 1, 2, 1, 3, 0};
+
+/* A loop survey over loop_h: stations.csv with the marks known[i] known;
+ * one instrument "solo" (index error 60 Pa, no drift) on the stations
+ * seq[0..n-1], 10 min on each, 10 min walks, in a weather of trend_pa_h
+ * and wave_pa set to trend and wave (then back to the traverse's 100 Pa/h
+ * and 30 Pa); the book. */
+static void loop_survey(const int *known, const int *seq, int n, double trend, double wave)
 {
-    static const int seq[] = {0, 1, 2, 1, 3, 0};
-    memset(p, 0, sizeof *p);
-    for (int j = 0; j < 6; j++)
-        p->st[p->n] = seq[j], p->t0[p->n] = T0_S + j * 1200.0, p->t1[p->n++] = T0_S + j * 1200.0 + 600.0;
+    write_stations(4, loop_h, known);
+    plan p;
+    plan_seq(&p, seq, n, T0_S);
+    trend_pa_h = trend, wave_pa = wave;
+    write_rover("solo", &p, loop_h, 60.0, 0.0);
+    trend_pa_h = 100.0, wave_pa = 30.0;
+    write_book(&p, solo_names, 1);
 }
 
 static void test_loop_solves(void **state)
 {
     (void)state;
-    double h[4] = {610.0, 655.0, 702.5, 640.0};
-    int known[4] = {1, 0, 0, 1};
-    write_stations(4, h, known);
-    plan p;
-    loop_plan(&p);
-    const char *names[1] = {"solo"};
+    const double *h = loop_h;
+    static const int known[4] = {1, 0, 0, 1};
     lcg = 777u;
     /* a typical day: 1 hPa in 3 h (the synoptic tendency docs/methods.md
      * takes the walk's rate from) and a 10 Pa wave */
-    trend_pa_h = 100.0 / 3.0, wave_pa = 10.0;
-    write_rover("solo", &p, h, 60.0, 0.0);
-    trend_pa_h = 100.0, wave_pa = 30.0;
-    write_book(&p, names, 1);
+    loop_survey(known, loop_seq, 6, 100.0 / 3.0, 10.0);
     hyp_network_result *res = NULL;
     hyp_error err;
-    if (run(names, 1, &res, &err))
+    if (run(solo_names, 1, &res, &err))
         fail_msg("%s", err.message);
-    size_t loops = 0, steps = 0;
-    for (size_t i = 0; i < res->n_obs; i++)
-        loops += res->obs[i].kind == HYP_OBS_LOOP, steps += res->obs[i].kind == HYP_OBS_WEATHER_STEP;
+    size_t loops = count_obs(res, HYP_OBS_LOOP), steps = count_obs(res, HYP_OBS_WEATHER_STEP);
     print_message("loop: S1 %.3f +- %.3f m (made 655.000), S2 %.3f +- %.3f m (made 702.500); %zu occupations, %zu "
                   "weather steps\n", res->st[1].height_m, res->st[1].sigma_m, res->st[2].height_m, res->st[2].sigma_m,
                   loops, steps);
@@ -480,17 +507,11 @@ static void test_loop_solves(void **state)
 static void test_loop_without_known_mark_refused(void **state)
 {
     (void)state;
-    double h[4] = {610.0, 655.0, 702.5, 640.0};
-    int known[4] = {0, 0, 0, 0};
-    write_stations(4, h, known);
-    plan p;
-    loop_plan(&p);
-    const char *names[1] = {"solo"};
-    write_rover("solo", &p, h, 60.0, 0.0);
-    write_book(&p, names, 1);
+    static const int known[4] = {0, 0, 0, 0};
+    loop_survey(known, loop_seq, 6, 100.0, 30.0);
     hyp_network_result *res = NULL;
     hyp_error err;
-    hyp_status st = run(names, 1, &res, &err);
+    hyp_status st = run(solo_names, 1, &res, &err);
     print_message("refused: %s\n", err.message);
     assert_int_equal(st, HYP_ERR_NODATA);
     assert_non_null(strstr(err.message, "needs a known mark"));
@@ -502,19 +523,11 @@ static void test_loop_without_known_mark_refused(void **state)
 static void test_loop_weak_design_warned(void **state)
 {
     (void)state;
-    double h[4] = {610.0, 655.0, 702.5, 640.0};
-    int known[4] = {1, 0, 0, 0};
-    write_stations(4, h, known);
-    plan p;
-    memset(&p, 0, sizeof p);
-    for (int j = 0; j < 3; j++)
-        p.st[p.n] = j, p.t0[p.n] = T0_S + j * 1200.0, p.t1[p.n++] = T0_S + j * 1200.0 + 600.0;
-    const char *names[1] = {"solo"};
-    write_rover("solo", &p, h, 60.0, 0.0);
-    write_book(&p, names, 1);
+    static const int known[4] = {1, 0, 0, 0}, seq[3] = {0, 1, 2};
+    loop_survey(known, seq, 3, 100.0, 30.0);
     hyp_network_result *res = NULL;
     hyp_error err;
-    if (run(names, 1, &res, &err))
+    if (run(solo_names, 1, &res, &err))
         fail_msg("%s", err.message);
     assert_true(has_msg(res, "cannot be told apart"));
     hyp_network_result_free(res);
@@ -535,11 +548,8 @@ static void test_mixed_survey(void **state)
     plan base = {1, {0}, {T0_S}, {T0_S + 5400}};
     write_rover("base", &base, h, 0.0, 0.0);
     plan p[3];
-    memset(p, 0, sizeof p);
     static const int seq[] = {0, 1, 2, 0};
-    for (int j = 0; j < 4; j++)
-        p[0].st[j] = seq[j], p[0].t0[j] = T0_S + j * 1200.0, p[0].t1[j] = T0_S + j * 1200.0 + 600.0;
-    p[0].n = 4;
+    plan_seq(&p[0], seq, 4, T0_S);
     double t = T0_S + 7200.0;   /* 10:00 */
     p[1] = (plan){2, {2, 4}, {t, t + 1800}, {t + 1500, t + 3300}};
     p[2] = (plan){3, {2, 3, 4}, {t, t + 900, t + 2700}, {t + 600, t + 2400, t + 3300}};
@@ -549,34 +559,14 @@ static void test_mixed_survey(void **state)
     const char *names[3] = {"early", "ra", "rb"};
     write_book(p, names, 3);
 
-    char paths[3][700], bpath[700], stations[700], book[700];
-    const char *pp[3];
-    for (int r = 0; r < 3; r++) {
-        snprintf(paths[r], sizeof paths[r], "%s/%s.csv", dir, names[r]);
-        pp[r] = paths[r];
-    }
+    char bpath[700];
     snprintf(bpath, sizeof bpath, "%s/base.csv", dir);
-    snprintf(stations, sizeof stations, "%s/stations.csv", dir);
-    snprintf(book, sizeof book, "%s/book.csv", dir);
-    hyp_survey_opts so;
-    hyp_survey_opts_init(&so);
-    hyp_survey *sv = NULL;
-    hyp_msgs m;
-    hyp_msgs_init(&m);
-    hyp_error err;
-    assert_int_equal(hyp_survey_new(&sv, &so, &m, &err), HYP_OK);
     hyp_base_spec b;
     hyp_base_spec_init(&b, bpath, h[0]);
     b.lat_deg = LAT, b.lon_deg = station_lon(0);
-    if (hyp_survey_add_base(sv, &b, &m, &err))
-        fail_msg("%s", err.message);
-    hyp_network_opts no;
-    hyp_network_opts_init(&no);
-    no.stations_path = stations;
-    no.fieldbook_path = book;
-    no.auto_occupations = 0;
     hyp_network_result *res = NULL;
-    if (hyp_network_run(sv, &no, pp, 3, &res, &err)) {
+    hyp_error err;
+    if (run_with_base(names, 3, &b, &res, &err)) {
         if (res)
             hyp_msgs_write(stderr, &res->msgs, HYP_NOTE);
         fail_msg("%s", err.message);
@@ -597,8 +587,6 @@ static void test_mixed_survey(void **state)
         assert_true(fabs(res->st[s].height_m - h[s]) <= 2 * res->st[s].sigma_m &&
                     fabs(res->st[s].height_m - h[s]) < 0.5);
     hyp_network_result_free(res);
-    hyp_survey_free(sv);
-    hyp_msgs_free(&m);
 }
 
 /* A storm (5 hPa/h) against a walk of 0.15 hPa/sqrt(h): the weather model
@@ -611,21 +599,14 @@ static void test_mixed_survey(void **state)
 static void test_loop_walk_too_tight(void **state)
 {
     (void)state;
-    double h[4] = {610.0, 655.0, 702.5, 640.0};
-    int known[4] = {1, 0, 0, 1};
-    write_stations(4, h, known);
-    plan p;
-    loop_plan(&p);
-    const char *names[1] = {"solo"};
+    const double *h = loop_h;
+    static const int known[4] = {1, 0, 0, 1};
     lcg = 4242u;
-    trend_pa_h = 500.0, wave_pa = 40.0;
-    write_rover("solo", &p, h, 60.0, 0.0);
-    trend_pa_h = 100.0, wave_pa = 30.0;
-    write_book(&p, names, 1);
+    loop_survey(known, loop_seq, 6, 500.0, 40.0);
     hyp_network_result *res = NULL;
     hyp_error err;
     walk_hpa = 0.15;
-    hyp_status st = run(names, 1, &res, &err);
+    hyp_status st = run(solo_names, 1, &res, &err);
     walk_hpa = 0;
     if (st)
         fail_msg("%s", err.message);

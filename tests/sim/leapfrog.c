@@ -52,6 +52,7 @@
 #include <sys/stat.h>
 
 #include "sim.h"
+#include "sim_write.h"
 
 #define LF_MAX_ST 16
 #define LF_MAX_OCC 16
@@ -274,70 +275,42 @@ static void plan_loop(lf_survey *s)
 
 /* --- where an instrument is --- */
 
-typedef struct lf_where { double e_km, n_km, z_m; int walking; } lf_where;
+/* Standing k of instrument ctx (an lf_at). */
+typedef struct lf_at { const lf_survey *s; const lf_inst *in; } lf_at;
 
-static lf_where inst_at(const lf_survey *s, const lf_inst *in, double t)
+static sim_standing inst_standing(const void *ctx, int k)
 {
-    lf_where w = {0, 0, 0, 0};
-    for (int k = 0; k < in->n; k++) {
-        const lf_occ *v = &in->oc[k];
-        const lf_station *p = &s->st[v->st];
-        double e = p->e_km + v->aside_e_m / 1000.0, n = p->n_km + v->aside_n_m / 1000.0;
-        if (t <= v->t_off || k == in->n - 1) {
-            w.e_km = e, w.n_km = n, w.z_m = p->h_m;
-            return w;
-        }
-        const lf_occ *nx = &in->oc[k + 1];
-        if (t < nx->t_on) {
-            const lf_station *q = &s->st[nx->st];
-            double e2 = q->e_km + nx->aside_e_m / 1000.0, n2 = q->n_km + nx->aside_n_m / 1000.0;
-            double f = (t - v->t_off) / (nx->t_on - v->t_off), d = hypot(e2 - e, n2 - n);
-            double side = d > 0 ? v->lateral_m / 1000.0 * sin(M_PI * f) / d : 0.0;
-            w.e_km = e + (e2 - e) * f - (n2 - n) * side;
-            w.n_km = n + (n2 - n) * f + (e2 - e) * side;
-            w.z_m = p->h_m + (q->h_m - p->h_m) * f + v->bump_m * sin(M_PI * f);
-            w.walking = 1;
-            return w;
-        }
-    }
-    return w;
+    const lf_at *a = ctx;
+    const lf_occ *v = &a->in->oc[k];
+    const lf_station *p = &a->s->st[v->st];
+    sim_standing r = {p->e_km + v->aside_e_m / 1000.0, p->n_km + v->aside_n_m / 1000.0, p->h_m, v->t_on, v->t_off,
+                      v->bump_m, v->lateral_m};
+    return r;
+}
+
+static sim_where inst_at(const void *ctx, double t)
+{
+    const lf_at *a = ctx;
+    return sim_where_at(inst_standing, a, a->in->n, t);
+}
+
+static double inst_pressure(const void *ctx, sim_where at, double t)
+{
+    const lf_at *a = ctx;
+    return pressure_at(a->s, at.e_km, at.n_km, at.z_m, t);
 }
 
 /* --- writing --- */
 
-typedef struct lf_fix { double lat, lon, ele, p_pa, t_c, time; } lf_fix;
-
-/* The track's samples: GNSS fixes (2 m a horizontal component, 120 s
- * correlation, plus 0.7 m white; height 4 m, 400 s, plus 1 m white, as
- * network.c) and the logger's readings. The offset drawn for the
- * instrument is used with index_error added, so --index-error draws the
- * same random numbers. */
-static lf_fix *sample_track(const lf_survey *s, const lf_inst *in, double extra_off_pa, size_t *count)
+/* The track's samples (sim_sample_track: GNSS errors as network.c) every
+ * LF_DT_S. The offset drawn for the instrument is used with index_error
+ * added, so --index-error draws the same random numbers. */
+static sim_fix *sample_track(const lf_survey *s, const lf_inst *in, double extra_off_pa, size_t *count)
 {
-    const scenario *w = &s->w;
-    double t0 = in->oc[0].t_on, t1 = in->oc[in->n - 1].t_off;
-    size_t n = (size_t)((t1 - t0) / LF_DT_S) + 1;
-    lf_fix *f = malloc(n * sizeof *f);
-    if (!f)
-        return NULL;
-    double ah = exp(-LF_DT_S / 120.0), av = exp(-LF_DT_S / w->gnss_tau_s);
-    double ge = 2.0 * nrand(), gn = 2.0 * nrand(), gv = w->gnss_sd_m * nrand();
-    for (size_t i = 0; i < n; i++) {
-        double t = t0 + (double)i * LF_DT_S;
-        lf_where at = inst_at(s, in, t);
-        double p = pressure_at(s, at.e_km, at.n_km, at.z_m, t), hours = (t - t0) / 3600.0;
-        f[i].time = t;
-        f[i].p_pa = quant(p + in->off_pa + extra_off_pa + in->drift_pa_h * hours + in->noise_pa * nrand(), w->rover_q_pa);
-        f[i].t_c = air_temp(w, at.z_m, t) + w->body_warming_k * (at.walking ? 1.0 : 0.4) + 0.3 * nrand() - 273.15;
-        ge = ah * ge + sqrt(1 - ah * ah) * 2.0 * nrand();
-        gn = ah * gn + sqrt(1 - ah * ah) * 2.0 * nrand();
-        gv = av * gv + sqrt(1 - av * av) * w->gnss_sd_m * nrand();
-        latlon(w, at.e_km + (ge + 0.7 * nrand()) / 1000.0, at.n_km + (gn + 0.7 * nrand()) / 1000.0, &f[i].lat,
-               &f[i].lon);
-        f[i].ele = at.z_m + gv + 1.0 * nrand();
-    }
-    *count = n;
-    return f;
+    lf_at a = {s, in};
+    sim_track_src src = {&s->w, in->oc[0].t_on, in->oc[in->n - 1].t_off, LF_DT_S, in->off_pa, extra_off_pa,
+                         in->drift_pa_h, in->noise_pa, inst_at, inst_pressure, &a};
+    return sim_sample_track(&src, count);
 }
 
 static double extra_offset(const lf_survey *s, int k)
@@ -348,77 +321,42 @@ static double extra_offset(const lf_survey *s, int k)
 static int write_track(const lf_survey *s, int k, const char *dir)
 {
     const lf_inst *in = &s->in[k];
-    char file[32], ts[40];
+    char file[32], title[128];
     snprintf(file, sizeof file, "%s.gpx", in->name);
+    snprintf(title, sizeof title, "simulated %s survey without a base, instrument %s", s->kind, in->name);
     size_t n;
-    lf_fix *f = sample_track(s, in, extra_offset(s, k), &n);
-    FILE *g = f ? open_out(dir, file) : NULL;
-    if (!g) {
-        free(f);
-        return 1;
-    }
-    fprintf(g, "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n"
-               "<gpx version=\"1.1\" creator=\"hypsim\" xmlns=\"http://www.topografix.com/GPX/1/1\"\n"
-               "     xmlns:lg=\"urn:example:field-logger:1\">\n"
-               "  <metadata><name>simulated %s survey without a base, instrument %s</name></metadata>\n"
-               "  <trk>\n    <name>%s</name>\n    <trkseg>\n",
-            s->kind, in->name, in->name);
-    for (size_t i = 0; i < n; i++) {
-        iso(f[i].time, ts, sizeof ts);
-        fprintf(g, "      <trkpt lat=\"%.7f\" lon=\"%.7f\"><ele>%.1f</ele><time>%s</time>"
-                   "<extensions><lg:sensor><lg:pressure unit=\"hPa\">%.2f</lg:pressure>"
-                   "<lg:temperature unit=\"degC\">%.1f</lg:temperature></lg:sensor></extensions></trkpt>\n",
-                f[i].lat, f[i].lon, f[i].ele, ts, f[i].p_pa / 100.0, f[i].t_c);
-    }
-    fputs("    </trkseg>\n  </trk>\n</gpx>\n", g);
+    sim_fix *f = sample_track(s, in, extra_offset(s, k), &n);
+    FILE *g = f ? sim_gpx_open(dir, file, title) : NULL;
+    int bad = !g || sim_gpx_finish(g, in->name, f, n);
     free(f);
-    return fclose(g) != 0;
+    return bad;
 }
 
 static int write_stations(const lf_survey *s, const char *dir)
 {
-    FILE *f = open_out(dir, "stations.csv"), *t = open_out(dir, "truth.csv");
-    int bad = !f || !t;
-    if (!bad) {
-        fprintf(f, "name,lat,lon,height,sigma\n");
-        fprintf(t, "name,height\n");
-        for (int k = 0; k < s->n_st; k++) {
-            const lf_station *p = &s->st[k];
-            double lat, lon;
-            latlon(&s->w, p->e_km, p->n_km, &lat, &lon);
-            if (p->control && !s->singular)
-                fprintf(f, "%s,%.7f,%.7f,%.3f,0.010\n", p->name, lat, lon, p->h_m);
-            else
-                fprintf(f, "%s,%.7f,%.7f,,\n", p->name, lat, lon);
-            fprintf(t, "%s,%.3f\n", p->name, p->h_m);
-        }
+    sim_mark m[LF_MAX_ST];
+    for (int k = 0; k < s->n_st; k++) {
+        const lf_station *p = &s->st[k];
+        m[k].name = p->name, m[k].h_m = p->h_m;
+        m[k].sigma_m = p->control && !s->singular ? 0.010 : 0.0;   /* a control mark's sigma, m: the simulator's choice */
+        latlon(&s->w, p->e_km, p->n_km, &m[k].lat, &m[k].lon);
     }
-    bad |= f && fclose(f) != 0;
-    bad |= t && fclose(t) != 0;
-    return bad;
+    return sim_write_stations(dir, m, s->n_st);
 }
 
 static int write_occupations(const lf_survey *s, const char *dir)
 {
-    FILE *fb = open_out(dir, "fieldbook.csv"), *tr = open_out(dir, "occupations-truth.csv");
-    int bad = !fb || !tr;
-    if (!bad) {
-        fprintf(fb, "station,rover,start,end\n");
-        fprintf(tr, "station,rover,start,end\n");
+    FILE *fb, *tr;
+    int bad = sim_occupations_open(dir, &fb, &tr);
+    if (!bad)
         for (int i = 0; i < s->n_in; i++)
             for (int k = 0; k < s->in[i].n; k++) {
                 const lf_occ *v = &s->in[i].oc[k];
-                char a[40], b[40], c[40], d[40];
-                /* the booked window: whole minutes, at least 15 s inside the true one */
-                iso(ceil((v->t_on + 15.0) / 60.0) * 60.0, a, sizeof a);
-                iso(floor((v->t_off - 15.0) / 60.0) * 60.0, b, sizeof b);
-                iso(v->t_on, c, sizeof c), iso(v->t_off, d, sizeof d);
-                fprintf(fb, "%s,%s,%s,%s\n", s->st[v->st].name, s->in[i].name, a, b);
-                fprintf(tr, "%s,%s,%s,%s\n", s->st[v->st].name, s->in[i].name, c, d);
+                const char *st = s->st[v->st].name;
+                sim_occupation_row(fb, tr, st, st, s->in[i].name, v->t_on, v->t_off);
             }
-    }
-    bad |= fb && fclose(fb) != 0;
-    bad |= tr && fclose(tr) != 0;
+    bad |= sim_close(fb);
+    bad |= sim_close(tr);
     return bad;
 }
 
@@ -466,11 +404,8 @@ static int write_params(const lf_survey *s, const char *dir)
             w->body_warming_k, w->gnss_sd_m, w->gnss_tau_s);
     for (int i = 0; i < s->n_in; i++) {
         const lf_inst *in = &s->in[i];
-        char a[40], b[40];
-        iso(in->oc[0].t_on, a, sizeof a), iso(in->oc[in->n - 1].t_off, b, sizeof b);
-        fprintf(f, "%s_offset_pa %.2f\n%s_drift_pa_per_h %.2f\n%s_noise_pa %.2f\n%s_start %s\n%s_end %s\n",
-                in->name, in->off_pa + extra_offset(s, i), in->name, in->drift_pa_h, in->name, in->noise_pa, in->name,
-                a, in->name, b);
+        sim_sensor_params(f, in->name, in->off_pa + extra_offset(s, i), in->drift_pa_h, in->noise_pa, in->oc[0].t_on,
+                          in->oc[in->n - 1].t_off);
     }
     return fclose(f) != 0;
 }

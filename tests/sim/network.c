@@ -60,6 +60,7 @@
 #include <sys/stat.h>
 
 #include "sim.h"
+#include "sim_write.h"
 
 #define MAX_STATIONS 420
 #define MAX_VISITS 64          /* stations a rover occupies in a day, with the two co-locations */
@@ -490,33 +491,32 @@ static int plan(network *nw)
 
 /* --- where a rover is --- */
 
-typedef struct where_at { double e_km, n_km, z_m; int walking; } where_at;
+/* Standing k of rover loop ctx (a rover_ctx). */
+typedef struct rover_ctx { const network *nw; const loop *l; } rover_ctx;
 
-static where_at rover_at(const network *nw, const loop *l, double t)
+static sim_standing rover_standing(const void *ctx, int k)
 {
-    where_at w = {0, 0, 0, 0};
-    for (int k = 0; k < l->n; k++) {
-        const visit *v = &l->v[k];
-        const station *s = &nw->st[v->st];
-        double e = s->e_km + v->aside_e_m / 1000.0, n = s->n_km + v->aside_n_m / 1000.0;
-        if (t <= v->t_off || k == l->n - 1) {
-            w.e_km = e, w.n_km = n, w.z_m = s->h_m;
-            return w;
-        }
-        const visit *nx = &l->v[k + 1];
-        if (t < nx->t_on) {
-            const station *s2 = &nw->st[nx->st];
-            double e2 = s2->e_km + nx->aside_e_m / 1000.0, n2 = s2->n_km + nx->aside_n_m / 1000.0;
-            double f = (t - v->t_off) / (nx->t_on - v->t_off), d = dist_km(e, n, e2, n2);
-            double side = d > 0 ? v->lateral_m / 1000.0 * sin(M_PI * f) / d : 0.0;
-            w.e_km = e + (e2 - e) * f - (n2 - n) * side;
-            w.n_km = n + (n2 - n) * f + (e2 - e) * side;
-            w.z_m = s->h_m + (s2->h_m - s->h_m) * f + v->bump_m * sin(M_PI * f);
-            w.walking = 1;
-            return w;
-        }
-    }
-    return w;
+    const rover_ctx *r = ctx;
+    const visit *v = &r->l->v[k];
+    const station *s = &r->nw->st[v->st];
+    sim_standing a = {s->e_km + v->aside_e_m / 1000.0, s->n_km + v->aside_n_m / 1000.0, s->h_m, v->t_on, v->t_off,
+                      v->bump_m, v->lateral_m};
+    return a;
+}
+
+static sim_where rover_at(const void *ctx, double t)
+{
+    const rover_ctx *r = ctx;
+    return sim_where_at(rover_standing, r, r->l->n, t);
+}
+
+static double rover_pressure(const void *ctx, sim_where at, double t)
+{
+    const rover_ctx *r = ctx;
+    const scenario *w = &r->nw->day[r->l->day];
+    double lat, lon;
+    latlon(w, at.e_km, at.n_km, &lat, &lon);
+    return true_pressure(w, lat, at.e_km, at.n_km, at.z_m, t);
 }
 
 /* --- writing --- */
@@ -526,58 +526,29 @@ static void rover_name(const loop *l, char *buf, size_t n)
     snprintf(buf, n, "r%c-day%d", 'a' + l->rover, l->day + 1);
 }
 
-typedef struct fix { double lat, lon, ele, p_pa, t_c, time; } fix;
-
-/* The track's samples: GNSS fixes (horizontal error 2 m a component with a
- * 120 s correlation time plus 0.7 m white; height error 4 m with 400 s plus
- * 1 m white, as the single-day rover) and the logger's readings. */
-static fix *sample_track(const network *nw, const loop *l, size_t *count)
+/* The track's samples (sim_sample_track) every --dt seconds. */
+static sim_fix *sample_track(const network *nw, const loop *l, size_t *count)
 {
-    const scenario *w = &nw->day[l->day];
-    double t0 = l->v[0].t_on, t1 = l->v[l->n - 1].t_off;
-    size_t n = (size_t)((t1 - t0) / nw->dt_s) + 1;
-    fix *f = malloc(n * sizeof *f);
-    if (!f)
-        return NULL;
-    double ah = exp(-nw->dt_s / 120.0), av = exp(-nw->dt_s / w->gnss_tau_s);
-    double ge = 2.0 * nrand(), gn = 2.0 * nrand(), gv = w->gnss_sd_m * nrand();
-    for (size_t i = 0; i < n; i++) {
-        double t = t0 + (double)i * nw->dt_s;
-        where_at at = rover_at(nw, l, t);
-        double lat, lon;
-        latlon(w, at.e_km, at.n_km, &lat, &lon);
-        double p = true_pressure(w, lat, at.e_km, at.n_km, at.z_m, t);
-        double hours = (t - t0) / 3600.0;
-        f[i].time = t;
-        f[i].p_pa = quant(p + l->off_pa + l->drift_pa_h * hours + l->noise_pa * nrand(), w->rover_q_pa);
-        f[i].t_c = air_temp(w, at.z_m, t) + w->body_warming_k * (at.walking ? 1.0 : 0.4) + 0.3 * nrand() - 273.15;
-        ge = ah * ge + sqrt(1 - ah * ah) * 2.0 * nrand();
-        gn = ah * gn + sqrt(1 - ah * ah) * 2.0 * nrand();
-        gv = av * gv + sqrt(1 - av * av) * w->gnss_sd_m * nrand();
-        latlon(w, at.e_km + (ge + 0.7 * nrand()) / 1000.0, at.n_km + (gn + 0.7 * nrand()) / 1000.0, &f[i].lat, &f[i].lon);
-        f[i].ele = at.z_m + gv + 1.0 * nrand();
-    }
-    *count = n;
-    return f;
+    rover_ctx r = {nw, l};
+    sim_track_src src = {&nw->day[l->day], l->v[0].t_on, l->v[l->n - 1].t_off, nw->dt_s, l->off_pa, 0.0,
+                         l->drift_pa_h, l->noise_pa, rover_at, rover_pressure, &r};
+    return sim_sample_track(&src, count);
 }
 
 static int write_track(const network *nw, const loop *l, const char *dir)
 {
-    char name[64], file[80], ts[40];
+    char name[64], file[80], title[160], ts[40];
     rover_name(l, name, sizeof name);
     snprintf(file, sizeof file, "%s.gpx", name);
+    snprintf(title, sizeof title, "simulated station survey (%s), rover %c, day %d", nw->var.name, 'a' + l->rover,
+             l->day + 1);
     size_t n;
-    fix *f = sample_track(nw, l, &n);
-    FILE *g = f ? open_out(dir, file) : NULL;
+    sim_fix *f = sample_track(nw, l, &n);
+    FILE *g = f ? sim_gpx_open(dir, file, title) : NULL;
     if (!g) {
         free(f);
         return 1;
     }
-    fprintf(g, "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n"
-               "<gpx version=\"1.1\" creator=\"hypsim\" xmlns=\"http://www.topografix.com/GPX/1/1\"\n"
-               "     xmlns:lg=\"urn:example:field-logger:1\">\n"
-               "  <metadata><name>simulated station survey (%s), rover %c, day %d</name></metadata>\n",
-            nw->var.name, 'a' + l->rover, l->day + 1);
     for (int k = 1; k < l->n; k++) {
         const visit *v = &l->v[k];
         if (!v->waypoint || is_coloc(l, k))
@@ -588,17 +559,9 @@ static int write_track(const network *nw, const loop *l, const char *dir)
         fprintf(g, "  <wpt lat=\"%.7f\" lon=\"%.7f\"><time>%s</time><name>%s</name></wpt>\n", f[i].lat, f[i].lon, ts,
                 nw->st[v->st].name);
     }
-    fprintf(g, "  <trk>\n    <name>%s</name>\n    <trkseg>\n", name);
-    for (size_t i = 0; i < n; i++) {
-        iso(f[i].time, ts, sizeof ts);
-        fprintf(g, "      <trkpt lat=\"%.7f\" lon=\"%.7f\"><ele>%.1f</ele><time>%s</time>"
-                   "<extensions><lg:sensor><lg:pressure unit=\"hPa\">%.2f</lg:pressure>"
-                   "<lg:temperature unit=\"degC\">%.1f</lg:temperature></lg:sensor></extensions></trkpt>\n",
-                f[i].lat, f[i].lon, f[i].ele, ts, f[i].p_pa / 100.0, f[i].t_c);
-    }
-    fputs("    </trkseg>\n  </trk>\n</gpx>\n", g);
+    int bad = sim_gpx_finish(g, name, f, n);
     free(f);
-    return fclose(g) != 0;
+    return bad;
 }
 
 /* The base logger on the base mark (sensor at the mark's height), from half
@@ -630,69 +593,52 @@ static int write_base_day(const network *nw, int d, const char *dir)
 
 static int write_stations(const network *nw, const char *dir)
 {
-    FILE *f = open_out(dir, "stations.csv"), *t = open_out(dir, "truth.csv"), *b = open_out(dir, "bases.csv");
-    int bad = !f || !t || !b;
-    if (!bad) {
-        fprintf(f, "name,lat,lon,height,sigma\n");
-        fprintf(t, "name,height\n");
-        for (int k = 0; k < nw->n_st; k++) {
-            const station *s = &nw->st[k];
-            double lat, lon;
-            latlon(&nw->day[0], s->e_km, s->n_km, &lat, &lon);
-            if (s->sigma_m > 0)
-                fprintf(f, "%s,%.7f,%.7f,%.3f,%.3f\n", s->name, lat, lon, s->h_m, s->sigma_m);
-            else
-                fprintf(f, "%s,%.7f,%.7f,,\n", s->name, lat, lon);
-            fprintf(t, "%s,%.3f\n", s->name, s->h_m);
-        }
-        fprintf(b, "file,height,lat,lon,clock_offset,kind\n");
-        for (int d = 0; d < nw->var.days; d++)
-            fprintf(b, "base-day%d.csv,%.3f,%.7f,%.7f,0,station\n", d + 1, nw->st[0].h_m, nw->day[0].lat0,
-                    nw->day[0].lon0);
+    static sim_mark m[MAX_STATIONS];
+    for (int k = 0; k < nw->n_st; k++) {
+        const station *s = &nw->st[k];
+        m[k].name = s->name, m[k].h_m = s->h_m, m[k].sigma_m = s->sigma_m;
+        latlon(&nw->day[0], s->e_km, s->n_km, &m[k].lat, &m[k].lon);
     }
-    bad |= f && fclose(f) != 0;
-    bad |= t && fclose(t) != 0;
-    bad |= b && fclose(b) != 0;
-    return bad;
-}
-
-/* The booked window: whole minutes, at least 15 s inside the true one. */
-static void booked(const visit *v, double *start, double *end)
-{
-    *start = ceil((v->t_on + 15.0) / 60.0) * 60.0;
-    *end = floor((v->t_off - 15.0) / 60.0) * 60.0;
+    int bad = sim_write_stations(dir, m, nw->n_st);
+    FILE *b = bad ? NULL : open_out(dir, "bases.csv");
+    if (!b)
+        return 1;
+    fprintf(b, "file,height,lat,lon,clock_offset,kind\n");
+    for (int d = 0; d < nw->var.days; d++)
+        fprintf(b, "base-day%d.csv,%.3f,%.7f,%.7f,0,station\n", d + 1, nw->st[0].h_m, nw->day[0].lat0,
+                nw->day[0].lon0);
+    return fclose(b) != 0;
 }
 
 static int write_occupations(const network *nw, const char *dir)
 {
-    FILE *fb = open_out(dir, "fieldbook.csv"), *tr = open_out(dir, "occupations-truth.csv");
+    FILE *fb, *tr;
+    int bad = sim_occupations_open(dir, &fb, &tr), line = 1;
     FILE *ml = nw->mislabel ? open_out(dir, "truth-mislabel.txt") : NULL;
-    int bad = !fb || !tr || (nw->mislabel && !ml), line = 1;
-    if (!bad) {
-        fprintf(fb, "station,rover,start,end\n");
-        fprintf(tr, "station,rover,start,end\n");
+    bad |= nw->mislabel && !ml;
+    if (!bad)
         for (int l = 0; l < nw->n_loops; l++)
             for (int k = 0; k < nw->lp[l].n; k++) {
                 const visit *v = &nw->lp[l].v[k];
-                char name[64], a[40], b[40], c[40], d[40];
-                double s, e;
+                char name[64];
                 rover_name(&nw->lp[l], name, sizeof name);
-                booked(v, &s, &e);
-                iso(s, a, sizeof a), iso(e, b, sizeof b), iso(v->t_on, c, sizeof c), iso(v->t_off, d, sizeof d);
                 int wrong = nw->mislabel && l == nw->bad_loop && k == nw->bad_visit;
                 const station *bk = &nw->st[wrong ? nw->bad_station : v->st], *st = &nw->st[v->st];
                 line++;
-                fprintf(fb, "%s,%s,%s,%s\n", bk->name, name, a, b);
-                fprintf(tr, "%s,%s,%s,%s\n", st->name, name, c, d);
-                if (wrong)
+                sim_occupation_row(fb, tr, bk->name, st->name, name, v->t_on, v->t_off);
+                if (wrong) {
+                    char a[40], b[40];
+                    double s, e;
+                    sim_booked(v->t_on, v->t_off, &s, &e);
+                    iso(s, a, sizeof a), iso(e, b, sizeof b);
                     fprintf(ml, "fieldbook_line %d\nbooked_station %s\ntrue_station %s\nrover %s\nstart %s\nend %s\n"
                                 "height_difference_m %.3f\n",
                             line, bk->name, st->name, name, a, b, bk->h_m - st->h_m);
+                }
             }
-    }
-    bad |= fb && fclose(fb) != 0;
-    bad |= tr && fclose(tr) != 0;
-    bad |= ml && fclose(ml) != 0;
+    bad |= sim_close(fb);
+    bad |= sim_close(tr);
+    bad |= sim_close(ml);
     return bad;
 }
 
@@ -733,12 +679,10 @@ static int write_params(const network *nw, const char *dir)
         write_day_params(nw, f, d);
     for (int l = 0; l < nw->n_loops; l++) {
         const loop *a = &nw->lp[l];
-        char name[64], s[40], e[40];
+        char name[64];
         rover_name(a, name, sizeof name);
-        iso(a->v[0].t_on, s, sizeof s), iso(a->v[a->n - 1].t_off, e, sizeof e);
-        fprintf(f, "%s_offset_pa %.2f\n%s_drift_pa_per_h %.2f\n%s_noise_pa %.2f\n%s_start %s\n%s_end %s\n"
-                   "%s_ends_beside_base %d\n",
-                name, a->off_pa, name, a->drift_pa_h, name, a->noise_pa, name, s, name, e, name, !a->open);
+        sim_sensor_params(f, name, a->off_pa, a->drift_pa_h, a->noise_pa, a->v[0].t_on, a->v[a->n - 1].t_off);
+        fprintf(f, "%s_ends_beside_base %d\n", name, !a->open);
     }
     return fclose(f) != 0;
 }

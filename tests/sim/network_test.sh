@@ -44,41 +44,14 @@ rc=$?
   bad "impossible --mislabel: exit $rc, message: $(cat "$work/err"), files: $(ls "$work/y" | head -3)"
 
 # --- consistency of one survey folder ---
-# Times are ISO 8601 UTC of one fixed width, so they compare as strings;
-# iso2s turns them into Unix seconds (days from the civil date: the
-# algorithm of H. Hinnant, "chrono-Compatible Low-Level Date Algorithms").
-awk_lib='
-function iso2s(t,   y, m, d, era, yoe, doy, doe) {
-  y = substr(t, 1, 4) + 0; m = substr(t, 6, 2) + 0; d = substr(t, 9, 2) + 0
-  if (m <= 2) y--
-  era = int(y / 400); yoe = y - era * 400
-  doy = int((153 * (m + (m > 2 ? -3 : 9)) + 2) / 5) + d - 1
-  doe = yoe * 365 + int(yoe / 4) - int(yoe / 100) + doy
-  return (era * 146097 + doe - 719468) * 86400 + substr(t, 12, 2) * 3600 + substr(t, 15, 2) * 60 + substr(t, 18, 2)
-}
-# distance in m on a sphere of 6371 km (equirectangular: good to far
-# better than a metre over a few km)
-function dist_m(la1, lo1, la2, lo2,   r) {
-  r = 3.141592653589793 / 180
-  return 6371000 * sqrt(((la1 - la2) * r) ^ 2 + ((lo1 - lo2) * r * cos(la1 * r)) ^ 2)
-}'
-
-# one line per track point: file time lat lon pressure_hPa temperature_degC
-points() {
-  for g in "$1"/r*-day*.gpx; do
-    sed -n 's|.*<trkpt lat="\([^"]*\)" lon="\([^"]*\)"><ele>[^<]*</ele><time>\([^<]*\)</time>.*unit="hPa">\([^<]*\)<.*unit="degC">\([^<]*\)<.*|\3 \1 \2 \4 \5|p' "$g" |
-      sed "s|^|$(basename "$g" .gpx) |"
-  done
-}
+# awk_lib, sim_folder_start: tests/sim/sim_checks.sh
+# shellcheck source=sim_checks.sh
+. "$(dirname "$0")/sim_checks.sh"
 
 check_folder() {
   local d=$1 tag=$2
-  points "$d" > "$d.points"
-  [ -s "$d.points" ] || { bad "$tag: no track points read"; return; }
-  # stations.csv, truth.csv and bases.csv
-  [ "$(head -1 "$d/stations.csv")" = "name,lat,lon,height,sigma" ] || bad "$tag: stations.csv header"
-  [ "$(head -1 "$d/truth.csv")" = "name,height" ] || bad "$tag: truth.csv header"
-  [ "$(head -1 "$d/fieldbook.csv")" = "station,rover,start,end" ] || bad "$tag: fieldbook.csv header"
+  # $d.points: file time lat lon pressure_hPa temperature_degC; headers
+  sim_folder_start "$d" "$tag" 'r*-day*.gpx' || return
   [ "$(head -1 "$d/bases.csv")" = "file,height,lat,lon,clock_offset,kind" ] || bad "$tag: bases.csv header"
   awk -F, -v tag="$tag" '
     FNR == 1 { next }
@@ -116,36 +89,15 @@ check_folder() {
     FILENAME ~ /stations.csv$/ { la[$1] = $2; lo[$1] = $3; next }
     FILENAME ~ /fieldbook.csv$/ { fb[FNR] = $0; next }
     FILENAME ~ /occupations-truth.csv$/ {
-      n_occ++; split(fb[FNR], b, ","); split($0, t, ",")
+      split(fb[FNR], b, ","); split($0, t, ",")
       if (b[2] != t[2]) print "FAIL: " tag ": line " FNR ": fieldbook rover " b[2] ", truth " t[2]
-      if (!(b[3] >= t[3] && b[4] <= t[4] && b[3] < b[4]))
-        print "FAIL: " tag ": line " FNR ": booked " b[3] "-" b[4] " not inside the true " t[3] "-" t[4]
-      if (substr(b[3], 18, 2) != "00" || substr(b[4], 18, 2) != "00") print "FAIL: " tag ": line " FNR ": booked times not whole minutes"
-      w_st[n_occ] = t[1]; w_rv[n_occ] = t[2]; w_a[n_occ] = t[3]; w_b[n_occ] = t[4]; w_bs[n_occ] = b[3]; w_be[n_occ] = b[4]
+      occ_window(tag, FNR, b, t)
       next
     }
-    {   # points: rover time lat lon p T
-      if (!($1 in first) || $2 < first[$1]) first[$1] = $2
-      if ($2 > last[$1]) last[$1] = $2
-      pts[$1, ++np[$1]] = $2 " " $3 " " $4
-    }
+    { occ_point() }   # points: rover time lat lon p T
     END {
-      for (k = 1; k <= n_occ; k++) {
-        r = w_rv[k]
-        if (!(r in first)) { print "FAIL: " tag ": occupation " k ": no track " r ".gpx"; continue }
-        if (first[r] > w_bs[k] || last[r] < w_be[k]) print "FAIL: " tag ": track " r " (" first[r] "-" last[r] ") does not cover " w_bs[k] "-" w_be[k]
-        inside = 0; worst = 0
-        for (i = 1; i <= np[r]; i++) {
-          split(pts[r, i], p, " ")
-          if (p[1] < w_a[k] || p[1] > w_b[k]) continue
-          inside++; dd = dist_m(p[2], p[3], la[w_st[k]], lo[w_st[k]])
-          if (dd > worst) worst = dd
-        }
-        if (inside < 5) print "FAIL: " tag ": occupation " k " (" w_st[k] ", " r "): " inside " points in its window"
-        if (worst > 15) print "FAIL: " tag ": occupation " k " (" w_st[k] ", " r "): a GNSS fix " worst " m from the station"
-        if (worst > all_worst) all_worst = worst
-      }
-      printf "%s: %d occupations, GNSS fixes at most %.1f m from their station\n", tag, n_occ, all_worst
+      all_worst = occ_report(tag, 5, la, lo)
+      printf "%s: %d occupations, GNSS fixes at most %.1f m from their station\n", tag, occ_n, all_worst
     }' tag="$tag" FS=, "$d/stations.csv" "$d/fieldbook.csv" "$d/occupations-truth.csv" FS=' ' "$d.points" | tee -a "$d.log"
   # waypoints: a station's name, at a time inside a true occupation of it by
   # that rover; about half of the occupations away from the base have one
@@ -228,16 +180,11 @@ check_heights() {
           hr = (iso2s($2) - iso2s(par[$1 "_start"])) / 3600
           pr = 100 * $5 - par[$1 "_offset_pa"] - par[$1 "_drift_pa_per_h"] * hr
           tv = 273.15 + ($6 + bt[$2]) / 2 + 1.5
-          dz[k] += 287.0 * tv / 9.80665 * log(100 * bp[$2] / pr); c[k]++
+          dz[k] += hyps_dz(100 * bp[$2], pr, tv); c[k]++
         }
     }
     END {
-      for (k = 1; k <= n; k++) {
-        if (!c[k]) { print "FAIL: " tag ": " os[k] " " orv[k] ": no sample at a base time"; continue }
-        e = par["base_height_m"] + dz[k] / c[k] - h[os[k]]; if (e < 0) e = -e
-        if (e > 2) print "FAIL: " tag ": " os[k] " " orv[k] " " oa[k] ": hypsometric height " e " m from the truth"
-        if (e > worst) worst = e
-      }
+      worst = heights_report(tag, par["base_height_m"], "a base time", n, os, orv, oa, dz, c, h)
       printf "%s: %d occupations: hypsometric heights within %.2f m of the truth\n", tag, n, worst
     }' tag="$tag" "$d/scenario.txt" "$d/truth.csv" FS=' ' "$d/occupations-truth.csv" "$d.base" "$d.points" | tee "$d.hyps"
   ! grep -q FAIL "$d.hyps" || fails=$((fails + 1))
