@@ -3,6 +3,7 @@
  * binding, a configuration file) sets them the same way and gets the same
  * message for a bad value. */
 #include "hypsolev/survey.h"
+#include "hypsolev/settings.h"
 
 #include <errno.h>
 #include <math.h>
@@ -86,6 +87,16 @@ static hyp_status set_unit(hyp_quantity q, const char *name, const char *text, h
     return HYP_OK;
 }
 
+/* The catalogue (settings.c) is the list of names: one not there in this
+ * scope is refused before anything is looked at. */
+static hyp_status in_scope(const char *name, hyp_setting_scope scope, const char *what, hyp_error *err)
+{
+    const hyp_setting_info *s = hyp_setting_find(name);
+    if (!s || s->scope != scope)
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s: no such %ssetting", name ? name : "", what);
+    return HYP_OK;
+}
+
 /* The settings that take a file, a name or a word. */
 static hyp_status set_text(hyp_survey_opts *o, const char *name, const char *v, hyp_error *err)
 {
@@ -139,6 +150,8 @@ static hyp_status set_text(hyp_survey_opts *o, const char *name, const char *v, 
 
 hyp_status hyp_survey_opts_set(hyp_survey_opts *o, const char *name, const char *value, hyp_error *err)
 {
+    if (in_scope(name, HYP_SCOPE_SURVEY, "", err))
+        return HYP_ERR_USAGE;
     for (size_t k = 0; k < sizeof nums / sizeof nums[0]; k++)
         if (!strcmp(name, nums[k].name)) {
             double v;
@@ -165,6 +178,8 @@ hyp_status hyp_survey_opts_set(hyp_survey_opts *o, const char *name, const char 
 hyp_status hyp_base_spec_set(hyp_base_spec *b, const char *name, const char *value, hyp_error *err)
 {
     const char *v = value ? value : "";
+    if (in_scope(name, HYP_SCOPE_BASE, "base ", err))
+        return HYP_ERR_USAGE;
     if (!strcmp(name, "base-height"))
         return number(name, v, -500, 9000, &b->height_m, err);
     if (!strcmp(name, "base-offset"))
@@ -209,6 +224,8 @@ hyp_status hyp_base_spec_set(hyp_base_spec *b, const char *name, const char *val
 hyp_status hyp_rover_spec_set(hyp_rover_spec *r, const char *name, const char *value, hyp_error *err)
 {
     const char *v = value ? value : "";
+    if (in_scope(name, HYP_SCOPE_ROVER, "rover ", err))
+        return HYP_ERR_USAGE;
     if (!strcmp(name, "rover-pressure-unit"))
         return set_unit(HYP_Q_PRESSURE, name, v, &r->pressure_unit, err);
     if (!strcmp(name, "rover-temperature-unit"))

@@ -307,6 +307,9 @@ typedef struct hyp_rover_spec {
                                   time (default 0): its times, waypoints' too,
                                   are moved to true time as it is read, so
                                   tables and new GPX files show true time */
+    const char *display_name;  /* the rover's name in the run's texts (its
+                                  path, messages, error), e.g. "stdin" for a
+                                  copy of standard input; NULL: its path */
 } hyp_rover_spec;
 
 /* path; everything else the survey's. */

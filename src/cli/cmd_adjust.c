@@ -67,9 +67,9 @@ static int run(args *a)
     cli_signals_catch();   /* before anything is read: a signal then still ends it in order */
     hyp_status st = cli_open_survey(&a->c, &sv, &err);
     if (!st)
-        st = hyp_network_check_outputs(sv, &a->no, (const char *const *)a->c.rovers.path, a->c.rovers.n, &a->out, &err);
+        st = hyp_network_check_outputs(sv, &a->no, a->c.rovers, a->c.n_rovers, &a->out, &err);
     if (!st) {
-        st = hyp_network_run(sv, &a->no, (const char *const *)a->c.rovers.path, a->c.rovers.n, &res, &err);
+        st = hyp_network_run(sv, &a->no, a->c.rovers, a->c.n_rovers, &res, &err);
         if (res)
             hyp_msgs_write(stderr, &res->msgs, a->c.quiet ? HYP_WARNING : HYP_NOTE);
     }
@@ -92,21 +92,21 @@ int cmd_adjust(int argc, char **argv)
 {
     args a;
     memset(&a, 0, sizeof a);
-    cli_common_init(&a.c, "adjust");
+    int rc = cli_common_init(&a.c, "adjust");
     hyp_network_opts_init(&a.no);
-    a.command_line = cli_join_command(argc, argv);
+    a.command_line = hyp_command_line_join(argc, argv);
     a.report_info.tool = "hypsolev " HYPSOLEV_VERSION;
     a.report_info.command_line = a.command_line;
     a.out.report_info = &a.report_info;
-    int rc = cli_parse(&a.c, argc, argv, own, own_option, &a);
+    if (!rc)
+        rc = cli_parse(&a.c, argc, argv, own, own_option, &a);
     if (!rc && !a.no.stations_path)
         rc = cli_usage("adjust", "no --stations FILE given: the stations to determine and the control marks");
     if (!rc && !a.out.stations_csv && !a.out.gpx && !a.out.residuals_csv && !a.out.report)
         rc = cli_usage("adjust", "no output: give -o STATIONS.csv, --gpx FILE, --residuals FILE or --report FILE");
     if (!rc)
         rc = run(&a);
-    cli_files_free(&a.c.rovers);
-    free(a.c.rover_specs);
+    hyp_survey_setup_free(a.c.setup);
     free(a.command_line);
     return rc < 0 ? 0 : rc;
 }
