@@ -1,6 +1,6 @@
 /* settings.c - the catalogue of a survey's settings: every name the
  * program's options, hyp_survey_opts_set, hyp_base_spec_set,
- * hyp_rover_spec_set and hyp_survey_setup_set know, with its scope, value
+ * hyp_rover_spec_set, hyp_network_opts_set and hyp_survey_setup_set know, with its scope, value
  * and help; and the help written from it. The *_set functions refuse a
  * name that is not here in their scope, so this list is the one source. */
 #include "hypsolev/settings.h"
@@ -11,6 +11,7 @@
 #define BS HYP_SCOPE_BASE
 #define RV HYP_SCOPE_ROVER
 #define SU HYP_SCOPE_SETUP
+#define NW HYP_SCOPE_NETWORK
 /* A setting with a value, and a flag. */
 #define V(name, scope, meta, help, example) {name, scope, 1, meta, help, G, example}
 #define F(name, scope, help) {name, scope, 0, NULL, help, G, NULL}
@@ -106,6 +107,21 @@ static const hyp_setting_info catalogue[] = {
       "%M %S (a fraction may follow) %z %%, e.g.\n\"%m/%d/%Y %I:%M:%S %p\"; default ISO 8601, epoch seconds,\n"
       "or DD.MM.YYYY / MM/DD/YYYY where the dates tell which", "%m/%d/%Y %I:%M:%S %p"),
 #undef G
+#define G "inputs"
+    V("stations", NW, "FILE", "CSV: name, lat, lon, optional height [m] and sigma [m];\n"
+      "a station with a height is control", "stations.csv"),
+    V("control-sigma", NW, "M", "sigma of control heights that give none (default 0.02 m)", "0.05"),
+    V("occupations", NW, "FILE", "field book, CSV: station, rover (track file name without\n"
+      "extension; optional with one rover), start, end", "book.csv"),
+    V("occupation-radius", NW, "M", "occupations found in the tracks: within M of a station\n(default 15 m)", "20"),
+    V("occupation-min", NW, "S", "... for at least S seconds (default 180 s)", "300"),
+    F("no-find-occupations", NW, "only the field book and waypoints\n"
+      "GPX waypoints named like a station are occupations too"),
+    V("min-common", NW, "S", "rovers without a base (leapfrog): two occupations by\n"
+      "different rovers at once for at least S seconds give\na height difference (default 120 s)", "60"),
+    V("weather-walk", NW, "HPA", "one rover without a base (loop): the weather's change\n"
+      "as a random walk of HPA hPa per sqrt(hour), 1 sigma\n(default 0.6 hPa)", "1"),
+#undef G
 };
 
 const hyp_setting_info *hyp_settings(size_t *n)
@@ -137,10 +153,12 @@ static void write_entry(FILE *f, const hyp_setting_info *s)
     fputc('\n', f);
 }
 
-void hyp_settings_write_help(FILE *f)
+void hyp_settings_write_help(FILE *f, unsigned scopes)
 {
     const char *group = NULL;
     for (size_t k = 0; k < sizeof catalogue / sizeof catalogue[0]; k++) {
+        if (!(scopes & HYP_SCOPE_BIT(catalogue[k].scope)))
+            continue;
         if (!group || strcmp(group, catalogue[k].group) != 0)
             fprintf(f, "%s%s:\n", group ? "\n" : "", catalogue[k].group);
         group = catalogue[k].group;

@@ -4,6 +4,7 @@
  * message for a bad value. */
 #include "hypsolev/survey.h"
 #include "hypsolev/settings.h"
+#include "hypsolev/network.h"
 
 #include <errno.h>
 #include <math.h>
@@ -242,5 +243,30 @@ hyp_status hyp_rover_spec_set(hyp_rover_spec *r, const char *name, const char *v
     if (!value || !value[0])
         return hyp_error_set(err, HYP_ERR_USAGE, "%s \"\": expected a name", name);
     *text = value;
+    return HYP_OK;
+}
+
+hyp_status hyp_network_opts_set(hyp_network_opts *o, const char *name, const char *value, hyp_error *err)
+{
+    static const struct { const char *name; double lo, hi; size_t at; } net[] = {
+        {"occupation-radius", 1, 1000, offsetof(hyp_network_opts, occ_radius_m)},
+        {"occupation-min", 10, 86400, offsetof(hyp_network_opts, occ_min_s)},
+        {"control-sigma", 0.0001, 100, offsetof(hyp_network_opts, control_sigma_m)},
+        {"min-common", 10, 86400, offsetof(hyp_network_opts, min_common_s)},
+        {"weather-walk", 0.01, 20, offsetof(hyp_network_opts, weather_walk_hpa_sqrt_h)},
+    };
+    if (in_scope(name, HYP_SCOPE_NETWORK, "network ", err))
+        return HYP_ERR_USAGE;
+    for (size_t k = 0; k < sizeof net / sizeof net[0]; k++)
+        if (!strcmp(name, net[k].name))
+            return number(name, value ? value : "", net[k].lo, net[k].hi, (double *)((char *)o + net[k].at), err);
+    if (!strcmp(name, "no-find-occupations"))
+        return o->auto_occupations = 0, HYP_OK;
+    if (!value)
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s needs a value", name);
+    if (!strcmp(name, "stations"))
+        o->stations_path = value;
+    else
+        o->fieldbook_path = value;
     return HYP_OK;
 }

@@ -115,6 +115,8 @@ hyp_status hyp_survey_setup_set(hyp_survey_setup *s, const char *name, const cha
     switch (info->scope) {
     case HYP_SCOPE_SURVEY: return hyp_survey_opts_set(&s->so, name, v, err);
     case HYP_SCOPE_SETUP: return set_setup(s, name, v, err);
+    case HYP_SCOPE_NETWORK:
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s: a network adjustment's setting (hyp_network_opts_set)", name);
     case HYP_SCOPE_ROVER:
         if (!s->n_specs)
             return hyp_error_set(err, HYP_ERR_USAGE, "--%s must follow the --rover it applies to", name);

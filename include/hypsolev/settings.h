@@ -23,6 +23,7 @@
 #include "hypsolev/export.h"
 #include "hypsolev/error.h"
 #include "hypsolev/survey.h"
+#include "hypsolev/network.h"
 
 #ifdef __cplusplus
 extern "C" {
@@ -33,11 +34,13 @@ typedef enum hyp_setting_scope {
     HYP_SCOPE_SURVEY,   /* the whole survey: hyp_survey_opts_set */
     HYP_SCOPE_BASE,     /* the base named before it: hyp_base_spec_set */
     HYP_SCOPE_ROVER,    /* the --rover named before it: hyp_rover_spec_set */
-    HYP_SCOPE_SETUP     /* the survey's shape, taken by hyp_survey_setup_set
+    HYP_SCOPE_SETUP,    /* the survey's shape, taken by hyp_survey_setup_set
                            only: "base" and "rover" start a base or a rover
                            of their own, "base-dir" a folder of base logs,
                            "colocate" one more co-location window */
+    HYP_SCOPE_NETWORK   /* a network adjustment's: hyp_network_opts_set */
 } hyp_setting_scope;
+#define HYP_SCOPE_BIT(scope) (1u << (scope))
 
 /* One entry of the catalogue. Names are the program's long options
  * without the dashes. */
@@ -58,10 +61,19 @@ typedef struct hyp_setting_info {
 HYP_API const hyp_setting_info *hyp_settings(size_t *n);
 /* The entry of a name; NULL when there is no such setting. */
 HYP_API const hyp_setting_info *hyp_setting_find(const char *name);
-/* Writes the help of every setting, by group ("heading:" then one entry
- * a line, "  --name METAVAR" and its help from column 28), each group
- * after an empty line. */
-HYP_API void hyp_settings_write_help(FILE *f);
+/* Writes the help of every setting whose scope is in `scopes` (a set of
+ * HYP_SCOPE_BIT), by group ("heading:" then one entry a line,
+ * "  --name METAVAR" and its help from column 28), each group after an
+ * empty line. */
+HYP_API void hyp_settings_write_help(FILE *f, unsigned scopes);
+/* Sets a network adjustment's option by name (the catalogue's
+ * HYP_SCOPE_NETWORK entries): "stations", "occupations" (files, kept by
+ * pointer), "control-sigma" (m), "occupation-radius" (m),
+ * "occupation-min", "min-common" (s), "weather-walk" (hPa per sqrt(hour)),
+ * "no-find-occupations" (NULL). HYP_ERR_USAGE with a message for an
+ * unknown name or a bad value ("min-common \"5\": expected a number from
+ * 10 to 86400"). */
+HYP_API hyp_status hyp_network_opts_set(hyp_network_opts *o, const char *name, const char *value, hyp_error *err);
 
 /* A survey being set up: its options, bases, base folder, co-location
  * windows, rovers with their own options, and the rovers as given. Values

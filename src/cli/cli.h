@@ -36,6 +36,7 @@ typedef struct cli_common {
     const char *const *rovers;     /* expanded, after cli_parse (the setup's) */
     size_t n_rovers;
     int jobs, quiet;
+    hyp_network_opts *net;         /* adjust: its settings are options too */
 } cli_common;
 /* 0, or the exit status when out of memory. */
 int cli_common_init(cli_common *c, const char *cmd);

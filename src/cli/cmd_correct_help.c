@@ -12,7 +12,7 @@ void cli_correct_help(void)
 "Corrects each ROVER (GPX track, or CSV log with time, pressure, lat, lon)\n"
 "against the pressure log of a base station of known height.\n"
 "\n", stdout);
-    hyp_settings_write_help(stdout);   /* every setting, from the library's catalogue */
+    hyp_settings_write_help(stdout, ~HYP_SCOPE_BIT(HYP_SCOPE_NETWORK));   /* every setting, from the library's catalogue */
     fputs(
 "\n"
 "batch:\n"

@@ -34,7 +34,9 @@ int cli_common_init(cli_common *c, const char *cmd)
 static int setting(const cli_common *c, const char *name, const char *arg)
 {
     hyp_error err;
-    hyp_status st = hyp_survey_setup_set(c->setup, name, arg, &err);
+    hyp_status st = c->net && hyp_setting_find(name)->scope == HYP_SCOPE_NETWORK
+                        ? hyp_network_opts_set(c->net, name, arg, &err)
+                        : hyp_survey_setup_set(c->setup, name, arg, &err);
     if (st == HYP_ERR_USAGE)
         return cli_usage(c->cmd, "%s%s", strncmp(err.message, name, strlen(name)) ? "" : "--", err.message);
     return st ? cli_fail(c, st, &err) : 0;
@@ -50,17 +52,18 @@ static int own_common(cli_common *c, int code, const char *arg)
 }
 
 /* The command's table: its own options, then every setting of the
- * catalogue, then -q and -j. */
+ * catalogue (the network's only with c->net), then -q and -j. */
 static struct option table[160];
 
-static void make_table(const struct option *own)
+static void make_table(const cli_common *c, const struct option *own)
 {
     size_t n = 0, n_set;
     const hyp_setting_info *set = hyp_settings(&n_set);
     for (const struct option *o = own; o->name && n < 150; o++)
         table[n++] = *o;
     for (size_t k = 0; k < n_set && n < 157; k++)
-        table[n++] = (struct option){set[k].name, set[k].takes_value ? required_argument : no_argument, 0, CLI_SET};
+        if (c->net || set[k].scope != HYP_SCOPE_NETWORK)
+            table[n++] = (struct option){set[k].name, set[k].takes_value ? required_argument : no_argument, 0, CLI_SET};
     table[n++] = (struct option){"quiet", no_argument, 0, 'q'};
     table[n++] = (struct option){"jobs", required_argument, 0, 'j'};
     table[n] = (struct option){0, 0, 0, 0};
@@ -69,7 +72,7 @@ static void make_table(const struct option *own)
 int cli_parse(cli_common *c, int argc, char **argv, const struct option *own, int (*fn)(void *, int, const char *),
               void *ctx)
 {
-    make_table(own);
+    make_table(c, own);
     opterr = 0;
     optind = 1;
     int code, idx = -1;
