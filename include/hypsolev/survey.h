@@ -92,7 +92,8 @@ HYP_API void hyp_survey_opts_init(hyp_survey_opts *o);
 
 /* Sets an option by its name, as the program's long option without the
  * dashes ("lapse-rate", "method", "benchmarks", ...: every option of
- * `hypsolev correct` that is not about bases, outputs or the batch), from
+ * `hypsolev correct` that is not about bases, outputs or the batch; the
+ * catalogue of settings.h lists them with their help), from
  * its text in the user's unit (documented in the man page: K/km, hPa per
  * 100 km, Pa, m, s, %). Flags ("no-auto-colocate", "no-gnss-anchor") take
  * NULL. Texts are kept by pointer: they must outlive the survey.
