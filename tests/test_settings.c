@@ -273,6 +273,30 @@ static void test_command_line_join(void **state)
     free(s);
 }
 
+/* A batch's status: the order the program documented before it moved
+ * here (cmd_correct.c's rank: usage 2, then input 1, then a failed test
+ * 3, then 0); a rover not started (interrupted) counts as an input error. */
+static void test_batch_exit_status(void **state)
+{
+    (void)state;
+    hyp_run_info r[3];
+    memset(r, 0, sizeof r);
+    for (int i = 0; i < 3; i++)
+        r[i].started = 1;
+    assert_int_equal(hyp_batch_exit_status(r, 0), 0);
+    assert_int_equal(hyp_batch_exit_status(r, 3), 0);
+    r[1].test_failed = 1;
+    assert_int_equal(hyp_batch_exit_status(r, 3), 3);
+    r[2].status = HYP_ERR_IO;
+    assert_int_equal(hyp_batch_exit_status(r, 3), 1);
+    r[0].status = HYP_ERR_USAGE;
+    assert_int_equal(hyp_batch_exit_status(r, 3), 2);
+    memset(r, 0, sizeof r);
+    r[0].started = 1;
+    r[0].test_failed = 1;
+    assert_int_equal(hyp_batch_exit_status(r, 2), 1);   /* r[1] not started */
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -284,6 +308,7 @@ int main(void)
         cmocka_unit_test(test_setup_rovers),
         cmocka_unit_test(test_setup_stdin),
         cmocka_unit_test(test_command_line_join),
+        cmocka_unit_test(test_batch_exit_status),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

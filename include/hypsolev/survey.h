@@ -340,6 +340,13 @@ HYP_API hyp_status hyp_survey_add_rover_spec(hyp_survey *sv, const hyp_rover_spe
 HYP_API hyp_status hyp_rover_list_expand(const char *const *in, size_t n, char ***out, size_t *n_out, hyp_error *err);
 HYP_API void hyp_rover_list_free(char **paths, size_t n);
 
+/* The exit status of a batch: the worst of its rovers'
+ * (hyp_run_exit_status), a usage error 2 before an input error 1 before a
+ * failed test 3 before 0 (a batch with an input error and a failed test
+ * exits 1: the failed test's outputs exist, the input's do not). 0 for
+ * n = 0. */
+HYP_API int hyp_batch_exit_status(const hyp_run_info *infos, size_t n);
+
 #ifdef __cplusplus
 }
 #endif

@@ -74,15 +74,6 @@ static void rover_done(void *ctx, size_t i, const hyp_rover_run *run)
     free(buf);
 }
 
-/* The worse of two exit statuses: usage 2, then input 1, then a failed
- * test 3, then 0 (a run with an input error and a failed test exits 1). */
-static int worse(int a, int b)
-{
-    static const int rank[4] = {0, 2, 3, 1};   /* by status 0, 1, 2, 3 */
-    int ra = a >= 0 && a <= 3 ? rank[a] : 3, rb = b >= 0 && b <= 3 ? rank[b] : 3;
-    return rb > ra ? b : a;
-}
-
 static int run(args *a)
 {
     hyp_error err;
@@ -100,13 +91,12 @@ static int run(args *a)
     if (!st) {
         hyp_survey_run_many(sv, rovers, n, &a->out, a->c.jobs, rover_done, progress ? cli_progress : cli_progress_quiet,
                             a, infos, &err);
-        for (size_t i = 0; i < n; i++)
-            rc = worse(rc, hyp_run_exit_status(&infos[i]));
+        rc = hyp_batch_exit_status(infos, n);
         if (n > 1 && !a->c.quiet)
             hyp_batch_table_write(stderr, infos, n);
         if (a->summary_path && hyp_survey_write_summary(sv, a->summary_path, infos, n, &err)) {
             fprintf(stderr, "hypsolev: error: %s\n", err.message);
-            rc = worse(rc, EXIT_INPUT);
+            rc = rc == EXIT_USAGE ? rc : EXIT_INPUT;   /* as hyp_batch_exit_status ranks them */
         }
         rc = cli_signal() ? 128 + cli_signal() : rc;
     } else
