@@ -215,7 +215,9 @@ HYP_API hyp_status hyp_survey_add_base_dir(hyp_survey *sv, const char *dir, hyp_
 
 /* Checks before anything runs that the outputs of these rovers are
  * distinct, name no input (nor a hard link to one) and that their
- * folders exist: HYP_ERR_USAGE (or HYP_ERR_IO) with a message otherwise. */
+ * folders exist, and that the outputs asked for agree (one of gpx, dir,
+ * table; report_html only with dir and no report; ...): HYP_ERR_USAGE (or
+ * HYP_ERR_IO) with a message otherwise. */
 HYP_API hyp_status hyp_survey_check_outputs(const hyp_survey *sv, const char *const *rovers, size_t n,
                                             const hyp_outputs *out, const char *summary_path, hyp_error *err);
 

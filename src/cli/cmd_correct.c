@@ -45,16 +45,6 @@ static int own_option(void *ctx, int code, const char *arg)
     return EXIT_USAGE;
 }
 
-/* --report-html names the reports of --out-dir only. */
-static int check_report_html(const args *a)
-{
-    if (a->out.report_html && !a->out.dir)
-        return cli_usage("correct", "--report-html names the reports of --out-dir (DIR/NAME.report.html); for one rover give --report FILE.html");
-    if (a->out.report_html && a->out.report)
-        return cli_usage("correct", "--report-html and --report both given; --report FILE.html alone chooses HTML");
-    return 0;
-}
-
 /* Each rover as it ends: its messages and summary, whole. */
 static void rover_done(void *ctx, size_t i, const hyp_rover_run *run)
 {
@@ -137,8 +127,6 @@ int cmd_correct(int argc, char **argv)
         rc = cli_parse(&a.c, argc, argv, own, own_option, &a);
     if (!rc && !hyp_survey_setup_has_bases(a.c.setup))
         rc = cli_usage("correct", "no --base or --base-dir given: a base station's pressure log is needed");
-    if (!rc)
-        rc = check_report_html(&a);
     if (!rc)
         rc = stdin_rover(&a);
     if (!rc)
