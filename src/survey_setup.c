@@ -40,14 +40,21 @@ hyp_status hyp_survey_setup_new(hyp_survey_setup **s, hyp_error *err)
     return HYP_OK;
 }
 
+static void free_list(char **list, size_t n)
+{
+    for (size_t k = 0; k < n; k++)
+        free(list[k]);
+    free(list);
+}
+
 void hyp_survey_setup_free(hyp_survey_setup *s)
 {
     if (!s)
         return;
     hyp_spool_remove(s->spool);
-    hyp_rover_list_free(s->typed, s->n_typed);
+    free_list(s->typed, s->n_typed);
     hyp_rover_list_free(s->rovers, s->n_rovers);
-    hyp_rover_list_free(s->texts, s->n_texts);
+    free_list(s->texts, s->n_texts);
     free(s->specs);
     free(s);
 }
@@ -64,8 +71,11 @@ static char *push(char ***list, size_t *n, const char *text)
     if (!p)
         return NULL;
     *list = p;
-    return p[*n] = strdup(text), p[*n] ? p[(*n)++] : NULL;
+    if (!(p[*n] = strdup(text)))
+        return NULL;
+    return p[(*n)++];
 }
+
 
 /* "rover FILE": one file (not a folder or a pattern, whose files would
  * not carry its settings), added to the rovers. */
@@ -97,8 +107,10 @@ static hyp_status set_setup(hyp_survey_setup *s, const char *name, const char *v
         s->colocate[s->so.n_colocate++] = v;
     } else if (!strcmp(name, "base-dir"))
         s->base_dir = v;
-    else
+    else if (!strcmp(name, "rover"))
         return start_rover(s, v, err);
+    else
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s: no such setting", name);
     return HYP_OK;
 }
 
