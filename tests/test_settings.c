@@ -176,7 +176,7 @@ static void test_setup_order_and_copies(void **state)
     strcpy(text, "overwritten");
     assert_string_equal(hyp_survey_setup_opts(su)->benchmarks_path, "marks.csv");
     assert_int_equal(hyp_survey_setup_set(su, "smooth", "-5", &err), HYP_ERR_USAGE);
-    assert_string_equal(err.message, "smooth \"-5\": expected a number from 0 to 3600");
+    assert_string_equal(err.message, "smooth \"-5\": expected a number from 0 to 3600");   /* the example of survey.h */
     hyp_survey_setup_free(su);
 }
 
