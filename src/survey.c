@@ -55,6 +55,18 @@ int hyp_run_exit_status(const hyp_run_info *r)
     return r->test_failed ? HYP_EXIT_TEST_FAILED : 0;
 }
 
+int hyp_batch_exit_status(const hyp_run_info *infos, size_t n)
+{
+    static const int rank[4] = {0, 2, 3, 1};   /* by status 0, 1, 2, 3 */
+    int worst = 0;
+    for (size_t i = 0; i < n; i++) {
+        int rc = hyp_run_exit_status(&infos[i]);
+        if ((rc >= 0 && rc <= 3 ? rank[rc] : 3) > rank[worst])
+            worst = rc >= 0 && rc <= 3 ? rc : 1;
+    }
+    return worst;
+}
+
 /* ---- logs ---------------------------------------------------------- */
 
 const hyp_series *hyp__log_series(const hyp__log *l)

@@ -132,6 +132,10 @@ static hyp_status check_names(const hyp_outputs *out, const char *summary, size_
         return hyp_error_set(err, HYP_ERR_USAGE, "no output: give -o FILE.gpx, --out-dir DIR or --table FILE");
     if (out->gpx && out->dir)
         return hyp_error_set(err, HYP_ERR_USAGE, "-o and --out-dir both given; choose one");
+    if (out->report_html && !out->dir)
+        return hyp_error_set(err, HYP_ERR_USAGE, "--report-html names the reports of --out-dir (DIR/NAME.report.html); for one rover give --report FILE.html");
+    if (out->report_html && out->report)
+        return hyp_error_set(err, HYP_ERR_USAGE, "--report-html and --report both given; --report FILE.html alone chooses HTML");
     if (n > 1 && out->gpx)
         return hyp_error_set(err, HYP_ERR_USAGE, "-o names one output but several rovers are given; use --out-dir");
     if (n > 1 && out->report)

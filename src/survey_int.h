@@ -68,12 +68,16 @@ typedef struct hyp__rover_own {
     hyp_rover_spec spec;
     char *path;
     hyp_zone zone;
+    char *display;              /* owned copy of spec.display_name, or NULL */
 } hyp__rover_own;
 /* The rover's own options, NULL when it has none. */
 const hyp__rover_own *hyp__rover_own_find(const hyp_survey *sv, const char *rover);
 void hyp__rover_own_free(hyp_survey *sv);
 /* Moves a rover read with its own clock offset to true time. */
 void hyp__rover_clock_apply(const hyp__rover_own *own, hyp__log *l);
+/* A finished run of a rover with a display name: its path, error and
+ * messages name the rover by it (survey_rover_spec.c). */
+void hyp__rover_display_apply(const hyp_survey *sv, hyp_rover_run *r);
 
 /* The bases a rover uses (indices into the pool). */
 hyp_status hyp__select_bases(const hyp_survey *sv, const hyp_series *rv, size_t *sel, size_t *n, hyp_error *err);

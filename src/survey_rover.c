@@ -504,6 +504,7 @@ static hyp_status run_rover(hyp_survey *sv, const char *rover, const hyp_outputs
         st = check_dir(targets[k], &r->error);
     if (!st && out->dir && !out->overwrite && outputs_exist(&ps, r->error.message, sizeof r->error.message)) {
         r->skipped = 1;
+        hyp__rover_display_apply(sv, r);
         return HYP_OK;
     }
     if (!st)
@@ -515,6 +516,7 @@ static hyp_status run_rover(hyp_survey *sv, const char *rover, const hyp_outputs
         if (ps.report[0] && !(sv->o.cancelled && sv->o.cancelled(sv->o.cancel_ctx)))
             failure_report(sv, r, ps.report);
     }
+    hyp__rover_display_apply(sv, r);
     (void)err;
     return HYP_OK;
 }

@@ -5,6 +5,7 @@
 #define _GNU_SOURCE
 #include "survey_int.h"
 
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -35,7 +36,8 @@ hyp_status hyp_survey_add_rover_spec(hyp_survey *sv, const hyp_rover_spec *r, hy
             return hyp_error_set(err, HYP_ERR_USAGE, "--rover-time-zone (of --rover %s): %s", r->path, e.message);
         }
     }
-    if (!(o->path = strdup(r->path))) {
+    if (!(o->path = strdup(r->path)) || (r->display_name && !(o->display = strdup(r->display_name)))) {
+        free(o->path);
         hyp_zone_free(&o->zone);
         return hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
     }
@@ -56,6 +58,7 @@ void hyp__rover_own_free(hyp_survey *sv)
 {
     for (size_t k = 0; k < sv->n_rover_own; k++) {
         free(sv->rover_own[k].path);
+        free(sv->rover_own[k].display);
         hyp_zone_free(&sv->rover_own[k].zone);
     }
     free(sv->rover_own);
@@ -76,4 +79,48 @@ void hyp__rover_clock_apply(const hyp__rover_own *own, hyp__log *l)
         s->time_back[k].time_s -= c;
     for (size_t k = 0; l->is_gpx && k < l->doc.wpts.count; k++)
         l->doc.wpts.time_s[k] -= c;
+}
+
+/* s with every `from` replaced by `to`, allocated; NULL when from is not
+ * in it or memory is short (the text then stays as it was). */
+static char *replaced(const char *s, const char *from, const char *to)
+{
+    size_t nf = strlen(from), nt = strlen(to), n = 0;
+    for (const char *p = s; nf && (p = strstr(p, from)); p += nf)
+        n++;
+    char *out = n ? malloc(strlen(s) + n * nt + 1) : NULL, *q = out;
+    for (const char *p = s, *hit; out && (hit = strstr(p, from)); p = hit + nf) {
+        memcpy(q, p, (size_t)(hit - p));
+        q += hit - p;
+        memcpy(q, to, nt);
+        q += nt;
+        if (!strstr(hit + nf, from))
+            strcpy(q, hit + nf);
+    }
+    return out;
+}
+
+static void rename_in(char **text, const char *from, const char *to)
+{
+    char *t = *text ? replaced(*text, from, to) : NULL;
+    if (t) {
+        free(*text);
+        *text = t;
+    }
+}
+
+void hyp__rover_display_apply(const hyp_survey *sv, hyp_rover_run *r)
+{
+    const hyp__rover_own *own = hyp__rover_own_find(sv, r->path);
+    if (!own || !own->display)
+        return;
+    char *e = replaced(r->error.message, own->path, own->display);
+    if (e)
+        snprintf(r->error.message, sizeof r->error.message, "%s", e);
+    free(e);
+    for (size_t k = 0; k < r->msgs.count; k++) {
+        rename_in(&r->msgs.items[k].file, own->path, own->display);
+        rename_in(&r->msgs.items[k].text, own->path, own->display);
+    }
+    r->path = own->display;
 }

@@ -3,6 +3,8 @@
  * binding, a configuration file) sets them the same way and gets the same
  * message for a bad value. */
 #include "hypsolev/survey.h"
+#include "hypsolev/settings.h"
+#include "hypsolev/network.h"
 
 #include <errno.h>
 #include <math.h>
@@ -86,6 +88,16 @@ static hyp_status set_unit(hyp_quantity q, const char *name, const char *text, h
     return HYP_OK;
 }
 
+/* The catalogue (settings.c) is the list of names: one not there in this
+ * scope is refused before anything is looked at. */
+static hyp_status in_scope(const char *name, hyp_setting_scope scope, const char *what, hyp_error *err)
+{
+    const hyp_setting_info *s = hyp_setting_find(name);
+    if (!s || s->scope != scope)
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s: no such %ssetting", name ? name : "", what);
+    return HYP_OK;
+}
+
 /* The settings that take a file, a name or a word. */
 static hyp_status set_text(hyp_survey_opts *o, const char *name, const char *v, hyp_error *err)
 {
@@ -139,6 +151,8 @@ static hyp_status set_text(hyp_survey_opts *o, const char *name, const char *v, 
 
 hyp_status hyp_survey_opts_set(hyp_survey_opts *o, const char *name, const char *value, hyp_error *err)
 {
+    if (in_scope(name, HYP_SCOPE_SURVEY, "", err))
+        return HYP_ERR_USAGE;
     for (size_t k = 0; k < sizeof nums / sizeof nums[0]; k++)
         if (!strcmp(name, nums[k].name)) {
             double v;
@@ -165,6 +179,8 @@ hyp_status hyp_survey_opts_set(hyp_survey_opts *o, const char *name, const char 
 hyp_status hyp_base_spec_set(hyp_base_spec *b, const char *name, const char *value, hyp_error *err)
 {
     const char *v = value ? value : "";
+    if (in_scope(name, HYP_SCOPE_BASE, "base ", err))
+        return HYP_ERR_USAGE;
     if (!strcmp(name, "base-height"))
         return number(name, v, -500, 9000, &b->height_m, err);
     if (!strcmp(name, "base-offset"))
@@ -209,6 +225,8 @@ hyp_status hyp_base_spec_set(hyp_base_spec *b, const char *name, const char *val
 hyp_status hyp_rover_spec_set(hyp_rover_spec *r, const char *name, const char *value, hyp_error *err)
 {
     const char *v = value ? value : "";
+    if (in_scope(name, HYP_SCOPE_ROVER, "rover ", err))
+        return HYP_ERR_USAGE;
     if (!strcmp(name, "rover-pressure-unit"))
         return set_unit(HYP_Q_PRESSURE, name, v, &r->pressure_unit, err);
     if (!strcmp(name, "rover-temperature-unit"))
@@ -225,5 +243,30 @@ hyp_status hyp_rover_spec_set(hyp_rover_spec *r, const char *name, const char *v
     if (!value || !value[0])
         return hyp_error_set(err, HYP_ERR_USAGE, "%s \"\": expected a name", name);
     *text = value;
+    return HYP_OK;
+}
+
+hyp_status hyp_network_opts_set(hyp_network_opts *o, const char *name, const char *value, hyp_error *err)
+{
+    static const struct { const char *name; double lo, hi; size_t at; } net[] = {
+        {"occupation-radius", 1, 1000, offsetof(hyp_network_opts, occ_radius_m)},
+        {"occupation-min", 10, 86400, offsetof(hyp_network_opts, occ_min_s)},
+        {"control-sigma", 0.0001, 100, offsetof(hyp_network_opts, control_sigma_m)},
+        {"min-common", 10, 86400, offsetof(hyp_network_opts, min_common_s)},
+        {"weather-walk", 0.01, 20, offsetof(hyp_network_opts, weather_walk_hpa_sqrt_h)},
+    };
+    if (in_scope(name, HYP_SCOPE_NETWORK, "network ", err))
+        return HYP_ERR_USAGE;
+    for (size_t k = 0; k < sizeof net / sizeof net[0]; k++)
+        if (!strcmp(name, net[k].name))
+            return number(name, value ? value : "", net[k].lo, net[k].hi, (double *)((char *)o + net[k].at), err);
+    if (!strcmp(name, "no-find-occupations"))
+        return o->auto_occupations = 0, HYP_OK;
+    if (!value)
+        return hyp_error_set(err, HYP_ERR_USAGE, "%s needs a value", name);
+    if (!strcmp(name, "stations"))
+        o->stations_path = value;
+    else
+        o->fieldbook_path = value;
     return HYP_OK;
 }

@@ -42,5 +42,6 @@
 #include "hypsolev/marks.h"
 #include "hypsolev/survey.h"
 #include "hypsolev/network.h"
+#include "hypsolev/settings.h"
 
 #endif

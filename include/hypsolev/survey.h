@@ -92,7 +92,8 @@ HYP_API void hyp_survey_opts_init(hyp_survey_opts *o);
 
 /* Sets an option by its name, as the program's long option without the
  * dashes ("lapse-rate", "method", "benchmarks", ...: every option of
- * `hypsolev correct` that is not about bases, outputs or the batch), from
+ * `hypsolev correct` that is not about bases, outputs or the batch; the
+ * catalogue of settings.h lists them with their help), from
  * its text in the user's unit (documented in the man page: K/km, hPa per
  * 100 km, Pa, m, s, %). Flags ("no-auto-colocate", "no-gnss-anchor") take
  * NULL. Texts are kept by pointer: they must outlive the survey.
@@ -214,7 +215,9 @@ HYP_API hyp_status hyp_survey_add_base_dir(hyp_survey *sv, const char *dir, hyp_
 
 /* Checks before anything runs that the outputs of these rovers are
  * distinct, name no input (nor a hard link to one) and that their
- * folders exist: HYP_ERR_USAGE (or HYP_ERR_IO) with a message otherwise. */
+ * folders exist, and that the outputs asked for agree (one of gpx, dir,
+ * table; report_html only with dir and no report; ...): HYP_ERR_USAGE (or
+ * HYP_ERR_IO) with a message otherwise. */
 HYP_API hyp_status hyp_survey_check_outputs(const hyp_survey *sv, const char *const *rovers, size_t n,
                                             const hyp_outputs *out, const char *summary_path, hyp_error *err);
 
@@ -307,6 +310,9 @@ typedef struct hyp_rover_spec {
                                   time (default 0): its times, waypoints' too,
                                   are moved to true time as it is read, so
                                   tables and new GPX files show true time */
+    const char *display_name;  /* the rover's name in the run's texts (its
+                                  path, messages, error), e.g. "stdin" for a
+                                  copy of standard input; NULL: its path */
 } hyp_rover_spec;
 
 /* path; everything else the survey's. */
@@ -335,6 +341,13 @@ HYP_API hyp_status hyp_survey_add_rover_spec(hyp_survey *sv, const hyp_rover_spe
  * read, each naming it. */
 HYP_API hyp_status hyp_rover_list_expand(const char *const *in, size_t n, char ***out, size_t *n_out, hyp_error *err);
 HYP_API void hyp_rover_list_free(char **paths, size_t n);
+
+/* The exit status of a batch: the worst of its rovers'
+ * (hyp_run_exit_status), a usage error 2 before an input error 1 before a
+ * failed test 3 before 0 (a batch with an input error and a failed test
+ * exits 1: the failed test's outputs exist, the input's do not). 0 for
+ * n = 0. */
+HYP_API int hyp_batch_exit_status(const hyp_run_info *infos, size_t n);
 
 #ifdef __cplusplus
 }

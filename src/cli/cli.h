@@ -26,39 +26,26 @@ int cli_bad_option(const char *cmd, const char *arg, int optopt, int missing);
 /* Usage message of a command ("hypsolev CMD: ..." and the --help hint). */
 int cli_usage(const char *cmd, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
 
-/* Rover files as typed (hyp_rover_list_expand expands them). */
-typedef struct cli_files {
-    char **path;
-    size_t n, alloc;
-} cli_files;
-int cli_files_add(cli_files *f, const char *path);
-void cli_files_free(cli_files *f);
-
-/* The options correct and adjust share (options.c). Codes from CLI_SET to
- * CLI_OWN are the common table's; a command's own start at CLI_OWN. */
-#define CLI_MAX_WINDOWS 64
-enum { CLI_SET = 256, CLI_BASE_SET, CLI_BASE, CLI_CLOCK, CLI_COLOC, CLI_BASE_DIR, CLI_ROVER, CLI_ROVER_SET, CLI_OWN = 300 };
+/* The options correct and adjust share (options.c): every setting of the
+ * library's catalogue has the code CLI_SET; a command's own start at
+ * CLI_OWN. */
+enum { CLI_SET = 256, CLI_OWN = 300 };
 typedef struct cli_common {
     const char *cmd;
-    hyp_survey_opts so;
-    hyp_base_spec bases[HYP_MAX_BASES];
-    int n_bases;
-    const char *base_dir;
-    const char *colocate[CLI_MAX_WINDOWS];
+    hyp_survey_setup *setup;       /* the settings, bases and rovers given */
+    const char *const *rovers;     /* expanded, after cli_parse (the setup's) */
+    size_t n_rovers;
     int jobs, quiet;
-    cli_files rovers;
-    hyp_rover_spec *rover_specs;   /* --rover FILE and its --rover-* options */
-    int n_rover_specs;
+    hyp_network_opts *net;         /* adjust: its settings are options too */
 } cli_common;
-void cli_common_init(cli_common *c, const char *cmd);
-int cli_common_option(cli_common *c, int code, const char *name, const char *arg);
-/* Parses argv: common options here, the command's own (table `own`,
+/* 0, or the exit status when out of memory. */
+int cli_common_init(cli_common *c, const char *cmd);
+/* Parses argv: settings into the setup, the command's own (table `own`,
  * codes from CLI_OWN) through fn; then expands the rovers. 0, -1 after
  * --help (fn returns -1), or the exit status of a usage error. */
 int cli_parse(cli_common *c, int argc, char **argv, const struct option *own, int (*fn)(void *, int, const char *),
               void *ctx);
 hyp_status cli_open_survey(cli_common *c, hyp_survey **sv, hyp_error *err);
-char *cli_join_command(int argc, char **argv);
 /* Prints a failure of the survey (usage or error); returns the exit status. */
 int cli_fail(const cli_common *c, hyp_status st, const hyp_error *err);
 

@@ -1,4 +1,5 @@
-/* cmd_adjust_help.c - the help text of "hypsolev adjust". */
+/* cmd_adjust_help.c - the help text of "hypsolev adjust": its own options;
+ * the network's settings' help comes from the library's catalogue. */
 #include "cli.h"
 
 #include <stdio.h>
@@ -16,24 +17,9 @@ void cli_adjust_help(void)
 "Rovers no --base covers need none: two or more at once give leapfrog legs\n"
 "(height differences from simultaneous pressures), one alone a loop (the weather\n"
 "solved from repeat occupations and known marks).\n"
-"\n"
-"inputs:\n"
-"  --stations FILE          CSV: name, lat, lon, optional height [m] and sigma [m];\n"
-"                           a station with a height is control\n"
-"  --control-sigma M        sigma of control heights that give none (default 0.02 m)\n"
-"  --occupations FILE       field book, CSV: station, rover (track file name without\n"
-"                           extension; optional with one rover), start, end\n"
-"  --occupation-radius M    occupations found in the tracks: within M of a station\n"
-"                           (default 15 m)\n"
-"  --occupation-min S       ... for at least S seconds (default 180 s)\n"
-"  --no-find-occupations    only the field book and waypoints\n"
-"                           GPX waypoints named like a station are occupations too\n"
-"  --min-common S           rovers without a base (leapfrog): two occupations by\n"
-"                           different rovers at once for at least S seconds give\n"
-"                           a height difference (default 120 s)\n"
-"  --weather-walk HPA       one rover without a base (loop): the weather's change\n"
-"                           as a random walk of HPA hPa per sqrt(hour), 1 sigma\n"
-"                           (default 0.6 hPa)\n"
+"\n", stdout);
+    hyp_settings_write_help(stdout, HYP_SCOPE_BIT(HYP_SCOPE_NETWORK));   /* from the library's catalogue */
+    fputs(
 "  bases, units, zones, column temperature, datums: the options of correct\n"
 "  (hypsolev correct --help), with the same names and meaning; each rover its\n"
 "  own units, fields, zone and clock with --rover FILE --rover-* as there\n"

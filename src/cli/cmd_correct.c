@@ -15,7 +15,6 @@ typedef struct args {
     hyp_report_info report_info;
     char *command_line;         /* for the HTML report */
     int progress;
-    char spool[4096];           /* the copy of a rover on standard input, "" for none */
 } args;
 
 enum { O_OUTDIR = CLI_OWN, O_TABLE, O_HELP, O_SUMMARY, O_PROGRESS, O_OVERWRITE, O_REPORT, O_REPORT_HTML };
@@ -46,34 +45,6 @@ static int own_option(void *ctx, int code, const char *arg)
     return EXIT_USAGE;
 }
 
-/* The command as typed, for the HTML report: words joined by spaces, a
- * word with anything but [A-Za-z0-9_./:,=+@%-] in it single-quoted as a
- * POSIX shell would need it. */
-
-/* --report-html names the reports of --out-dir only. */
-static int check_report_html(const args *a)
-{
-    if (a->out.report_html && !a->out.dir)
-        return cli_usage("correct", "--report-html names the reports of --out-dir (DIR/NAME.report.html); for one rover give --report FILE.html");
-    if (a->out.report_html && a->out.report)
-        return cli_usage("correct", "--report-html and --report both given; --report FILE.html alone chooses HTML");
-    return 0;
-}
-
-/* The text printed for a rover on standard input names it "stdin", not
- * its temporary copy (which is gone when the run ends). */
-static void emit_named(const args *a, const char *buf, size_t len)
-{
-    size_t sl = strlen(a->spool);
-    const char *p = buf, *end = buf + len, *hit;
-    while (sl && (hit = memmem(p, (size_t)(end - p), a->spool, sl))) {
-        cli_emit(p, (size_t)(hit - p));
-        cli_emit("stdin", 5);
-        p = hit + sl;
-    }
-    cli_emit(p, (size_t)(end - p));
-}
-
 /* Each rover as it ends: its messages and summary, whole. */
 static void rover_done(void *ctx, size_t i, const hyp_rover_run *run)
 {
@@ -89,25 +60,16 @@ static void rover_done(void *ctx, size_t i, const hyp_rover_run *run)
     }
     hyp_rover_run_write_text(f, run, parts);
     fclose(f);
-    emit_named(a, buf, len);
+    cli_emit(buf, len);
     free(buf);
-}
-
-/* The worse of two exit statuses: usage 2, then input 1, then a failed
- * test 3, then 0 (a run with an input error and a failed test exits 1). */
-static int worse(int a, int b)
-{
-    static const int rank[4] = {0, 2, 3, 1};   /* by status 0, 1, 2, 3 */
-    int ra = a >= 0 && a <= 3 ? rank[a] : 3, rb = b >= 0 && b <= 3 ? rank[b] : 3;
-    return rb > ra ? b : a;
 }
 
 static int run(args *a)
 {
     hyp_error err;
     hyp_survey *sv = NULL;
-    size_t n = a->c.rovers.n;
-    const char *const *rovers = (const char *const *)a->c.rovers.path;
+    size_t n = a->c.n_rovers;
+    const char *const *rovers = a->c.rovers;
     hyp_run_info *infos = NULL;
     cli_signals_catch();   /* before anything is read: a signal then still ends it in order */
     hyp_status st = cli_open_survey(&a->c, &sv, &err);
@@ -119,13 +81,12 @@ static int run(args *a)
     if (!st) {
         hyp_survey_run_many(sv, rovers, n, &a->out, a->c.jobs, rover_done, progress ? cli_progress : cli_progress_quiet,
                             a, infos, &err);
-        for (size_t i = 0; i < n; i++)
-            rc = worse(rc, hyp_run_exit_status(&infos[i]));
+        rc = hyp_batch_exit_status(infos, n);
         if (n > 1 && !a->c.quiet)
             hyp_batch_table_write(stderr, infos, n);
         if (a->summary_path && hyp_survey_write_summary(sv, a->summary_path, infos, n, &err)) {
             fprintf(stderr, "hypsolev: error: %s\n", err.message);
-            rc = worse(rc, EXIT_INPUT);
+            rc = rc == EXIT_USAGE ? rc : EXIT_INPUT;   /* as hyp_batch_exit_status ranks them */
         }
         rc = cli_signal() ? 128 + cli_signal() : rc;
     } else
@@ -137,61 +98,40 @@ static int run(args *a)
 
 /* A rover "-" is read from standard input: copied by the library into a
  * temporary file under TMPDIR (else /tmp), run as that file, and removed
- * after the run, whatever its end. One rover only, with -o (its output has
- * no name of its own). Returns 0, or the exit status of a refusal. */
-static int stdin_rover(args *a, char *spool, size_t n)
+ * with the setup, whatever the end of the run. A signal interrupts the
+ * read. Returns 0, or the exit status of a refusal. */
+static int stdin_rover(args *a)
 {
-    size_t k = 0;
-    while (k < a->c.rovers.n && strcmp(a->c.rovers.path[k], "-") != 0)
-        k++;
-    if (k == a->c.rovers.n)
+    if (!hyp_survey_setup_reads_stdin(a->c.setup))
         return 0;
-    if (a->c.rovers.n > 1)
-        return cli_usage("correct", "a rover from standard input (-) must be the only rover");
-    if (!a->out.gpx)
-        return cli_usage("correct", "a rover from standard input (-) needs -o FILE for its corrected GPX");
-    if (isatty(0))
-        return cli_usage("correct", "a rover from standard input (-): standard input is a terminal; pipe or redirect a log into it");
     hyp_error err;
     cli_signals_catch_reads();
-    hyp_status st = hyp_spool_stream(stdin, getenv("TMPDIR"), spool, n, &err);
-    if (st && cli_signal()) {   /* the copy is already removed */
+    hyp_status st = hyp_survey_setup_spool_stdin(a->c.setup, stdin, getenv("TMPDIR"), &a->out, &err);
+    if (st && st != HYP_ERR_USAGE && cli_signal()) {   /* the copy is already removed */
         fprintf(stderr, "hypsolev: stopped by a signal while reading standard input; nothing written\n");
         return 128 + cli_signal();
     }
-    if (st)
-        return cli_fail(&a->c, st, &err);
-    free(a->c.rovers.path[k]);
-    if (!(a->c.rovers.path[k] = strdup(spool))) {
-        hyp_spool_remove(spool);
-        spool[0] = '\0';
-        fprintf(stderr, "hypsolev: error: out of memory\n");
-        return EXIT_INPUT;
-    }
-    return 0;
+    return st ? cli_fail(&a->c, st, &err) : 0;
 }
 
 int cmd_correct(int argc, char **argv)
 {
     args a;
     memset(&a, 0, sizeof a);
-    cli_common_init(&a.c, "correct");
-    a.command_line = cli_join_command(argc, argv);
+    int rc = cli_common_init(&a.c, "correct");
+    a.command_line = hyp_command_line_join(argc, argv);
     a.report_info.tool = "hypsolev " HYPSOLEV_VERSION;
     a.report_info.command_line = a.command_line;
     a.out.report_info = &a.report_info;
-    int rc = cli_parse(&a.c, argc, argv, own, own_option, &a);
-    if (!rc && !a.c.n_bases && !a.c.base_dir)
+    if (!rc)
+        rc = cli_parse(&a.c, argc, argv, own, own_option, &a);
+    if (!rc && !hyp_survey_setup_has_bases(a.c.setup))
         rc = cli_usage("correct", "no --base or --base-dir given: a base station's pressure log is needed");
     if (!rc)
-        rc = check_report_html(&a);
-    if (!rc)
-        rc = stdin_rover(&a, a.spool, sizeof a.spool);
+        rc = stdin_rover(&a);
     if (!rc)
         rc = run(&a);
-    hyp_spool_remove(a.spool);
-    cli_files_free(&a.c.rovers);
-    free(a.c.rover_specs);
+    hyp_survey_setup_free(a.c.setup);
     free(a.command_line);
     return rc < 0 ? 0 : rc;
 }

@@ -1,4 +1,5 @@
-/* cmd_inspect.c - "hypsolev inspect": the quality of pressure logs. */
+/* cmd_inspect.c - "hypsolev inspect": the quality of pressure logs, read
+ * as the settings of correct say (by the library's names). */
 #define _POSIX_C_SOURCE 200809L
 #include "cli.h"
 #include "hypsolev/hypsolev.h"
@@ -37,63 +38,42 @@ static int inspect_one(const char *path, const hyp_read_opts *ro)
     return st ? EXIT_INPUT : 0;
 }
 
+/* The settings of correct that say how a log is read, by the library's
+ * names (settings.h), and --help. */
+static const char *const settings[] = {"pressure-unit", "temperature-unit", "pressure-field", "time-zone", "time-format"};
+
 int cmd_inspect(int argc, char **argv)
 {
-    static const struct option lo[] = {
-        {"pressure-unit", required_argument, 0, 'p'}, {"temperature-unit", required_argument, 0, 't'},
-        {"pressure-field", required_argument, 0, 'f'}, {"time-zone", required_argument, 0, 'z'},
-        {"help", no_argument, 0, 'h'}, {"time-format", required_argument, 0, 'F'}, {0, 0, 0, 0}};
-    hyp_read_opts ro;
-    hyp_read_opts_init(&ro);
+    struct option lo[7] = {{"help", no_argument, 0, 'h'}, {0, 0, 0, 0}};
+    for (int k = 0; k < 5; k++)
+        lo[k + 1] = (struct option){settings[k], required_argument, 0, 's'};
+    hyp_survey_opts so;
+    hyp_survey_opts_init(&so);
     hyp_zone z;
     hyp_zone_init(&z);
     const char *files[256];
-    int nf = 0, c, rc = 0;
+    int nf = 0, c, rc = 0, idx = -1;
+    hyp_error err;
     opterr = 0;
     optind = 1;
-    while ((c = getopt_long(argc, argv, "-:", lo, NULL)) != -1) {
-        hyp_error err;
-        switch (c) {
-        case 1:
-            if (nf < 256)
-                files[nf++] = optarg;
-            break;
-        case 'p':
-        case 't':
-            if (!(c == 'p' ? (ro.pressure_unit = hyp_unit_parse(HYP_Q_PRESSURE, optarg))
-                           : (ro.temperature_unit = hyp_unit_parse(HYP_Q_TEMPERATURE, optarg)))) {
-                fprintf(stderr, "hypsolev inspect: unit \"%s\" is unknown\n", optarg);
-                return EXIT_USAGE;
-            }
-            break;
-        case 'f': ro.pressure_field = optarg; break;
-        case 'z':
-            if (hyp_zone_parse(&z, optarg, NULL, &err)) {
-                fprintf(stderr, "hypsolev inspect: --time-zone: %s\n", err.message);
-                return EXIT_USAGE;
-            }
-            ro.zone = &z;
-            break;
-        case 'F': {
-            char why[160];
-            if (hyp_time_format_check(optarg, why, sizeof why)) {
-                fprintf(stderr, "hypsolev inspect: --time-format \"%s\" %s\n", optarg, why);
-                return EXIT_USAGE;
-            }
-            ro.time_format = optarg;
-            break;
-        }
-        case 'h': help(); return 0;
-        default:
+    while ((c = getopt_long(argc, argv, "-:", lo, &idx)) != -1) {
+        if (c == 1 && nf < 256)
+            files[nf++] = optarg;
+        else if (c == 's' && hyp_survey_opts_set(&so, lo[idx].name, optarg, &err))
+            return cli_usage("inspect", "--%s", err.message);
+        else if (c == 'h')
+            return help(), 0;
+        else if (c != 1 && c != 's')
             return cli_bad_option("inspect", argv[optind - 1], optopt, c == ':');
-        }
+        idx = -1;
     }
-    if (!nf) {
-        fprintf(stderr, "hypsolev inspect: no file given\n(hypsolev inspect --help lists the options)\n");
-        return EXIT_USAGE;
-    }
+    if (so.rover_time_zone && hyp_zone_parse(&z, so.rover_time_zone, NULL, &err))
+        return cli_usage("inspect", "--time-zone: %s", err.message);
+    if (!nf)
+        return cli_usage("inspect", "no file given");
+    so.read.zone = so.rover_time_zone ? &z : NULL;
     for (int i = 0; i < nf; i++) {
-        int r = inspect_one(files[i], &ro);
+        int r = inspect_one(files[i], &so.read);
         if (r > rc)
             rc = r;
     }

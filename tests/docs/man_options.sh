@@ -8,12 +8,13 @@
 set -euo pipefail
 src=$1
 page=$src/docs/hypsolev.1
-# entries written out, or through the table's SET/FLAG/BASE("name") macros
+# entries written out, through the table's SET/FLAG/BASE("name") macros, or
+# the settings catalogue's V("name", and F("name", (src/settings.c)
 opts_of() {
-    grep -oE '\{"[a-z][a-z0-9-]*", *(required|no|optional)_argument|\b(SET|FLAG|BASE)\("[a-z][a-z0-9-]*"\)' "$@" |
+    grep -oE '\{"[a-z][a-z0-9-]*", *(required|no|optional)_argument|\b(SET|FLAG|BASE)\("[a-z][a-z0-9-]*"\)|\b[VF]\("[a-z][a-z0-9-]*",' "$@" |
         sed -E 's/^[^"]*"([^"]*)".*/--\1/'
 }
-correct=$(opts_of "$src/src/cli/cmd_correct.c" "$src/src/cli/options.c" | sort -u)
+correct=$(opts_of "$src/src/cli/cmd_correct.c" "$src/src/cli/options.c" "$src/src/settings.c" | sort -u)
 # a pattern that stopped matching would make the check pass on nothing
 [ "$(wc -l <<<"$correct")" -ge 20 ] || { echo "man_options: found only: $correct in cmd_correct.c and options.c; have the option tables changed shape?" >&2; exit 1; }
 program=$( { echo "$correct"
