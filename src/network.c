@@ -80,7 +80,7 @@ double hyp__net_bridge_s(const hyp__net *N, size_t k, double t, hyp_obs_kind kin
     int any = 0;
     for (size_t i = 0; i < N->r->n_obs; i++) {
         const hyp_network_obs *o = &N->r->obs[i];
-        if (o->kind != kind || (o->track != k && (kind != HYP_OBS_SIDE_BY_SIDE || o->track2 != k)))
+        if (o->kind != kind || o->flag[0] || (o->track != k && (kind != HYP_OBS_SIDE_BY_SIDE || o->track2 != k)))
             continue;
         double m = 0.5 * (o->start_s + o->end_s);
         any = 1;
@@ -96,6 +96,46 @@ double hyp__net_bridge_s(const hyp__net *N, size_t k, double t, hyp_obs_kind kin
     if (isinf(hi))
         return t - lo;
     return hi > lo ? (t - lo) * (hi - t) / (hi - lo) : 0.0;
+}
+
+/* A field-book window on a station too far from where the track's positions
+ * put the rover beside the base: the positions (a frozen or stale fix) and
+ * the book disagree. The book is used, as where the found standing disagrees
+ * with it (network_occupations.c), and the co-location it contradicts is
+ * left out: otherwise every booking inside it would be dropped as "beside
+ * the base" and hours of walking averaged into one co-location. Farther
+ * than the tie radius (how far from the base a co-location is found) plus
+ * the occupation radius, the booked station cannot be the base's mark
+ * (geometry of the two radii; no source needed). */
+static void book_over_colocation(hyp__net *N, size_t k, const hyp_rover_run *run, const hyp__window *win)
+{
+    const hyp_benchmarks *st = &N->r->stations;
+    double lim = N->sv->copts.tie_radius_m + N->o->occ_radius_m;
+    for (size_t j = 0; j < run->result.n_calibs; j++) {
+        const hyp_calib *c = &run->result.calibs[j];
+        if (c->kind != HYP_CAL_BASE || !(c->start_s < win->t1 && win->t0 < c->end_s))
+            continue;
+        double d = hyp_geo_distance_m(st->lat_deg[win->station], st->lon_deg[win->station], c->lat_deg, c->lon_deg);
+        if (!(d > lim))
+            continue;
+        for (size_t i = 0; i < N->r->n_obs; i++) {
+            hyp_network_obs *co = &N->r->obs[i];
+            if (co->kind != HYP_OBS_COLOCATION || co->track != k || co->flag[0] || co->start_s != c->start_s ||
+                co->end_s != c->end_s)
+                continue;
+            char a[32], b[32];
+            hyp_time_format(co->start_s, a, sizeof a);
+            hyp_time_format(co->end_s, b, sizeof b);
+            hyp_msgs_add_at(&N->r->msgs, HYP_WARNING, "input", N->o->fieldbook_path, win->line,
+                            "%s: the book has %s, %.0f m from where the track's positions put the rover beside the "
+                            "base from %s to %s; the book is used and that co-location is not",
+                            N->r->tracks[k].name, st->name[win->station], d, a, b);
+            snprintf(co->flag, sizeof co->flag, "not used: the field book (line %u) puts the rover on %s, %.0f m "
+                     "away, within this window", win->line, st->name[win->station], d);
+            if (N->r->tracks[k].colocations)
+                N->r->tracks[k].colocations--;
+        }
+    }
 }
 
 /* One occupation's observation from the corrected samples in its window:
@@ -137,11 +177,13 @@ hyp_status hyp__net_occupation(hyp__net *N, size_t k, const hyp_rover_run *run, 
         snprintf(o->flag, sizeof o->flag, "not used: %zu corrected samples in the window (3 needed)", n);
         return HYP_OK;
     }
+    if (win->source == HYP_OCC_BOOK)
+        book_over_colocation(N, k, run, win);
     /* beside the base the samples already observe the offset (a
      * co-location): used twice they would count as independent evidence */
     for (size_t j = 0; j + 1 < N->r->n_obs; j++) {
         const hyp_network_obs *co = &N->r->obs[j];
-        if (co->kind == HYP_OBS_COLOCATION && co->track == k && co->start_s < win->t1 && win->t0 < co->end_s) {
+        if (co->kind == HYP_OBS_COLOCATION && !co->flag[0] && co->track == k && co->start_s < win->t1 && win->t0 < co->end_s) {
             snprintf(o->flag, sizeof o->flag, "not used: the rover stood beside the base then (a co-location uses "
                      "these samples)");
             return HYP_OK;
@@ -281,7 +323,7 @@ static hyp_status check_inputs(hyp__net *N, hyp_error *err)
             if (o->station2 != SIZE_MAX)
                 occ[o->station2] = 1;
         }
-        colocs += o->kind == HYP_OBS_COLOCATION;
+        colocs += o->kind == HYP_OBS_COLOCATION && !o->flag[0];
     }
     for (size_t s = 0; s < r->stations.count; s++) {
         if (!occ[s])
