@@ -269,6 +269,13 @@ static hyp_status bm_row(table *t, const int *c, double default_sigma_m, int nee
     if (!st) st = field_number(t, c[4], "sigma", 0, 100, 0, &sig, err);
     if (st)
         return st;
+    /* a zero sigma would be an infinite weight: the adjustment replaced it
+     * with the default without a word, the output showing a sigma nobody
+     * gave; a published height always has one */
+    if (sig == 0 && h == h)
+        return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: sigma of \"%s\" is 0 m: a known height is never exact; "
+                             "give its published sigma (m), or leave the field empty for the default (%g m)",
+                             t->path, t->lr.lineno, name, default_sigma_m);
     if (sig != sig)
         sig = default_sigma_m;
     if (h != h)
