@@ -12,6 +12,8 @@
 #include <stdlib.h>
 #include <string.h>
 #include <strings.h>
+#include <stdio.h>
+#include <sys/stat.h>
 
 #define FLOOR_PA 1.0   /* unresolved micro-pressure changes in a co-location, as
                           the drift fit's (drift.c); common practice, no source */
@@ -265,6 +267,48 @@ static hyp_status run_track(hyp__net *N, size_t k, int threads, hyp_error *err)
     return st;
 }
 
+/* 1 when the files at a and b hold the same bytes, 0 when not or when one
+ * cannot be read (its reader says why later). */
+static int same_bytes(const char *a, const char *b)
+{
+    FILE *fa = fopen(a, "rb"), *fb = fopen(b, "rb");
+    int same = fa && fb;
+    char ba[8192], bb[8192];
+    while (same) {
+        size_t na = fread(ba, 1, sizeof ba, fa), nb = fread(bb, 1, sizeof bb, fb);
+        if (na != nb || memcmp(ba, bb, na))
+            same = 0;
+        else if (na < sizeof ba)
+            break;
+    }
+    if (fa)
+        fclose(fa);
+    if (fb)
+        fclose(fb);
+    return same;
+}
+
+/* One logger's file given twice under two names: its readings would enter
+ * as two instruments' (side by side, legs, occupations twice) and every
+ * sigma shrink by about 1/sqrt(2) on no new evidence. Files of different
+ * sizes are told apart without reading them. */
+static hyp_status same_files(const char *const *rovers, size_t n, hyp_error *err)
+{
+    for (size_t k = 0; k < n; k++) {
+        struct stat sk;
+        if (stat(rovers[k], &sk))
+            continue;
+        for (size_t j = 0; j < k; j++) {
+            struct stat sj;
+            if (!stat(rovers[j], &sj) && sj.st_size == sk.st_size && same_bytes(rovers[j], rovers[k]))
+                return hyp_error_set(err, HYP_ERR_USAGE, "%s and %s hold the same data byte for byte: one logger's "
+                                     "file given twice would count its readings as two instruments' and shrink the "
+                                     "sigmas; give it once", rovers[j], rovers[k]);
+        }
+    }
+    return HYP_OK;
+}
+
 static hyp_status open_result(hyp__net *N, const char *const *rovers, size_t n, hyp_error *err)
 {
     hyp_network_result *r = N->r;
@@ -291,7 +335,8 @@ static hyp_status open_result(hyp__net *N, const char *const *rovers, size_t n, 
                 return hyp_error_set(err, HYP_ERR_USAGE, "%s and %s have one name (%s): the field book could not tell "
                                      "them apart; rename one", rovers[j], rovers[k], r->tracks[k].name);
     }
-    if (N->o->fieldbook_path) {
+    st = same_files(rovers, n, err);
+    if (!st && N->o->fieldbook_path) {
         st = hyp_fieldbook_read(N->o->fieldbook_path, &N->sv->rover_zone, &r->stations, &N->book, &N->n_book, err);
         if (!st && !(N->book_matched = calloc(N->n_book ? N->n_book : 1, 1)))
             st = hyp_error_set(err, HYP_ERR_NOMEM, "out of memory");
