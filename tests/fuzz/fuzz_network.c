@@ -12,9 +12,13 @@
 #include "hypsolev/hypsolev.h"
 
 #include <ctype.h>
+#include <dirent.h>
+#include <errno.h>
+#include <signal.h>
 #include <stdlib.h>
 #include <string.h>
 #include <strings.h>
+#include <sys/stat.h>
 
 static char dir[64];
 static const uint8_t *in_data;   /* the current input, for has_nan_inf */
@@ -76,15 +80,46 @@ static int write_log(const char *path, int t0, int t1, double hpa)
     return fclose(f);
 }
 
+/* Removes the scratch folder of process pid (its three logs). */
+static void remove_dir(long pid)
+{
+    static const char *const f[3] = {"ra.csv", "rb.csv", "base.csv"};
+    char p[128];
+    for (int k = 0; k < 3; k++) {
+        snprintf(p, sizeof p, "/tmp/fuzz-network-%ld/%s", pid, f[k]);
+        unlink(p);
+    }
+    snprintf(p, sizeof p, "/tmp/fuzz-network-%ld", pid);
+    rmdir(p);
+}
+
+static void remove_own_dir(void)
+{
+    remove_dir((long)getpid());
+}
+
+/* The scratch folder is /tmp/fuzz-network-PID, removed at exit; those of
+ * processes gone without exiting (killed, crashed) are removed here. */
 static int setup(void)
 {
     static int done = 0, ok = 0;
     if (done)
         return ok;
     done = 1;
-    snprintf(dir, sizeof dir, "/tmp/fuzz-network-XXXXXX");
-    if (!mkdtemp(dir))
+    DIR *d = opendir("/tmp");
+    struct dirent *e;
+    while (d && (e = readdir(d))) {
+        char *end;
+        long pid = strncmp(e->d_name, "fuzz-network-", 13) == 0 ? strtol(e->d_name + 13, &end, 10) : 0;
+        if (pid > 0 && !*end && kill((pid_t)pid, 0) != 0 && errno == ESRCH)
+            remove_dir(pid);
+    }
+    if (d)
+        closedir(d);
+    snprintf(dir, sizeof dir, "/tmp/fuzz-network-%ld", (long)getpid());
+    if (mkdir(dir, 0700) != 0)
         return 0;
+    atexit(remove_own_dir);
     snprintf(path_ra, sizeof path_ra, "%s/ra.csv", dir);
     snprintf(path_rb, sizeof path_rb, "%s/rb.csv", dir);
     snprintf(path_base, sizeof path_base, "%s/base.csv", dir);
