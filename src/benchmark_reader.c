@@ -180,6 +180,27 @@ static void field_text(const table *t, int i, char *buf, size_t n)
         buf[--len] = '\0';
 }
 
+/* The length of field i as field_text gives it whole (trailing blanks and
+ * \r dropped): field_text cuts a longer one at its buffer, which would
+ * silently change a name, or leave a valid time from a longer field. */
+static size_t field_len(const table *t, int i)
+{
+    size_t len = i >= 0 && i < t->nf ? t->f[i].len : 0;
+    while (len && (t->f[i].s[len - 1] == ' ' || t->f[i].s[len - 1] == '\r'))
+        len--;
+    return len;
+}
+
+/* HYP_ERR_VALUE naming the field when it does not fit n bytes with its NUL. */
+static hyp_status field_fits(const table *t, int i, const char *what, size_t n, hyp_error *err)
+{
+    size_t len = field_len(t, i);
+    if (len < n)
+        return HYP_OK;
+    return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: %s \"%.24s...\" is %zu bytes long; expected at most %zu", t->path,
+                         t->lr.lineno, what, t->f[i].s, len, n - 1);
+}
+
 static hyp_status field_number(const table *t, int i, const char *what, double lo, double hi, int required,
                                double *v, hyp_error *err)
 {
@@ -257,6 +278,9 @@ static hyp_status bm_row(table *t, const int *c, double default_sigma_m, int nee
     char name[64], note[256];
     field_text(t, c[0], name, sizeof name);
     field_text(t, c[5], note, sizeof note);
+    hyp_status fs = field_fits(t, c[0], "name", sizeof name, err);   /* a note may be cut */
+    if (fs)
+        return fs;
     if (!name[0])
         return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: name is empty", t->path, t->lr.lineno);
     if (set_find(seen, out, name) >= 0)
@@ -399,6 +423,15 @@ static hyp_status book_row(table *t, const int *c, const rows_ctx *x, void *elem
     field_text(t, c[2], a, sizeof a);
     field_text(t, c[3], b, sizeof b);
     e->line = t->lr.lineno;
+    hyp_status fs = field_fits(t, c[0], "station", sizeof e->station, err);
+    if (!fs)
+        fs = field_fits(t, c[1], "rover", sizeof e->rover, err);
+    if (!fs)
+        fs = field_fits(t, c[2], "start", sizeof a, err);
+    if (!fs)
+        fs = field_fits(t, c[3], "end", sizeof b, err);
+    if (fs)
+        return fs;
     if (!e->station[0])
         return hyp_error_set(err, HYP_ERR_VALUE, "%s:%u: station is empty", t->path, t->lr.lineno);
     if (hyp_benchmarks_find(st, e->station) < 0)

@@ -220,7 +220,8 @@ hyp_status hyp__net_windows(hyp__net *N, size_t k, const hyp_series *s, const hy
         free(out.w);
         return rc;
     }
-    qsort(out.w, out.n, sizeof *out.w, cmp_win);
+    if (out.n)   /* none (no window falls in the track): out.w is NULL, which qsort may not take */
+        qsort(out.w, out.n, sizeof *out.w, cmp_win);
     *wout = out.w;
     *nout = out.n;
     return HYP_OK;

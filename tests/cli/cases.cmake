@@ -377,3 +377,11 @@ hyp_cli_case(base_dir_time_format_bad 1 "basedir_bad_format/bases.csv:3: time_fo
 # folder with no log and a pattern matching nothing are errors naming them
 hyp_cli_case(rovers_empty_folder 1 "cli/rovers_empty_folder: a folder with no .gpx or .csv file" correct @OUT@ ${B} -o @OUT@/x.gpx)
 hyp_cli_case(rovers_pattern_no_match 1 "rovers_pattern_no_match/\\*.zzz: no file matches" correct @OUT@/*.zzz ${B} -o @OUT@/x.gpx)
+# a field book none of whose windows falls in a track (fuzz_network found
+# the empty window list sorted through a NULL pointer: UB; the input is
+# tests/fuzz/regress/network/book-outside-tracks.csv)
+hyp_cli_case(adjust_book_all_outside 0 "book_all_outside.csv:2: the window on BM-1 lies outside the track rover.*book_all_outside.csv:3: the window on BM-2 lies outside.*station BM-1: occupied by no rover.*2 stations in the file, 0 solved" adjust @DATA@/rover.gpx ${B} --stations @DATA@/benchmarks.csv --occupations @DATA@/adjust/book_all_outside.csv --no-find-occupations -o @OUT@/st.csv)
+# a name or time longer than its field is refused, not cut short (a cut
+# name would no longer be the one given; a cut time could read as valid)
+hyp_cli_case(adjust_station_name_too_long 1 "stations_long_name.csv:3: name \"BM-1-the-bolt-on-the-nor...\" is 67 bytes long; expected at most 63" adjust @DATA@/rover.gpx ${B} --stations @DATA@/adjust/stations_long_name.csv -o @OUT@/st.csv)
+hyp_cli_case(adjust_book_time_too_long 1 "book_long_time.csv:3: start \"2026-06-18T07:20:00Z    ...\" is 105 bytes long; expected at most 95" ${A} --occupations @DATA@/adjust/book_long_time.csv)

@@ -9,7 +9,7 @@ cd "$(dirname "$0")/../.."
 CC=clang cmake -S . -B build-fuzz -DHYP_FUZZ=ON -DHYP_TESTS=OFF -DCMAKE_BUILD_TYPE=RelWithDebInfo > /dev/null
 cmake --build build-fuzz -j2 > /dev/null
 mkdir -p build-fuzz/crashes
-for h in gpx csv time benchmarks tzif; do
+for h in gpx csv time benchmarks tzif network; do
   work=$(mktemp -d)
   cp tests/fuzz/corpus/$h/* "$work"/
   [ -d tests/fuzz/regress/$h ] && cp tests/fuzz/regress/$h/* "$work"/ 2>/dev/null || true
@@ -23,4 +23,4 @@ for h in gpx csv time benchmarks tzif; do
   grep -E '^Done' build-fuzz/fuzz_$h.log || true
   rm -rf "$work"
 done
-echo "fuzzing: 5 passed, 0 failed"
+echo "fuzzing: 6 passed, 0 failed"
